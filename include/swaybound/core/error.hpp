@@ -1,0 +1,66 @@
+#pragma once
+// One exception hierarchy for the whole tool, rooted at swaybound::Error.
+//   SpecError   bad input at the loading edge: every problem found, each with file:line:column.
+//   RunError    a run that cannot go on for a reason outside the input (I/O, resources).
+// Argument checks use SWAYBOUND_REQUIRE, which is never compiled out and prints the values.
+#include <stdexcept>
+#include <string>
+#include <vector>
+
+#include <fmt/format.h>
+
+namespace swaybound {
+
+class Error : public std::runtime_error {
+ public:
+  using std::runtime_error::runtime_error;
+};
+
+/// Position in a source file, 1-based; line 0 means "the file as a whole".
+struct Mark {
+  int line = 0;
+  int column = 0;
+};
+
+/// One problem in a spec: where it is, which key, what is wrong and what is allowed.
+struct Diagnostic {
+  Mark mark;
+  std::string path;     ///< key path, e.g. links[2].pivot.damper.exponent
+  std::string message;  ///< what is wrong, with the offending value
+  std::string fix;      ///< what is allowed / how to fix it
+};
+
+class SpecError : public Error {
+ public:
+  SpecError(std::string file, std::vector<Diagnostic> diagnostics);
+  const std::string& file() const { return file_; }
+  const std::vector<Diagnostic>& diagnostics() const { return diagnostics_; }
+  /// "file:line:col: path: message (fix)" for one diagnostic.
+  static std::string format(const std::string& file, const Diagnostic& d);
+
+ private:
+  std::string file_;
+  std::vector<Diagnostic> diagnostics_;
+};
+
+class RunError : public Error {
+ public:
+  using Error::Error;
+};
+
+/// Thrown by SWAYBOUND_REQUIRE: a violated precondition of a library call.
+class ArgumentError : public Error {
+ public:
+  using Error::Error;
+};
+
+}  // namespace swaybound
+
+/// Precondition check that is never compiled out; `...` is a fmt message naming the values.
+#define SWAYBOUND_REQUIRE(cond, ...)                                                      \
+  do {                                                                                    \
+    if (!(cond))                                                                          \
+      throw ::swaybound::ArgumentError(fmt::format("{}:{}: requirement '{}' failed: {}", \
+                                                   __FILE__, __LINE__, #cond,             \
+                                                   fmt::format(__VA_ARGS__)));            \
+  } while (false)

@@ -1,0 +1,36 @@
+#pragma once
+// Loading and validating a design spec. Every problem in the file is collected and thrown at once
+// as a SpecError, each with file:line:column, the key path, what is wrong and what is allowed.
+#include <string>
+#include <string_view>
+
+#include "swaybound/spec/spec.hpp"
+
+namespace swaybound {
+
+/// Documented caps on input size (specs/README.md, "Limits of the loader").
+inline constexpr long kDefaultMaxCases = 20'000;       ///< per check run; lifted with --max-cases
+inline constexpr std::size_t kMaxSpecBytes = 4u << 20; ///< 4 MiB: a design spec is a few kB
+inline constexpr int kMaxLinks = 100;
+
+struct LoadOptions {
+  long max_cases = kDefaultMaxCases;  ///< the case cap; a larger case set is an error
+};
+
+/// Reads and validates the spec at `path`. Throws SpecError (bad content) or SpecError with line 0
+/// (file cannot be read, too large, not UTF-8, not YAML).
+Spec load_spec(const std::string& path, const LoadOptions& options = {});
+
+/// Same, from text in memory; `file_label` names it in diagnostics.
+Spec load_spec_text(std::string_view text, const std::string& file_label,
+                    const LoadOptions& options = {});
+
+/// Number of starts an initial-condition set produces (before crossing with scenarios).
+long initial_set_size(const InitialSetSpec& set);
+/// Total cases of a spec: sum of initial-set sizes times the number of base scenarios.
+long case_count(const Spec& spec);
+
+/// The normalised spec as YAML in SI, with a comment on every value that came from a default.
+std::string normalised_yaml(const Spec& spec);
+
+}  // namespace swaybound

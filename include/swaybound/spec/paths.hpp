@@ -1,0 +1,37 @@
+#pragma once
+// Addresses of numeric values in a spec, as used by sizing variables:
+//   links[NAME].length | mass | com | inertia
+//   links[NAME].pivot.damper.coefficient | exponent | max_torque
+//   links[NAME].pivot.friction.torque | pin_radius | mu
+//   dashpots[NAME].coefficient
+#include <optional>
+#include <string>
+#include <string_view>
+
+#include "swaybound/core/units.hpp"
+#include "swaybound/spec/spec.hpp"
+
+namespace swaybound {
+
+struct SpecPath {
+  enum class Field {
+    length, mass, com, inertia,
+    damper_coefficient, damper_exponent, damper_max_torque,
+    friction_torque, friction_pin_radius, friction_mu,
+    dashpot_coefficient,
+  };
+  Field field{};
+  int index = 0;  ///< link or dashpot index
+};
+
+/// Parses `text` against `spec`; on failure returns nullopt and a sentence in `error`.
+std::optional<SpecPath> parse_spec_path(const Spec& spec, std::string_view text, std::string& error);
+/// Dimension of the value a path addresses.
+units::Dim spec_path_dim(const SpecPath& path);
+/// Lower bound of the value's allowed range (e.g. mass > 0), used to check sizing ranges.
+double spec_path_lower_bound(const SpecPath& path, bool& open);
+/// Reads / writes the addressed value. Writing a com or inertia marks it as given.
+double get_spec_value(const Spec& spec, const SpecPath& path);
+void set_spec_value(Spec& spec, const SpecPath& path, double value);
+
+}  // namespace swaybound

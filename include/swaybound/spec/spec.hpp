@@ -1,0 +1,213 @@
+#pragma once
+// Plain structs of a design spec, all in SI (angles in rad). Built and validated by the loader
+// (spec/loader.hpp); nothing past the loader sees YAML or units. `specs/README.md` is the
+// reference for every key, its unit, default and allowed range.
+#include <cstdint>
+#include <limits>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "swaybound/core/error.hpp"
+
+namespace swaybound {
+
+inline constexpr int kSpecFormatVersion = 1;
+
+enum class LinkKind { rigid, rope };
+
+/// Power-law rotary damper at a pivot: tau = -C w_ref (|w|/w_ref)^alpha sign(w), w_ref = 1 rad/s,
+/// so C is the torque per unit rate at 1 rad/s for every alpha (alpha = 1 is a linear damper).
+struct DamperSpec {
+  double coefficient = 0;     ///< C [N m s/rad]
+  double exponent = 1;        ///< alpha in (0, 2]
+  double max_torque = std::numeric_limits<double>::infinity();  ///< saturation [N m]
+  double linear_below = 1e-3; ///< below this |w| [rad/s] the law is linear (see dynamics docs)
+};
+
+/// Friction at a pivot: constant Coulomb torque plus load-dependent pin friction
+/// mu * pin_radius * |pivot reaction|, both regularised with tanh(w / transition_rate).
+struct FrictionSpec {
+  double torque = 0;            ///< constant Coulomb torque [N m]
+  double pin_radius = 0;        ///< [m]
+  double mu = 0;                ///< pin friction coefficient [-]
+  double transition_rate = 0.01;///< regularisation rate [rad/s]
+};
+
+struct PivotSpec {
+  std::optional<FrictionSpec> friction;
+  std::optional<DamperSpec> damper;
+};
+
+struct LinkSpec {
+  std::string name;
+  LinkKind kind = LinkKind::rigid;
+  double length = 0;   ///< upper pivot to lower pivot [m]
+  double mass = 0;     ///< [kg]
+  double com = 0;      ///< centre of mass from the upper pivot, along the link [m]
+  double inertia = 0;  ///< about the centre of mass [kg m^2]
+  bool com_given = false, inertia_given = false;
+  PivotSpec pivot;     ///< the pivot at the link's upper end
+  Mark mark;
+};
+
+/// Where a dashpot end is attached: a point on a link (distance from its upper pivot along the
+/// link) or a point fixed to the moving base (offset from the top pivot, x right, y up).
+struct AttachmentSpec {
+  int link = -1;        ///< link index, or -1 for the base
+  double at = 0;        ///< [m] along the link
+  double base_x = 0, base_y = 0;  ///< [m] offset on the base
+};
+
+/// Linear axial dashpot between two attachment points: F = -c (d/dt distance) along the line.
+struct DashpotSpec {
+  std::string name;
+  AttachmentSpec from, to;
+  double coefficient = 0;  ///< [N s/m]
+  Mark mark;
+};
+
+/// Quadratic drag on a point of a link from a horizontal wind:
+/// F = 1/2 rho Cd A |u - v| (u - v), u = (speed + gust, 0).
+struct WindSpec {
+  int link = 0;
+  double at = 0;               ///< point on the link [m] from its upper pivot (default: com)
+  bool at_given = false;
+  double speed = 0;            ///< steady wind [m/s], + is towards +x
+  double drag_area = 0;        ///< A [m^2]
+  double drag_coefficient = 0; ///< Cd [-]
+  double air_density = 1.225;  ///< rho [kg/m^3] (ISO 2533 standard sea-level air)
+  struct Gust {
+    double start = 0, duration = 0, speed = 0;  ///< [s], [s], extra speed [m/s]
+  };
+  std::optional<Gust> gust;
+  Mark mark;
+};
+
+/// One segment of piecewise-constant base (top pivot) acceleration.
+struct AccelSegment {
+  double duration = 0;  ///< [s]
+  double ax = 0, ay = 0;///< [m/s^2]
+};
+
+struct ScenarioSpec {
+  std::string name;
+  double initial_vx = 0, initial_vy = 0;  ///< base velocity at t = 0 [m/s]
+  std::vector<AccelSegment> accel;        ///< after the last segment the base acceleration is 0
+  Mark mark;
+};
+
+/// A range per link for an initial-condition set; `count` is only used by grids.
+struct Range {
+  double lo = 0, hi = 0;
+  int count = 1;
+};
+
+enum class InitialKind { single, grid, random, corners, ladder };
+enum class SamplingMethod { uniform, latin_hypercube };
+
+/// One initial-condition set. Angles are absolute link angles [rad], rates [rad/s]; a link not
+/// listed starts at 0. For a ladder, `theta`/`rate` hold the base start and `steps` the
+/// perturbations applied to `perturb_link`'s angle.
+struct InitialSetSpec {
+  InitialKind kind = InitialKind::single;
+  std::string name;                ///< label used in case ids (defaults to the kind)
+  std::vector<Range> theta, rate;  ///< per link (single and ladder use lo only)
+  int count = 0;                   ///< random
+  std::uint64_t seed = 0;          ///< random
+  SamplingMethod method = SamplingMethod::uniform;
+  std::vector<double> steps;       ///< ladder perturbations
+  bool relative = true;            ///< ladder: steps relative to the base angle, else absolute [rad]
+  int perturb_link = 0;            ///< ladder
+  Mark mark;
+};
+
+struct CasesSpec {
+  double duration = 0;            ///< [s]
+  double output_rate = 50;        ///< samples per second for recorded time series [1/s]
+  std::vector<InitialSetSpec> initial;
+  Mark mark;
+};
+
+enum class LimitKind {
+  peak_angle,        ///< |theta_link| [rad]
+  relative_angle,    ///< |theta_link - theta_above| at the link's upper pivot [rad]
+  peak_rate,         ///< |omega_link| [rad/s]
+  pivot_load,        ///< |reaction| at the link's upper pivot [N]
+  dynamic_factor,    ///< peak / static pivot load [-]
+  rope_tension_min,  ///< lowest rope tension [N] (lower bound)
+  residual_sway,     ///< largest |theta| after `after` [rad]
+  ftle_max,          ///< largest finite-time Lyapunov exponent over `horizon` [1/s]
+  modal_damping_min, ///< least modal damping ratio [-] (lower bound)
+};
+
+struct LimitSpec {
+  LimitKind kind{};
+  std::string key;      ///< the key as written, e.g. "peak_angle"
+  double value = 0;     ///< SI
+  int link = -1;        ///< -1: every link the limit applies to
+  double after = 0;     ///< residual_sway [s]
+  double horizon = 0;   ///< ftle_max [s]
+  Mark mark;
+};
+
+enum class Objective { min_cost, min_metric, max_margin };
+enum class SearchMode { local, global };
+
+struct SizingVariableSpec {
+  std::string path;       ///< as written: links[hook].pivot.damper.coefficient
+  double lo = 0, hi = 0;  ///< SI
+  double cost = 1;        ///< weight per SI unit of the variable
+  std::vector<double> catalogue;  ///< allowed values (SI); empty = continuous
+  Mark mark;
+};
+
+struct SizingSpec {
+  std::vector<SizingVariableSpec> variables;
+  Objective objective = Objective::min_cost;
+  std::string metric;      ///< min_metric: the limit key whose worst value is minimised
+  int metric_link = -1;
+  int max_evaluations = 300;
+  double max_seconds = 600;
+  std::uint64_t seed = 1;
+  SearchMode mode = SearchMode::local;
+  Mark mark;
+};
+
+enum class Stepper { dopri5, rkf78 };
+
+struct SolverSpec {
+  Stepper method = Stepper::dopri5;
+  double rtol = 1e-8, atol = 1e-10;
+  long max_steps = 2'000'000;  ///< per case
+  double min_step = 1e-12;     ///< [s] a step below this is a step-size collapse
+  double max_seconds = 60;     ///< wall-clock budget per case [s]
+};
+
+enum class Paper { a4, letter };
+
+struct ReportSpec {
+  std::string title, project, revision, prepared_by;
+  Paper paper = Paper::a4;
+};
+
+struct Spec {
+  int version = kSpecFormatVersion;
+  std::string name;
+  std::string source_file;   ///< the path the spec was read from
+  double gravity = 9.80665;  ///< [m/s^2] standard gravity (CGPM 1901), default
+  std::vector<LinkSpec> links;
+  std::vector<DashpotSpec> dashpots;
+  std::vector<WindSpec> wind;
+  std::vector<ScenarioSpec> scenarios;  ///< never empty after loading ("still" when none given)
+  CasesSpec cases;
+  std::vector<LimitSpec> limits;
+  std::optional<SizingSpec> sizing;
+  SolverSpec solver;
+  ReportSpec report;
+  std::vector<std::string> defaults_filled;  ///< key paths whose value came from a default
+
+  int link_index(const std::string& link_name) const;  ///< -1 if absent
+};
+
+}  // namespace swaybound

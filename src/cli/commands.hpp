@@ -1,0 +1,18 @@
+#pragma once
+// The command-line front end: one function per subcommand, each registering its options on the
+// CLI11 app and returning the action to run. Exit status: 0 pass, 1 a check fails, 2 input/run error.
+#include <functional>
+
+#include <CLI/CLI.hpp>
+
+namespace swaybound::cli {
+
+inline constexpr int kExitPass = 0;
+inline constexpr int kExitFail = 1;
+inline constexpr int kExitError = 2;
+
+using Action = std::function<int()>;
+
+Action add_validate(CLI::App& app);
+
+}  // namespace swaybound::cli

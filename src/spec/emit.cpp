@@ -1,0 +1,301 @@
+// The normalised spec: every value in SI, with its unit and whether it came from a default.
+#include <algorithm>
+#include <cmath>
+
+#include <fmt/format.h>
+#include <yaml-cpp/yaml.h>
+
+#include "swaybound/spec/loader.hpp"
+#include "swaybound/spec/paths.hpp"
+
+namespace swaybound {
+
+namespace {
+namespace u = units;
+
+class Writer {
+ public:
+  explicit Writer(const Spec& spec) : spec_(spec) {}
+  YAML::Emitter out;
+
+  void begin(const std::string& key) {
+    path_.push_back(key);
+    out << YAML::Key << key << YAML::Value << YAML::BeginMap;
+  }
+  void end() {
+    out << YAML::EndMap;
+    path_.pop_back();
+  }
+  void value(const std::string& key, double v, const u::Dim& dim) {
+    out << YAML::Key << key << YAML::Value;
+    if (std::isinf(v))
+      out << ".inf";
+    else
+      out << fmt::format("{:.12g}", v);
+    std::string note = u::si_unit(dim);
+    if (is_default(key)) note += note.empty() ? "default" : ", default";
+    if (!note.empty()) out << YAML::Comment(note);
+  }
+  void value_unless_inf(const std::string& key, double v, const u::Dim& dim) {
+    if (std::isinf(v))
+      out << YAML::Comment(key + ": none");
+    else
+      value(key, v, dim);
+  }
+  void text(const std::string& key, const std::string& v) {
+    out << YAML::Key << key << YAML::Value << v;
+    if (is_default(key)) out << YAML::Comment("default");
+  }
+  /// Sets the key path that `is_default` compares against, e.g. "links[0]".
+  void at(std::string path) { path_ = {std::move(path)}; }
+
+ private:
+  bool is_default(const std::string& key) const {
+    std::string p;
+    for (const auto& part : path_) p += (p.empty() ? "" : ".") + part;
+    p += (p.empty() ? "" : ".") + key;
+    const auto& d = spec_.defaults_filled;
+    return std::find(d.begin(), d.end(), p) != d.end();
+  }
+  const Spec& spec_;
+  std::vector<std::string> path_;
+};
+
+const char* kind_name(InitialKind k) {
+  switch (k) {
+    case InitialKind::single: return "single";
+    case InitialKind::grid: return "grid";
+    case InitialKind::random: return "random";
+    case InitialKind::corners: return "corners";
+    case InitialKind::ladder: return "ladder";
+  }
+  return "";
+}
+
+void emit_ranges(YAML::Emitter& out, const char* key, const std::vector<Range>& ranges, bool with_count,
+                 const char* unit) {
+  if (ranges.empty()) return;
+  out << YAML::Key << key << YAML::Value << YAML::Flow << YAML::BeginSeq;
+  for (const auto& r : ranges) {
+    out << YAML::Flow << YAML::BeginSeq << fmt::format("{:.12g}", r.lo) << fmt::format("{:.12g}", r.hi);
+    if (with_count) out << r.count;
+    out << YAML::EndSeq;
+  }
+  out << YAML::EndSeq << YAML::Comment(unit);
+}
+}  // namespace
+
+std::string normalised_yaml(const Spec& spec) {
+  Writer w(spec);
+  auto& out = w.out;
+  out << YAML::Comment("normalised spec: every number in SI (angles in rad); 'default' marks filled-in values");
+  out << YAML::BeginMap;
+  out << YAML::Key << "swaybound" << YAML::Value << spec.version;
+  w.text("name", spec.name);
+  w.value("gravity", spec.gravity, u::acceleration);
+  out << YAML::Key << "links" << YAML::Value << YAML::BeginSeq;
+  for (std::size_t i = 0; i < spec.links.size(); ++i) {
+    const auto& l = spec.links[i];
+    w.at(fmt::format("links[{}]", i));
+    out << YAML::BeginMap;
+    w.text("name", l.name);
+    w.text("kind", l.kind == LinkKind::rope ? "rope" : "rigid");
+    w.value("length", l.length, u::length);
+    w.value("mass", l.mass, u::mass);
+    w.value("com", l.com, u::length);
+    w.value("inertia", l.inertia, u::moment_of_inertia);
+    if (l.pivot.friction || l.pivot.damper) {
+      w.begin("pivot");
+      if (const auto& f = l.pivot.friction) {
+        w.begin("friction");
+        w.value("torque", f->torque, u::torque);
+        w.value("pin_radius", f->pin_radius, u::length);
+        w.value("mu", f->mu, u::dimensionless);
+        w.value("transition_rate", f->transition_rate, u::angular_rate);
+        w.end();
+      }
+      if (const auto& d = l.pivot.damper) {
+        w.begin("damper");
+        w.value("coefficient", d->coefficient, u::rotary_damping);
+        w.value("exponent", d->exponent, u::dimensionless);
+        w.value_unless_inf("max_torque", d->max_torque, u::torque);
+        w.value("linear_below", d->linear_below, u::angular_rate);
+        w.end();
+      }
+      w.end();
+    }
+    out << YAML::EndMap;
+  }
+  out << YAML::EndSeq;
+  if (!spec.dashpots.empty()) {
+    out << YAML::Key << "dashpots" << YAML::Value << YAML::BeginSeq;
+    for (std::size_t i = 0; i < spec.dashpots.size(); ++i) {
+      const auto& d = spec.dashpots[i];
+      w.at(fmt::format("dashpots[{}]", i));
+      out << YAML::BeginMap;
+      w.text("name", d.name);
+      for (auto [key, a] : {std::pair{"from", &d.from}, {"to", &d.to}}) {
+        out << YAML::Key << key << YAML::Value << YAML::Flow << YAML::BeginMap;
+        if (a->link >= 0)
+          out << YAML::Key << "link" << YAML::Value << spec.links[static_cast<std::size_t>(a->link)].name
+              << YAML::Key << "at" << YAML::Value << fmt::format("{:.12g}", a->at);
+        else
+          out << YAML::Key << "base" << YAML::Value << YAML::Flow << YAML::BeginSeq
+              << fmt::format("{:.12g}", a->base_x) << fmt::format("{:.12g}", a->base_y) << YAML::EndSeq;
+        out << YAML::EndMap << YAML::Comment("m");
+      }
+      w.value("coefficient", d.coefficient, u::linear_damping);
+      out << YAML::EndMap;
+    }
+    out << YAML::EndSeq;
+  }
+  if (!spec.wind.empty()) {
+    out << YAML::Key << "wind" << YAML::Value << YAML::BeginSeq;
+    for (std::size_t i = 0; i < spec.wind.size(); ++i) {
+      const auto& wd = spec.wind[i];
+      w.at(spec.wind.size() == 1 ? "wind" : fmt::format("wind[{}]", i));
+      out << YAML::BeginMap;
+      w.text("link", spec.links[static_cast<std::size_t>(wd.link)].name);
+      w.value("at", wd.at, u::length);
+      w.value("speed", wd.speed, u::speed);
+      w.value("drag_area", wd.drag_area, u::area);
+      w.value("drag_coefficient", wd.drag_coefficient, u::dimensionless);
+      w.value("air_density", wd.air_density, u::density);
+      if (wd.gust) {
+        w.begin("gust");
+        w.value("start", wd.gust->start, u::duration);
+        w.value("for", wd.gust->duration, u::duration);
+        w.value("speed", wd.gust->speed, u::speed);
+        w.end();
+      }
+      out << YAML::EndMap;
+    }
+    out << YAML::EndSeq;
+  }
+  w.at("base");
+  out << YAML::Key << "base" << YAML::Value << YAML::BeginMap << YAML::Key << "scenarios" << YAML::Value;
+  if (std::find(spec.defaults_filled.begin(), spec.defaults_filled.end(), "base.scenarios") !=
+      spec.defaults_filled.end())
+    out << YAML::Comment("default: a fixed top pivot");
+  out << YAML::BeginSeq;
+  for (const auto& s : spec.scenarios) {
+    out << YAML::BeginMap << YAML::Key << "name" << YAML::Value << s.name;
+    out << YAML::Key << "initial_velocity" << YAML::Value << YAML::Flow << YAML::BeginMap << YAML::Key << "x"
+        << YAML::Value << fmt::format("{:.12g}", s.initial_vx) << YAML::Key << "y" << YAML::Value
+        << fmt::format("{:.12g}", s.initial_vy) << YAML::EndMap << YAML::Comment("m/s");
+    out << YAML::Key << "accel" << YAML::Value << YAML::BeginSeq;
+    for (const auto& seg : s.accel)
+      out << YAML::Flow << YAML::BeginMap << YAML::Key << "for" << YAML::Value << fmt::format("{:.12g}", seg.duration)
+          << YAML::Key << "x" << YAML::Value << fmt::format("{:.12g}", seg.ax) << YAML::Key << "y" << YAML::Value
+          << fmt::format("{:.12g}", seg.ay) << YAML::EndMap << YAML::Comment("s, m/s^2");
+    out << YAML::EndSeq << YAML::EndMap;
+  }
+  out << YAML::EndSeq << YAML::EndMap;
+
+  w.at("");
+  w.begin("cases");
+  w.value("duration", spec.cases.duration, u::duration);
+  w.value("output_rate", spec.cases.output_rate, u::rate);
+  out << YAML::Key << "initial" << YAML::Value << YAML::BeginSeq;
+  for (const auto& set : spec.cases.initial) {
+    out << YAML::BeginMap << YAML::Key << "name" << YAML::Value << set.name;
+    out << YAML::Key << kind_name(set.kind) << YAML::Value << YAML::BeginMap;
+    if (set.kind == InitialKind::ladder) out << YAML::Key << "from" << YAML::Value << YAML::BeginMap;
+    const bool ranged = set.kind == InitialKind::grid || set.kind == InitialKind::random ||
+                        set.kind == InitialKind::corners;
+    if (set.kind == InitialKind::random)
+      out << YAML::Key << "count" << YAML::Value << set.count << YAML::Key << "seed" << YAML::Value << set.seed
+          << YAML::Key << "method" << YAML::Value
+          << (set.method == SamplingMethod::uniform ? "uniform" : "latin_hypercube");
+    if (ranged) {
+      emit_ranges(out, "theta", set.theta, set.kind == InitialKind::grid, "rad");
+      emit_ranges(out, "rate", set.rate, set.kind == InitialKind::grid, "rad/s");
+    } else {
+      for (auto [key, list, unit] : {std::tuple{"theta", &set.theta, "rad"}, {"rate", &set.rate, "rad/s"}}) {
+        if (list->empty()) continue;
+        out << YAML::Key << key << YAML::Value << YAML::Flow << YAML::BeginSeq;
+        for (const auto& r : *list) out << fmt::format("{:.12g}", r.lo);
+        out << YAML::EndSeq << YAML::Comment(unit);
+      }
+    }
+    if (set.kind == InitialKind::ladder) {
+      out << YAML::EndMap << YAML::Key << (set.relative ? "relative" : "absolute") << YAML::Value << YAML::Flow << YAML::BeginSeq;
+      for (double s : set.steps) out << fmt::format("{:.6g}", s);
+      out << YAML::EndSeq;
+      if (!set.relative) out << YAML::Comment("rad");
+      out << YAML::Key << "link" << YAML::Value << spec.links[static_cast<std::size_t>(set.perturb_link)].name;
+    }
+    out << YAML::EndMap << YAML::EndMap << YAML::Comment(fmt::format("{} starts", initial_set_size(set)));
+  }
+  out << YAML::EndSeq;
+  w.end();
+  out << YAML::Comment(fmt::format("{} cases in all (starts x {} scenarios)", case_count(spec), spec.scenarios.size()));
+
+  if (!spec.limits.empty()) {
+    out << YAML::Key << "limits" << YAML::Value << YAML::BeginSeq;
+    for (const auto& l : spec.limits) {
+      static const u::Dim dims[] = {u::angle, u::angle, u::angular_rate, u::force, u::dimensionless,
+                                    u::force, u::angle, u::rate, u::dimensionless};
+      out << YAML::Flow << YAML::BeginMap << YAML::Key << l.key << YAML::Value << fmt::format("{:.12g}", l.value);
+      if (l.link >= 0) out << YAML::Key << "link" << YAML::Value << spec.links[static_cast<std::size_t>(l.link)].name;
+      if (l.kind == LimitKind::residual_sway) out << YAML::Key << "after" << YAML::Value << fmt::format("{:.12g}", l.after);
+      if (l.kind == LimitKind::ftle_max) out << YAML::Key << "horizon" << YAML::Value << fmt::format("{:.12g}", l.horizon);
+      out << YAML::EndMap;
+      if (const auto unit = u::si_unit(dims[static_cast<int>(l.kind)]); !unit.empty()) out << YAML::Comment(unit);
+    }
+    out << YAML::EndSeq;
+  }
+  if (spec.sizing) {
+    const auto& s = *spec.sizing;
+    w.begin("sizing");
+    out << YAML::Key << "variables" << YAML::Value << YAML::BeginSeq;
+    for (const auto& v : s.variables) {
+      std::string why;
+      const auto target = parse_spec_path(spec, v.path, why);
+      out << YAML::BeginMap << YAML::Key << "path" << YAML::Value << v.path;
+      if (v.catalogue.empty()) {
+        out << YAML::Key << "range" << YAML::Value << YAML::Flow << YAML::BeginSeq << fmt::format("{:.12g}", v.lo)
+            << fmt::format("{:.12g}", v.hi) << YAML::EndSeq;
+      } else {
+        out << YAML::Key << "catalogue" << YAML::Value << YAML::Flow << YAML::BeginSeq;
+        for (double c : v.catalogue) out << fmt::format("{:.12g}", c);
+        out << YAML::EndSeq;
+      }
+      if (target) out << YAML::Comment(u::si_unit(spec_path_dim(*target)));
+      out << YAML::Key << "cost" << YAML::Value << fmt::format("{:.12g}", v.cost) << YAML::EndMap;
+    }
+    out << YAML::EndSeq;
+    out << YAML::Key << "objective" << YAML::Value;
+    if (s.objective == Objective::min_metric) {
+      out << YAML::Flow << YAML::BeginMap << YAML::Key << "min" << YAML::Value << s.metric;
+      if (s.metric_link >= 0) out << YAML::Key << "link" << YAML::Value << spec.links[static_cast<std::size_t>(s.metric_link)].name;
+      out << YAML::EndMap;
+    } else {
+      out << (s.objective == Objective::min_cost ? "min_cost" : "max_margin");
+    }
+    out << YAML::Key << "budget" << YAML::Value << YAML::Flow << YAML::BeginMap << YAML::Key << "evaluations"
+        << YAML::Value << s.max_evaluations << YAML::Key << "seconds" << YAML::Value << s.max_seconds << YAML::EndMap;
+    out << YAML::Key << "seed" << YAML::Value << s.seed;
+    out << YAML::Key << "mode" << YAML::Value << (s.mode == SearchMode::local ? "local" : "global");
+    w.end();
+  }
+  w.begin("solver");
+  w.text("method", spec.solver.method == Stepper::dopri5 ? "dopri5" : "rkf78");
+  w.value("rtol", spec.solver.rtol, u::dimensionless);
+  w.value("atol", spec.solver.atol, u::dimensionless);
+  w.value("max_steps", static_cast<double>(spec.solver.max_steps), u::dimensionless);  // a count
+  w.value("min_step", spec.solver.min_step, u::duration);
+  w.value("max_seconds", spec.solver.max_seconds, u::duration);
+  w.end();
+  w.begin("report");
+  w.text("title", spec.report.title);
+  w.text("project", spec.report.project);
+  w.text("revision", spec.report.revision);
+  w.text("prepared_by", spec.report.prepared_by);
+  w.text("paper", spec.report.paper == Paper::a4 ? "a4" : "letter");
+  w.end();
+  out << YAML::EndMap;
+  return std::string(out.c_str()) + "\n";
+}
+
+}  // namespace swaybound

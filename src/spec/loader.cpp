@@ -1,0 +1,444 @@
+// Spec loader, part 1: file reading, top level, links, pivots, dashpots, wind, base motion.
+// Part 2 (loader_cases.cpp) reads cases, limits, sizing, solver and report.
+#include "swaybound/spec/loader.hpp"
+
+#include <cmath>
+#include <fstream>
+#include <sstream>
+#include <sys/stat.h>
+
+#include <fmt/format.h>
+
+#include "loader_parts.hpp"
+
+namespace swaybound {
+
+using namespace spec_detail;
+namespace u = units;
+
+int Spec::link_index(const std::string& link_name) const {
+  for (std::size_t i = 0; i < links.size(); ++i)
+    if (links[i].name == link_name) return static_cast<int>(i);
+  return -1;
+}
+
+namespace spec_detail {
+
+int read_link_ref(Context& ctx, const YAML::Node& node, const std::string& path, const Spec& spec) {
+  auto name = read_string(ctx, node, path);
+  if (!name) return -1;
+  const int index = spec.link_index(*name);
+  if (index >= 0) return index;
+  std::vector<std::string_view> names;
+  for (const auto& l : spec.links) names.emplace_back(l.name);
+  const std::string guess = nearest(*name, names);
+  std::string all;
+  for (auto n : names) all += (all.empty() ? "" : ", ") + std::string(n);
+  ctx.error(node, path, fmt::format("no link is named '{}'", *name),
+            guess.empty() ? "name one of the links: " + all
+                          : fmt::format("did you mean '{}'? links: {}", guess, all));
+  return -1;
+}
+
+}  // namespace spec_detail
+
+namespace {
+
+void read_friction(const MapView& pivot, LinkSpec& link) {
+  if (!pivot.has("friction")) return;
+  MapView m(pivot.ctx(), pivot.get("friction"), pivot.path("friction"),
+            {"torque", "pin_radius", "mu", "transition_rate"});
+  if (!m.ok()) return;
+  FrictionSpec f;
+  read_optional(m, "torque", f.torque, u::torque, Bounds::non_negative());
+  read_optional(m, "pin_radius", f.pin_radius, u::length, Bounds::non_negative());
+  read_optional(m, "mu", f.mu, u::dimensionless, Bounds{0, 2, false, false});
+  read_optional(m, "transition_rate", f.transition_rate, u::angular_rate, Bounds::positive());
+  if (m.has("mu") != m.has("pin_radius"))
+    m.ctx().error(m.mark(), m.path(), "pin friction needs both 'mu' and 'pin_radius'",
+                  "give both (torque = mu * pin_radius * |pivot reaction|) or neither");
+  link.pivot.friction = f;
+}
+
+void read_damper(const MapView& pivot, LinkSpec& link) {
+  if (!pivot.has("damper")) return;
+  MapView m(pivot.ctx(), pivot.get("damper"), pivot.path("damper"),
+            {"coefficient", "exponent", "max_torque", "linear_below"});
+  if (!m.ok()) return;
+  DamperSpec d;
+  if (m.require("coefficient", "the damping coefficient, e.g. '4 kN m s/rad'")) {
+    if (auto v = read_quantity(m.ctx(), m.get("coefficient"), m.path("coefficient"),
+                               u::rotary_damping, Bounds::non_negative()))
+      d.coefficient = *v;
+  }
+  read_optional(m, "exponent", d.exponent, u::dimensionless, Bounds{0, 2, true, false});
+  read_optional(m, "max_torque", d.max_torque, u::torque, Bounds::positive());
+  read_optional(m, "linear_below", d.linear_below, u::angular_rate, Bounds::positive());
+  link.pivot.damper = d;
+}
+
+void read_link(Context& ctx, const YAML::Node& node, const std::string& path, Spec& spec) {
+  MapView m(ctx, node, path, {"name", "kind", "length", "mass", "com", "inertia", "pivot"});
+  if (!m.ok()) return;
+  LinkSpec link;
+  link.mark = m.mark();
+  if (m.require("name", "a unique name for the link")) {
+    if (auto s = read_string(ctx, m.get("name"), m.path("name"))) {
+      link.name = *s;
+      if (link.name.empty())
+        ctx.error(m.get("name"), m.path("name"), "link name is empty", "give the link a name");
+      else if (spec.link_index(link.name) >= 0)
+        ctx.error(m.get("name"), m.path("name"),
+                  fmt::format("link name '{}' is already used by links[{}]", link.name,
+                              spec.link_index(link.name)),
+                  "give every link a unique name");
+    }
+  }
+  if (m.has("kind")) {
+    if (auto k = read_choice(ctx, m.get("kind"), m.path("kind"), {"rigid", "rope"}))
+      link.kind = *k == "rope" ? LinkKind::rope : LinkKind::rigid;
+  } else {
+    ctx.defaults_filled.push_back(m.path("kind"));
+  }
+  bool have_length = false, have_mass = false;
+  if (m.require("length", "the pivot-to-pivot length, e.g. '6 m'")) {
+    if (auto v = read_quantity(ctx, m.get("length"), m.path("length"), u::length, Bounds::positive())) {
+      link.length = *v;
+      have_length = true;
+    }
+  }
+  if (m.require("mass", "the link's mass, e.g. '35 kg'")) {
+    if (auto v = read_quantity(ctx, m.get("mass"), m.path("mass"), u::mass, Bounds::positive())) {
+      link.mass = *v;
+      have_mass = true;
+    }
+  }
+  if (m.has("com")) {
+    if (auto v = read_quantity(ctx, m.get("com"), m.path("com"), u::length, Bounds::non_negative())) {
+      link.com = *v;
+      link.com_given = true;
+      if (have_length && link.com > link.length)
+        ctx.error(m.get("com"), m.path("com"),
+                  fmt::format("centre of mass {} lies beyond the link's length {}",
+                              u::format_si(link.com, u::length), u::format_si(link.length, u::length)),
+                  "give 0 <= com <= length (measured from the upper pivot along the link)");
+    }
+  } else {
+    link.com = link.length / 2;
+    ctx.defaults_filled.push_back(m.path("com"));
+  }
+  if (m.has("inertia")) {
+    if (auto v = read_quantity(ctx, m.get("inertia"), m.path("inertia"), u::moment_of_inertia,
+                               Bounds::non_negative())) {
+      link.inertia = *v;
+      link.inertia_given = true;
+    }
+  } else {
+    link.inertia = have_mass && have_length ? link.mass * link.length * link.length / 12.0 : 0.0;
+    ctx.defaults_filled.push_back(m.path("inertia"));
+  }
+  if (m.has("pivot")) {
+    MapView p(ctx, m.get("pivot"), m.path("pivot"), {"friction", "damper"});
+    if (p.ok()) {
+      read_friction(p, link);
+      read_damper(p, link);
+    }
+  }
+  spec.links.push_back(std::move(link));
+}
+
+void read_attachment(Context& ctx, const YAML::Node& node, const std::string& path, const Spec& spec,
+                     AttachmentSpec& out) {
+  MapView m(ctx, node, path, {"link", "at", "base"});
+  if (!m.ok()) return;
+  if (m.has("base") == m.has("link")) {
+    ctx.error(m.mark(), path, "an attachment names either a link or the base",
+              "write {link: NAME, at: DISTANCE} or {base: [X, Y]}");
+    return;
+  }
+  if (m.has("base")) {
+    out.link = -1;
+    const YAML::Node b = m.get("base");
+    if (!b.IsSequence() || b.size() != 2) {
+      ctx.error(b, m.path("base"), "expected [x, y], the offset on the base from the top pivot",
+                "write e.g. base: [0.5 m, -0.2 m] (x right, y up)");
+      return;
+    }
+    if (auto v = read_quantity(ctx, b[0], m.path("base") + "[0]", u::length)) out.base_x = *v;
+    if (auto v = read_quantity(ctx, b[1], m.path("base") + "[1]", u::length)) out.base_y = *v;
+    return;
+  }
+  out.link = read_link_ref(ctx, m.get("link"), m.path("link"), spec);
+  if (m.require("at", "the distance along the link from its upper pivot")) {
+    if (auto v = read_quantity(ctx, m.get("at"), m.path("at"), u::length, Bounds::non_negative())) {
+      out.at = *v;
+      if (out.link >= 0 && out.at > spec.links[static_cast<std::size_t>(out.link)].length)
+        ctx.error(m.get("at"), m.path("at"), "the point lies beyond the end of the link",
+                  fmt::format("give 0 <= at <= {}",
+                              u::format_si(spec.links[static_cast<std::size_t>(out.link)].length, u::length)));
+    }
+  }
+}
+
+void read_dashpots(Context& ctx, const YAML::Node& node, Spec& spec) {
+  if (!expect_sequence(ctx, node, "dashpots", "dashpots")) return;
+  for (std::size_t i = 0; i < node.size(); ++i) {
+    const std::string path = fmt::format("dashpots[{}]", i);
+    MapView m(ctx, node[i], path, {"name", "from", "to", "coefficient"});
+    if (!m.ok()) continue;
+    DashpotSpec d;
+    d.mark = m.mark();
+    d.name = fmt::format("dashpot {}", i + 1);
+    if (m.has("name"))
+      if (auto s = read_string(ctx, m.get("name"), m.path("name"))) d.name = *s;
+    if (m.require("from", "an attachment {link: NAME, at: DISTANCE}"))
+      read_attachment(ctx, m.get("from"), m.path("from"), spec, d.from);
+    if (m.require("to", "an attachment {link: NAME, at: DISTANCE} or {base: [X, Y]}"))
+      read_attachment(ctx, m.get("to"), m.path("to"), spec, d.to);
+    if (m.require("coefficient", "the damping coefficient, e.g. '2 kN s/m'"))
+      if (auto v = read_quantity(ctx, m.get("coefficient"), m.path("coefficient"), u::linear_damping,
+                                 Bounds::non_negative()))
+        d.coefficient = *v;
+    if (m.has("from") && m.has("to") && d.from.link < 0 && d.to.link < 0)
+      ctx.error(m.mark(), path, "both ends are on the base, so the dashpot does nothing",
+                "attach at least one end to a link");
+    spec.dashpots.push_back(d);
+  }
+}
+
+void read_wind_one(Context& ctx, const YAML::Node& node, const std::string& path, Spec& spec) {
+  MapView m(ctx, node, path,
+            {"speed", "link", "at", "drag_area", "drag_coefficient", "air_density", "gust"});
+  if (!m.ok()) return;
+  WindSpec w;
+  w.mark = m.mark();
+  if (m.require("link", "the link the wind acts on")) w.link = read_link_ref(ctx, m.get("link"), m.path("link"), spec);
+  if (m.require("speed", "the steady wind speed, e.g. '12 m/s'"))
+    if (auto v = read_quantity(ctx, m.get("speed"), m.path("speed"), u::speed)) w.speed = *v;
+  if (m.require("drag_area", "the projected area, e.g. '3.2 m^2'"))
+    if (auto v = read_quantity(ctx, m.get("drag_area"), m.path("drag_area"), u::area, Bounds::non_negative()))
+      w.drag_area = *v;
+  if (m.require("drag_coefficient", "the drag coefficient Cd, e.g. 1.2"))
+    if (auto v = read_quantity(ctx, m.get("drag_coefficient"), m.path("drag_coefficient"), u::dimensionless,
+                               Bounds::non_negative()))
+      w.drag_coefficient = *v;
+  read_optional(m, "air_density", w.air_density, u::density, Bounds::positive());
+  if (m.has("at")) {
+    if (auto v = read_quantity(ctx, m.get("at"), m.path("at"), u::length, Bounds::non_negative())) {
+      w.at = *v;
+      w.at_given = true;
+      if (w.link >= 0 && w.at > spec.links[static_cast<std::size_t>(w.link)].length)
+        ctx.error(m.get("at"), m.path("at"), "the point lies beyond the end of the link",
+                  "give a distance from the link's upper pivot no larger than its length");
+    }
+  } else if (w.link >= 0) {
+    w.at = spec.links[static_cast<std::size_t>(w.link)].com;
+    ctx.defaults_filled.push_back(m.path("at"));
+  }
+  if (m.has("gust")) {
+    MapView g(ctx, m.get("gust"), m.path("gust"), {"start", "for", "speed"});
+    if (g.ok()) {
+      WindSpec::Gust gust;
+      if (g.require("start", "when the gust starts, e.g. '5 s'"))
+        if (auto v = read_quantity(ctx, g.get("start"), g.path("start"), u::duration, Bounds::non_negative()))
+          gust.start = *v;
+      if (g.require("for", "how long the gust lasts, e.g. '3 s'"))
+        if (auto v = read_quantity(ctx, g.get("for"), g.path("for"), u::duration, Bounds::positive()))
+          gust.duration = *v;
+      if (g.require("speed", "the extra wind speed during the gust, e.g. '8 m/s'"))
+        if (auto v = read_quantity(ctx, g.get("speed"), g.path("speed"), u::speed)) gust.speed = *v;
+      w.gust = gust;
+    }
+  }
+  spec.wind.push_back(w);
+}
+
+void read_wind(Context& ctx, const YAML::Node& node, Spec& spec) {
+  if (node.IsSequence()) {
+    for (std::size_t i = 0; i < node.size(); ++i) read_wind_one(ctx, node[i], fmt::format("wind[{}]", i), spec);
+  } else {
+    read_wind_one(ctx, node, "wind", spec);
+  }
+}
+
+void read_xy(Context& ctx, const YAML::Node& node, const std::string& path, const u::Dim& dim,
+             double& x, double& y) {
+  MapView m(ctx, node, path, {"x", "y"});
+  if (!m.ok()) return;
+  if (m.has("x")) if (auto v = read_quantity(ctx, m.get("x"), m.path("x"), dim)) x = *v;
+  if (m.has("y")) if (auto v = read_quantity(ctx, m.get("y"), m.path("y"), dim)) y = *v;
+}
+
+void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
+  MapView m(ctx, node, "base", {"scenarios"});
+  if (!m.ok() || !m.require("scenarios", "a list of base-motion scenarios")) return;
+  const YAML::Node list = m.get("scenarios");
+  if (!expect_sequence(ctx, list, "base.scenarios", "scenarios")) return;
+  if (list.size() == 0)
+    ctx.error(list, "base.scenarios", "the list of scenarios is empty",
+              "give at least one scenario, or leave 'base' out for a fixed top pivot");
+  for (std::size_t i = 0; i < list.size(); ++i) {
+    const std::string path = fmt::format("base.scenarios[{}]", i);
+    MapView s(ctx, list[i], path, {"name", "initial_velocity", "accel"});
+    if (!s.ok()) continue;
+    ScenarioSpec sc;
+    sc.mark = s.mark();
+    if (s.require("name", "a name for the scenario, used in case ids"))
+      if (auto n = read_string(ctx, s.get("name"), s.path("name"))) {
+        sc.name = *n;
+        for (const auto& other : spec.scenarios)
+          if (other.name == sc.name)
+            ctx.error(s.get("name"), s.path("name"), fmt::format("scenario name '{}' is used twice", sc.name),
+                      "give every scenario a unique name");
+      }
+    if (s.has("initial_velocity"))
+      read_xy(ctx, s.get("initial_velocity"), s.path("initial_velocity"), u::speed, sc.initial_vx, sc.initial_vy);
+    if (s.has("accel") && expect_sequence(ctx, s.get("accel"), s.path("accel"), "segments {for, x, y}")) {
+      const YAML::Node segs = s.get("accel");
+      for (std::size_t k = 0; k < segs.size(); ++k) {
+        const std::string sp = fmt::format("{}.accel[{}]", path, k);
+        MapView g(ctx, segs[k], sp, {"for", "x", "y"});
+        if (!g.ok()) continue;
+        AccelSegment seg;
+        if (g.require("for", "the segment's duration, e.g. '1.5 s'"))
+          if (auto v = read_quantity(ctx, g.get("for"), g.path("for"), u::duration, Bounds::positive()))
+            seg.duration = *v;
+        if (g.has("x")) if (auto v = read_quantity(ctx, g.get("x"), g.path("x"), u::acceleration)) seg.ax = *v;
+        if (g.has("y")) if (auto v = read_quantity(ctx, g.get("y"), g.path("y"), u::acceleration)) seg.ay = *v;
+        sc.accel.push_back(seg);
+      }
+    }
+    spec.scenarios.push_back(std::move(sc));
+  }
+}
+
+void check_chain(Context& ctx, const YAML::Node& links_node, const Spec& spec) {
+  // Each link needs rotational inertia about its pivot, or the mass matrix is singular.
+  double mass_below = 0;
+  for (std::size_t k = spec.links.size(); k-- > 0;) {
+    const LinkSpec& l = spec.links[k];
+    const double mu = l.mass * l.com * l.com + l.inertia + l.length * l.length * mass_below;
+    if (l.mass > 0 && l.length > 0 && !(mu > 0))
+      ctx.error(links_node[k], fmt::format("links[{}]", k),
+                "the link has no rotational inertia about its pivot (com = 0, inertia = 0, nothing below)",
+                "give a centre of mass below the pivot (com > 0) or an inertia > 0");
+    mass_below += l.mass;
+  }
+}
+
+std::string read_file(const std::string& path) {
+  struct stat st {};
+  if (::stat(path.c_str(), &st) != 0)
+    throw SpecError(path, {{{}, "", "cannot open the spec file: it does not exist",
+                            "check the path; give the YAML design spec to read"}});
+  if (S_ISDIR(st.st_mode))
+    throw SpecError(path, {{{}, "", "this is a folder, not a spec file", "give the path of a .yaml spec file"}});
+  if (static_cast<std::size_t>(st.st_size) > kMaxSpecBytes)
+    throw SpecError(path, {{{}, "",
+                            fmt::format("the file is {} bytes, larger than the {} byte limit for a spec",
+                                        st.st_size, kMaxSpecBytes),
+                            "a design spec is a few kilobytes; check that this is the right file"}});
+  std::ifstream in(path, std::ios::binary);
+  if (!in)
+    throw SpecError(path, {{{}, "", "cannot read the spec file (permission denied or not a regular file)",
+                            "check the file's permissions"}});
+  std::ostringstream buffer;
+  buffer << in.rdbuf();
+  return buffer.str();
+}
+
+/// First invalid UTF-8 byte, as a 1-based line and column; line 0 when the text is valid.
+Mark first_invalid_utf8(std::string_view s) {
+  int line = 1, col = 1;
+  for (std::size_t i = 0; i < s.size();) {
+    const auto c = static_cast<unsigned char>(s[i]);
+    std::size_t len = c < 0x80 ? 1 : (c >> 5) == 0x6 ? 2 : (c >> 4) == 0xE ? 3 : (c >> 3) == 0x1E ? 4 : 0;
+    if (len == 0 || i + len > s.size()) return {line, col};
+    for (std::size_t k = 1; k < len; ++k)
+      if ((static_cast<unsigned char>(s[i + k]) >> 6) != 0x2) return {line, col};
+    if (c == '\n') {
+      ++line;
+      col = 1;
+    } else {
+      ++col;
+    }
+    i += len;
+  }
+  return {};
+}
+
+}  // namespace
+
+Spec load_spec(const std::string& path, const LoadOptions& options) {
+  return load_spec_text(read_file(path), path, options);
+}
+
+Spec load_spec_text(std::string_view text, const std::string& file_label, const LoadOptions& options) {
+  if (text.size() > kMaxSpecBytes)
+    throw SpecError(file_label, {{{}, "", "the spec is larger than the 4 MiB limit", "check that this is the right file"}});
+  if (const Mark bad = first_invalid_utf8(text); bad.line > 0)
+    throw SpecError(file_label, {{bad, "", "the file is not valid UTF-8 text",
+                                  "save the spec as UTF-8; remove or retype the character at this position"}});
+  YAML::Node root;
+  try {
+    root = YAML::Load(std::string(text));
+  } catch (const YAML::Exception& e) {
+    const Mark at = e.mark.is_null() ? Mark{} : Mark{e.mark.line + 1, e.mark.column + 1};
+    throw SpecError(file_label, {{at, "", "not valid YAML: " + e.msg,
+                                  "fix the YAML syntax at this position (indentation, quotes, brackets)"}});
+  }
+  if (!root.IsDefined() || root.IsNull())
+    throw SpecError(file_label, {{{}, "", "the spec is empty", "start from one of the demo specs in specs/"}});
+
+  Context ctx;
+  ctx.file = file_label;
+  Spec spec;
+  spec.source_file = file_label;
+  MapView top(ctx, root, "",
+              {"swaybound", "name", "gravity", "links", "dashpots", "wind", "base", "cases", "limits",
+               "sizing", "solver", "report"});
+  if (!top.ok()) throw SpecError(file_label, ctx.diagnostics);
+
+  if (top.require("swaybound", fmt::format("the spec format version ({})", kSpecFormatVersion))) {
+    if (auto v = read_integer(ctx, top.get("swaybound"), "swaybound", 0, 1'000'000)) {
+      if (*v != kSpecFormatVersion)
+        ctx.error(top.get("swaybound"), "swaybound",
+                  fmt::format("spec format version {} is not supported by this tool", *v),
+                  fmt::format("this tool reads format version {}", kSpecFormatVersion));
+    }
+  }
+  if (top.require("name", "a name for the mechanism"))
+    if (auto s = read_string(ctx, top.get("name"), "name")) spec.name = *s;
+  read_optional(top, "gravity", spec.gravity, u::acceleration, Bounds::positive());
+
+  if (top.require("links", "the list of links, top to bottom")) {
+    const YAML::Node links = top.get("links");
+    if (expect_sequence(ctx, links, "links", "links (top to bottom)")) {
+      if (links.size() == 0)
+        ctx.error(links, "links", "the list of links is empty", "give at least one link");
+      else if (links.size() > static_cast<std::size_t>(kMaxLinks))
+        ctx.error(links, "links", fmt::format("{} links is more than the limit of {}", links.size(), kMaxLinks),
+                  "model the chain with fewer links");
+      else
+        for (std::size_t i = 0; i < links.size(); ++i) read_link(ctx, links[i], fmt::format("links[{}]", i), spec);
+      if (ctx.diagnostics.empty()) check_chain(ctx, links, spec);
+    }
+  }
+  if (top.has("dashpots")) read_dashpots(ctx, top.get("dashpots"), spec);
+  if (top.has("wind")) read_wind(ctx, top.get("wind"), spec);
+  if (top.has("base")) read_base(ctx, top.get("base"), spec);
+  if (spec.scenarios.empty() && !top.has("base")) {
+    spec.scenarios.push_back(ScenarioSpec{"still", 0, 0, {}, {}});
+    ctx.defaults_filled.push_back("base.scenarios");
+  }
+  read_cases(top, spec, options);
+  read_limits(top, spec);
+  read_sizing(top, spec);
+  read_solver_and_report(top, spec);
+
+  if (!ctx.diagnostics.empty()) throw SpecError(file_label, ctx.diagnostics);
+  spec.defaults_filled = std::move(ctx.defaults_filled);
+  return spec;
+}
+
+}  // namespace swaybound

@@ -1,0 +1,473 @@
+// Spec loader, part 2: cases, limits, sizing, solver and report metadata.
+#include <algorithm>
+#include <cmath>
+
+#include <fmt/format.h>
+
+#include "loader_parts.hpp"
+#include "swaybound/spec/paths.hpp"
+
+namespace swaybound {
+
+using namespace spec_detail;
+namespace u = units;
+
+long initial_set_size(const InitialSetSpec& set) {
+  switch (set.kind) {
+    case InitialKind::single: return 1;
+    case InitialKind::random: return set.count;
+    case InitialKind::ladder: return 1 + static_cast<long>(set.steps.size());
+    case InitialKind::grid: {
+      long n = 1;
+      for (const auto& r : set.theta) n = n > 1'000'000'000L / std::max(1, r.count) ? 1'000'000'001L : n * r.count;
+      for (const auto& r : set.rate) n = n > 1'000'000'000L / std::max(1, r.count) ? 1'000'000'001L : n * r.count;
+      return n;
+    }
+    case InitialKind::corners: {
+      long n = 1;
+      for (const auto* list : {&set.theta, &set.rate})
+        for (const auto& r : *list)
+          if (r.hi > r.lo) n = std::min(2 * n, 1'000'000'001L);
+      return n;
+    }
+  }
+  return 0;
+}
+
+long case_count(const Spec& spec) {
+  long starts = 0;
+  for (const auto& set : spec.cases.initial) starts = std::min(starts + initial_set_size(set), 1'000'000'001L);
+  return starts * static_cast<long>(spec.scenarios.size());
+}
+
+namespace spec_detail {
+namespace {
+
+constexpr std::string_view kKinds[] = {"single", "grid", "random", "corners", "ladder"};
+
+/// Reads a per-link list of values ("single" and ladder "from"): [10 deg, -5 deg].
+void read_value_list(Context& ctx, const YAML::Node& node, const std::string& path, const u::Dim& dim,
+                     std::size_t links, std::vector<Range>& out) {
+  if (!expect_sequence(ctx, node, path, fmt::format("{} values, one per link from the top", u::dim_name(dim))))
+    return;
+  if (node.size() > links) {
+    ctx.error(node, path, fmt::format("{} values given for {} links", node.size(), links),
+              "give at most one value per link, top link first");
+    return;
+  }
+  for (std::size_t i = 0; i < node.size(); ++i)
+    if (auto v = read_quantity(ctx, node[i], fmt::format("{}[{}]", path, i), dim)) out.push_back({*v, *v, 1});
+}
+
+/// Reads a per-link list of ranges: [[lo, hi, n], ...] for grids, [[lo, hi], ...] otherwise.
+void read_range_list(Context& ctx, const YAML::Node& node, const std::string& path, const u::Dim& dim,
+                     std::size_t links, bool with_count, std::vector<Range>& out) {
+  const std::string shape = with_count ? "[low, high, count]" : "[low, high]";
+  if (!expect_sequence(ctx, node, path, fmt::format("ranges {} per link from the top", shape))) return;
+  if (node.size() > links) {
+    ctx.error(node, path, fmt::format("{} ranges given for {} links", node.size(), links),
+              "give at most one range per link, top link first");
+    return;
+  }
+  for (std::size_t i = 0; i < node.size(); ++i) {
+    const std::string p = fmt::format("{}[{}]", path, i);
+    const YAML::Node r = node[i];
+    if (!r.IsSequence() || r.size() != (with_count ? 3u : 2u)) {
+      ctx.error(r, p, fmt::format("expected a range {}", shape),
+                with_count ? "write e.g. [-10 deg, 10 deg, 5]" : "write e.g. [-10 deg, 10 deg]");
+      continue;
+    }
+    Range range;
+    auto lo = read_quantity(ctx, r[0], p + "[0]", dim);
+    auto hi = read_quantity(ctx, r[1], p + "[1]", dim);
+    if (with_count) {
+      if (auto n = read_integer(ctx, r[2], p + "[2]", 1, 100'000)) range.count = static_cast<int>(*n);
+    }
+    if (lo && hi) {
+      if (*lo > *hi) {
+        ctx.error(r, p, fmt::format("the range is inverted: low {} > high {}", u::format_si(*lo, dim),
+                                    u::format_si(*hi, dim)),
+                  "write the lower bound first");
+        continue;
+      }
+      range.lo = *lo;
+      range.hi = *hi;
+    }
+    out.push_back(range);
+  }
+}
+
+void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& path, const Spec& spec,
+                      InitialSetSpec& set) {
+  MapView m(ctx, node, path, {"name", "single", "grid", "random", "corners", "ladder"});
+  if (!m.ok()) return;
+  set.mark = m.mark();
+  int kinds = 0;
+  for (std::size_t k = 0; k < std::size(kKinds); ++k)
+    if (m.has(kKinds[k])) {
+      set.kind = static_cast<InitialKind>(k);
+      ++kinds;
+    }
+  if (kinds != 1) {
+    ctx.error(m.mark(), path, kinds == 0 ? "no kind of initial set given" : "more than one kind of initial set given",
+              "give exactly one of: single, grid, random, corners, ladder");
+    return;
+  }
+  const std::string kind(kKinds[static_cast<int>(set.kind)]);
+  set.name = kind;
+  if (m.has("name"))
+    if (auto s = read_string(ctx, m.get("name"), m.path("name"))) set.name = *s;
+  const std::size_t n = spec.links.size();
+  const std::string kp = m.path(kind);
+  switch (set.kind) {
+    case InitialKind::single: {
+      MapView s(ctx, m.get(kind), kp, {"theta", "rate"});
+      if (!s.ok()) return;
+      if (s.has("theta")) read_value_list(ctx, s.get("theta"), s.path("theta"), u::angle, n, set.theta);
+      if (s.has("rate")) read_value_list(ctx, s.get("rate"), s.path("rate"), u::angular_rate, n, set.rate);
+      break;
+    }
+    case InitialKind::grid:
+    case InitialKind::corners: {
+      const bool grid = set.kind == InitialKind::grid;
+      MapView s(ctx, m.get(kind), kp, {"theta", "rate"});
+      if (!s.ok()) return;
+      if (!s.has("theta") && !s.has("rate"))
+        ctx.error(s.mark(), kp, "no ranges given", "give 'theta' and/or 'rate' ranges per link");
+      if (s.has("theta")) read_range_list(ctx, s.get("theta"), s.path("theta"), u::angle, n, grid, set.theta);
+      if (s.has("rate")) read_range_list(ctx, s.get("rate"), s.path("rate"), u::angular_rate, n, grid, set.rate);
+      break;
+    }
+    case InitialKind::random: {
+      MapView s(ctx, m.get(kind), kp, {"count", "seed", "method", "theta", "rate"});
+      if (!s.ok()) return;
+      if (s.require("count", "how many random starts"))
+        if (auto c = read_integer(ctx, s.get("count"), s.path("count"), 1, 100'000'000)) set.count = static_cast<int>(*c);
+      if (s.require("seed", "a seed for the random generator, so runs repeat"))
+        if (auto c = read_integer(ctx, s.get("seed"), s.path("seed"), 0, 1LL << 53)) set.seed = static_cast<std::uint64_t>(*c);
+      if (s.has("method")) {
+        if (auto c = read_choice(ctx, s.get("method"), s.path("method"), {"uniform", "latin_hypercube"}))
+          set.method = *c == "uniform" ? SamplingMethod::uniform : SamplingMethod::latin_hypercube;
+      } else {
+        ctx.defaults_filled.push_back(s.path("method"));
+      }
+      if (!s.has("theta") && !s.has("rate"))
+        ctx.error(s.mark(), kp, "no ranges given", "give 'theta' and/or 'rate' ranges per link");
+      if (s.has("theta")) read_range_list(ctx, s.get("theta"), s.path("theta"), u::angle, n, false, set.theta);
+      if (s.has("rate")) read_range_list(ctx, s.get("rate"), s.path("rate"), u::angular_rate, n, false, set.rate);
+      break;
+    }
+    case InitialKind::ladder: {
+      MapView s(ctx, m.get(kind), kp, {"from", "relative", "absolute", "link"});
+      if (!s.ok()) return;
+      if (s.require("from", "the start to perturb, {theta: [...], rate: [...]}")) {
+        MapView f(ctx, s.get("from"), s.path("from"), {"theta", "rate"});
+        if (f.ok()) {
+          if (f.has("theta")) read_value_list(ctx, f.get("theta"), f.path("theta"), u::angle, n, set.theta);
+          if (f.has("rate")) read_value_list(ctx, f.get("rate"), f.path("rate"), u::angular_rate, n, set.rate);
+        }
+      }
+      if (s.has("relative") == s.has("absolute")) {
+        ctx.error(s.mark(), kp, "a ladder needs exactly one of 'relative' or 'absolute' perturbations",
+                  "write e.g. relative: [1e-3, 1e-5, 1e-7, 1e-9, 1e-11]");
+        return;
+      }
+      set.relative = s.has("relative");
+      const std::string key = set.relative ? "relative" : "absolute";
+      const YAML::Node steps = s.get(key);
+      if (expect_sequence(ctx, steps, s.path(key), "perturbation sizes")) {
+        if (steps.size() == 0) ctx.error(steps, s.path(key), "no perturbations given", "give at least one size");
+        for (std::size_t i = 0; i < steps.size(); ++i) {
+          const auto dim = set.relative ? u::dimensionless : u::angle;
+          if (auto v = read_quantity(ctx, steps[i], fmt::format("{}[{}]", s.path(key), i), dim, Bounds::positive()))
+            set.steps.push_back(*v);
+        }
+      }
+      if (s.has("link")) {
+        set.perturb_link = read_link_ref(ctx, s.get("link"), s.path("link"), spec);
+      } else {
+        ctx.defaults_filled.push_back(s.path("link"));
+      }
+      if (set.relative && set.perturb_link >= 0) {
+        const auto li = static_cast<std::size_t>(set.perturb_link);
+        if (li >= set.theta.size() || set.theta[li].lo == 0)
+          ctx.error(s.mark(), s.path("relative"), "relative perturbations of a zero angle are all zero",
+                    "give a non-zero starting angle for the perturbed link, or use 'absolute'");
+      }
+      break;
+    }
+  }
+}
+
+}  // namespace
+
+void read_cases(const MapView& top, Spec& spec, const LoadOptions& options) {
+  Context& ctx = top.ctx();
+  if (!top.require("cases", "the duration and the initial-condition sets")) return;
+  MapView m(ctx, top.get("cases"), "cases", {"duration", "output_rate", "initial"});
+  if (!m.ok()) return;
+  spec.cases.mark = m.mark();
+  if (m.require("duration", "the simulated time per case, e.g. '30 s'"))
+    if (auto v = read_quantity(ctx, m.get("duration"), "cases.duration", u::duration, Bounds{0, 7 * 86400.0, true, false}))
+      spec.cases.duration = *v;
+  read_optional(m, "output_rate", spec.cases.output_rate, u::rate, Bounds{0, 1e5, true, false});
+  if (!m.require("initial", "a list of initial-condition sets (single, grid, random, corners, ladder)")) return;
+  const YAML::Node list = m.get("initial");
+  if (!expect_sequence(ctx, list, "cases.initial", "initial-condition sets")) return;
+  if (list.size() == 0)
+    ctx.error(list, "cases.initial", "the list of initial-condition sets is empty", "give at least one set");
+  for (std::size_t i = 0; i < list.size(); ++i) {
+    InitialSetSpec set;
+    const std::size_t before = ctx.diagnostics.size();
+    read_initial_set(ctx, list[i], fmt::format("cases.initial[{}]", i), spec, set);
+    if (ctx.diagnostics.size() == before) spec.cases.initial.push_back(std::move(set));
+  }
+  const long total = case_count(spec);
+  if (total > options.max_cases)
+    ctx.error(list, "cases.initial",
+              fmt::format("the case sets give {} cases ({} starts x {} scenarios), more than the cap of {}",
+                          total > 1'000'000'000L ? std::string("over 1e9") : std::to_string(total),
+                          total / static_cast<long>(std::max<std::size_t>(1, spec.scenarios.size())),
+                          spec.scenarios.size(), options.max_cases),
+              "reduce grid counts or random counts, or raise the cap with --max-cases N");
+}
+
+namespace {
+struct LimitInfo {
+  std::string_view key;
+  LimitKind kind;
+  u::Dim dim;
+  Bounds bounds;
+  bool link_allowed;
+};
+const LimitInfo kLimits[] = {
+    {"peak_angle", LimitKind::peak_angle, u::angle, Bounds::positive(), true},
+    {"relative_angle", LimitKind::relative_angle, u::angle, Bounds::positive(), true},
+    {"peak_rate", LimitKind::peak_rate, u::angular_rate, Bounds::positive(), true},
+    {"pivot_load", LimitKind::pivot_load, u::force, Bounds::positive(), true},
+    {"dynamic_factor", LimitKind::dynamic_factor, u::dimensionless, Bounds{1, 1e300, false, false}, true},
+    {"rope_tension_min", LimitKind::rope_tension_min, u::force, Bounds::non_negative(), true},
+    {"residual_sway", LimitKind::residual_sway, u::angle, Bounds::positive(), true},
+    {"ftle_max", LimitKind::ftle_max, u::rate, Bounds::any(), false},
+    {"modal_damping_min", LimitKind::modal_damping_min, u::dimensionless, Bounds{0, 1, false, false}, false},
+};
+}  // namespace
+
+void read_limits(const MapView& top, Spec& spec) {
+  Context& ctx = top.ctx();
+  if (!top.has("limits")) return;
+  const YAML::Node list = top.get("limits");
+  if (!expect_sequence(ctx, list, "limits", "limits")) return;
+  std::vector<std::string_view> keys{"link", "after", "horizon"};
+  for (const auto& info : kLimits) keys.push_back(info.key);
+  for (std::size_t i = 0; i < list.size(); ++i) {
+    const std::string path = fmt::format("limits[{}]", i);
+    MapView m(ctx, list[i], path, keys);
+    if (!m.ok()) continue;
+    const LimitInfo* found = nullptr;
+    int count = 0;
+    for (const auto& info : kLimits)
+      if (m.has(info.key)) {
+        found = &info;
+        ++count;
+      }
+    if (count != 1) {
+      std::string all;
+      for (const auto& info : kLimits) all += (all.empty() ? "" : ", ") + std::string(info.key);
+      ctx.error(m.mark(), path, count == 0 ? "no limit kind given" : "more than one limit kind in one entry",
+                "give exactly one of: " + all);
+      continue;
+    }
+    LimitSpec limit;
+    limit.kind = found->kind;
+    limit.key = std::string(found->key);
+    limit.mark = m.mark();
+    if (auto v = read_quantity(ctx, m.get(found->key), m.path(found->key), found->dim, found->bounds))
+      limit.value = *v;
+    if (m.has("link")) {
+      if (!found->link_allowed)
+        ctx.error(m.key_mark("link"), m.path("link"), fmt::format("'{}' applies to the whole chain", found->key),
+                  "remove 'link' from this limit");
+      else
+        limit.link = read_link_ref(ctx, m.get("link"), m.path("link"), spec);
+    }
+    if (limit.kind == LimitKind::rope_tension_min && limit.link >= 0 &&
+        spec.links[static_cast<std::size_t>(limit.link)].kind != LinkKind::rope)
+      ctx.error(m.get("link"), m.path("link"),
+                fmt::format("link '{}' is not a rope", spec.links[static_cast<std::size_t>(limit.link)].name),
+                "name a link of kind: rope, or set that link's kind to rope");
+    if (limit.kind == LimitKind::rope_tension_min && !m.has("link")) {
+      bool any_rope = false;
+      for (const auto& l : spec.links) any_rope |= l.kind == LinkKind::rope;
+      if (!any_rope && !spec.links.empty())
+        ctx.error(m.mark(), path, "no link is of kind rope, so there is no rope tension to check",
+                  "set kind: rope on the rope links or remove this limit");
+    }
+    if (m.has("after")) {
+      if (limit.kind != LimitKind::residual_sway)
+        ctx.error(m.key_mark("after"), m.path("after"), "'after' belongs to residual_sway only", "remove it");
+      else if (auto v = read_quantity(ctx, m.get("after"), m.path("after"), u::duration, Bounds::non_negative())) {
+        limit.after = *v;
+        if (spec.cases.duration > 0 && limit.after >= spec.cases.duration)
+          ctx.error(m.get("after"), m.path("after"), "the residual window starts after the end of the run",
+                    fmt::format("give a time below cases.duration ({})", u::format_si(spec.cases.duration, u::duration)));
+      }
+    } else if (limit.kind == LimitKind::residual_sway) {
+      ctx.error(m.mark(), m.path("after"), "missing required key 'after'",
+                "add 'after: ' with the time from which the sway must stay within the limit, e.g. '20 s'");
+    }
+    if (m.has("horizon")) {
+      if (limit.kind != LimitKind::ftle_max)
+        ctx.error(m.key_mark("horizon"), m.path("horizon"), "'horizon' belongs to ftle_max only", "remove it");
+      else if (auto v = read_quantity(ctx, m.get("horizon"), m.path("horizon"), u::duration, Bounds::positive()))
+        limit.horizon = *v;
+    } else if (limit.kind == LimitKind::ftle_max) {
+      limit.horizon = spec.cases.duration;
+      ctx.defaults_filled.push_back(m.path("horizon"));
+    }
+    spec.limits.push_back(limit);
+  }
+}
+
+void read_sizing(const MapView& top, Spec& spec) {
+  Context& ctx = top.ctx();
+  if (!top.has("sizing")) return;
+  MapView m(ctx, top.get("sizing"), "sizing", {"variables", "objective", "budget", "seed", "mode"});
+  if (!m.ok()) return;
+  SizingSpec s;
+  s.mark = m.mark();
+  if (m.require("variables", "a list of design variables {path, range, cost}") &&
+      expect_sequence(ctx, m.get("variables"), "sizing.variables", "design variables")) {
+    const YAML::Node list = m.get("variables");
+    if (list.size() == 0) ctx.error(list, "sizing.variables", "no design variables given", "give at least one");
+    for (std::size_t i = 0; i < list.size(); ++i) {
+      const std::string path = fmt::format("sizing.variables[{}]", i);
+      MapView v(ctx, list[i], path, {"path", "range", "cost", "catalogue"});
+      if (!v.ok()) continue;
+      SizingVariableSpec var;
+      var.mark = v.mark();
+      std::optional<SpecPath> target;
+      if (v.require("path", "the spec value to vary, e.g. links[hook].pivot.damper.coefficient"))
+        if (auto p = read_string(ctx, v.get("path"), v.path("path"))) {
+          var.path = *p;
+          std::string why;
+          target = parse_spec_path(spec, *p, why);
+          if (!target)
+            ctx.error(v.get("path"), v.path("path"), fmt::format("'{}' does not name a value of this spec: {}", *p, why),
+                      "see specs/README.md, 'sizing', for the paths that can be varied");
+        }
+      const u::Dim dim = target ? spec_path_dim(*target) : u::dimensionless;
+      if (v.has("range") == v.has("catalogue")) {
+        ctx.error(v.mark(), path, "a design variable needs exactly one of 'range' or 'catalogue'",
+                  "give range: [low, high] or catalogue: [value, value, ...]");
+      } else if (v.has("range") && target) {
+        const YAML::Node r = v.get("range");
+        if (!r.IsSequence() || r.size() != 2) {
+          ctx.error(r, v.path("range"), "expected [low, high]", "write e.g. range: [0.5 kN m s/rad, 20 kN m s/rad]");
+        } else {
+          auto lo = read_quantity(ctx, r[0], v.path("range") + "[0]", dim);
+          auto hi = read_quantity(ctx, r[1], v.path("range") + "[1]", dim);
+          if (lo && hi) {
+            bool open = false;
+            const double floor = spec_path_lower_bound(*target, open);
+            if (!(*lo < *hi))
+              ctx.error(r, v.path("range"), "the range is empty or inverted", "write [low, high] with low < high");
+            else if (open ? !(*lo > floor) : !(*lo >= floor))
+              ctx.error(r[0], v.path("range") + "[0]", "the range reaches values the spec does not allow",
+                        fmt::format("keep the low end {} {}", open ? ">" : ">=", u::format_si(floor, dim)));
+            var.lo = *lo;
+            var.hi = *hi;
+          }
+        }
+      } else if (v.has("catalogue") && target &&
+                 expect_sequence(ctx, v.get("catalogue"), v.path("catalogue"), "values that can be bought")) {
+        const YAML::Node c = v.get("catalogue");
+        if (c.size() == 0) ctx.error(c, v.path("catalogue"), "the catalogue is empty", "list at least one value");
+        for (std::size_t k = 0; k < c.size(); ++k)
+          if (auto x = read_quantity(ctx, c[k], fmt::format("{}[{}]", v.path("catalogue"), k), dim))
+            var.catalogue.push_back(*x);
+        std::sort(var.catalogue.begin(), var.catalogue.end());
+        if (!var.catalogue.empty()) {
+          var.lo = var.catalogue.front();
+          var.hi = var.catalogue.back();
+        }
+      }
+      read_optional(v, "cost", var.cost, u::dimensionless, Bounds::non_negative());
+      s.variables.push_back(var);
+    }
+  }
+  if (m.has("objective")) {
+    const YAML::Node o = m.get("objective");
+    if (o.IsMap()) {
+      MapView om(ctx, o, "sizing.objective", {"min", "link"});
+      if (om.ok() && om.require("min", "the limit kind whose worst value is minimised, e.g. peak_angle")) {
+        std::vector<std::string_view> names;
+        for (const auto& info : kLimits) names.push_back(info.key);
+        if (auto k = read_choice(ctx, om.get("min"), om.path("min"), names)) s.metric = *k;
+        if (om.has("link")) s.metric_link = read_link_ref(ctx, om.get("link"), om.path("link"), spec);
+        s.objective = Objective::min_metric;
+      }
+    } else if (auto k = read_choice(ctx, o, "sizing.objective", {"min_cost", "max_margin"})) {
+      s.objective = *k == "min_cost" ? Objective::min_cost : Objective::max_margin;
+    }
+  }
+  if (m.has("budget")) {
+    MapView b(ctx, m.get("budget"), "sizing.budget", {"evaluations", "seconds"});
+    if (b.ok()) {
+      if (b.has("evaluations"))
+        if (auto e = read_integer(ctx, b.get("evaluations"), b.path("evaluations"), 1, 1'000'000))
+          s.max_evaluations = static_cast<int>(*e);
+      read_optional(b, "seconds", s.max_seconds, u::duration, Bounds::positive());
+    }
+  }
+  if (m.has("seed"))
+    if (auto e = read_integer(ctx, m.get("seed"), "sizing.seed", 0, 1LL << 53)) s.seed = static_cast<std::uint64_t>(*e);
+  if (m.has("mode"))
+    if (auto k = read_choice(ctx, m.get("mode"), "sizing.mode", {"local", "global"}))
+      s.mode = *k == "local" ? SearchMode::local : SearchMode::global;
+  spec.sizing = std::move(s);
+}
+
+void read_solver_and_report(const MapView& top, Spec& spec) {
+  Context& ctx = top.ctx();
+  if (top.has("solver")) {
+    MapView m(ctx, top.get("solver"), "solver", {"method", "rtol", "atol", "max_steps", "min_step", "max_seconds"});
+    if (m.ok()) {
+      if (m.has("method")) {
+        if (auto k = read_choice(ctx, m.get("method"), "solver.method", {"dopri5", "rkf78"}))
+          spec.solver.method = *k == "dopri5" ? Stepper::dopri5 : Stepper::rkf78;
+      } else {
+        ctx.defaults_filled.push_back("solver.method");
+      }
+      read_optional(m, "rtol", spec.solver.rtol, u::dimensionless, Bounds{1e-15, 0.1, false, false});
+      read_optional(m, "atol", spec.solver.atol, u::dimensionless, Bounds{1e-16, 0.1, false, false});
+      if (m.has("max_steps")) {
+        if (auto e = read_integer(ctx, m.get("max_steps"), "solver.max_steps", 100, 1'000'000'000))
+          spec.solver.max_steps = static_cast<long>(*e);
+      } else {
+        ctx.defaults_filled.push_back("solver.max_steps");
+      }
+      read_optional(m, "min_step", spec.solver.min_step, u::duration, Bounds{0, 1, true, false});
+      read_optional(m, "max_seconds", spec.solver.max_seconds, u::duration, Bounds::positive());
+    }
+  } else {
+    for (const char* key : {"method", "rtol", "atol", "max_steps", "min_step", "max_seconds"})
+      ctx.defaults_filled.push_back(std::string("solver.") + key);
+  }
+  if (top.has("report")) {
+    MapView m(ctx, top.get("report"), "report", {"title", "project", "revision", "prepared_by", "paper"});
+    if (m.ok()) {
+      for (auto [key, field] : {std::pair{"title", &spec.report.title}, {"project", &spec.report.project},
+                                {"revision", &spec.report.revision}, {"prepared_by", &spec.report.prepared_by}})
+        if (m.has(key))
+          if (auto s = read_string(ctx, m.get(key), m.path(key))) *field = *s;
+      if (m.has("paper"))
+        if (auto k = read_choice(ctx, m.get("paper"), "report.paper", {"a4", "letter"}))
+          spec.report.paper = *k == "a4" ? Paper::a4 : Paper::letter;
+    }
+  }
+  if (spec.report.title.empty()) spec.report.title = spec.name;
+}
+
+}  // namespace spec_detail
+}  // namespace swaybound

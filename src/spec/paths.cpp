@@ -1,0 +1,133 @@
+#include "swaybound/spec/paths.hpp"
+
+#include <array>
+#include <limits>
+
+#include <fmt/format.h>
+
+namespace swaybound {
+
+namespace {
+using Field = SpecPath::Field;
+struct FieldInfo {
+  std::string_view name;
+  Field field;
+  units::Dim dim;
+  double lower;
+  bool open;
+};
+const FieldInfo kLinkFields[] = {
+    {"length", Field::length, units::length, 0, true},
+    {"mass", Field::mass, units::mass, 0, true},
+    {"com", Field::com, units::length, 0, false},
+    {"inertia", Field::inertia, units::moment_of_inertia, 0, false},
+    {"pivot.damper.coefficient", Field::damper_coefficient, units::rotary_damping, 0, false},
+    {"pivot.damper.exponent", Field::damper_exponent, units::dimensionless, 0, true},
+    {"pivot.damper.max_torque", Field::damper_max_torque, units::torque, 0, true},
+    {"pivot.friction.torque", Field::friction_torque, units::torque, 0, false},
+    {"pivot.friction.pin_radius", Field::friction_pin_radius, units::length, 0, false},
+    {"pivot.friction.mu", Field::friction_mu, units::dimensionless, 0, false},
+};
+const FieldInfo kDashpotField{"coefficient", Field::dashpot_coefficient, units::linear_damping, 0, false};
+
+const FieldInfo& info(Field f) {
+  for (const auto& i : kLinkFields)
+    if (i.field == f) return i;
+  return kDashpotField;
+}
+}  // namespace
+
+std::optional<SpecPath> parse_spec_path(const Spec& spec, std::string_view text, std::string& error) {
+  const auto open = text.find('[');
+  const auto close = text.find(']');
+  if (open == std::string_view::npos || close == std::string_view::npos || close < open ||
+      close + 1 >= text.size() || text[close + 1] != '.') {
+    error = "expected the form links[NAME].field or dashpots[NAME].coefficient";
+    return std::nullopt;
+  }
+  const std::string_view group = text.substr(0, open);
+  const std::string name(text.substr(open + 1, close - open - 1));
+  const std::string_view field = text.substr(close + 2);
+  if (group == "links") {
+    const int index = spec.link_index(name);
+    if (index < 0) {
+      error = fmt::format("no link is named '{}'", name);
+      return std::nullopt;
+    }
+    for (const auto& f : kLinkFields) {
+      if (f.name != field) continue;
+      const PivotSpec& pivot = spec.links[static_cast<std::size_t>(index)].pivot;
+      const bool damper_field = f.field == Field::damper_coefficient || f.field == Field::damper_exponent ||
+                                f.field == Field::damper_max_torque;
+      const bool friction_field = f.field == Field::friction_torque || f.field == Field::friction_pin_radius ||
+                                  f.field == Field::friction_mu;
+      if (damper_field && !pivot.damper) {
+        error = fmt::format("link '{}' has no damper at its pivot to vary", name);
+        return std::nullopt;
+      }
+      if (friction_field && !pivot.friction) {
+        error = fmt::format("link '{}' has no friction at its pivot to vary", name);
+        return std::nullopt;
+      }
+      return SpecPath{f.field, index};
+    }
+    std::string all;
+    for (const auto& f : kLinkFields) all += (all.empty() ? "" : ", ") + std::string(f.name);
+    error = fmt::format("unknown field '{}' (fields of a link: {})", field, all);
+    return std::nullopt;
+  }
+  if (group == "dashpots") {
+    for (std::size_t i = 0; i < spec.dashpots.size(); ++i)
+      if (spec.dashpots[i].name == name) {
+        if (field != "coefficient") {
+          error = fmt::format("unknown field '{}' (a dashpot has: coefficient)", field);
+          return std::nullopt;
+        }
+        return SpecPath{Field::dashpot_coefficient, static_cast<int>(i)};
+      }
+    error = fmt::format("no dashpot is named '{}'", name);
+    return std::nullopt;
+  }
+  error = fmt::format("unknown group '{}' (use links[...] or dashpots[...])", group);
+  return std::nullopt;
+}
+
+units::Dim spec_path_dim(const SpecPath& path) { return info(path.field).dim; }
+
+double spec_path_lower_bound(const SpecPath& path, bool& open) {
+  open = info(path.field).open;
+  return info(path.field).lower;
+}
+
+namespace {
+template <class SpecT>
+auto& value_ref(SpecT& spec, const SpecPath& p) {
+  if (p.field == Field::dashpot_coefficient) return spec.dashpots.at(static_cast<std::size_t>(p.index)).coefficient;
+  auto& link = spec.links.at(static_cast<std::size_t>(p.index));
+  switch (p.field) {
+    case Field::length: return link.length;
+    case Field::mass: return link.mass;
+    case Field::com: return link.com;
+    case Field::inertia: return link.inertia;
+    case Field::damper_coefficient: return link.pivot.damper.value().coefficient;
+    case Field::damper_exponent: return link.pivot.damper.value().exponent;
+    case Field::damper_max_torque: return link.pivot.damper.value().max_torque;
+    case Field::friction_torque: return link.pivot.friction.value().torque;
+    case Field::friction_pin_radius: return link.pivot.friction.value().pin_radius;
+    case Field::friction_mu: return link.pivot.friction.value().mu;
+    default: return link.length;
+  }
+}
+}  // namespace
+
+double get_spec_value(const Spec& spec, const SpecPath& path) { return value_ref(spec, path); }
+
+void set_spec_value(Spec& spec, const SpecPath& path, double value) {
+  value_ref(spec, path) = value;
+  if (path.field == Field::dashpot_coefficient) return;
+  auto& link = spec.links.at(static_cast<std::size_t>(path.index));
+  if (path.field == Field::com) link.com_given = true;
+  if (path.field == Field::inertia) link.inertia_given = true;
+}
+
+}  // namespace swaybound
