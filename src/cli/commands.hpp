@@ -14,5 +14,6 @@ inline constexpr int kExitError = 2;
 using Action = std::function<int()>;
 
 Action add_validate(CLI::App& app);
+Action add_simulate(CLI::App& app);
 
 }  // namespace swaybound::cli

@@ -8,6 +8,7 @@
 #include <sys/stat.h>
 
 #include <fmt/format.h>
+#include <yaml-cpp/depthguard.h>  // YAML::DeepRecursion
 
 #include "loader_parts.hpp"
 
@@ -347,7 +348,8 @@ std::string read_file(const std::string& path) {
   return buffer.str();
 }
 
-/// First invalid UTF-8 byte, as a 1-based line and column; line 0 when the text is valid.
+/// First invalid UTF-8 byte, as a 1-based line and column; line 0 when the text is valid. The column
+/// counts bytes, as the positions yaml-cpp reports for every other diagnostic do.
 Mark first_invalid_utf8(std::string_view s) {
   int line = 1, col = 1;
   for (std::size_t i = 0; i < s.size();) {
@@ -360,7 +362,7 @@ Mark first_invalid_utf8(std::string_view s) {
       ++line;
       col = 1;
     } else {
-      ++col;
+      col += static_cast<int>(len);
     }
     i += len;
   }
@@ -382,6 +384,13 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   YAML::Node root;
   try {
     root = YAML::Load(std::string(text));
+  } catch (const YAML::DeepRecursion& e) {
+    // yaml-cpp's depth guard: its message is "bad file" and its position is wherever the scanner had
+    // read ahead to (often the end of the file), so neither helps; report it for the whole file.
+    throw SpecError(file_label, {{{}, "",
+                                  fmt::format("lists and maps are nested too deeply (the YAML reader "
+                                              "stops at {} levels)", e.depth()),
+                                  "a design spec nests a few levels; look for unclosed '[' or '{'"}});
   } catch (const YAML::Exception& e) {
     const Mark at = e.mark.is_null() ? Mark{} : Mark{e.mark.line + 1, e.mark.column + 1};
     throw SpecError(file_label, {{at, "", "not valid YAML: " + e.msg,

@@ -1,6 +1,7 @@
 // Spec loader, part 2: cases, limits, sizing, solver and report metadata.
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 #include <fmt/format.h>
 
@@ -191,7 +192,8 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
       if (set.relative && set.perturb_link >= 0) {
         const auto li = static_cast<std::size_t>(set.perturb_link);
         if (li >= set.theta.size() || set.theta[li].lo == 0)
-          ctx.error(s.mark(), s.path("relative"), "relative perturbations of a zero angle are all zero",
+          ctx.error(s.key_mark("relative"), s.path("relative"),
+                    "relative perturbations of a zero angle are all zero",
                     "give a non-zero starting angle for the perturbed link, or use 'absolute'");
       }
       break;
@@ -329,6 +331,15 @@ void read_limits(const MapView& top, Spec& spec) {
   }
 }
 
+namespace {
+/// Upper end of the allowed range of the value a sizing path addresses, where the loader has one
+/// (damper exponent in (0, 2], friction mu in [0, 2]); +inf otherwise.
+double sizing_upper_bound(const SpecPath& path) {
+  if (path.field == SpecPath::Field::damper_exponent || path.field == SpecPath::Field::friction_mu) return 2;
+  return std::numeric_limits<double>::infinity();
+}
+}  // namespace
+
 void read_sizing(const MapView& top, Spec& spec) {
   Context& ctx = top.ctx();
   if (!top.has("sizing")) return;
@@ -370,11 +381,15 @@ void read_sizing(const MapView& top, Spec& spec) {
           if (lo && hi) {
             bool open = false;
             const double floor = spec_path_lower_bound(*target, open);
+            const double ceiling = sizing_upper_bound(*target);
             if (!(*lo < *hi))
               ctx.error(r, v.path("range"), "the range is empty or inverted", "write [low, high] with low < high");
             else if (open ? !(*lo > floor) : !(*lo >= floor))
               ctx.error(r[0], v.path("range") + "[0]", "the range reaches values the spec does not allow",
                         fmt::format("keep the low end {} {}", open ? ">" : ">=", u::format_si(floor, dim)));
+            else if (*hi > ceiling)
+              ctx.error(r[1], v.path("range") + "[1]", "the range reaches values the spec does not allow",
+                        fmt::format("keep the high end <= {}", u::format_si(ceiling, dim)));
             var.lo = *lo;
             var.hi = *hi;
           }
@@ -383,9 +398,14 @@ void read_sizing(const MapView& top, Spec& spec) {
                  expect_sequence(ctx, v.get("catalogue"), v.path("catalogue"), "values that can be bought")) {
         const YAML::Node c = v.get("catalogue");
         if (c.size() == 0) ctx.error(c, v.path("catalogue"), "the catalogue is empty", "list at least one value");
-        for (std::size_t k = 0; k < c.size(); ++k)
-          if (auto x = read_quantity(ctx, c[k], fmt::format("{}[{}]", v.path("catalogue"), k), dim))
-            var.catalogue.push_back(*x);
+        bool open = false;
+        const double floor = spec_path_lower_bound(*target, open);
+        const double ceiling = sizing_upper_bound(*target);
+        for (std::size_t k = 0; k < c.size(); ++k) {
+          const std::string cp = fmt::format("{}[{}]", v.path("catalogue"), k);
+          const Bounds allowed{floor, ceiling < 1e300 ? ceiling : 1e300, open, false};
+          if (auto x = read_quantity(ctx, c[k], cp, dim, allowed)) var.catalogue.push_back(*x);
+        }
         std::sort(var.catalogue.begin(), var.catalogue.end());
         if (!var.catalogue.empty()) {
           var.lo = var.catalogue.front();

@@ -20,7 +20,14 @@ void Context::error(Mark mark, std::string path, std::string message, std::strin
 
 void Context::error(const YAML::Node& node, std::string path, std::string message,
                     std::string fix) {
-  error(mark_of(node), std::move(path), std::move(message), std::move(fix));
+  Mark mark = mark_of(node);
+  if (node.IsDefined() && node.IsNull())
+    for (const auto& [value, key_mark] : null_value_keys)
+      if (value.is(node)) {
+        mark = key_mark;
+        break;
+      }
+  error(mark, std::move(path), std::move(message), std::move(fix));
 }
 
 std::size_t edit_distance(std::string_view a, std::string_view b) {
@@ -93,7 +100,7 @@ MapView::MapView(Context& ctx, const YAML::Node& node, std::string path,
     if (dup != entries_.end()) {
       ctx.error(key, this->path(name),
                 fmt::format("duplicate key '{}' (first given at line {})", name,
-                            mark_of(dup->second).line),
+                            key_marks_[static_cast<std::size_t>(dup - entries_.begin())].line),
                 "give each key once; delete or merge the repeated one");
       continue;
     }
@@ -107,6 +114,7 @@ MapView::MapView(Context& ctx, const YAML::Node& node, std::string path,
     }
     entries_.emplace_back(name, it->second);
     key_marks_.push_back(mark_of(key));
+    if (it->second.IsNull()) ctx.null_value_keys.emplace_back(it->second, mark_of(key));
   }
 }
 

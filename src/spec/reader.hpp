@@ -4,6 +4,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 #include <yaml-cpp/yaml.h>
@@ -20,6 +21,10 @@ struct Context {
   std::string file;
   std::vector<Diagnostic> diagnostics;
   std::vector<std::string> defaults_filled;
+  /// Map values that are null (`key:` with nothing after it) and the position of their key. yaml-cpp
+  /// gives an empty value the position of the next token, often the next key several lines down,
+  /// so errors about such a value are reported at its key instead.
+  std::vector<std::pair<YAML::Node, Mark>> null_value_keys;
 
   void error(Mark mark, std::string path, std::string message, std::string fix = {});
   void error(const YAML::Node& node, std::string path, std::string message, std::string fix = {});

@@ -1,0 +1,111 @@
+#pragma once
+// Equations of motion of a planar chain of N links on a moving base, in named stages:
+//   kinematics -> mass matrix -> force elements -> accelerations -> pivot loads.
+//
+// Lagrange's equations with the absolute angles theta_i (see model.hpp for mu_ij and h_i) give,
+// for i = 0..N-1 (e.g. Greenwood, Principles of Dynamics, 2nd ed., ch. 6; the N-link pendulum form):
+//   sum_j mu_ij [cos(theta_i - theta_j) alpha_j + sin(theta_i - theta_j) omega_j^2]
+//     + h_i [a_x cos theta_i + (g + a_y) sin theta_i] = Q_i
+// where (a_x, a_y) is the base (top pivot) acceleration and Q_i the generalised force of
+//   - pivot torques tau_p acting on link p from above (reaction on link p-1): Q_p += tau_p, Q_{p-1} -= tau_p;
+//   - point forces F at distance s along link k: Q_i += F . n_i * (L_i for i < k, s for i = k).
+// The pivot reaction F_i (force on link i from above) follows from Newton's second law for the
+// sub-chain below pivot i:  F_i = sum_{k>=i} m_k (a_k - g) - sum_{k>=i} F_ext,k,  with a_k the
+// centre-of-mass accelerations computed from the solved alpha (Newton-Euler pass).
+//
+// Load-dependent pin friction makes tau depend on |F_i|, which depends on alpha: the coupling is
+// solved by fixed-point iteration on the pin-friction torques within every evaluation (see
+// `evaluate`), not lagged from the previous step.
+//
+// State layout x (size 2N+2): theta[0..N) [rad], omega[0..N) [rad/s], dissipated energy [J],
+// work done on the chain by the base and the wind [J].
+#include <vector>
+
+#include <Eigen/Cholesky>
+#include <Eigen/Dense>
+
+#include "swaybound/model/model.hpp"
+
+namespace swaybound {
+
+/// Fixed-size scratch for small chains (N = 1..3) and a dynamic one for the general case.
+template <int N>
+struct Scratch {
+  using Matrix = Eigen::Matrix<double, N, N>;
+  using Vector = Eigen::Matrix<double, N, 1>;
+  Matrix M;                    ///< mass matrix [kg m^2] (N x N)
+  Eigen::LLT<Matrix> llt;      ///< its Cholesky factor
+  Vector bias;                 ///< generalised forces without pivot torques [N m] (N)
+  Vector rhs;                  ///< bias plus pivot-torque terms [N m] (N)
+  Vector alpha;                ///< angular accelerations [rad/s^2] (N)
+  void resize(int n);
+};
+
+/// Per-thread scratch of the dynamics; sized once for a model, never reallocated by `evaluate`.
+struct Workspace {
+  explicit Workspace(const Model& model);
+
+  int scenario = 0;  ///< index into Model::scenarios
+  int phase = 0;     ///< current phase of that scenario (set by the integration driver)
+
+  std::vector<double> sin_t, cos_t;  ///< sin, cos of theta_i [-] (N)
+  std::vector<double> omega;         ///< omega_i [rad/s] (N)
+  double base_x = 0, base_y = 0;     ///< base position [m]
+  double base_vx = 0, base_vy = 0;   ///< base velocity [m/s]
+  double base_ax = 0, base_ay = 0;   ///< base acceleration [m/s^2]
+  std::vector<double> force_x, force_y;  ///< external point forces summed per link [N] (N)
+  std::vector<double> tau;           ///< pivot torque on link i from above [N m] (N)
+  std::vector<double> tau_pin;       ///< of which load-dependent pin friction [N m] (N)
+  std::vector<double> reaction_x, reaction_y;  ///< pivot force on link i from above [N] (N)
+  std::vector<double> reaction;      ///< its magnitude [N] (N)
+  std::vector<double> reaction_prev; ///< previous pin-friction iterate of `reaction` [N] (N)
+  std::vector<double> acc_x, acc_y;  ///< centre-of-mass accelerations [m/s^2] (N)
+  double dissipated_power = 0;       ///< by dampers, friction, dashpots [W] (>= 0)
+  double input_power = 0;            ///< into the chain by the base and the wind [W]
+  int friction_iterations = 0;       ///< iterations of the last pin-friction solve
+  long friction_unconverged = 0;     ///< evaluations whose pin-friction iteration did not converge
+  long evaluations = 0;              ///< right-hand-side evaluations
+
+  Scratch<1> s1;
+  Scratch<2> s2;
+  Scratch<3> s3;
+  Scratch<Eigen::Dynamic> sn;
+};
+
+/// Stage 1: sin/cos of the angles, rates, base state at time t (from ws.scenario/ws.phase).
+void kinematics(const Model& model, Workspace& ws, const double* x, double t);
+
+/// Position [m] and velocity [m/s] of a point of the chain (after `kinematics`).
+void point_state(const Model& model, const Workspace& ws, const PointRef& p, double& px, double& py,
+                 double& vx, double& vy);
+
+/// Stage 3a: wind and dashpot forces into ws.force_x/y and the generalised force Q (added to q),
+/// and their dissipated and input power into ws.
+void external_forces(const Model& model, Workspace& ws, double* q);
+
+/// Stage 3b: pivot torques (dampers and friction, with pin friction from `reaction`) into ws.tau.
+void pivot_torques(const Model& model, Workspace& ws, const double* reaction);
+
+/// Stage 5: pivot reactions from the angular accelerations alpha (Newton-Euler over sub-chains).
+void pivot_reactions(const Model& model, Workspace& ws, const double* alpha);
+
+/// The whole right-hand side: dxdt = f(x, t). Uses fixed-size matrices for N <= 3.
+void evaluate(const Model& model, Workspace& ws, const double* x, double t, double* dxdt);
+
+/// Mechanical energy (kinetic + potential, potential zero at the base's y = 0) [J] after `evaluate`
+/// or `kinematics` at the same state.
+double mechanical_energy(const Model& model, const Workspace& ws);
+
+/// Axial tension of link i at its upper and lower ends [N] after `evaluate` (positive = pulling;
+/// the lower end of the last link is free, tension 0).
+void link_tension(const Model& model, const Workspace& ws, int i, double& top, double& bottom);
+
+/// The Odeint system functor: (x, dxdt, t). Pass it with std::ref so Odeint does not copy it.
+template <class State>
+struct ChainSystem {
+  const Model* model;
+  Workspace* ws;
+  void operator()(const State& x, State& dxdt, double t) const { evaluate(*model, *ws, x.data(), t, dxdt.data()); }
+};
+
+}  // namespace swaybound

@@ -1,0 +1,49 @@
+#pragma once
+// Force-element laws, each a pure function of the relative motion it acts on. Sign convention:
+// the returned torque acts on the lower link, opposite in sign to the relative rate w (the
+// upper link or base receives the reaction).
+#include <cmath>
+
+#include "swaybound/model/model.hpp"
+
+namespace swaybound {
+
+/// Power-law rotary damper: tau = -C w_ref (|w| / w_ref)^alpha sign(w), w_ref = 1 rad/s, capped at
+/// max_torque. For alpha < 1 the law's slope is infinite at w = 0, which makes an explicit stepper
+/// crawl through every reversal; below |w| = w0 (linear_below) it is replaced by the secant line
+/// tau = -C w0^(alpha - 1) w, which meets the power law at |w| = w0 (continuous torque, finite slope).
+/// alpha >= 1 uses the power law down to 0. Inputs: w [rad/s]; output [N m].
+inline double damper_torque(const PivotModel& p, double w) {
+  if (p.damper_c <= 0) return 0.0;
+  const double aw = std::fabs(w);
+  double magnitude;
+  if (p.damper_alpha == 1.0)
+    magnitude = p.damper_c * aw;
+  else if (p.damper_alpha < 1.0 && aw < p.damper_linear_below)
+    magnitude = p.damper_c * std::pow(p.damper_linear_below, p.damper_alpha - 1.0) * aw;
+  else
+    magnitude = p.damper_c * std::pow(aw, p.damper_alpha);
+  magnitude = std::fmin(magnitude, p.damper_max);
+  return w >= 0 ? -magnitude : magnitude;
+}
+
+/// Regularised Coulomb friction: tau = -(T0 + mu r |R|) tanh(w / w_t), with T0 the constant
+/// torque, mu r the pin friction factor, |R| the pivot reaction [N] and w_t the transition rate.
+/// tanh keeps the law smooth; its slope at w = 0 is (T0 + mu r |R|) / w_t, so a small w_t makes
+/// the equations stiff for an explicit stepper (see DEVELOPERS.md, "Friction").
+inline double friction_torque(const PivotModel& p, double w, double reaction) {
+  const double level = p.coulomb_torque + p.pin_friction * reaction;
+  if (level <= 0) return 0.0;
+  return -level * std::tanh(w / p.transition_rate);
+}
+
+/// Quadratic drag of a point moving at velocity (vx, vy) in a horizontal wind u:
+/// F = k |u - v| (u - v), k = 1/2 rho Cd A [kg/m]. Output in fx, fy [N].
+inline void drag_force(double k, double u, double vx, double vy, double& fx, double& fy) {
+  const double rx = u - vx, ry = -vy;
+  const double speed = std::sqrt(rx * rx + ry * ry);
+  fx = k * speed * rx;
+  fy = k * speed * ry;
+}
+
+}  // namespace swaybound

@@ -1,0 +1,276 @@
+#include "swaybound/dynamics/chain.hpp"
+
+#include <cmath>
+
+#include "swaybound/dynamics/forces.hpp"
+
+namespace swaybound {
+
+template <int N>
+void Scratch<N>::resize(int n) {
+  if constexpr (N == Eigen::Dynamic) {
+    M.resize(n, n);
+    llt = Eigen::LLT<Matrix>(n);
+    bias.resize(n);
+    rhs.resize(n);
+    alpha.resize(n);
+  }
+  M.setZero();
+  bias.setZero();
+  rhs.setZero();
+  alpha.setZero();
+}
+
+Workspace::Workspace(const Model& model) {
+  const auto n = static_cast<std::size_t>(model.n);
+  for (auto* v : {&sin_t, &cos_t, &omega, &force_x, &force_y, &tau, &tau_pin, &reaction_x, &reaction_y, &reaction, &reaction_prev,
+                  &acc_x, &acc_y})
+    v->assign(n, 0.0);
+  s1.resize(1);
+  s2.resize(2);
+  s3.resize(3);
+  sn.resize(model.n);
+}
+
+void kinematics(const Model& model, Workspace& ws, const double* x, double t) {
+  const int n = model.n;
+  for (int i = 0; i < n; ++i) {
+    ws.sin_t[i] = std::sin(x[i]);
+    ws.cos_t[i] = std::cos(x[i]);
+    ws.omega[i] = x[n + i];
+  }
+  const Phase& p = model.scenarios[static_cast<std::size_t>(ws.scenario)].phases[static_cast<std::size_t>(ws.phase)];
+  const double dt = t - p.t0;
+  ws.base_ax = p.ax;
+  ws.base_ay = p.ay;
+  ws.base_vx = p.vx0 + p.ax * dt;
+  ws.base_vy = p.vy0 + p.ay * dt;
+  ws.base_x = p.x0 + p.vx0 * dt + 0.5 * p.ax * dt * dt;
+  ws.base_y = p.y0 + p.vy0 * dt + 0.5 * p.ay * dt * dt;
+}
+
+void point_state(const Model& model, const Workspace& ws, const PointRef& p, double& px, double& py, double& vx, double& vy) {
+  px = ws.base_x;
+  py = ws.base_y;
+  vx = ws.base_vx;
+  vy = ws.base_vy;
+  if (p.link < 0) {
+    px += p.base_x;
+    py += p.base_y;
+    return;
+  }
+  for (int j = 0; j <= p.link; ++j) {
+    const double r = j < p.link ? model.length[j] : p.at;
+    px += r * ws.sin_t[j];
+    py -= r * ws.cos_t[j];
+    vx += r * ws.omega[j] * ws.cos_t[j];
+    vy += r * ws.omega[j] * ws.sin_t[j];
+  }
+}
+
+namespace {
+
+/// Adds a point force (fx, fy) on link k at distance s to the generalised forces q and ws.force_*.
+void apply_point_force(const Model& model, Workspace& ws, int k, double s, double fx, double fy, double* q) {
+  ws.force_x[k] += fx;
+  ws.force_y[k] += fy;
+  for (int i = 0; i <= k; ++i) {
+    const double lever = i < k ? model.length[i] : s;
+    q[i] += (fx * ws.cos_t[i] + fy * ws.sin_t[i]) * lever;
+  }
+}
+
+}  // namespace
+
+void external_forces(const Model& model, Workspace& ws, double* q) {
+  for (int k = 0; k < model.n; ++k) ws.force_x[k] = ws.force_y[k] = 0.0;
+  const Phase& phase = model.scenarios[static_cast<std::size_t>(ws.scenario)].phases[static_cast<std::size_t>(ws.phase)];
+  for (std::size_t w = 0; w < model.wind.size(); ++w) {
+    const WindModel& wind = model.wind[w];
+    double px, py, vx, vy, fx, fy;
+    point_state(model, ws, wind.point, px, py, vx, vy);
+    drag_force(wind.drag_factor, phase.wind_speed[w], vx, vy, fx, fy);
+    apply_point_force(model, ws, wind.point.link, wind.point.at, fx, fy, q);
+    ws.input_power += fx * vx + fy * vy;
+  }
+  for (const DashpotModel& d : model.dashpots) {
+    double ax, ay, avx, avy, bx, by, bvx, bvy;
+    point_state(model, ws, d.a, ax, ay, avx, avy);
+    point_state(model, ws, d.b, bx, by, bvx, bvy);
+    const double dx = ax - bx, dy = ay - by;
+    const double length = std::sqrt(dx * dx + dy * dy);
+    if (length <= 0) continue;  // coincident ends: no defined axis (validated against at rest)
+    const double ux = dx / length, uy = dy / length;
+    const double stretch_rate = ux * (avx - bvx) + uy * (avy - bvy);
+    const double f = -d.coefficient * stretch_rate;  // force on end a along u; end b gets -f
+    // Power of the forces on the chain = -c s^2 (dissipated) + (force on the link end) . (base velocity)
+    // when one end is on the moving base: that share is work done by the base.
+    if (d.a.link >= 0) apply_point_force(model, ws, d.a.link, d.a.at, f * ux, f * uy, q);
+    else ws.input_power -= f * (ux * avx + uy * avy);
+    if (d.b.link >= 0) apply_point_force(model, ws, d.b.link, d.b.at, -f * ux, -f * uy, q);
+    else ws.input_power += f * (ux * bvx + uy * bvy);
+    ws.dissipated_power += d.coefficient * stretch_rate * stretch_rate;
+  }
+}
+
+void pivot_torques(const Model& model, Workspace& ws, const double* reaction) {
+  for (int i = 0; i < model.n; ++i) {
+    const PivotModel& p = model.pivots[i];
+    const double w = ws.omega[i] - (i > 0 ? ws.omega[i - 1] : 0.0);
+    double torque = damper_torque(p, w);
+    ws.tau_pin[i] = 0.0;
+    if (p.has_friction()) {
+      const double slide = std::tanh(w / p.transition_rate);
+      ws.tau_pin[i] = reaction ? -p.pin_friction * reaction[i] * slide : 0.0;
+      torque += -p.coulomb_torque * slide + ws.tau_pin[i];
+    }
+    ws.tau[i] = torque;
+  }
+}
+
+void pivot_reactions(const Model& model, Workspace& ws, const double* alpha) {
+  const int n = model.n;
+  // Forward: acceleration of pivot k relative to the base, then of each centre of mass.
+  double px = 0, py = 0;
+  for (int k = 0; k < n; ++k) {
+    const double tx = alpha[k] * ws.cos_t[k] - ws.omega[k] * ws.omega[k] * ws.sin_t[k];   // (alpha n - w^2 e).x
+    const double ty = alpha[k] * ws.sin_t[k] + ws.omega[k] * ws.omega[k] * ws.cos_t[k];   // (alpha n - w^2 e).y
+    ws.acc_x[k] = ws.base_ax + px + model.com[k] * tx;
+    ws.acc_y[k] = ws.base_ay + py + model.com[k] * ty;
+    px += model.length[k] * tx;
+    py += model.length[k] * ty;
+  }
+  // Backward: Newton's second law for the sub-chain below each pivot.
+  double fx = 0, fy = 0;
+  for (int k = n - 1; k >= 0; --k) {
+    fx += model.mass[k] * ws.acc_x[k] - ws.force_x[k];
+    fy += model.mass[k] * (ws.acc_y[k] + model.gravity) - ws.force_y[k];
+    ws.reaction_x[k] = fx;
+    ws.reaction_y[k] = fy;
+    ws.reaction[k] = std::sqrt(fx * fx + fy * fy);
+  }
+}
+
+namespace {
+
+constexpr int kMaxFrictionIterations = 50;
+
+template <int N>
+void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const double* x, double t, double* dxdt) {
+  const int n = model.n;
+  ++ws.evaluations;
+  ws.dissipated_power = 0;
+  ws.input_power = 0;
+  kinematics(model, ws, x, t);
+
+  // Stage 2: mass matrix M_ij = mu_ij cos(theta_i - theta_j).
+  for (int i = 0; i < n; ++i) {
+    sc.M(i, i) = model.mu(i, i);
+    for (int j = i + 1; j < n; ++j) {
+      const double v = model.mu(i, j) * (ws.cos_t[i] * ws.cos_t[j] + ws.sin_t[i] * ws.sin_t[j]);
+      sc.M(i, j) = v;
+      sc.M(j, i) = v;
+    }
+  }
+  sc.llt.compute(sc.M);
+
+  // Stage 3: velocity-product, gravity and base-inertia terms, then external point forces.
+  const double gy = model.gravity + ws.base_ay;
+  for (int i = 0; i < n; ++i) {
+    double b = -model.h[i] * (ws.base_ax * ws.cos_t[i] + gy * ws.sin_t[i]);
+    for (int j = 0; j < n; ++j) {
+      if (j == i) continue;
+      const double sin_ij = ws.sin_t[i] * ws.cos_t[j] - ws.cos_t[i] * ws.sin_t[j];
+      b -= model.mu(i, j) * sin_ij * ws.omega[j] * ws.omega[j];
+    }
+    sc.bias(i) = b;
+  }
+  if (!model.wind.empty() || !model.dashpots.empty()) external_forces(model, ws, sc.bias.data());
+
+  // Stage 4: pivot torques and accelerations; pin friction iterated to a consistent reaction.
+  const auto solve = [&](const double* reaction) {
+    pivot_torques(model, ws, reaction);
+    sc.rhs = sc.bias;
+    for (int i = 0; i < n; ++i) {
+      sc.rhs(i) += ws.tau[i];
+      if (i > 0) sc.rhs(i - 1) -= ws.tau[i];
+    }
+    sc.alpha = sc.llt.solve(sc.rhs);
+    pivot_reactions(model, ws, sc.alpha.data());
+  };
+  solve(nullptr);
+  ws.friction_iterations = 0;
+  if (model.any_pin_friction) {
+    // Fixed point R = reactions(alpha(tau_pin(R))), started from the reactions without pin
+    // friction. The map contracts by about mu * r_pin / (link length) per iteration (small for
+    // real pins), so a few iterations reach the tolerance.
+    bool converged = false;
+    for (int it = 0; it < kMaxFrictionIterations && !converged; ++it) {
+      ws.reaction_prev = ws.reaction;
+      solve(ws.reaction_prev.data());
+      double change = 0, scale = 0;
+      for (int i = 0; i < n; ++i) {
+        change = std::fmax(change, std::fabs(ws.reaction[i] - ws.reaction_prev[i]));
+        scale = std::fmax(scale, ws.reaction[i]);
+      }
+      ws.friction_iterations = it + 1;
+      converged = change <= 1e-13 * scale;
+    }
+    if (!converged) ++ws.friction_unconverged;
+  }
+
+  // Powers: pivot torques dissipate tau * relative rate; the base does work through pivot 0.
+  for (int i = 0; i < n; ++i) {
+    const double w = ws.omega[i] - (i > 0 ? ws.omega[i - 1] : 0.0);
+    ws.dissipated_power -= ws.tau[i] * w;
+  }
+  ws.input_power += ws.reaction_x[0] * ws.base_vx + ws.reaction_y[0] * ws.base_vy;
+
+  for (int i = 0; i < n; ++i) {
+    dxdt[i] = x[n + i];
+    dxdt[n + i] = sc.alpha(i);
+  }
+  dxdt[2 * n] = ws.dissipated_power;
+  dxdt[2 * n + 1] = ws.input_power;
+}
+
+}  // namespace
+
+void evaluate(const Model& model, Workspace& ws, const double* x, double t, double* dxdt) {
+  switch (model.n) {
+    case 1: evaluate_impl(model, ws, ws.s1, x, t, dxdt); break;
+    case 2: evaluate_impl(model, ws, ws.s2, x, t, dxdt); break;
+    case 3: evaluate_impl(model, ws, ws.s3, x, t, dxdt); break;
+    default: evaluate_impl(model, ws, ws.sn, x, t, dxdt); break;
+  }
+}
+
+double mechanical_energy(const Model& model, const Workspace& ws) {
+  double energy = 0;
+  double px = ws.base_x, py = ws.base_y, vx = ws.base_vx, vy = ws.base_vy;
+  for (int k = 0; k < model.n; ++k) {
+    const double c = model.com[k];
+    const double cy = py - c * ws.cos_t[k];
+    const double cvx = vx + c * ws.omega[k] * ws.cos_t[k], cvy = vy + c * ws.omega[k] * ws.sin_t[k];
+    energy += 0.5 * model.mass[k] * (cvx * cvx + cvy * cvy) + 0.5 * model.inertia[k] * ws.omega[k] * ws.omega[k] +
+              model.mass[k] * model.gravity * cy;
+    px += model.length[k] * ws.sin_t[k];
+    py -= model.length[k] * ws.cos_t[k];
+    vx += model.length[k] * ws.omega[k] * ws.cos_t[k];
+    vy += model.length[k] * ws.omega[k] * ws.sin_t[k];
+  }
+  return energy;
+}
+
+void link_tension(const Model& model, const Workspace& ws, int i, double& top, double& bottom) {
+  const double ex = ws.sin_t[i], ey = -ws.cos_t[i];
+  top = -(ws.reaction_x[i] * ex + ws.reaction_y[i] * ey);
+  bottom = i + 1 < model.n ? -(ws.reaction_x[i + 1] * ex + ws.reaction_y[i + 1] * ey) : 0.0;
+}
+
+template struct Scratch<1>;
+template struct Scratch<2>;
+template struct Scratch<3>;
+template struct Scratch<Eigen::Dynamic>;
+
+}  // namespace swaybound

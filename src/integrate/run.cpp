@@ -1,0 +1,265 @@
+#include "swaybound/integrate/run.hpp"
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+
+#include <boost/numeric/odeint.hpp>
+#include <fmt/format.h>
+
+namespace swaybound {
+
+namespace odeint = boost::numeric::odeint;
+using State = std::vector<double>;
+
+std::string_view status_name(RunStatus status) {
+  switch (status) {
+    case RunStatus::ok: return "ok";
+    case RunStatus::non_finite: return "non_finite";
+    case RunStatus::step_collapse: return "step_collapse";
+    case RunStatus::step_budget: return "step_budget";
+    case RunStatus::time_budget: return "time_budget";
+    case RunStatus::friction_unconverged: return "friction_unconverged";
+  }
+  return "unknown";
+}
+
+RunSettings RunSettings::from_spec(const Spec& spec) {
+  RunSettings s;
+  s.duration = spec.cases.duration;
+  s.method = spec.solver.method;
+  s.rtol = spec.solver.rtol;
+  s.atol = spec.solver.atol;
+  s.max_steps = spec.solver.max_steps;
+  s.min_step = spec.solver.min_step;
+  s.max_seconds = spec.solver.max_seconds;
+  s.output_rate = spec.cases.output_rate;
+  return s;
+}
+
+namespace {
+
+/// The system functor handed to Odeint (by std::ref), remembering its last evaluation so an
+/// observer at the same point reuses it instead of evaluating again.
+struct System {
+  const Model* model;
+  Workspace* ws;
+  double last_t = std::nan("");
+  State last_x;
+  void operator()(const State& x, State& dxdt, double t) {
+    evaluate(*model, *ws, x.data(), t, dxdt.data());
+    last_t = t;
+    std::copy(x.begin(), x.end(), last_x.begin());
+  }
+  /// Makes ws hold the evaluation at (x, t).
+  void ensure(const State& x, double t, State& scratch) {
+    if (t == last_t && std::equal(x.begin(), x.end(), last_x.begin())) return;
+    (*this)(x, scratch, t);
+  }
+};
+
+bool finite(const State& x) {
+  return std::all_of(x.begin(), x.end(), [](double v) { return std::isfinite(v); });
+}
+
+/// Cubic Hermite interpolation between (t0, x0, f0) and (t1, x1, f1) at t (for steppers without
+/// dense output).
+void hermite(double t, double t0, const State& x0, const State& f0, double t1, const State& x1, const State& f1,
+             State& out) {
+  const double h = t1 - t0, s = (t - t0) / h;
+  const double h00 = (1 + 2 * s) * (1 - s) * (1 - s), h10 = s * (1 - s) * (1 - s);
+  const double h01 = s * s * (3 - 2 * s), h11 = s * s * (s - 1);
+  for (std::size_t i = 0; i < out.size(); ++i) out[i] = h00 * x0[i] + h10 * h * f0[i] + h01 * x1[i] + h11 * h * f1[i];
+}
+
+class Driver {
+ public:
+  Driver(const Model& model, Workspace& ws, const RunSettings& settings, const Observer& on_step,
+         const Observer& on_sample)
+      : model_(model), ws_(ws), settings_(settings), on_step_(on_step), on_sample_(on_sample),
+        system_{&model, &ws, std::nan(""), State(static_cast<std::size_t>(model.state_size()))},
+        scratch_(static_cast<std::size_t>(model.state_size())),
+        sample_(static_cast<std::size_t>(model.state_size())),
+        started_(std::chrono::steady_clock::now()) {}
+
+  RunOutcome run(State x) {
+    const ScenarioModel& scenario = model_.scenarios[static_cast<std::size_t>(ws_.scenario)];
+    ws_.phase = 0;
+    ws_.friction_unconverged = 0;
+    const long evaluations_before = ws_.evaluations;
+    outcome_.audit_scale = model_.energy_scale;
+    system_.ensure(x, 0.0, scratch_);
+    outcome_.energy0 = mechanical_energy(model_, ws_);
+    observe(x, 0.0, on_step_);
+    next_sample_ = 0;
+    emit_samples_up_to(0.0, [&](double, State& out) { out = x; });
+    double t = 0;
+    for (std::size_t k = 0; k < scenario.phases.size() && t < settings_.duration && ok(); ++k) {
+      const Phase& phase = scenario.phases[k];
+      if (phase.t1 <= t) continue;
+      ws_.phase = static_cast<int>(k);
+      const double t_end = std::min(phase.t1, settings_.duration);
+      if (settings_.method == Stepper::dopri5)
+        integrate_dopri5(x, t, t_end);
+      else
+        integrate_rkf78(x, t, t_end);
+    }
+    outcome_.t_reached = t;
+    outcome_.evaluations = ws_.evaluations - evaluations_before;
+    if (ok() && ws_.friction_unconverged > 0)
+      fail(RunStatus::friction_unconverged,
+           fmt::format("pin friction did not converge in {} evaluations", ws_.friction_unconverged));
+    return outcome_;
+  }
+
+ private:
+  bool ok() const { return outcome_.status == RunStatus::ok; }
+  void fail(RunStatus status, std::string reason) {
+    if (!ok()) return;
+    outcome_.status = status;
+    outcome_.reason = std::move(reason);
+  }
+
+  /// Calls `observer` with ws evaluated at (x, t); `audit` folds the residual into the outcome.
+  void observe(const State& x, double t, const Observer& observer, bool audit = true) {
+    const double energy = mechanical_energy(model_, ws_);
+    const auto n = static_cast<std::size_t>(model_.n);
+    const double residual = energy + x[2 * n] - x[2 * n + 1] - outcome_.energy0;
+    if (audit) outcome_.max_audit_residual = std::max(outcome_.max_audit_residual, std::fabs(residual));
+    if (observer) observer(StepView{t, x.data(), &ws_, energy, residual});
+  }
+
+  /// Emits every output sample with time <= t, getting each state from `interpolate`.
+  template <class Interpolate>
+  void emit_samples_up_to(double t, Interpolate&& interpolate) {
+    if (!on_sample_ || settings_.output_rate <= 0) return;
+    for (;;) {
+      const double ts = static_cast<double>(next_sample_) / settings_.output_rate;
+      if (ts > t + 1e-12 * std::max(1.0, t) || ts > settings_.duration * (1 + 1e-12)) return;
+      interpolate(ts, sample_);
+      system_(sample_, scratch_, ts);
+      observe(sample_, ts, on_sample_, false);
+      ++next_sample_;
+    }
+  }
+
+  /// Checks after an accepted step; false when the run must stop.
+  bool after_step(const State& x, double t, double dt_taken, double t_end) {
+    ++outcome_.steps;
+    if (!finite(x)) {
+      fail(RunStatus::non_finite, fmt::format("the state became non-finite at t = {:.6g} s", t));
+      return false;
+    }
+    if (dt_taken < settings_.min_step && t < t_end) {
+      fail(RunStatus::step_collapse,
+           fmt::format("the step size fell to {:.3g} s (< {:.3g} s) at t = {:.6g} s", dt_taken, settings_.min_step, t));
+      return false;
+    }
+    if (outcome_.steps > settings_.max_steps) {
+      fail(RunStatus::step_budget, fmt::format("more than {} steps by t = {:.6g} s", settings_.max_steps, t));
+      return false;
+    }
+    if ((outcome_.steps & 255) == 0) {
+      const double elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - started_).count();
+      if (elapsed > settings_.max_seconds) {
+        fail(RunStatus::time_budget,
+             fmt::format("the wall-clock budget of {:.3g} s ran out at t = {:.6g} s", settings_.max_seconds, t));
+        return false;
+      }
+    }
+    return true;
+  }
+
+  void integrate_dopri5(State& x, double& t, double t_end) {
+    auto stepper = odeint::make_dense_output(settings_.atol, settings_.rtol, odeint::runge_kutta_dopri5<State>());
+    double dt = std::min(initial_step_, t_end - t);
+    stepper.initialize(x, t, dt);
+    try {
+      while (stepper.current_time() < t_end) {
+        const double remaining = t_end - stepper.current_time();
+        if (stepper.current_time_step() > remaining)
+          stepper.initialize(stepper.current_state(), stepper.current_time(), remaining);
+        const auto [t0, t1] = stepper.do_step(std::ref(system_));
+        const double now = t1 >= t_end - 1e-14 * std::max(1.0, t_end) ? t_end : t1;
+        system_.ensure(stepper.current_state(), t1, scratch_);
+        if (!after_step(stepper.current_state(), t1, t1 - t0, now)) break;
+        observe(stepper.current_state(), t1, on_step_);
+        emit_samples_up_to(t1, [&](double ts, State& out) { stepper.calc_state(ts, out); });
+        if (t1 >= t_end - 1e-14 * std::max(1.0, t_end)) break;
+      }
+    } catch (const std::exception& e) {
+      fail(finite(stepper.current_state()) ? RunStatus::step_collapse : RunStatus::non_finite,
+           fmt::format("no step could be accepted near t = {:.6g} s ({})", stepper.current_time(), e.what()));
+    }
+    x = stepper.current_state();
+    t = stepper.current_time();
+    initial_step_ = std::max(stepper.current_time_step(), 1e-6);
+  }
+
+  void integrate_rkf78(State& x, double& t, double t_end) {
+    auto stepper = odeint::make_controlled(settings_.atol, settings_.rtol, odeint::runge_kutta_fehlberg78<State>());
+    double dt = std::min(initial_step_, t_end - t);
+    State x_old(x.size()), f_old(x.size()), f_new(x.size());
+    system_(x, f_old, t);
+    int failures = 0;
+    while (t < t_end) {
+      dt = std::min(dt, t_end - t);
+      const double t_old = t;
+      x_old = x;
+      if (stepper.try_step(std::ref(system_), x, t, dt) == odeint::fail) {
+        ++outcome_.rejected;
+        if (dt < settings_.min_step || ++failures > 500) {
+          fail(RunStatus::step_collapse,
+               fmt::format("no step could be accepted at t = {:.6g} s (step {:.3g} s)", t, dt));
+          break;
+        }
+        continue;
+      }
+      failures = 0;
+      const double now = t >= t_end - 1e-14 * std::max(1.0, t_end) ? t_end : t;
+      system_(x, f_new, t);
+      if (!after_step(x, t, t - t_old, now)) break;
+      observe(x, t, on_step_);
+      emit_samples_up_to(t, [&](double ts, State& out) { hermite(ts, t_old, x_old, f_old, t, x, f_new, out); });
+      std::swap(f_old, f_new);
+      if (now == t_end) {
+        t = t_end;
+        break;
+      }
+    }
+    initial_step_ = std::max(dt, 1e-6);
+  }
+
+  const Model& model_;
+  Workspace& ws_;
+  const RunSettings& settings_;
+  const Observer& on_step_;
+  const Observer& on_sample_;
+  System system_;
+  State scratch_, sample_;
+  std::chrono::steady_clock::time_point started_;
+  RunOutcome outcome_;
+  long next_sample_ = 0;
+  double initial_step_ = 1e-3;
+};
+
+}  // namespace
+
+RunOutcome simulate_case(const Model& model, Workspace& ws, int scenario, const InitialState& start,
+                         const RunSettings& settings, const Observer& on_step, const Observer& on_sample) {
+  SWAYBOUND_REQUIRE(scenario >= 0 && scenario < static_cast<int>(model.scenarios.size()),
+                    "scenario index {} out of range (model has {})", scenario, model.scenarios.size());
+  SWAYBOUND_REQUIRE(start.theta.size() <= static_cast<std::size_t>(model.n) &&
+                        start.omega.size() <= static_cast<std::size_t>(model.n),
+                    "initial state has {} angles and {} rates for {} links", start.theta.size(), start.omega.size(),
+                    model.n);
+  SWAYBOUND_REQUIRE(settings.duration > 0, "duration must be > 0, got {}", settings.duration);
+  State x(static_cast<std::size_t>(model.state_size()), 0.0);
+  std::copy(start.theta.begin(), start.theta.end(), x.begin());
+  std::copy(start.omega.begin(), start.omega.end(), x.begin() + model.n);
+  ws.scenario = scenario;
+  Driver driver(model, ws, settings, on_step, on_sample);
+  return driver.run(std::move(x));
+}
+
+}  // namespace swaybound

@@ -1,0 +1,130 @@
+#include "swaybound/model/model.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+namespace swaybound {
+
+int ScenarioModel::phase_at(double t) const {
+  for (std::size_t k = 0; k < phases.size(); ++k)
+    if (t < phases[k].t1) return static_cast<int>(k);
+  return static_cast<int>(phases.size()) - 1;
+}
+
+namespace {
+
+PointRef point_of(const AttachmentSpec& a) { return PointRef{a.link, a.at, a.base_x, a.base_y}; }
+
+ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>& wind) {
+  // Breakpoints: ends of base-acceleration segments and starts/ends of gusts.
+  std::vector<double> cuts;
+  double t = 0;
+  for (const auto& seg : s.accel) cuts.push_back(t += seg.duration);
+  for (const auto& w : wind)
+    if (w.gust) {
+      cuts.push_back(w.gust->start);
+      cuts.push_back(w.gust->start + w.gust->duration);
+    }
+  cuts.push_back(0.0);
+  std::sort(cuts.begin(), cuts.end());
+  cuts.erase(std::unique(cuts.begin(), cuts.end()), cuts.end());
+
+  ScenarioModel out;
+  out.name = s.name;
+  double x = 0, y = 0, vx = s.initial_vx, vy = s.initial_vy;
+  for (std::size_t k = 0; k < cuts.size(); ++k) {
+    Phase p;
+    p.t0 = cuts[k];
+    p.t1 = k + 1 < cuts.size() ? cuts[k + 1] : std::numeric_limits<double>::infinity();
+    // Base acceleration of the segment that contains this phase (0 after the last segment).
+    double seg_start = 0;
+    for (const auto& seg : s.accel) {
+      if (p.t0 >= seg_start && p.t0 < seg_start + seg.duration) {
+        p.ax = seg.ax;
+        p.ay = seg.ay;
+        break;
+      }
+      seg_start += seg.duration;
+    }
+    p.x0 = x;
+    p.y0 = y;
+    p.vx0 = vx;
+    p.vy0 = vy;
+    for (const auto& w : wind) {
+      const bool gusting = w.gust && p.t0 >= w.gust->start && p.t0 < w.gust->start + w.gust->duration;
+      p.wind_speed.push_back(w.speed + (gusting ? w.gust->speed : 0.0));
+    }
+    if (std::isfinite(p.t1)) {
+      const double dt = p.t1 - p.t0;
+      x += vx * dt + 0.5 * p.ax * dt * dt;
+      y += vy * dt + 0.5 * p.ay * dt * dt;
+      vx += p.ax * dt;
+      vy += p.ay * dt;
+    }
+    out.phases.push_back(std::move(p));
+  }
+  return out;
+}
+
+}  // namespace
+
+Model build_model(const Spec& spec) {
+  Model m;
+  m.n = static_cast<int>(spec.links.size());
+  SWAYBOUND_REQUIRE(m.n >= 1, "a model needs at least one link, got {}", m.n);
+  m.gravity = spec.gravity;
+  const auto n = static_cast<std::size_t>(m.n);
+  for (const auto& l : spec.links) {
+    m.names.push_back(l.name);
+    m.kind.push_back(l.kind);
+    m.mass.push_back(l.mass);
+    m.length.push_back(l.length);
+    m.com.push_back(l.com_given ? l.com : l.length / 2);
+    m.inertia.push_back(l.inertia_given ? l.inertia : l.mass * l.length * l.length / 12.0);
+    PivotModel p;
+    if (const auto& f = l.pivot.friction) {
+      p.coulomb_torque = f->torque;
+      p.pin_friction = f->mu * f->pin_radius;
+      p.transition_rate = f->transition_rate;
+    }
+    if (const auto& d = l.pivot.damper) {
+      p.damper_c = d->coefficient;
+      p.damper_alpha = d->exponent;
+      p.damper_max = d->max_torque;
+      p.damper_linear_below = d->linear_below;
+    }
+    m.any_pin_friction |= p.pin_friction > 0;
+    m.pivots.push_back(p);
+  }
+  m.mass_below.assign(n, 0.0);
+  for (std::size_t k = n; k-- > 0;) m.mass_below[k] = m.mass[k] + (k + 1 < n ? m.mass_below[k + 1] : 0.0);
+  m.h.resize(n);
+  for (std::size_t i = 0; i < n; ++i)
+    m.h[i] = m.mass[i] * m.com[i] + m.length[i] * (i + 1 < n ? m.mass_below[i + 1] : 0.0);
+  m.mu.resize(m.n, m.n);
+  for (std::size_t i = 0; i < n; ++i) {
+    const double below = i + 1 < n ? m.mass_below[i + 1] : 0.0;
+    m.mu(static_cast<Eigen::Index>(i), static_cast<Eigen::Index>(i)) =
+        m.mass[i] * m.com[i] * m.com[i] + m.inertia[i] + m.length[i] * m.length[i] * below;
+    for (std::size_t j = i + 1; j < n; ++j) {
+      // i < j: sum over k >= j of m_k L_i a_kj = L_i h_j
+      const double v = m.length[i] * m.h[j];
+      m.mu(static_cast<Eigen::Index>(i), static_cast<Eigen::Index>(j)) = v;
+      m.mu(static_cast<Eigen::Index>(j), static_cast<Eigen::Index>(i)) = v;
+    }
+  }
+  double depth = 0;
+  for (std::size_t k = 0; k < n; ++k) {
+    m.energy_scale += m.gravity * m.mass[k] * (depth + m.com[k]);
+    depth += m.length[k];
+  }
+  for (const auto& d : spec.dashpots)
+    m.dashpots.push_back(DashpotModel{d.name, point_of(d.from), point_of(d.to), d.coefficient});
+  for (const auto& w : spec.wind)
+    m.wind.push_back(WindModel{PointRef{w.link, w.at, 0, 0}, 0.5 * w.air_density * w.drag_coefficient * w.drag_area});
+  for (const auto& s : spec.scenarios) m.scenarios.push_back(build_scenario(s, spec.wind));
+  return m;
+}
+
+}  // namespace swaybound
