@@ -62,16 +62,6 @@ bool finite(const State& x) {
   return std::all_of(x.begin(), x.end(), [](double v) { return std::isfinite(v); });
 }
 
-/// Cubic Hermite interpolation between (t0, x0, f0) and (t1, x1, f1) at t (for steppers without
-/// dense output).
-void hermite(double t, double t0, const State& x0, const State& f0, double t1, const State& x1, const State& f1,
-             State& out) {
-  const double h = t1 - t0, s = (t - t0) / h;
-  const double h00 = (1 + 2 * s) * (1 - s) * (1 - s), h10 = s * (1 - s) * (1 - s);
-  const double h01 = s * s * (3 - 2 * s), h11 = s * s * (s - 1);
-  for (std::size_t i = 0; i < out.size(); ++i) out[i] = h00 * x0[i] + h10 * h * f0[i] + h01 * x1[i] + h11 * h * f1[i];
-}
-
 class Driver {
  public:
   Driver(const Model& model, Workspace& ws, const RunSettings& settings, const Observer& on_step,
@@ -143,14 +133,15 @@ class Driver {
     }
   }
 
-  /// Checks after an accepted step; false when the run must stop.
-  bool after_step(const State& x, double t, double dt_taken, double t_end) {
+  /// Checks after an accepted step; false when the run must stop. A short step that only closes
+  /// a phase (`phase_end`) is not a collapse.
+  bool after_step(const State& x, double t, double dt_taken, bool phase_end) {
     ++outcome_.steps;
     if (!finite(x)) {
       fail(RunStatus::non_finite, fmt::format("the state became non-finite at t = {:.6g} s", t));
       return false;
     }
-    if (dt_taken < settings_.min_step && t < t_end) {
+    if (dt_taken < settings_.min_step && !phase_end) {
       fail(RunStatus::step_collapse,
            fmt::format("the step size fell to {:.3g} s (< {:.3g} s) at t = {:.6g} s", dt_taken, settings_.min_step, t));
       return false;
@@ -180,12 +171,12 @@ class Driver {
         if (stepper.current_time_step() > remaining)
           stepper.initialize(stepper.current_state(), stepper.current_time(), remaining);
         const auto [t0, t1] = stepper.do_step(std::ref(system_));
-        const double now = t1 >= t_end - 1e-14 * std::max(1.0, t_end) ? t_end : t1;
+        const bool phase_end = t1 >= t_end - 1e-14 * std::max(1.0, t_end);
         system_.ensure(stepper.current_state(), t1, scratch_);
-        if (!after_step(stepper.current_state(), t1, t1 - t0, now)) break;
+        if (!after_step(stepper.current_state(), t1, t1 - t0, phase_end)) break;
         observe(stepper.current_state(), t1, on_step_);
         emit_samples_up_to(t1, [&](double ts, State& out) { stepper.calc_state(ts, out); });
-        if (t1 >= t_end - 1e-14 * std::max(1.0, t_end)) break;
+        if (phase_end) break;
       }
     } catch (const std::exception& e) {
       fail(finite(stepper.current_state()) ? RunStatus::step_collapse : RunStatus::non_finite,
@@ -199,8 +190,11 @@ class Driver {
   void integrate_rkf78(State& x, double& t, double t_end) {
     auto stepper = odeint::make_controlled(settings_.atol, settings_.rtol, odeint::runge_kutta_fehlberg78<State>());
     double dt = std::min(initial_step_, t_end - t);
-    State x_old(x.size()), f_old(x.size()), f_new(x.size());
-    system_(x, f_old, t);
+    // Odeint has no dense output for RKF78: a sample inside an accepted step is computed by one
+    // uncontrolled RKF78 step from the step's start to the sample time (shorter than the accepted
+    // step, so at least as accurate), which keeps the sample at the stepper's own order.
+    odeint::runge_kutta_fehlberg78<State> sampler;
+    State x_old(x.size());
     int failures = 0;
     while (t < t_end) {
       dt = std::min(dt, t_end - t);
@@ -216,13 +210,15 @@ class Driver {
         continue;
       }
       failures = 0;
-      const double now = t >= t_end - 1e-14 * std::max(1.0, t_end) ? t_end : t;
-      system_(x, f_new, t);
-      if (!after_step(x, t, t - t_old, now)) break;
+      const bool phase_end = t >= t_end - 1e-14 * std::max(1.0, t_end);
+      system_.ensure(x, t, scratch_);
+      if (!after_step(x, t, t - t_old, phase_end)) break;
       observe(x, t, on_step_);
-      emit_samples_up_to(t, [&](double ts, State& out) { hermite(ts, t_old, x_old, f_old, t, x, f_new, out); });
-      std::swap(f_old, f_new);
-      if (now == t_end) {
+      emit_samples_up_to(t, [&](double ts, State& out) {
+        out = x_old;
+        if (ts > t_old) sampler.do_step(std::ref(system_), out, t_old, ts - t_old);
+      });
+      if (phase_end) {
         t = t_end;
         break;
       }
