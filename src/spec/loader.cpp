@@ -381,9 +381,11 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   if (const Mark bad = first_invalid_utf8(text); bad.line > 0)
     throw SpecError(file_label, {{bad, "", "the file is not valid UTF-8 text",
                                   "save the spec as UTF-8; remove or retype the character at this position"}});
-  YAML::Node root;
+  // Every document is parsed: YAML::Load would read the first and silently drop anything after a
+  // '---' or '...' line, even text that is not YAML.
+  std::vector<YAML::Node> documents;
   try {
-    root = YAML::Load(std::string(text));
+    documents = YAML::LoadAll(std::string(text));
   } catch (const YAML::DeepRecursion& e) {
     // yaml-cpp's depth guard: its message is "bad file" and its position is wherever the scanner had
     // read ahead to (often the end of the file), so neither helps; report it for the whole file.
@@ -395,6 +397,14 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
     const Mark at = e.mark.is_null() ? Mark{} : Mark{e.mark.line + 1, e.mark.column + 1};
     throw SpecError(file_label, {{at, "", "not valid YAML: " + e.msg,
                                   "fix the YAML syntax at this position (indentation, quotes, brackets)"}});
+  }
+  YAML::Node root;
+  for (const YAML::Node& document : documents) {
+    if (document.IsNull()) continue;  // an empty document, e.g. after a trailing '---'
+    if (root.IsDefined() && !root.IsNull())
+      throw SpecError(file_label, {{mark_of(document), "", "a second YAML document follows the spec",
+                                    "keep one spec per file: remove the '---' line and what follows it"}});
+    root = document;
   }
   if (!root.IsDefined() || root.IsNull())
     throw SpecError(file_label, {{{}, "", "the spec is empty", "start from one of the demo specs in specs/"}});
