@@ -10,6 +10,7 @@ template <int N>
 void Scratch<N>::resize(int n) {
   if constexpr (N == Eigen::Dynamic) {
     M.resize(n, n);
+    M_inverse.resize(0, 0);
     llt = Eigen::LLT<Matrix>(n);
     bias.resize(n);
     rhs.resize(n);
@@ -23,7 +24,7 @@ void Scratch<N>::resize(int n) {
 
 Workspace::Workspace(const Model& model) {
   const auto n = static_cast<std::size_t>(model.n);
-  for (auto* v : {&sin_t, &cos_t, &omega, &force_x, &force_y, &tau, &tau_pin, &reaction_x, &reaction_y, &reaction, &reaction_prev,
+  for (auto* v : {&alpha, &sin_t, &cos_t, &omega, &force_x, &force_y, &tau, &tau_pin, &reaction_x, &reaction_y, &reaction, &reaction_prev,
                   &acc_x, &acc_y})
     v->assign(n, 0.0);
   s1.resize(1);
@@ -172,7 +173,10 @@ void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const doub
       sc.M(j, i) = v;
     }
   }
-  sc.llt.compute(sc.M);
+  if constexpr (N == Eigen::Dynamic)
+    sc.llt.compute(sc.M);
+  else
+    sc.M_inverse = sc.M.inverse();
 
   // Stage 3: velocity-product, gravity and base-inertia terms, then external point forces.
   const double gy = model.gravity + ws.base_ay;
@@ -188,17 +192,25 @@ void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const doub
   if (!model.wind.empty() || !model.dashpots.empty()) external_forces(model, ws, sc.bias.data());
 
   // Stage 4: pivot torques and accelerations; pin friction iterated to a consistent reaction.
+  const bool need_reactions =
+      !ws.lazy_reactions || model.any_pin_friction || ws.base_vx != 0.0 || ws.base_vy != 0.0;
   const auto solve = [&](const double* reaction) {
-    pivot_torques(model, ws, reaction);
     sc.rhs = sc.bias;
-    for (int i = 0; i < n; ++i) {
-      sc.rhs(i) += ws.tau[i];
-      if (i > 0) sc.rhs(i - 1) -= ws.tau[i];
+    if (model.any_pivot_torque) {
+      pivot_torques(model, ws, reaction);
+      for (int i = 0; i < n; ++i) {
+        sc.rhs(i) += ws.tau[i];
+        if (i > 0) sc.rhs(i - 1) -= ws.tau[i];
+      }
     }
-    sc.alpha = sc.llt.solve(sc.rhs);
-    pivot_reactions(model, ws, sc.alpha.data());
+    if constexpr (N == Eigen::Dynamic)
+      sc.alpha = sc.llt.solve(sc.rhs);
+    else
+      sc.alpha.noalias() = sc.M_inverse * sc.rhs;
+    if (need_reactions) pivot_reactions(model, ws, sc.alpha.data());
   };
   solve(nullptr);
+  ws.reactions_current = need_reactions;
   ws.friction_iterations = 0;
   if (model.any_pin_friction) {
     // Fixed point R = reactions(alpha(tau_pin(R))), started from the reactions without pin
@@ -220,15 +232,18 @@ void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const doub
   }
 
   // Powers: pivot torques dissipate tau * relative rate; the base does work through pivot 0.
-  for (int i = 0; i < n; ++i) {
-    const double w = ws.omega[i] - (i > 0 ? ws.omega[i - 1] : 0.0);
-    ws.dissipated_power -= ws.tau[i] * w;
-  }
-  ws.input_power += ws.reaction_x[0] * ws.base_vx + ws.reaction_y[0] * ws.base_vy;
+  if (model.any_pivot_torque)
+    for (int i = 0; i < n; ++i) {
+      const double w = ws.omega[i] - (i > 0 ? ws.omega[i - 1] : 0.0);
+      ws.dissipated_power -= ws.tau[i] * w;
+    }
+  if (ws.base_vx != 0.0 || ws.base_vy != 0.0)
+    ws.input_power += ws.reaction_x[0] * ws.base_vx + ws.reaction_y[0] * ws.base_vy;
 
   for (int i = 0; i < n; ++i) {
     dxdt[i] = x[n + i];
     dxdt[n + i] = sc.alpha(i);
+    ws.alpha[i] = sc.alpha(i);
   }
   dxdt[2 * n] = ws.dissipated_power;
   dxdt[2 * n + 1] = ws.input_power;
@@ -243,6 +258,12 @@ void evaluate(const Model& model, Workspace& ws, const double* x, double t, doub
     case 3: evaluate_impl(model, ws, ws.s3, x, t, dxdt); break;
     default: evaluate_impl(model, ws, ws.sn, x, t, dxdt); break;
   }
+}
+
+void finish_reactions(const Model& model, Workspace& ws) {
+  if (ws.reactions_current) return;
+  pivot_reactions(model, ws, ws.alpha.data());
+  ws.reactions_current = true;
 }
 
 double mechanical_energy(const Model& model, const Workspace& ws) {

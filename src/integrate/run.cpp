@@ -76,6 +76,7 @@ class Driver {
     const ScenarioModel& scenario = model_.scenarios[static_cast<std::size_t>(ws_.scenario)];
     ws_.phase = 0;
     ws_.friction_unconverged = 0;
+    ws_.lazy_reactions = true;
     const long evaluations_before = ws_.evaluations;
     outcome_.audit_scale = model_.energy_scale;
     system_.ensure(x, 0.0, scratch_);
@@ -94,6 +95,7 @@ class Driver {
       else
         integrate_rkf78(x, t, t_end);
     }
+    ws_.lazy_reactions = false;
     outcome_.t_reached = t;
     outcome_.evaluations = ws_.evaluations - evaluations_before;
     if (ok() && ws_.friction_unconverged > 0)
@@ -112,6 +114,7 @@ class Driver {
 
   /// Calls `observer` with ws evaluated at (x, t); `audit` folds the residual into the outcome.
   void observe(const State& x, double t, const Observer& observer, bool audit = true) {
+    finish_reactions(model_, ws_);
     const double energy = mechanical_energy(model_, ws_);
     const auto n = static_cast<std::size_t>(model_.n);
     const double residual = energy + x[2 * n] - x[2 * n + 1] - outcome_.energy0;

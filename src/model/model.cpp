@@ -95,6 +95,7 @@ Model build_model(const Spec& spec) {
       p.damper_linear_below = d->linear_below;
     }
     m.any_pin_friction |= p.pin_friction > 0;
+    m.any_pivot_torque |= p.has_friction() || p.has_damper();
     m.pivots.push_back(p);
   }
   m.mass_below.assign(n, 0.0);

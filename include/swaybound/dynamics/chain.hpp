@@ -34,7 +34,8 @@ struct Scratch {
   using Matrix = Eigen::Matrix<double, N, N>;
   using Vector = Eigen::Matrix<double, N, 1>;
   Matrix M;                    ///< mass matrix [kg m^2] (N x N)
-  Eigen::LLT<Matrix> llt;      ///< its Cholesky factor
+  Matrix M_inverse;            ///< its inverse by cofactors, for fixed N <= 3 [1/(kg m^2)]
+  Eigen::LLT<Matrix> llt;      ///< its Cholesky factor, for the dynamic size
   Vector bias;                 ///< generalised forces without pivot torques [N m] (N)
   Vector rhs;                  ///< bias plus pivot-torque terms [N m] (N)
   Vector alpha;                ///< angular accelerations [rad/s^2] (N)
@@ -62,6 +63,9 @@ struct Workspace {
   std::vector<double> acc_x, acc_y;  ///< centre-of-mass accelerations [m/s^2] (N)
   double dissipated_power = 0;       ///< by dampers, friction, dashpots [W] (>= 0)
   double input_power = 0;            ///< into the chain by the base and the wind [W]
+  std::vector<double> alpha;         ///< angular accelerations of the last evaluation [rad/s^2] (N)
+  bool lazy_reactions = false;       ///< skip reactions when the right-hand side does not need them
+  bool reactions_current = false;    ///< reaction_* belong to the last evaluation
   int friction_iterations = 0;       ///< iterations of the last pin-friction solve
   long friction_unconverged = 0;     ///< evaluations whose pin-friction iteration did not converge
   long evaluations = 0;              ///< right-hand-side evaluations
@@ -89,8 +93,13 @@ void pivot_torques(const Model& model, Workspace& ws, const double* reaction);
 /// Stage 5: pivot reactions from the angular accelerations alpha (Newton-Euler over sub-chains).
 void pivot_reactions(const Model& model, Workspace& ws, const double* alpha);
 
-/// The whole right-hand side: dxdt = f(x, t). Uses fixed-size matrices for N <= 3.
+/// The whole right-hand side: dxdt = f(x, t). Uses fixed-size matrices for N <= 3. With
+/// ws.lazy_reactions the pivot reactions are computed only when the right-hand side needs them
+/// (pin friction, or a moving base whose work is audited); `finish_reactions` completes them.
 void evaluate(const Model& model, Workspace& ws, const double* x, double t, double* dxdt);
+
+/// Makes ws.reaction* belong to the last evaluation (no-op when they already do).
+void finish_reactions(const Model& model, Workspace& ws);
 
 /// Mechanical energy (kinetic + potential, potential zero at the base's y = 0) [J] after `evaluate`
 /// or `kinematics` at the same state.

@@ -79,6 +79,7 @@ struct Model {
   std::vector<WindModel> wind;
   std::vector<ScenarioModel> scenarios;
   bool any_pin_friction = false;
+  bool any_pivot_torque = false;   ///< some pivot has friction or a damper
   double energy_scale = 0;         ///< g sum_k m_k depth_k at rest [J]: scale for audit residuals
 
   int state_size() const { return 2 * n + 2; }
