@@ -24,7 +24,7 @@ void Scratch<N>::resize(int n) {
 
 Workspace::Workspace(const Model& model) {
   const auto n = static_cast<std::size_t>(model.n);
-  for (auto* v : {&alpha, &sin_t, &cos_t, &omega, &force_x, &force_y, &tau, &tau_pin, &reaction_x, &reaction_y, &reaction, &reaction_prev,
+  for (auto* v : {&alpha, &slide, &tau_fixed, &sin_t, &cos_t, &omega, &force_x, &force_y, &tau, &tau_pin, &reaction_x, &reaction_y, &reaction, &reaction_prev,
                   &acc_x, &acc_y})
     v->assign(n, 0.0);
   s1.resize(1);
@@ -115,17 +115,23 @@ void external_forces(const Model& model, Workspace& ws, double* q) {
 }
 
 void pivot_torques(const Model& model, Workspace& ws, const double* reaction) {
-  for (int i = 0; i < model.n; ++i) {
-    const PivotModel& p = model.pivots[i];
-    const double w = ws.omega[i] - (i > 0 ? ws.omega[i - 1] : 0.0);
-    double torque = damper_torque(p, w);
-    ws.tau_pin[i] = 0.0;
-    if (p.has_friction()) {
-      const double slide = std::tanh(w / p.transition_rate);
-      ws.tau_pin[i] = reaction ? -p.pin_friction * reaction[i] * slide : 0.0;
-      torque += -p.coulomb_torque * slide + ws.tau_pin[i];
+  if (reaction == nullptr) {
+    // The parts that do not depend on the reaction: dampers, constant friction, and the tanh
+    // sliding factor that pin friction reuses in every fixed-point iteration.
+    for (int i = 0; i < model.n; ++i) {
+      const PivotModel& p = model.pivots[i];
+      const double w = ws.omega[i] - (i > 0 ? ws.omega[i - 1] : 0.0);
+      ws.slide[i] = p.has_friction() ? std::tanh(w / p.transition_rate) : 0.0;
+      ws.tau_fixed[i] = damper_torque(p, w) - p.coulomb_torque * ws.slide[i];
+      ws.tau_pin[i] = 0.0;
+      ws.tau[i] = ws.tau_fixed[i];
     }
-    ws.tau[i] = torque;
+    return;
+  }
+  // Pin friction -mu r |R| tanh(w / w_t), as friction_torque() in forces.hpp, split for reuse.
+  for (int i = 0; i < model.n; ++i) {
+    ws.tau_pin[i] = -model.pivots[i].pin_friction * reaction[i] * ws.slide[i];
+    ws.tau[i] = ws.tau_fixed[i] + ws.tau_pin[i];
   }
 }
 

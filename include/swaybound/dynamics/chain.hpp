@@ -57,6 +57,8 @@ struct Workspace {
   std::vector<double> force_x, force_y;  ///< external point forces summed per link [N] (N)
   std::vector<double> tau;           ///< pivot torque on link i from above [N m] (N)
   std::vector<double> tau_pin;       ///< of which load-dependent pin friction [N m] (N)
+  std::vector<double> tau_fixed;     ///< of which dampers and constant friction [N m] (N)
+  std::vector<double> slide;         ///< friction sliding factor tanh(w / w_t) per pivot [-] (N)
   std::vector<double> reaction_x, reaction_y;  ///< pivot force on link i from above [N] (N)
   std::vector<double> reaction;      ///< its magnitude [N] (N)
   std::vector<double> reaction_prev; ///< previous pin-friction iterate of `reaction` [N] (N)
@@ -87,7 +89,9 @@ void point_state(const Model& model, const Workspace& ws, const PointRef& p, dou
 /// and their dissipated and input power into ws.
 void external_forces(const Model& model, Workspace& ws, double* q);
 
-/// Stage 3b: pivot torques (dampers and friction, with pin friction from `reaction`) into ws.tau.
+/// Stage 3b: pivot torques into ws.tau. With reaction == nullptr: dampers and constant friction
+/// (pin friction 0); then with the reactions [N]: the same plus pin friction, reusing the first
+/// call's reaction-independent parts (the pin-friction fixed point calls it repeatedly).
 void pivot_torques(const Model& model, Workspace& ws, const double* reaction);
 
 /// Stage 5: pivot reactions from the angular accelerations alpha (Newton-Euler over sub-chains).
