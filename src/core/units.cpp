@@ -128,9 +128,15 @@ std::optional<Quantity> parse_quantity(std::string_view text, std::string& error
     return std::nullopt;
   }
   double number = 0;
-  const char* first = s.data();
-  const char* last = s.data() + s.size();
+  // from_chars takes no leading '+'; an explicit plus sign is still a plain number.
+  const std::string_view body = s.front() == '+' && s.size() > 1 && s[1] != '-' ? s.substr(1) : s;
+  const char* first = body.data();
+  const char* last = body.data() + body.size();
   auto [ptr, ec] = std::from_chars(first, last, number);
+  if (ec == std::errc::result_out_of_range) {
+    error = fmt::format("'{}' is outside the range of a double-precision number", s);
+    return std::nullopt;
+  }
   if (ec != std::errc()) {
     if (s.front() == '/') {  // "/s": a unit with an implied 1
       number = 1.0;

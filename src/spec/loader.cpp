@@ -191,7 +191,13 @@ void read_dashpots(Context& ctx, const YAML::Node& node, Spec& spec) {
     d.mark = m.mark();
     d.name = fmt::format("dashpot {}", i + 1);
     if (m.has("name"))
-      if (auto s = read_string(ctx, m.get("name"), m.path("name"))) d.name = *s;
+      if (auto s = read_string(ctx, m.get("name"), m.path("name"))) {
+        d.name = *s;
+        for (const auto& other : spec.dashpots)
+          if (other.name == d.name)
+            ctx.error(m.get("name"), m.path("name"), fmt::format("dashpot name '{}' is used twice", d.name),
+                      "give every dashpot a unique name (sizing paths address dashpots by name)");
+      }
     if (m.require("from", "an attachment {link: NAME, at: DISTANCE}"))
       read_attachment(ctx, m.get("from"), m.path("from"), spec, d.from);
     if (m.require("to", "an attachment {link: NAME, at: DISTANCE} or {base: [X, Y]}"))

@@ -334,8 +334,10 @@ void read_limits(const MapView& top, Spec& spec) {
 namespace {
 /// Upper end of the allowed range of the value a sizing path addresses, where the loader has one
 /// (damper exponent in (0, 2], friction mu in [0, 2]); +inf otherwise.
-double sizing_upper_bound(const SpecPath& path) {
+double sizing_upper_bound(const Spec& spec, const SpecPath& path) {
   if (path.field == SpecPath::Field::damper_exponent || path.field == SpecPath::Field::friction_mu) return 2;
+  // A centre of mass must stay on its link (0 <= com <= length); a sized length is checked per design.
+  if (path.field == SpecPath::Field::com) return spec.links[static_cast<std::size_t>(path.index)].length;
   return std::numeric_limits<double>::infinity();
 }
 }  // namespace
@@ -381,7 +383,7 @@ void read_sizing(const MapView& top, Spec& spec) {
           if (lo && hi) {
             bool open = false;
             const double floor = spec_path_lower_bound(*target, open);
-            const double ceiling = sizing_upper_bound(*target);
+            const double ceiling = sizing_upper_bound(spec, *target);
             if (!(*lo < *hi))
               ctx.error(r, v.path("range"), "the range is empty or inverted", "write [low, high] with low < high");
             else if (open ? !(*lo > floor) : !(*lo >= floor))
@@ -400,7 +402,7 @@ void read_sizing(const MapView& top, Spec& spec) {
         if (c.size() == 0) ctx.error(c, v.path("catalogue"), "the catalogue is empty", "list at least one value");
         bool open = false;
         const double floor = spec_path_lower_bound(*target, open);
-        const double ceiling = sizing_upper_bound(*target);
+        const double ceiling = sizing_upper_bound(spec, *target);
         for (std::size_t k = 0; k < c.size(); ++k) {
           const std::string cp = fmt::format("{}[{}]", v.path("catalogue"), k);
           const Bounds allowed{floor, ceiling < 1e300 ? ceiling : 1e300, open, false};

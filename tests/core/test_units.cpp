@@ -70,6 +70,7 @@ TEST_CASE("bare numbers are SI and carry no unit", "[units]") {
   CHECK_FALSE(q.has_unit);
   CHECK(parse("1e-8").value == 1e-8);
   CHECK(parse("-0.8 m/s^2").value == -0.8);
+  CHECK(parse("+10 deg").value == Approx(10 * std::numbers::pi / 180));
 }
 
 TEST_CASE("compound units multiply and divide", "[units]") {

@@ -17,8 +17,9 @@ struct LoadOptions {
   long max_cases = kDefaultMaxCases;  ///< the case cap; a larger case set is an error
 };
 
-/// Reads and validates the spec at `path`. Throws SpecError (bad content) or SpecError with line 0
-/// (file cannot be read, too large, not UTF-8, not YAML).
+/// Reads and validates the spec at `path`. Throws SpecError: with line 0 when the file as a whole
+/// is unusable (missing, a folder, unreadable, too large, empty), with the position otherwise
+/// (invalid UTF-8 byte, YAML syntax error, every content problem).
 Spec load_spec(const std::string& path, const LoadOptions& options = {});
 
 /// Same, from text in memory; `file_label` names it in diagnostics.
