@@ -15,5 +15,7 @@ using Action = std::function<int()>;
 
 Action add_validate(CLI::App& app);
 Action add_simulate(CLI::App& app);
+Action add_modes(CLI::App& app);
+Action add_check(CLI::App& app);
 
 }  // namespace swaybound::cli

@@ -196,6 +196,7 @@ std::string normalised_yaml(const Spec& spec) {
   w.begin("cases");
   w.value("duration", spec.cases.duration, u::duration);
   w.value("output_rate", spec.cases.output_rate, u::rate);
+  w.value("settling_band", spec.cases.settling_band, u::angle);
   out << YAML::Key << "initial" << YAML::Value << YAML::BeginSeq;
   for (const auto& set : spec.cases.initial) {
     out << YAML::BeginMap << YAML::Key << "name" << YAML::Value << set.name;
@@ -235,7 +236,7 @@ std::string normalised_yaml(const Spec& spec) {
     out << YAML::Key << "limits" << YAML::Value << YAML::BeginSeq;
     for (const auto& l : spec.limits) {
       static const u::Dim dims[] = {u::angle, u::angle, u::angular_rate, u::force, u::dimensionless,
-                                    u::force, u::angle, u::rate, u::dimensionless};
+                                    u::force, u::angle, u::rate, u::dimensionless, u::dimensionless};
       out << YAML::Flow << YAML::BeginMap << YAML::Key << l.key << YAML::Value << fmt::format("{:.12g}", l.value);
       if (l.link >= 0) out << YAML::Key << "link" << YAML::Value << spec.links[static_cast<std::size_t>(l.link)].name;
       if (l.kind == LimitKind::residual_sway) out << YAML::Key << "after" << YAML::Value << fmt::format("{:.12g}", l.after);
@@ -244,6 +245,29 @@ std::string normalised_yaml(const Spec& spec) {
       if (const auto unit = u::si_unit(dims[static_cast<int>(l.kind)]); !unit.empty()) out << YAML::Comment(unit);
     }
     out << YAML::EndSeq;
+  }
+  {
+    const ChaosSpec& c = spec.chaos;
+    w.at("");
+    w.begin("chaos");
+    w.value("separation", c.separation, u::dimensionless);
+    w.value("renormalise", c.renormalise, u::duration);
+    w.value("horizon", c.horizon, u::duration);
+    w.value("uncertainty", c.uncertainty, u::angle);
+    w.value("tolerance", c.tolerance, u::angle);
+    w.value("threshold", c.threshold, u::rate);
+    out << YAML::Key << "onset" << YAML::Value << YAML::BeginMap << YAML::Key << "direction" << YAML::Value
+        << YAML::Flow << YAML::BeginSeq;
+    for (double d : c.onset_direction) out << fmt::format("{:.12g}", d);
+    out << YAML::EndSeq << YAML::Key << "max" << YAML::Value << fmt::format("{:.12g}", c.onset_max)
+        << YAML::Key << "resolution" << YAML::Value << fmt::format("{:.12g}", c.onset_resolution) << YAML::EndMap
+        << YAML::Comment("rad");
+    if (c.map) {
+      out << YAML::Key << "map" << YAML::Value << YAML::BeginMap;
+      emit_ranges(out, "theta", {c.map_x, c.map_y}, true, "rad");
+      out << YAML::EndMap;
+    }
+    w.end();
   }
   if (spec.sizing) {
     const auto& s = *spec.sizing;

@@ -421,7 +421,7 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   spec.source_file = file_label;
   MapView top(ctx, root, "",
               {"swaybound", "name", "gravity", "links", "dashpots", "wind", "base", "cases", "limits",
-               "sizing", "solver", "report"});
+               "chaos", "sizing", "solver", "report"});
   if (!top.ok()) throw SpecError(file_label, ctx.diagnostics);
 
   if (top.require("swaybound", fmt::format("the spec format version ({})", kSpecFormatVersion))) {
@@ -458,6 +458,7 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   }
   read_cases(top, spec, options);
   read_limits(top, spec);
+  read_chaos(top, spec);
   read_sizing(top, spec);
   read_solver_and_report(top, spec);
 

@@ -206,13 +206,14 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
 void read_cases(const MapView& top, Spec& spec, const LoadOptions& options) {
   Context& ctx = top.ctx();
   if (!top.require("cases", "the duration and the initial-condition sets")) return;
-  MapView m(ctx, top.get("cases"), "cases", {"duration", "output_rate", "initial"});
+  MapView m(ctx, top.get("cases"), "cases", {"duration", "output_rate", "settling_band", "initial"});
   if (!m.ok()) return;
   spec.cases.mark = m.mark();
   if (m.require("duration", "the simulated time per case, e.g. '30 s'"))
     if (auto v = read_quantity(ctx, m.get("duration"), "cases.duration", u::duration, Bounds{0, 7 * 86400.0, true, false}))
       spec.cases.duration = *v;
   read_optional(m, "output_rate", spec.cases.output_rate, u::rate, Bounds{0, 1e5, true, false});
+  read_optional(m, "settling_band", spec.cases.settling_band, u::angle, Bounds{0, 3.2, true, false});
   if (!m.require("initial", "a list of initial-condition sets (single, grid, random, corners, ladder)")) return;
   const YAML::Node list = m.get("initial");
   if (!expect_sequence(ctx, list, "cases.initial", "initial-condition sets")) return;
@@ -252,6 +253,7 @@ const LimitInfo kLimits[] = {
     {"residual_sway", LimitKind::residual_sway, u::angle, Bounds::positive(), true},
     {"ftle_max", LimitKind::ftle_max, u::rate, Bounds::any(), false},
     {"modal_damping_min", LimitKind::modal_damping_min, u::dimensionless, Bounds{0, 1, false, false}, false},
+    {"onset_margin", LimitKind::onset_margin, u::dimensionless, Bounds::positive(), false},
 };
 }  // namespace
 
@@ -341,6 +343,81 @@ double sizing_upper_bound(const Spec& spec, const SpecPath& path) {
   return std::numeric_limits<double>::infinity();
 }
 }  // namespace
+
+void read_chaos(const MapView& top, Spec& spec) {
+  Context& ctx = top.ctx();
+  ChaosSpec& c = spec.chaos;
+  for (const auto& l : spec.limits)
+    if (l.kind == LimitKind::ftle_max && c.horizon == 0) c.horizon = l.horizon;
+  if (!top.has("chaos")) {
+    if (c.horizon == 0) c.horizon = spec.cases.duration;
+    c.onset_direction.assign(spec.links.size(), 1.0);
+    return;
+  }
+  MapView m(ctx, top.get("chaos"), "chaos",
+            {"separation", "renormalise", "horizon", "uncertainty", "tolerance", "threshold", "onset", "map"});
+  if (!m.ok()) return;
+  c.given = true;
+  c.mark = m.mark();
+  read_optional(m, "separation", c.separation, u::dimensionless, Bounds{1e-14, 1e-3, false, false});
+  read_optional(m, "renormalise", c.renormalise, u::duration, Bounds::positive());
+  if (m.has("horizon")) {
+    if (auto v = read_quantity(ctx, m.get("horizon"), "chaos.horizon", u::duration, Bounds::positive())) c.horizon = *v;
+  } else if (c.horizon == 0) {
+    c.horizon = spec.cases.duration;
+    ctx.defaults_filled.push_back("chaos.horizon");
+  }
+  read_optional(m, "uncertainty", c.uncertainty, u::angle, Bounds::positive());
+  read_optional(m, "tolerance", c.tolerance, u::angle, Bounds::positive());
+  read_optional(m, "threshold", c.threshold, u::rate, Bounds::any());
+  if (c.uncertainty >= c.tolerance && m.has("tolerance"))
+    ctx.error(m.get("tolerance"), "chaos.tolerance", "the tolerance must exceed the initial uncertainty",
+              "give a tolerance larger than chaos.uncertainty");
+  if (m.has("onset")) {
+    MapView o(ctx, m.get("onset"), "chaos.onset", {"direction", "max", "resolution"});
+    if (o.ok()) {
+      if (o.has("direction") && expect_sequence(ctx, o.get("direction"), "chaos.onset.direction", "weights per link")) {
+        const YAML::Node d = o.get("direction");
+        if (d.size() > spec.links.size())
+          ctx.error(d, "chaos.onset.direction", "more weights than links", "give at most one weight per link");
+        double largest = 0;
+        for (std::size_t i = 0; i < d.size() && i < spec.links.size(); ++i)
+          if (auto v = read_quantity(ctx, d[i], fmt::format("chaos.onset.direction[{}]", i), u::dimensionless,
+                                     Bounds{-1, 1, false, false})) {
+            c.onset_direction.push_back(*v);
+            largest = std::max(largest, std::fabs(*v));
+          }
+        if (!c.onset_direction.empty() && largest != 1.0)
+          ctx.error(d, "chaos.onset.direction", "the largest weight must be 1 (or -1)",
+                    "scale the direction so its largest component is 1; amplitudes are that link's angle");
+      }
+      read_optional(o, "max", c.onset_max, u::angle, Bounds{0, 3.14159265358979, true, false});
+      read_optional(o, "resolution", c.onset_resolution, u::angle, Bounds::positive());
+    }
+  }
+  if (m.has("map")) {
+    MapView mp(ctx, m.get("map"), "chaos.map", {"theta"});
+    if (mp.ok() && mp.require("theta", "two ranges [[low, high, count], [low, high, count]] for the first two links")) {
+      std::vector<Range> ranges;
+      read_range_list(ctx, mp.get("theta"), "chaos.map.theta", u::angle, spec.links.size(), true, ranges);
+      if (ranges.size() != 2 || spec.links.size() < 2)
+        ctx.error(mp.get("theta"), "chaos.map.theta", "the map needs two ranges and a chain of at least two links",
+                  "give [[low, high, count], [low, high, count]] for links 0 and 1");
+      else {
+        c.map = true;
+        c.map_x = ranges[0];
+        c.map_y = ranges[1];
+      }
+    }
+  }
+  if (c.onset_direction.empty()) c.onset_direction.assign(spec.links.size(), 1.0);
+  for (std::size_t i = 0; i < spec.limits.size(); ++i)
+    if (spec.limits[i].kind == LimitKind::ftle_max && spec.limits[i].horizon != c.horizon && m.has("horizon"))
+      ctx.error(m.get("horizon"), "chaos.horizon",
+                fmt::format("the FTLE horizon {} differs from limits[{}]'s horizon {}", u::format_si(c.horizon, u::duration),
+                            i, u::format_si(spec.limits[i].horizon, u::duration)),
+                "the FTLE is computed once per case: give one horizon (or leave chaos.horizon out)");
+}
 
 void read_sizing(const MapView& top, Spec& spec) {
   Context& ctx = top.ctx();

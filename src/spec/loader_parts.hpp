@@ -10,6 +10,7 @@ int read_link_ref(Context& ctx, const YAML::Node& node, const std::string& path,
 
 void read_cases(const MapView& top, Spec& spec, const LoadOptions& options);
 void read_limits(const MapView& top, Spec& spec);
+void read_chaos(const MapView& top, Spec& spec);
 void read_sizing(const MapView& top, Spec& spec);
 void read_solver_and_report(const MapView& top, Spec& spec);
 

@@ -125,6 +125,7 @@ struct InitialSetSpec {
 struct CasesSpec {
   double duration = 0;            ///< [s]
   double output_rate = 50;        ///< samples per second for recorded time series [1/s]
+  double settling_band = 0.017453292519943295;  ///< |theta| band for the settling time [rad] (1 deg)
   std::vector<InitialSetSpec> initial;
   Mark mark;
 };
@@ -139,6 +140,7 @@ enum class LimitKind {
   residual_sway,     ///< largest |theta| after `after` [rad]
   ftle_max,          ///< largest finite-time Lyapunov exponent over `horizon` [1/s]
   modal_damping_min, ///< least modal damping ratio [-] (lower bound)
+  onset_margin,      ///< chaotic-onset amplitude / largest start amplitude [-] (lower bound)
 };
 
 struct LimitSpec {
@@ -148,6 +150,24 @@ struct LimitSpec {
   int link = -1;        ///< -1: every link the limit applies to
   double after = 0;     ///< residual_sway [s]
   double horizon = 0;   ///< ftle_max [s]
+  Mark mark;
+};
+
+/// Chaotic-onset settings. FTLE: Benettin renormalisation of a nearby trajectory.
+struct ChaosSpec {
+  double separation = 1e-8;       ///< initial separation d0 of the nearby trajectory [-]
+  double renormalise = 0.5;       ///< renormalisation interval [s]
+  double horizon = 0;             ///< FTLE horizon [s]; 0 = the ftle_max limit's, else cases.duration
+  double uncertainty = 1.7453292519943295e-4;  ///< initial uncertainty for the predictability horizon [rad] (0.01 deg)
+  double tolerance = 0.017453292519943295;     ///< tolerated deviation for the predictability horizon [rad] (1 deg)
+  double threshold = 0.05;        ///< FTLE above which motion counts as chaotic [1/s]
+  std::vector<double> onset_direction;  ///< start angles per link along which onset is searched [-] (max 1)
+  double onset_max = 2.9670597283903604;   ///< largest amplitude searched [rad] (170 deg)
+  double onset_resolution = 0.008726646259971648;  ///< bisection resolution [rad] (0.5 deg)
+  bool map = false;               ///< compute the FTLE map over the first two links' angles
+  Range map_x{-2.0943951023931953, 2.0943951023931953, 21};  ///< link 0 angle range and count
+  Range map_y{-2.0943951023931953, 2.0943951023931953, 21};  ///< link 1 angle range and count
+  bool given = false;             ///< the spec has a chaos section
   Mark mark;
 };
 
@@ -202,6 +222,7 @@ struct Spec {
   std::vector<ScenarioSpec> scenarios;  ///< never empty after loading ("still" when none given)
   CasesSpec cases;
   std::vector<LimitSpec> limits;
+  ChaosSpec chaos;
   std::optional<SizingSpec> sizing;
   SolverSpec solver;
   ReportSpec report;

@@ -1,0 +1,54 @@
+#pragma once
+// The set of cases a check runs: every initial-condition set of the spec crossed with every base
+// scenario. Cases are made on demand from their index (no list of all cases is kept), so memory
+// does not grow with the case count; the same index always gives the same case.
+//
+// Order: scenario-major, then the initial sets in spec order, then the starts of each set.
+// Id: "<scenario-slug>/<set-name>-<k>", k counted from 1 within the set and zero-padded to the
+// width of the set's size, e.g. "brake-from-travel-speed/grid-017".
+#include <cstdint>
+#include <string>
+#include <vector>
+
+#include "swaybound/integrate/run.hpp"
+#include "swaybound/spec/spec.hpp"
+
+namespace swaybound {
+
+struct CaseDef {
+  long index = 0;           ///< position in the case space
+  std::string id;           ///< stable, readable id
+  int scenario = 0;         ///< index into Spec::scenarios / Model::scenarios
+  int set = 0;              ///< index into Spec::cases.initial
+  long start = 0;           ///< index of the start within its set
+  InitialState initial;     ///< angles [rad] and rates [rad/s] per link
+};
+
+class CaseSpace {
+ public:
+  explicit CaseSpace(const Spec& spec);
+  long size() const { return total_; }
+  long starts() const { return starts_; }  ///< per scenario
+  CaseDef at(long index) const;
+  /// Largest |initial angle| over every start of every set [rad] (the operating envelope).
+  double envelope_amplitude() const { return envelope_; }
+
+ private:
+  void fill_start(const InitialSetSpec& set, int set_index, long k, InitialState& out) const;
+  const Spec* spec_;
+  std::vector<long> offsets_;                      ///< first start of each set within a scenario
+  std::vector<std::vector<std::vector<int>>> lhs_; ///< per set, per dimension: stratum permutation
+  std::vector<std::string> slugs_;
+  long starts_ = 0, total_ = 0;
+  double envelope_ = 0;
+};
+
+/// "Brake from travel speed" -> "brake-from-travel-speed".
+std::string slug(const std::string& name);
+
+/// A uniform double in [0, 1) from a 64-bit seed and counters (SplitMix64; Steele, Lea & Flood,
+/// "Fast splittable pseudorandom number generators", OOPSLA 2014). Portable: no <random>
+/// distribution, whose output differs between standard libraries.
+double unit_random(std::uint64_t seed, std::uint64_t a, std::uint64_t b);
+
+}  // namespace swaybound

@@ -1,0 +1,263 @@
+#pragma once
+// Largest finite-time Lyapunov exponent (FTLE) by Benettin's method with one nearby trajectory
+// (G. Benettin, L. Galgani, A. Giorgilli, J.-M. Strelcyn, "Lyapunov characteristic exponents for
+// smooth dynamical systems and for Hamiltonian systems", Meccanica 15 (1980) 9-20 and 21-30).
+//
+// Method. The reference state x and a perturbed copy x' = x + d0 u (u a fixed unit direction) are
+// integrated together as ONE augmented system of size 2m with an adaptive Dormand-Prince 5(4)
+// stepper (Odeint controlled runge_kutta_dopri5), so both halves take exactly the same steps and
+// their truncation errors are strongly correlated. At the end of every interval (every
+// `renormalise` seconds, and at every breakpoint) the separation
+//     d = sqrt( sum_{k < measured} w_k^2 (x'_k - x_k)^2 )
+// is measured, ln(d / d0) is accumulated, and the whole difference vector x' - x (all components,
+// measured or not) is scaled by d0 / d, i.e. the copy is put back at distance d0 along the current
+// separation direction. Over the horizon T the estimate is
+//     lambda = (1 / T) sum_intervals ln(d / d0)          [1/s].
+// With d0 small (default 1e-8) and renormalisation frequent enough that d stays far below the
+// size of the attractor (default every 0.5 s), the separation evolves by the linearised flow, so
+// lambda is the finite-time estimate of the largest Lyapunov exponent. Precision: d is formed as
+// the difference of two states, so each measurement resolves it to about eps |x| / d0 relative
+// (~2e-8 for |x| ~ 1 and d0 = 1e-8); this is why d0 is not taken smaller. For a regular
+// (quasi-periodic) motion separations grow only linearly and the estimate decays like ln(T)/T;
+// for a chaotic one it converges to a positive value.
+//
+// The stepper is restarted (its first-same-as-last derivative dropped) at every renormalisation
+// and at every breakpoint: renormalisation changes the state discontinuously, and a breakpoint
+// marks a jump of the right-hand side (e.g. a phase boundary of the base motion). Before
+// integrating an interval starting at t_start, `on_interval(t_start)` is called (if given), so a
+// wrapper can select the piece of a piecewise-defined right-hand side. Time starts at 0.
+//
+// Dissipation is part of the flow: nothing is subtracted. A damped regular motion therefore gives
+// a NEGATIVE exponent (a damped linear oscillator gives -zeta omega_n), and any limit check
+// compares the exponent as computed.
+#include <algorithm>
+#include <cmath>
+#include <cstddef>
+#include <functional>
+#include <string>
+#include <vector>
+
+#include <boost/numeric/odeint.hpp>
+#include <fmt/format.h>
+
+#include "swaybound/core/error.hpp"
+#include "swaybound/dynamics/chain.hpp"
+#include "swaybound/integrate/run.hpp"
+#include "swaybound/model/model.hpp"
+
+namespace swaybound {
+
+struct FtleSettings {
+  double horizon = 0;          ///< integration time T [s] (> 0)
+  double separation = 1e-8;    ///< initial and renormalised separation d0, in the weighted norm
+  double renormalise = 0.5;    ///< renormalisation interval [s]
+  double rtol = 1e-10, atol = 1e-12;  ///< Odeint error tolerances of the augmented system
+  int measured = -1;           ///< leading state components in the norm; -1 = all
+  std::vector<double> weights; ///< w_k (> 0) per measured component; empty = all 1
+  /// Initial direction u per measured component (normalised here in the weighted norm); empty =
+  /// equal weighted components, u_k = 1 / (w_k sqrt(measured)).
+  std::vector<double> direction;
+  long max_steps = 5'000'000;  ///< accepted-step budget
+  double initial_step = 1e-3;  ///< first trial step [s]
+};
+
+enum class FtleStatus { ok, failed };
+
+struct FtleSample {
+  double t = 0;           ///< end of an interval [s]
+  double log_growth = 0;  ///< cumulative sum of ln(d / d0) up to t [-]
+};
+
+struct FtleResult {
+  FtleStatus status = FtleStatus::ok;
+  std::string reason;              ///< empty when ok
+  double exponent = 0;             ///< lambda = log_growth / t_reached [1/s] (horizon when ok)
+  double log_growth = 0;           ///< sum of ln(d / d0) [-]
+  double t_reached = 0;            ///< [s]
+  std::vector<FtleSample> growth;  ///< per interval, for plots
+  long steps = 0, rejected = 0;    ///< accepted and rejected steps of the augmented system
+};
+
+namespace detail {
+
+/// The augmented system [x, x'] of size 2m: evaluates `system` on each half in turn through
+/// pre-sized buffers (no allocation per evaluation).
+template <class System>
+struct PairedSystem {
+  System* system;
+  std::size_t m;
+  std::vector<double> x, dxdt;  ///< size m
+  void operator()(const std::vector<double>& z, std::vector<double>& dz, double t) {
+    const auto half = static_cast<std::ptrdiff_t>(m);
+    std::copy(z.begin(), z.begin() + half, x.begin());
+    (*system)(x, dxdt, t);
+    std::copy(dxdt.begin(), dxdt.end(), dz.begin());
+    std::copy(z.begin() + half, z.end(), x.begin());
+    (*system)(x, dxdt, t);
+    std::copy(dxdt.begin(), dxdt.end(), dz.begin() + half);
+  }
+};
+
+/// Interval ends: k * renormalise and the breakpoints inside (0, horizon), then the horizon.
+inline std::vector<double> ftle_grid(double horizon, double renormalise, const std::vector<double>& breakpoints) {
+  std::vector<double> grid;
+  for (long k = 1;; ++k) {
+    const double t = static_cast<double>(k) * renormalise;
+    if (t >= horizon) break;
+    grid.push_back(t);
+  }
+  for (double b : breakpoints)
+    if (b > 0 && b < horizon) grid.push_back(b);
+  grid.push_back(horizon);
+  // Exact duplicates only: an interval shorter than a rounding error is harmless (one tiny step,
+  // and the breakpoint itself stays exact for on_interval).
+  std::sort(grid.begin(), grid.end());
+  grid.erase(std::unique(grid.begin(), grid.end()), grid.end());
+  return grid;
+}
+
+}  // namespace detail
+
+/// Largest finite-time Lyapunov exponent of dx/dt = system(x, t) from x0 over [0, s.horizon].
+/// `system` is called as system(const std::vector<double>& x, std::vector<double>& dxdt, double t).
+/// Bad settings throw ArgumentError; numerical trouble (non-finite state, step budget, failed
+/// step-size adjustment, an exception from Odeint or the system) gives status failed with the
+/// reason, and the exponent over the time reached.
+template <class System>
+FtleResult finite_time_lyapunov(System& system, std::vector<double> x0, const FtleSettings& s,
+                                const std::vector<double>& breakpoints = {},
+                                std::function<void(double t_start)> on_interval = {}) {
+  namespace odeint = boost::numeric::odeint;
+  using State = std::vector<double>;
+  const std::size_t m = x0.size();
+  const std::size_t measured = s.measured < 0 ? m : static_cast<std::size_t>(s.measured);
+  SWAYBOUND_REQUIRE(m > 0, "the state is empty");
+  SWAYBOUND_REQUIRE(measured >= 1 && measured <= m, "measured = {} for a state of {} components", s.measured, m);
+  SWAYBOUND_REQUIRE(s.horizon > 0 && std::isfinite(s.horizon), "horizon must be > 0, got {}", s.horizon);
+  SWAYBOUND_REQUIRE(s.separation > 0 && std::isfinite(s.separation), "separation must be > 0, got {}", s.separation);
+  SWAYBOUND_REQUIRE(s.renormalise > 0 && std::isfinite(s.renormalise), "renormalise must be > 0, got {}",
+                    s.renormalise);
+  SWAYBOUND_REQUIRE(s.rtol > 0 && s.atol > 0, "tolerances must be > 0, got rtol {} atol {}", s.rtol, s.atol);
+  SWAYBOUND_REQUIRE(s.weights.empty() || s.weights.size() == measured, "{} weights for {} measured components",
+                    s.weights.size(), measured);
+  SWAYBOUND_REQUIRE(s.direction.empty() || s.direction.size() == measured, "{} direction components for {} measured",
+                    s.direction.size(), measured);
+  SWAYBOUND_REQUIRE(std::all_of(x0.begin(), x0.end(), [](double v) { return std::isfinite(v); }),
+                    "the initial state is not finite");
+  std::vector<double> w(measured, 1.0);
+  for (std::size_t k = 0; k < s.weights.size(); ++k) {
+    SWAYBOUND_REQUIRE(s.weights[k] > 0 && std::isfinite(s.weights[k]), "weight {} must be > 0, got {}", k,
+                      s.weights[k]);
+    w[k] = s.weights[k];
+  }
+  const auto norm = [&](const State& z) {  // weighted separation of the halves of z
+    double sum = 0;
+    for (std::size_t k = 0; k < measured; ++k) {
+      const double e = w[k] * (z[m + k] - z[k]);
+      sum += e * e;
+    }
+    return std::sqrt(sum);
+  };
+
+  // Augmented state: reference in [0, m), perturbed copy in [m, 2m).
+  State z(2 * m);
+  std::copy(x0.begin(), x0.end(), z.begin());
+  std::copy(x0.begin(), x0.end(), z.begin() + static_cast<std::ptrdiff_t>(m));
+  {
+    std::vector<double> u(measured);
+    double len = 0;
+    for (std::size_t k = 0; k < measured; ++k) {
+      u[k] = s.direction.empty() ? 1.0 / w[k] : s.direction[k];
+      len += (w[k] * u[k]) * (w[k] * u[k]);
+    }
+    len = std::sqrt(len);
+    SWAYBOUND_REQUIRE(len > 0 && std::isfinite(len), "the initial direction has no length");
+    for (std::size_t k = 0; k < measured; ++k) z[m + k] += s.separation * u[k] / len;
+  }
+
+  FtleResult r;
+  const auto fail = [&](std::string reason) {
+    if (r.status != FtleStatus::ok) return;
+    r.status = FtleStatus::failed;
+    r.reason = std::move(reason);
+  };
+  const auto finite = [](const State& v) {
+    return std::all_of(v.begin(), v.end(), [](double a) { return std::isfinite(a); });
+  };
+
+  const std::vector<double> grid = detail::ftle_grid(s.horizon, s.renormalise, breakpoints);
+  r.growth.reserve(grid.size());
+  detail::PairedSystem<System> paired{&system, m, State(m), State(m)};
+  auto stepper = odeint::make_controlled(s.atol, s.rtol, odeint::runge_kutta_dopri5<State>());
+  double t = 0, dt = std::min(s.initial_step, grid.front()), sum = 0;
+  for (const double t_end : grid) {
+    try {
+      if (on_interval) on_interval(t);
+      stepper.reset();  // drop the first-same-as-last derivative: new interval, maybe new state
+      int failures = 0;
+      while (t < t_end) {
+        const double remaining = t_end - t;
+        const bool closing = dt >= remaining;
+        double h = closing ? remaining : dt;
+        if (stepper.try_step(std::ref(paired), z, t, h) == odeint::fail) {
+          ++r.rejected;
+          if (++failures > 500 || !(h > 0) || !std::isfinite(h)) {
+            fail(fmt::format("the step-size adjustment failed near t = {:.6g} s (step {:.3g} s)", t, h));
+            break;
+          }
+          dt = h;
+          continue;
+        }
+        failures = 0;
+        ++r.steps;
+        if (closing) t = t_end;  // land exactly on the interval end
+        // A step shortened to close the interval says little about the next one.
+        dt = closing ? std::max(h, dt) : h;
+        if (!finite(z)) {
+          fail(fmt::format("the state became non-finite at t = {:.6g} s", t));
+          break;
+        }
+        if (r.steps > s.max_steps) {
+          fail(fmt::format("more than {} steps by t = {:.6g} s", s.max_steps, t));
+          break;
+        }
+      }
+    } catch (const std::exception& e) {
+      fail(fmt::format("integration failed near t = {:.6g} s ({})", t, e.what()));
+    }
+    if (r.status != FtleStatus::ok) break;
+    t = t_end;
+    const double d = norm(z);
+    if (!(d > 0) || !std::isfinite(d)) {
+      fail(fmt::format("the separation became {} at t = {:.6g} s", d, t));
+      break;
+    }
+    sum += std::log(d / s.separation);
+    r.growth.push_back({t, sum});
+    const double scale = s.separation / d;
+    for (std::size_t k = 0; k < m; ++k) z[m + k] = z[k] + scale * (z[m + k] - z[k]);
+  }
+  r.t_reached = r.growth.empty() ? 0.0 : r.growth.back().t;
+  r.log_growth = sum;
+  r.exponent = r.t_reached > 0 ? sum / r.t_reached : 0.0;
+  return r;
+}
+
+/// Largest FTLE of a chain case (model, scenario, initial state) over s.horizon.
+///
+/// The state handed to `finite_time_lyapunov` is the chain state x of chain.hpp (size 2N+2). Only
+/// the first 2N components (angles and rates) are measured; the two energy-audit components
+/// (dissipated energy, work in) are integrated but not measured (they do not feed back).
+/// Scaling of the norm: weight 1 for angles [rad] and T_ref = sqrt(L_tot / g) [s] for rates
+/// [rad/s], with L_tot the sum of the link lengths, so rate * T_ref is dimensionless and a rate
+/// of 1 / T_ref counts like an angle of 1 rad (the separation d0 = 1e-8 is thus 1e-8 rad-like).
+/// s.measured and s.weights are set by this wrapper (the caller's values are ignored); the other
+/// settings, including s.direction (2N components), are passed on.
+/// Breakpoints are the phase boundaries of the scenario below the horizon; before each interval
+/// ws.scenario = scenario and ws.phase = phase_at(t_start). The reference and perturbed halves
+/// are evaluated one after the other with the same workspace (it is scratch only). A run in which
+/// the pin-friction fixed point did not converge is reported as failed.
+FtleResult chain_ftle(const Model& model, Workspace& ws, int scenario, const InitialState& start,
+                      const FtleSettings& s);
+
+}  // namespace swaybound

@@ -1,0 +1,82 @@
+#pragma once
+// The design check, end to end: every case of the spec (in parallel, streamed through the checks),
+// the modal analysis, the chaotic-onset indicators, and the accuracy audit of each governing case.
+#include <functional>
+#include <string>
+#include <vector>
+
+#include "swaybound/cases/runner.hpp"
+#include "swaybound/checks/checks.hpp"
+#include "swaybound/modal/modes.hpp"
+#include "swaybound/spec/spec.hpp"
+
+namespace swaybound {
+
+struct FailedCase {
+  std::string id, status, reason;
+};
+
+/// Divergence of a perturbation ladder from its base start.
+struct LadderResult {
+  std::string set, scenario;
+  int link = 0;                          ///< the perturbed link
+  std::vector<double> delta;             ///< actual initial angle perturbations [rad]
+  std::vector<double> divergence_time;   ///< first time max_i |dtheta_i| > chaos.tolerance [s]; NaN: never
+  double sample_interval = 0;            ///< of `separation` [s]
+  std::vector<std::vector<double>> separation;  ///< per step: max_i |dtheta_i| at each sample [rad]
+  double lambda = std::nan("");          ///< FTLE of the base start [1/s]
+  double slope = std::nan("");           ///< least-squares d(time)/d ln(1/delta) [s]
+  double horizon_measured = std::nan(""); ///< the fitted time at delta = chaos.uncertainty [s]
+  double horizon_predicted = std::nan("");///< ln(tolerance / uncertainty) / lambda [s]
+};
+
+struct OnsetResult {
+  bool computed = false;
+  bool found = false;                 ///< FTLE exceeded the threshold below chaos.onset.max
+  double amplitude = std::nan("");    ///< smallest amplitude with FTLE > threshold [rad] (upper end of the bracket)
+  double bracket_low = std::nan("");  ///< largest amplitude known below the threshold [rad]
+  std::vector<double> scan_amplitude, scan_ftle;  ///< coarse scan and bisection points [rad], [1/s]
+  std::string scenario;
+};
+
+struct ChaosMap {
+  bool computed = false;
+  std::vector<double> x, y;   ///< link 0 and link 1 start angles [rad]
+  std::vector<double> ftle;   ///< row-major, y outer: ftle[j * x.size() + i] [1/s]; NaN where a run failed
+};
+
+struct ChaosSummary {
+  bool per_case_ftle = false;
+  double horizon = 0;             ///< [s]
+  double max_ftle = std::nan(""); ///< over the cases [1/s]
+  std::string max_ftle_case;
+  double envelope_amplitude = 0;  ///< largest start angle of the case sets [rad]
+  std::vector<LadderResult> ladders;
+  OnsetResult onset;
+  ChaosMap map;
+};
+
+struct CheckOptions {
+  int jobs = 0;                   ///< 0 = all hardware threads
+  bool audit = true;              ///< re-run governing cases at a 100x tighter tolerance
+  std::function<void(const Progress&)> progress;
+  std::function<void(const CaseMetrics&)> on_case;  ///< every case, in case order
+};
+
+struct CheckReport {
+  std::string spec_file, spec_sha256;
+  long case_count = 0;
+  std::vector<CheckResult> checks;
+  ModalResult modes;
+  ChaosSummary chaos;
+  std::vector<FailedCase> failed;  ///< the first 100 failed cases
+  long failed_total = 0;
+  double max_audit_relative = 0;   ///< largest energy-audit residual / energy scale over the cases
+  std::string max_audit_case;
+  long total_steps = 0;
+  bool pass = false;
+};
+
+CheckReport run_check(const Spec& spec, const CheckOptions& options);
+
+}  // namespace swaybound

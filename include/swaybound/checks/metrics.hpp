@@ -1,0 +1,57 @@
+#pragma once
+// Per-case metrics, kept as running extremes by an observer of the accepted steps, so a case costs
+// O(links) memory whatever its length. Peaks are taken at the accepted steps of the adaptive
+// stepper; the accuracy audit (checks.hpp) re-runs governing cases at a tighter tolerance, which
+// also shortens the steps, and reports how far each figure moves.
+#include <cmath>
+#include <string>
+#include <vector>
+
+#include "swaybound/cases/case_space.hpp"
+#include "swaybound/integrate/run.hpp"
+#include "swaybound/model/model.hpp"
+#include "swaybound/spec/spec.hpp"
+
+namespace swaybound {
+
+struct Extreme {
+  double value = 0;  ///< SI
+  double time = 0;   ///< when it happened [s]
+};
+
+struct CaseMetrics {
+  long index = 0;
+  std::string id;
+  int scenario = 0, set = 0;
+  InitialState initial;
+  RunStatus status = RunStatus::ok;
+  std::string reason;
+  std::vector<Extreme> peak_angle;     ///< max |theta_i| [rad] per link
+  std::vector<Extreme> peak_relative;  ///< max |theta_i - theta_{i-1}| [rad] per pivot (theta_{-1} = 0)
+  std::vector<Extreme> peak_rate;      ///< max |omega_i| [rad/s] per link
+  std::vector<Extreme> peak_load;      ///< max |pivot reaction| [N] per pivot
+  std::vector<double> dynamic_factor;  ///< peak load / static load (weight below the pivot) [-]
+  std::vector<Extreme> min_tension;    ///< least axial tension of rope links, either end [N]; NaN for rigid
+  std::vector<double> residual;        ///< per residual_sway limit: max |theta| after its time [rad]
+  double settling_time = 0;            ///< time after which every |theta| stays within the band [s];
+                                       ///< NaN when the run ends outside the band
+  double audit_relative = 0;           ///< largest |energy audit residual| / energy scale [-]
+  long steps = 0, evaluations = 0;
+  double ftle = std::nan("");          ///< largest finite-time Lyapunov exponent [1/s], NaN if not computed
+  std::string ftle_note;               ///< why the FTLE is missing, when it failed
+  bool ok() const { return status == RunStatus::ok; }
+};
+
+/// What a check run computes per case besides the metrics.
+struct CaseOptions {
+  bool ftle = false;              ///< compute the FTLE (doubles the cost of a case)
+  double ftle_horizon = 0;        ///< [s]
+  double ftle_separation = 1e-8;
+  double ftle_renormalise = 0.5;  ///< [s]
+};
+
+/// Runs one case with the metrics observer (and the FTLE when asked).
+CaseMetrics run_case(const Model& model, const Spec& spec, Workspace& ws, const CaseDef& def,
+                     const RunSettings& settings, const CaseOptions& options);
+
+}  // namespace swaybound

@@ -1,0 +1,13 @@
+#pragma once
+// SHA-256 of files and text (OpenSSL's libcrypto), as lowercase hex: ties every output to the
+// exact spec it came from.
+#include <string>
+#include <string_view>
+
+namespace swaybound {
+
+std::string sha256_hex(std::string_view data);
+/// Throws RunError when the file cannot be read.
+std::string sha256_file(const std::string& path);
+
+}  // namespace swaybound

@@ -1,0 +1,71 @@
+#pragma once
+// Small-signal (modal) analysis of a chain about its hanging rest position.
+//
+// Linearising the equations of motion (chain.hpp) about theta = 0, omega = 0 with the base at rest
+// and no wind gives
+//   M0 theta'' + C theta' + K theta = 0,
+//   M0 = mu (model.hpp),  K = diag(g h_i),
+//   C  = pivot dampers on relative rates + dashpots (see modal_analysis),
+// (linearisation about an equilibrium and the state-space form of a viscously damped
+// multi-degree-of-freedom system as in e.g. Meirovitch, Fundamentals of Vibrations).
+//
+// Undamped modes solve K v = w^2 M0 v. The damped system is the first-order system
+//   x' = A x,  A = [[0, I], [-M0^-1 K, -M0^-1 C]],  x = (theta, omega),
+// whose eigenvalues lambda give, for an underdamped pair lambda, conj(lambda),
+//   w_n = |lambda|,  zeta = -Re(lambda) / |lambda|,  w_d = Im(lambda);
+// and, for an overdamped mode (two real roots lambda_1, lambda_2 of s^2 + 2 zeta w_n s + w_n^2),
+//   w_n = sqrt(lambda_1 lambda_2),  zeta = -(lambda_1 + lambda_2) / (2 w_n) > 1,  w_d = 0.
+// With non-proportional damping (a rotary damper between two links, a dashpot) the damped modes are
+// not the undamped shapes; each damped mode is listed next to the undamped mode nearest in frequency.
+//
+// Left out (each reported in ModalResult::notes when the model has it):
+//   - friction (constant and pin): regularised Coulomb friction tau = -T tanh(w / w_t) has slope
+//     T / w_t at rest, an artefact of the regularisation rate, not a physical damping; real dry
+//     friction either sticks or removes a fixed amplitude per cycle (amplitude-dependent), neither
+//     of which a linear model represents;
+//   - wind: it shifts the equilibrium away from theta = 0 and its drag linearisation depends on
+//     the wind speed and the load case;
+//   - base motion: the modes are those of the chain on a base at rest.
+#include <complex>
+#include <string>
+#include <vector>
+
+#include "swaybound/model/model.hpp"
+
+namespace swaybound {
+
+/// One mode: the undamped mode (frequency, period, shape) with the damped mode matched to it.
+struct Mode {
+  // Undamped (K v = w^2 M0 v)
+  double frequency_hz = 0;       ///< undamped natural frequency w / (2 pi) [Hz]
+  double period_s = 0;           ///< 1 / frequency_hz [s] (infinity for a neutral mode)
+  std::vector<double> shape;     ///< per link [-]: largest |component| 1, and that component positive
+
+  // Damped (eigenvalues of A)
+  double natural_frequency_with_damping_hz = 0;  ///< w_n / (2 pi) = |lambda| / (2 pi) [Hz]
+  double damped_frequency_hz = 0;  ///< Im(lambda) / (2 pi) [Hz]; 0 when overdamped
+  double damping_ratio = 0;        ///< zeta [-]; > 1 when overdamped
+  bool overdamped = false;         ///< the mode's two eigenvalues are real
+  std::complex<double> eigenvalue;  ///< lambda [1/s], Im >= 0; when overdamped the slower real root
+  std::complex<double> partner;     ///< the other root [1/s]: conj(lambda), or the faster real root
+};
+
+struct ModalResult {
+  std::vector<Mode> modes;          ///< sorted by undamped frequency, lowest first
+  double least_damping_ratio = 0;   ///< min over modes of damping_ratio [-] (modal_damping_min limit)
+  std::vector<std::string> notes;   ///< what the linearisation leaves out or approximates
+};
+
+/// Small-signal damping coefficient of a pivot's power-law damper [N m s/rad]: C for exponent 1;
+/// for exponent < 1 the slope of the linear segment below `linear_below` w0, C w0^(alpha - 1)
+/// (forces.hpp); for exponent > 1 the slope at rest, 0.
+double small_signal_damper_coefficient(const PivotModel& pivot);
+
+/// Linearised damping matrix C [N m s/rad] about the rest position (pivot dampers and dashpots).
+Eigen::MatrixXd linear_damping_matrix(const Model& model);
+
+/// Modal analysis about theta = 0 (see the top of this file). Throws ArgumentError when the mass
+/// matrix is not positive definite (a massless, inertia-free end of the chain).
+ModalResult modal_analysis(const Model& model);
+
+}  // namespace swaybound

@@ -1,0 +1,156 @@
+#include "swaybound/cases/case_space.hpp"
+
+#include <algorithm>
+#include <cctype>
+#include <cmath>
+
+#include <fmt/format.h>
+
+#include "swaybound/spec/loader.hpp"
+
+namespace swaybound {
+
+namespace {
+
+std::uint64_t splitmix64(std::uint64_t x) {
+  x += 0x9e3779b97f4a7c15ULL;
+  x = (x ^ (x >> 30)) * 0xbf58476d1ce4e5b9ULL;
+  x = (x ^ (x >> 27)) * 0x94d049bb133111ebULL;
+  return x ^ (x >> 31);
+}
+
+/// Dimensions of a set: its theta ranges then its rate ranges.
+std::size_t dimensions(const InitialSetSpec& set) { return set.theta.size() + set.rate.size(); }
+const Range& dimension(const InitialSetSpec& set, std::size_t d) {
+  return d < set.theta.size() ? set.theta[d] : set.rate[d - set.theta.size()];
+}
+void assign(InitialState& out, const InitialSetSpec& set, std::size_t d, double value) {
+  if (d < set.theta.size())
+    out.theta[d] = value;
+  else
+    out.omega[d - set.theta.size()] = value;
+}
+
+}  // namespace
+
+double unit_random(std::uint64_t seed, std::uint64_t a, std::uint64_t b) {
+  const std::uint64_t bits = splitmix64(splitmix64(splitmix64(seed) ^ a) ^ (b * 0x9e3779b97f4a7c15ULL));
+  return static_cast<double>(bits >> 11) * 0x1.0p-53;
+}
+
+std::string slug(const std::string& name) {
+  std::string out;
+  for (char c : name) {
+    const auto u = static_cast<unsigned char>(c);
+    if (std::isalnum(u))
+      out += static_cast<char>(std::tolower(u));
+    else if (!out.empty() && out.back() != '-')
+      out += '-';
+  }
+  while (!out.empty() && out.back() == '-') out.pop_back();
+  return out.empty() ? "case" : out;
+}
+
+CaseSpace::CaseSpace(const Spec& spec) : spec_(&spec) {
+  for (const auto& s : spec.scenarios) slugs_.push_back(slug(s.name));
+  for (std::size_t i = 0; i < spec.cases.initial.size(); ++i) {
+    const InitialSetSpec& set = spec.cases.initial[i];
+    offsets_.push_back(starts_);
+    starts_ += initial_set_size(set);
+    std::vector<std::vector<int>> perms;
+    if (set.kind == InitialKind::random && set.method == SamplingMethod::latin_hypercube) {
+      // One random permutation of the strata per dimension (Fisher-Yates with unit_random).
+      for (std::size_t d = 0; d < dimensions(set); ++d) {
+        std::vector<int> p(static_cast<std::size_t>(set.count));
+        for (int k = 0; k < set.count; ++k) p[static_cast<std::size_t>(k)] = k;
+        for (std::size_t k = p.size(); k > 1; --k) {
+          const auto j = static_cast<std::size_t>(unit_random(set.seed, 1000 + d, k) * static_cast<double>(k));
+          std::swap(p[k - 1], p[std::min(j, k - 1)]);
+        }
+        perms.push_back(std::move(p));
+      }
+    }
+    lhs_.push_back(std::move(perms));
+    // Envelope: the extremes of every range bound the starts' angles.
+    for (const auto& r : set.theta) envelope_ = std::max({envelope_, std::fabs(r.lo), std::fabs(r.hi)});
+    if (set.kind == InitialKind::ladder && set.perturb_link >= 0 &&
+        static_cast<std::size_t>(set.perturb_link) < set.theta.size()) {
+      const double base = std::fabs(set.theta[static_cast<std::size_t>(set.perturb_link)].lo);
+      for (double step : set.steps) envelope_ = std::max(envelope_, set.relative ? base * (1 + step) : base + step);
+    }
+  }
+  total_ = starts_ * static_cast<long>(spec.scenarios.size());
+}
+
+void CaseSpace::fill_start(const InitialSetSpec& set, int set_index, long k, InitialState& out) const {
+  const std::size_t dims = dimensions(set);
+  switch (set.kind) {
+    case InitialKind::single:
+      for (std::size_t d = 0; d < dims; ++d) assign(out, set, d, dimension(set, d).lo);
+      break;
+    case InitialKind::ladder: {
+      for (std::size_t d = 0; d < dims; ++d) assign(out, set, d, dimension(set, d).lo);
+      if (k > 0) {
+        const double step = set.steps[static_cast<std::size_t>(k - 1)];
+        double& theta = out.theta[static_cast<std::size_t>(set.perturb_link)];
+        theta = set.relative ? theta * (1 + step) : theta + step;
+      }
+      break;
+    }
+    case InitialKind::grid: {
+      long rest = k;  // last dimension varies fastest
+      for (std::size_t d = dims; d-- > 0;) {
+        const Range& r = dimension(set, d);
+        const long j = rest % r.count;
+        rest /= r.count;
+        assign(out, set, d, r.count == 1 ? 0.5 * (r.lo + r.hi) : r.lo + (r.hi - r.lo) * static_cast<double>(j) / (r.count - 1));
+      }
+      break;
+    }
+    case InitialKind::corners: {
+      long bit = 0;
+      for (std::size_t d = 0; d < dims; ++d) {
+        const Range& r = dimension(set, d);
+        if (r.hi > r.lo) {
+          assign(out, set, d, (k >> bit) & 1 ? r.hi : r.lo);
+          ++bit;
+        } else {
+          assign(out, set, d, r.lo);
+        }
+      }
+      break;
+    }
+    case InitialKind::random: {
+      const bool lhs = set.method == SamplingMethod::latin_hypercube;
+      for (std::size_t d = 0; d < dims; ++d) {
+        const Range& r = dimension(set, d);
+        const double u = unit_random(set.seed, d, static_cast<std::uint64_t>(k));
+        const double f = lhs ? (lhs_[static_cast<std::size_t>(set_index)][d][static_cast<std::size_t>(k)] + u) / set.count : u;
+        assign(out, set, d, r.lo + (r.hi - r.lo) * f);
+      }
+      break;
+    }
+  }
+}
+
+CaseDef CaseSpace::at(long index) const {
+  SWAYBOUND_REQUIRE(index >= 0 && index < total_, "case index {} out of range [0, {})", index, total_);
+  CaseDef c;
+  c.index = index;
+  c.scenario = static_cast<int>(index / starts_);
+  const long within = index % starts_;
+  const auto it = std::upper_bound(offsets_.begin(), offsets_.end(), within);
+  c.set = static_cast<int>(it - offsets_.begin()) - 1;
+  c.start = within - offsets_[static_cast<std::size_t>(c.set)];
+  const InitialSetSpec& set = spec_->cases.initial[static_cast<std::size_t>(c.set)];
+  const std::size_t n = spec_->links.size();
+  c.initial.theta.assign(n, 0.0);
+  c.initial.omega.assign(n, 0.0);
+  fill_start(set, c.set, c.start, c.initial);
+  const int width = static_cast<int>(std::to_string(initial_set_size(set)).size());
+  c.id = fmt::format("{}/{}-{:0{}}", slugs_[static_cast<std::size_t>(c.scenario)], slug(set.name), c.start + 1,
+                     std::max(width, 3));
+  return c;
+}
+
+}  // namespace swaybound

@@ -1,0 +1,57 @@
+#include "swaybound/chaos/ftle.hpp"
+
+#include <cmath>
+#include <numeric>
+
+namespace swaybound {
+
+FtleResult chain_ftle(const Model& model, Workspace& ws, int scenario, const InitialState& start,
+                      const FtleSettings& s) {
+  SWAYBOUND_REQUIRE(scenario >= 0 && scenario < static_cast<int>(model.scenarios.size()),
+                    "scenario index {} out of range (model has {})", scenario, model.scenarios.size());
+  const auto n = static_cast<std::size_t>(model.n);
+  SWAYBOUND_REQUIRE(start.theta.size() <= n && start.omega.size() <= n,
+                    "initial state has {} angles and {} rates for {} links", start.theta.size(), start.omega.size(),
+                    model.n);
+  SWAYBOUND_REQUIRE(model.gravity > 0, "the rate scaling needs gravity > 0, got {}", model.gravity);
+
+  std::vector<double> x0(static_cast<std::size_t>(model.state_size()), 0.0);
+  std::copy(start.theta.begin(), start.theta.end(), x0.begin());
+  std::copy(start.omega.begin(), start.omega.end(), x0.begin() + model.n);
+
+  // Norm: angles [rad] with weight 1, rates [rad/s] with weight T_ref = sqrt(L_tot / g) [s].
+  const double length = std::accumulate(model.length.begin(), model.length.end(), 0.0);
+  const double t_ref = std::sqrt(length / model.gravity);
+  FtleSettings settings = s;
+  settings.measured = 2 * model.n;
+  settings.weights.assign(2 * n, 1.0);
+  std::fill(settings.weights.begin() + model.n, settings.weights.end(), t_ref);
+
+  const ScenarioModel& sc = model.scenarios[static_cast<std::size_t>(scenario)];
+  std::vector<double> breakpoints;
+  for (const Phase& p : sc.phases)
+    if (std::isfinite(p.t1) && p.t1 > 0 && p.t1 < s.horizon) breakpoints.push_back(p.t1);
+
+  // The right-hand side is all we need: reactions only when it needs them (restored on exit).
+  struct Lazy {
+    Workspace& ws;
+    bool before;
+    ~Lazy() { ws.lazy_reactions = before; }
+  } lazy{ws, ws.lazy_reactions};
+  ws.lazy_reactions = true;
+  ws.scenario = scenario;
+  ws.phase = 0;
+  ws.friction_unconverged = 0;
+  ChainSystem<std::vector<double>> system{&model, &ws};
+  FtleResult r = finite_time_lyapunov(system, std::move(x0), settings, breakpoints, [&](double t_start) {
+    ws.scenario = scenario;
+    ws.phase = sc.phase_at(t_start);
+  });
+  if (r.status == FtleStatus::ok && ws.friction_unconverged > 0) {
+    r.status = FtleStatus::failed;
+    r.reason = fmt::format("pin friction did not converge in {} evaluations", ws.friction_unconverged);
+  }
+  return r;
+}
+
+}  // namespace swaybound

@@ -1,0 +1,93 @@
+// swaybound modes: small-signal modes of the chain about its hanging rest position.
+#include <cmath>
+#include <iostream>
+
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+
+#include "commands.hpp"
+#include "swaybound/modal/modes.hpp"
+#include "swaybound/model/model.hpp"
+#include "swaybound/spec.hpp"
+
+namespace swaybound::cli {
+
+namespace {
+
+/// Finite numbers as numbers, infinities and NaN as null (JSON has neither).
+nlohmann::json number(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
+
+nlohmann::json modal_json(const ModalResult& r, const Model& model, const std::string& spec_path) {
+  nlohmann::json out;
+  out["spec"] = spec_path;
+  out["links"] = model.names;
+  nlohmann::json modes = nlohmann::json::array();
+  for (std::size_t k = 0; k < r.modes.size(); ++k) {
+    const Mode& m = r.modes[k];
+    nlohmann::json j;
+    j["mode"] = k + 1;
+    j["frequency_hz"] = number(m.frequency_hz);
+    j["period_s"] = number(m.period_s);
+    j["natural_frequency_with_damping_hz"] = number(m.natural_frequency_with_damping_hz);
+    j["damped_frequency_hz"] = number(m.damped_frequency_hz);
+    j["damping_ratio"] = number(m.damping_ratio);
+    j["overdamped"] = m.overdamped;
+    j["eigenvalue_real_per_s"] = number(m.eigenvalue.real());
+    j["eigenvalue_imag_per_s"] = number(m.eigenvalue.imag());
+    j["partner_eigenvalue_real_per_s"] = number(m.partner.real());
+    j["partner_eigenvalue_imag_per_s"] = number(m.partner.imag());
+    nlohmann::json shape = nlohmann::json::object();
+    for (std::size_t i = 0; i < m.shape.size(); ++i) shape[model.names[i]] = number(m.shape[i]);
+    j["shape_rad_per_rad"] = shape;
+    modes.push_back(std::move(j));
+  }
+  out["modes"] = std::move(modes);
+  out["least_damping_ratio"] = number(r.least_damping_ratio);
+  out["notes"] = r.notes;
+  return out;
+}
+
+void print_table(const ModalResult& r, const Model& model, const std::string& spec_path) {
+  std::cout << fmt::format("Modes of {} about the hanging rest position ({} link{})\n\n", spec_path, model.n,
+                           model.n == 1 ? "" : "s");
+  std::cout << fmt::format("{:>4}  {:>14}  {:>10}  {:>17}  {:>20}  {:>20}", "mode", "frequency [Hz]", "period [s]",
+                           "damping ratio [-]", "damped frequency [Hz]", "w_n with damping [Hz]");
+  for (const auto& name : model.names) std::cout << "  " << fmt::format("{:>12}", "shape(" + name + ")");
+  std::cout << '\n';
+  for (std::size_t k = 0; k < r.modes.size(); ++k) {
+    const Mode& m = r.modes[k];
+    std::cout << fmt::format("{:>4}  {:>14.6g}  {:>10.6g}  {:>17.6g}  {:>20}  {:>20.6g}", k + 1, m.frequency_hz,
+                             m.period_s, m.damping_ratio,
+                             m.overdamped ? std::string("overdamped") : fmt::format("{:.6g}", m.damped_frequency_hz),
+                             m.natural_frequency_with_damping_hz);
+    for (std::size_t i = 0; i < m.shape.size(); ++i)
+      std::cout << "  " << fmt::format("{:>{}.6g}", m.shape[i], std::max<std::size_t>(12, model.names[i].size() + 7));
+    std::cout << '\n';
+  }
+  std::cout << fmt::format("\nleast damping ratio: {:.6g}\n", r.least_damping_ratio);
+  std::cout << "mode shapes: link angles [rad per rad], largest 1\n";
+  for (const auto& note : r.notes) std::cout << "note: " << note << '\n';
+}
+
+}  // namespace
+
+Action add_modes(CLI::App& app) {
+  auto* cmd = app.add_subcommand("modes", "Natural frequencies, damping ratios and mode shapes about the rest position");
+  auto spec_path = std::make_shared<std::string>();
+  auto json = std::make_shared<bool>(false);
+  cmd->add_option("SPEC", *spec_path, "YAML design spec")->required();
+  cmd->add_flag("--json", *json, "Print JSON (units in the key names) instead of a table");
+  return [cmd, spec_path, json]() {
+    if (!cmd->parsed()) return -1;
+    const Spec spec = load_spec(*spec_path);
+    const Model model = build_model(spec);
+    const ModalResult result = modal_analysis(model);
+    if (*json)
+      std::cout << modal_json(result, model, *spec_path).dump(2) << '\n';
+    else
+      print_table(result, model, *spec_path);
+    return kExitPass;
+  };
+}
+
+}  // namespace swaybound::cli

@@ -1,0 +1,263 @@
+#include "swaybound/modal/modes.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <numbers>
+
+#include <Eigen/Eigenvalues>
+#include <fmt/format.h>
+
+#include "swaybound/core/error.hpp"
+
+namespace swaybound {
+
+namespace {
+
+constexpr double kTwoPi = 2 * std::numbers::pi;
+
+/// A point of the chain at rest: its position [m] and d v_x / d omega_j [m] (at theta = 0 every
+/// link moves horizontally: a point at lever r on link j has velocity r omega_j (1, 0)).
+struct RestPoint {
+  double x = 0, y = 0;
+  std::vector<double> dvx;
+};
+
+RestPoint rest_point(const Model& model, const PointRef& p) {
+  RestPoint out;
+  out.dvx.assign(static_cast<std::size_t>(model.n), 0.0);
+  if (p.link < 0) {  // on the base, which is at rest
+    out.x = p.base_x;
+    out.y = p.base_y;
+    return out;
+  }
+  for (int j = 0; j <= p.link; ++j) {
+    const double r = j < p.link ? model.length[static_cast<std::size_t>(j)] : p.at;
+    out.y -= r;
+    out.dvx[static_cast<std::size_t>(j)] = r;
+  }
+  return out;
+}
+
+std::string link_label(const Model& model, int i) { return "'" + model.names[static_cast<std::size_t>(i)] + "'"; }
+
+/// A mode of the damped system: one eigenvalue with Im > 0 and its conjugate, or two real roots.
+struct DampedMode {
+  std::complex<double> eigenvalue, partner;
+  double wn = 0, zeta = 0, wd = 0;
+  bool overdamped = false;
+};
+
+/// Relative distance of two frequencies, for matching damped to undamped modes.
+double frequency_distance(double a, double b) {
+  const double scale = std::max({std::fabs(a), std::fabs(b), 1e-300});
+  return std::fabs(a - b) / scale;
+}
+
+}  // namespace
+
+double small_signal_damper_coefficient(const PivotModel& p) {
+  if (p.damper_c <= 0) return 0.0;
+  if (p.damper_alpha == 1.0) return p.damper_c;
+  if (p.damper_alpha < 1.0) return p.damper_c * std::pow(p.damper_linear_below, p.damper_alpha - 1.0);
+  return 0.0;  // alpha > 1: tau ~ |w|^alpha has zero slope at rest
+}
+
+Eigen::MatrixXd linear_damping_matrix(const Model& model) {
+  const int n = model.n;
+  Eigen::MatrixXd C = Eigen::MatrixXd::Zero(n, n);
+  // Pivot i: tau_i = -c (omega_i - omega_{i-1}) on link i, -tau_i on link i-1 (chain.hpp).
+  for (int i = 0; i < n; ++i) {
+    const double c = small_signal_damper_coefficient(model.pivots[static_cast<std::size_t>(i)]);
+    if (c == 0.0) continue;
+    C(i, i) += c;
+    if (i > 0) {
+      C(i - 1, i - 1) += c;
+      C(i, i - 1) -= c;
+      C(i - 1, i) -= c;
+    }
+  }
+  // Dashpot: force -c (u . (v_a - v_b)) u on end a, the opposite on end b; with the stretch rate
+  // u0 . (v_a - v_b) = g . omega its generalised force is -c g (g . omega), so C += c g g^T.
+  // Only the rate terms survive at rest (the force vanishes there, so changes of its axis with
+  // theta do not enter the linearisation).
+  for (const DashpotModel& d : model.dashpots) {
+    if (d.coefficient <= 0) continue;
+    const RestPoint a = rest_point(model, d.a), b = rest_point(model, d.b);
+    const double dx = a.x - b.x, dy = a.y - b.y;
+    const double length = std::sqrt(dx * dx + dy * dy);
+    if (length <= 0) continue;  // as the engine: coincident ends exert no force (noted by modal_analysis)
+    const double ux = dx / length;
+    Eigen::VectorXd g(n);
+    for (int j = 0; j < n; ++j) g(j) = ux * (a.dvx[static_cast<std::size_t>(j)] - b.dvx[static_cast<std::size_t>(j)]);
+    C.noalias() += d.coefficient * g * g.transpose();
+  }
+  return C;
+}
+
+ModalResult modal_analysis(const Model& model) {
+  const int n = model.n;
+  SWAYBOUND_REQUIRE(n >= 1, "modal analysis needs at least one link, got {}", n);
+  ModalResult result;
+
+  const Eigen::MatrixXd& M0 = model.mu;
+  Eigen::LLT<Eigen::MatrixXd> llt(M0);
+  SWAYBOUND_REQUIRE(llt.info() == Eigen::Success,
+                    "the mass matrix at rest is not positive definite (a link with neither mass away from "
+                    "its pivot nor inertia?); no modes");
+  Eigen::MatrixXd K = Eigen::MatrixXd::Zero(n, n);
+  for (int i = 0; i < n; ++i) K(i, i) = model.gravity * model.h[static_cast<std::size_t>(i)];
+  const Eigen::MatrixXd C = linear_damping_matrix(model);
+
+  // --- Undamped: K v = w^2 M0 v (eigenvalues ascending).
+  Eigen::GeneralizedSelfAdjointEigenSolver<Eigen::MatrixXd> undamped(K, M0);
+  SWAYBOUND_REQUIRE(undamped.info() == Eigen::Success, "the undamped eigenproblem did not converge");
+  result.modes.resize(static_cast<std::size_t>(n));
+  for (int k = 0; k < n; ++k) {
+    Mode& mode = result.modes[static_cast<std::size_t>(k)];
+    const double w2 = std::max(undamped.eigenvalues()(k), 0.0);
+    mode.frequency_hz = std::sqrt(w2) / kTwoPi;
+    mode.period_s = mode.frequency_hz > 0 ? 1.0 / mode.frequency_hz : std::numeric_limits<double>::infinity();
+    Eigen::VectorXd v = undamped.eigenvectors().col(k);
+    Eigen::Index largest = 0;
+    v.cwiseAbs().maxCoeff(&largest);
+    v /= v(largest);
+    mode.shape.assign(v.data(), v.data() + n);
+  }
+
+  // --- Damped: eigenvalues of A = [[0, I], [-M0^-1 K, -M0^-1 C]].
+  Eigen::MatrixXd A = Eigen::MatrixXd::Zero(2 * n, 2 * n);
+  A.topRightCorner(n, n).setIdentity();
+  A.bottomLeftCorner(n, n) = -llt.solve(K);
+  A.bottomRightCorner(n, n) = -llt.solve(C);
+  Eigen::EigenSolver<Eigen::MatrixXd> damped(A, true);
+  SWAYBOUND_REQUIRE(damped.info() == Eigen::Success, "the damped eigenproblem did not converge");
+  const Eigen::VectorXcd lambda = damped.eigenvalues();
+
+  std::vector<DampedMode> dmodes;
+  std::vector<int> reals;
+  for (int k = 0; k < 2 * n; ++k) {
+    const std::complex<double> l = lambda(k);
+    if (l.imag() > 0) {  // underdamped pair: keep the root with Im > 0
+      DampedMode d;
+      d.eigenvalue = l;
+      d.partner = std::conj(l);
+      d.wn = std::abs(l);
+      d.zeta = -l.real() / d.wn;
+      d.wd = l.imag();
+      dmodes.push_back(d);
+    } else if (l.imag() == 0) {  // real Schur 1x1 block: EigenSolver returns exactly 0 imaginary part
+      reals.push_back(k);
+    }
+  }
+  // Real roots come in pairs belonging to one overdamped mode, s^2 + 2 zeta w_n s + w_n^2 = 0.
+  // Pair them by the likeness of their eigenvectors' angle parts (identical for proportional
+  // damping), starting from the slowest root.
+  SWAYBOUND_REQUIRE(reals.size() % 2 == 0, "odd number ({}) of real eigenvalues", reals.size());
+  std::sort(reals.begin(), reals.end(), [&](int a, int b) { return std::abs(lambda(a)) < std::abs(lambda(b)); });
+  auto shape_of = [&](int k) {
+    Eigen::VectorXd v = damped.eigenvectors().col(k).head(n).real();
+    const double norm = v.norm();
+    return norm > 0 ? Eigen::VectorXd(v / norm) : v;
+  };
+  std::vector<bool> used(reals.size(), false);
+  for (std::size_t a = 0; a < reals.size(); ++a) {
+    if (used[a]) continue;
+    used[a] = true;
+    const Eigen::VectorXd va = shape_of(reals[a]);
+    std::size_t best = reals.size();
+    double best_like = -1;
+    for (std::size_t b = a + 1; b < reals.size(); ++b) {
+      if (used[b]) continue;
+      const double like = std::fabs(va.dot(shape_of(reals[b])));
+      if (like > best_like) {
+        best_like = like;
+        best = b;
+      }
+    }
+    used[best] = true;
+    const double l1 = lambda(reals[a]).real(), l2 = lambda(reals[best]).real();
+    DampedMode d;
+    d.overdamped = true;
+    d.eigenvalue = l1;  // the slower root (sorted by |lambda|)
+    d.partner = l2;
+    const double product = l1 * l2;
+    d.wn = product > 0 ? std::sqrt(product) : 0.0;
+    d.zeta = d.wn > 0 ? -(l1 + l2) / (2 * d.wn) : 0.0;  // a neutral mode (w_n = 0) does not decay to rest
+    d.wd = 0;
+    dmodes.push_back(d);
+  }
+  SWAYBOUND_REQUIRE(static_cast<int>(dmodes.size()) == n, "found {} damped modes for {} links", dmodes.size(), n);
+  std::sort(dmodes.begin(), dmodes.end(), [](const DampedMode& a, const DampedMode& b) { return a.wn < b.wn; });
+
+  // Match each damped mode to the undamped mode nearest in frequency (closest pairs first).
+  std::vector<bool> d_used(dmodes.size(), false), u_used(result.modes.size(), false);
+  for (int round = 0; round < n; ++round) {
+    std::size_t bd = 0, bu = 0;
+    double best = std::numeric_limits<double>::infinity();
+    for (std::size_t d = 0; d < dmodes.size(); ++d) {
+      if (d_used[d]) continue;
+      for (std::size_t u = 0; u < result.modes.size(); ++u) {
+        if (u_used[u]) continue;
+        const double dist = frequency_distance(dmodes[d].wn / kTwoPi, result.modes[u].frequency_hz);
+        if (dist < best) {
+          best = dist;
+          bd = d;
+          bu = u;
+        }
+      }
+    }
+    d_used[bd] = u_used[bu] = true;
+    Mode& mode = result.modes[bu];
+    const DampedMode& d = dmodes[bd];
+    mode.natural_frequency_with_damping_hz = d.wn / kTwoPi;
+    mode.damped_frequency_hz = d.wd / kTwoPi;
+    mode.damping_ratio = d.zeta;
+    mode.overdamped = d.overdamped;
+    mode.eigenvalue = d.eigenvalue;
+    mode.partner = d.partner;
+  }
+  result.least_damping_ratio = std::numeric_limits<double>::infinity();
+  for (const Mode& m : result.modes) result.least_damping_ratio = std::min(result.least_damping_ratio, m.damping_ratio);
+
+  // --- Notes: what the linearisation leaves out or approximates.
+  auto& notes = result.notes;
+  notes.push_back("linearised about the hanging rest position (all angles 0) with the base at rest; "
+                  "valid for small swings only");
+  for (int i = 0; i < n; ++i) {
+    const PivotModel& p = model.pivots[static_cast<std::size_t>(i)];
+    if (p.has_friction())
+      notes.push_back(fmt::format(
+          "friction at the pivot of {} left out: regularised Coulomb friction has no meaningful small-signal "
+          "linearisation (its slope at rest, torque / transition_rate, is an artefact of the regularisation); "
+          "real dry friction removes a fixed amplitude per cycle or sticks",
+          link_label(model, i)));
+    if (p.has_damper() && p.damper_alpha < 1.0)
+      notes.push_back(fmt::format(
+          "damper at the pivot of {} (exponent {:g} < 1) linearised on its linear segment below linear_below = "
+          "{:g} rad/s: {:.6g} N m s/rad; for relative swing rates W above that its equivalent viscous "
+          "coefficient falls like C W^(exponent-1), so larger swings are damped less than these ratios say",
+          link_label(model, i), p.damper_alpha, p.damper_linear_below, small_signal_damper_coefficient(p)));
+    if (p.has_damper() && p.damper_alpha > 1.0)
+      notes.push_back(fmt::format(
+          "damper at the pivot of {} (exponent {:g} > 1) has zero slope at rest and adds no small-signal damping",
+          link_label(model, i), p.damper_alpha));
+    if (model.kind[static_cast<std::size_t>(i)] == LinkKind::rope)
+      notes.push_back(fmt::format("rope {} treated as a rigid link (taut at rest)", link_label(model, i)));
+  }
+  for (const DashpotModel& d : model.dashpots) {
+    const RestPoint a = rest_point(model, d.a), b = rest_point(model, d.b);
+    if (a.x == b.x && a.y == b.y)
+      notes.push_back(fmt::format("dashpot '{}' has coincident ends at rest and is left out", d.name));
+  }
+  if (!model.wind.empty())
+    notes.push_back("wind left out: it moves the equilibrium away from the hanging position and its drag "
+                    "linearisation depends on the wind speed of the load case");
+  for (std::size_t k = 0; k < result.modes.size(); ++k)
+    if (result.modes[k].frequency_hz == 0)
+      notes.push_back(fmt::format("mode {} has no gravity stiffness (neutral); its damping ratio is reported as 0",
+                                  k + 1));
+  return result;
+}
+
+}  // namespace swaybound

@@ -1,0 +1,166 @@
+#include "swaybound/report/results.hpp"
+
+#include <cmath>
+
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+
+#include "swaybound/core/version.hpp"
+
+namespace swaybound {
+
+namespace {
+
+using Json = nlohmann::ordered_json;
+
+Json number(double v) { return std::isfinite(v) ? Json(v) : Json(nullptr); }
+
+Json vector_json(const std::vector<double>& v) {
+  Json out = Json::array();
+  for (double x : v) out.push_back(number(x));
+  return out;
+}
+
+const char* stepper_name(Stepper s) { return s == Stepper::dopri5 ? "dopri5" : "rkf78"; }
+
+std::string csv_quote(const std::string& s) {
+  std::string out = "\"";
+  for (char c : s) out += c == '"' ? std::string("\"\"") : std::string(1, c);
+  return out + "\"";
+}
+
+std::string csv_number(double v) { return std::isfinite(v) ? fmt::format("{:.10g}", v) : std::string(); }
+
+}  // namespace
+
+std::string results_json(const Spec& spec, const CheckReport& r) {
+  Json j;
+  j["schema"] = kResultsSchema;
+  j["tool"] = {{"name", "swaybound"}, {"version", std::string(tool_version())}, {"commit", std::string(git_commit())}};
+  j["spec"] = {{"name", spec.name}, {"sha256", r.spec_sha256}, {"format_version", spec.version}};
+  j["units"] = "SI: m, kg, s, N, rad; margins in the unit of their check";
+  j["solver"] = {{"method", stepper_name(spec.solver.method)}, {"rtol", spec.solver.rtol}, {"atol", spec.solver.atol},
+                 {"max_steps", spec.solver.max_steps}, {"min_step_s", spec.solver.min_step},
+                 {"audit_tolerance_factor", 0.01}};
+  Json seeds = Json::array();
+  for (const auto& set : spec.cases.initial)
+    if (set.kind == InitialKind::random) seeds.push_back({{"set", set.name}, {"seed", set.seed}});
+  j["seeds"] = seeds;
+  j["cases"] = {{"count", r.case_count}, {"scenarios", spec.scenarios.size()}, {"duration_s", spec.cases.duration},
+                {"failed", r.failed_total}, {"total_steps", r.total_steps},
+                {"energy_audit_max_relative", number(r.max_audit_relative)}, {"energy_audit_max_case", r.max_audit_case}};
+  Json failed = Json::array();
+  for (const auto& f : r.failed) failed.push_back({{"case", f.id}, {"status", f.status}, {"reason", f.reason}});
+  j["failed_cases"] = failed;
+
+  Json checks = Json::array();
+  for (const auto& c : r.checks) {
+    Json cj;
+    cj["limit"] = c.key;
+    cj["applies_to"] = c.subject;
+    cj["bound"] = c.bound == Bound::upper ? "upper" : "lower";
+    cj["unit"] = c.unit;
+    cj["limit_value"] = number(c.limit_value);
+    cj["worst"] = number(c.worst);
+    cj["margin"] = number(c.margin);
+    cj["margin_ratio"] = number(c.margin_ratio);
+    cj["governing_case"] = c.governing_id;
+    cj["governing_link"] = c.governing_link >= 0 ? Json(spec.links[static_cast<std::size_t>(c.governing_link)].name) : Json(nullptr);
+    cj["time_s"] = number(c.time);
+    cj["failed_cases"] = c.failed_cases;
+    if (!c.first_failure.empty()) cj["first_failure"] = c.first_failure;
+    if (c.audited)
+      cj["accuracy_audit"] = {{"value", number(c.audit_value)}, {"change", number(c.audit_change)},
+                              {"warning", c.audit_warning}};
+    cj["verdict"] = c.pass ? "pass" : "fail";
+    checks.push_back(cj);
+  }
+  j["checks"] = checks;
+
+  Json modes = Json::array();
+  for (const auto& m : r.modes.modes)
+    modes.push_back({{"frequency_hz", number(m.frequency_hz)}, {"period_s", number(m.period_s)},
+                     {"damping_ratio", number(m.damping_ratio)}, {"damped_frequency_hz", number(m.damped_frequency_hz)},
+                     {"shape", vector_json(m.shape)}});
+  j["modes"] = {{"modes", modes}, {"least_damping_ratio", number(r.modes.least_damping_ratio)}, {"notes", r.modes.notes}};
+
+  const ChaosSummary& ch = r.chaos;
+  Json chaos;
+  chaos["method"] = "largest finite-time Lyapunov exponent, Benettin renormalisation of a nearby trajectory";
+  chaos["horizon_s"] = ch.horizon;
+  chaos["separation"] = spec.chaos.separation;
+  chaos["renormalise_s"] = spec.chaos.renormalise;
+  chaos["threshold_per_s"] = spec.chaos.threshold;
+  chaos["per_case_ftle"] = ch.per_case_ftle;
+  chaos["max_ftle_per_s"] = number(ch.max_ftle);
+  chaos["max_ftle_case"] = ch.max_ftle_case;
+  chaos["envelope_amplitude_rad"] = ch.envelope_amplitude;
+  Json ladders = Json::array();
+  for (const auto& l : ch.ladders)
+    ladders.push_back({{"set", l.set}, {"scenario", l.scenario}, {"link", spec.links[static_cast<std::size_t>(l.link)].name},
+                       {"delta_rad", vector_json(l.delta)}, {"divergence_time_s", vector_json(l.divergence_time)},
+                       {"ftle_per_s", number(l.lambda)}, {"slope_s", number(l.slope)},
+                       {"predictability_measured_s", number(l.horizon_measured)},
+                       {"predictability_from_ftle_s", number(l.horizon_predicted)},
+                       {"uncertainty_rad", spec.chaos.uncertainty}, {"tolerance_rad", spec.chaos.tolerance}});
+  chaos["ladders"] = ladders;
+  if (ch.onset.computed)
+    chaos["onset"] = {{"scenario", ch.onset.scenario}, {"found", ch.onset.found},
+                      {"amplitude_rad", number(ch.onset.amplitude)}, {"bracket_low_rad", number(ch.onset.bracket_low)},
+                      {"direction", vector_json(spec.chaos.onset_direction)},
+                      {"scan_amplitude_rad", vector_json(ch.onset.scan_amplitude)},
+                      {"scan_ftle_per_s", vector_json(ch.onset.scan_ftle)}};
+  if (ch.map.computed)
+    chaos["map"] = {{"theta0_rad", vector_json(ch.map.x)}, {"theta1_rad", vector_json(ch.map.y)},
+                    {"ftle_per_s", vector_json(ch.map.ftle)}};
+  j["chaos"] = chaos;
+  j["verdict"] = r.pass ? "pass" : "fail";
+  j["caution"] =
+      "Screening and design aid only; not a certification. Verify against the applicable crane and lifting-equipment "
+      "standards and local regulations; the design must be reviewed and signed off by a licensed professional engineer.";
+  return j.dump(2) + "\n";
+}
+
+std::string cases_csv_header(const Spec& spec) {
+  std::string h = "\"case\",\"scenario\",\"set\",\"status\"";
+  for (const auto& l : spec.links) h += "," + csv_quote(fmt::format("theta0({}) [rad]", l.name));
+  for (const auto& l : spec.links) h += "," + csv_quote(fmt::format("omega0({}) [rad/s]", l.name));
+  for (const auto& l : spec.links) {
+    h += "," + csv_quote(fmt::format("peak_angle({}) [rad]", l.name));
+    h += "," + csv_quote(fmt::format("peak_relative_angle({}) [rad]", l.name));
+    h += "," + csv_quote(fmt::format("peak_rate({}) [rad/s]", l.name));
+    h += "," + csv_quote(fmt::format("peak_pivot_load({}) [N]", l.name));
+    h += "," + csv_quote(fmt::format("dynamic_factor({}) [-]", l.name));
+    if (l.kind == LinkKind::rope) {
+      h += "," + csv_quote(fmt::format("min_rope_tension({}) [N]", l.name));
+      h += "," + csv_quote(fmt::format("min_rope_tension_time({}) [s]", l.name));
+    }
+  }
+  for (std::size_t i = 0; i < spec.limits.size(); ++i)
+    if (spec.limits[i].kind == LimitKind::residual_sway)
+      h += "," + csv_quote(fmt::format("residual_sway(limits[{}]) [rad]", i));
+  h += ",\"settling_time [s]\",\"ftle [1/s]\",\"energy_audit_relative [-]\",\"steps\",\"reason\"\n";
+  return h;
+}
+
+std::string cases_csv_row(const Spec& spec, const CaseMetrics& m) {
+  std::string row = csv_quote(m.id) + "," + csv_quote(spec.scenarios[static_cast<std::size_t>(m.scenario)].name) + "," +
+                    csv_quote(spec.cases.initial[static_cast<std::size_t>(m.set)].name) + "," +
+                    std::string(status_name(m.status));
+  const std::size_t n = spec.links.size();
+  for (std::size_t i = 0; i < n; ++i) row += "," + csv_number(i < m.initial.theta.size() ? m.initial.theta[i] : 0.0);
+  for (std::size_t i = 0; i < n; ++i) row += "," + csv_number(i < m.initial.omega.size() ? m.initial.omega[i] : 0.0);
+  const bool ok = m.ok();
+  for (std::size_t i = 0; i < n; ++i) {
+    const auto v = [&](double x) { return ok ? csv_number(x) : std::string(); };
+    row += "," + v(m.peak_angle[i].value) + "," + v(m.peak_relative[i].value) + "," + v(m.peak_rate[i].value) + "," +
+           v(m.peak_load[i].value) + "," + v(m.dynamic_factor[i]);
+    if (spec.links[i].kind == LinkKind::rope) row += "," + v(m.min_tension[i].value) + "," + v(m.min_tension[i].time);
+  }
+  for (double r : m.residual) row += "," + (ok ? csv_number(r) : std::string());
+  row += "," + (ok ? csv_number(m.settling_time) : std::string()) + "," + csv_number(m.ftle) + "," +
+         csv_number(m.audit_relative) + "," + std::to_string(m.steps) + "," + csv_quote(m.reason) + "\n";
+  return row;
+}
+
+}  // namespace swaybound

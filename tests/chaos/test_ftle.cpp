@@ -1,0 +1,230 @@
+// Largest finite-time Lyapunov exponent (Benettin's method) against values from outside the
+// project. Each reference value names its source.
+#include <catch2/catch.hpp>
+#include <cmath>
+#include <numbers>
+
+#include <boost/numeric/odeint.hpp>
+#include <fmt/format.h>
+#include <fmt/ranges.h>
+
+#include "../dynamics/fixtures.hpp"
+#include "swaybound/chaos/ftle.hpp"
+
+using namespace swaybound;
+using namespace swaybound::testing;
+using std::numbers::pi;
+
+namespace {
+constexpr double kG = 9.81;
+double deg(double d) { return d * pi / 180; }
+
+struct Lorenz {
+  double sigma = 10, rho = 28, beta = 8.0 / 3.0;
+  void operator()(const std::vector<double>& x, std::vector<double>& dxdt, double) const {
+    dxdt[0] = sigma * (x[1] - x[0]);
+    dxdt[1] = x[0] * (rho - x[2]) - x[1];
+    dxdt[2] = x[0] * x[1] - beta * x[2];
+  }
+};
+
+/// Two point masses on massless links (as equal_double() in tests/dynamics/test_references.cpp).
+std::string equal_double(double length, double mass) {
+  return fmt::format(R"(
+swaybound: 1
+name: equal double pendulum
+gravity: {0}
+links:
+  - {{name: upper, length: {1}, mass: {2}, com: {1}, inertia: 0}}
+  - {{name: lower, length: {1}, mass: {2}, com: {1}, inertia: 0}}
+cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1]}}}}]}}
+)",
+                     kG, length, mass);
+}
+
+FtleSettings ftle_settings(double horizon) {
+  FtleSettings s;
+  s.horizon = horizon;
+  return s;
+}
+}  // namespace
+
+TEST_CASE("FTLE of the Lorenz system matches the published largest exponent", "[chaos]") {
+  // sigma = 10, rho = 28, beta = 8/3: largest Lyapunov exponent 0.9056 (J. C. Sprott, Chaos and
+  // Time-Series Analysis, Oxford University Press 2003, appendix table of Lyapunov exponents of
+  // common chaotic systems: 0.9056, 0, -14.5723).
+  Lorenz lorenz;
+  std::vector<double> x{1.0, 1.0, 1.0};
+  namespace odeint = boost::numeric::odeint;
+  // Discard the transient: start from a point on the attractor.
+  odeint::integrate_adaptive(odeint::make_controlled(1e-10, 1e-10, odeint::runge_kutta_dopri5<std::vector<double>>()),
+                             lorenz, x, 0.0, 50.0, 1e-3);
+  const FtleResult r = finite_time_lyapunov(lorenz, x, ftle_settings(1000));
+  REQUIRE(r.status == FtleStatus::ok);
+  INFO("Lorenz exponent " << r.exponent << " /s, " << r.steps << " steps");
+  CHECK(r.exponent == Approx(0.9056).epsilon(0.02));
+  CHECK(r.growth.size() == 2000);
+  CHECK(r.growth.back().t == 1000.0);
+}
+
+TEST_CASE("FTLE bookkeeping: breakpoints, on_interval and the growth record are exact", "[chaos]") {
+  // dx/dt = a(t) x with a = +1 before the breakpoint t_b = 3.3 s and -2 after: every separation
+  // grows by exactly exp(integral of a), so the cumulative ln growth at t is that integral (closed
+  // form) and lambda = (t_b - 2 (T - t_b)) / T. The rate is selected by on_interval only, so a
+  // wrong phase at any interval shows in the record. Rounding budget: each measurement of d from
+  // x' - x loses about eps |x| / d0 relative (here |x| <= 0.1 e^3.3 ~ 2.7: ~6e-8 per interval, 11
+  // intervals), hence the 1e-6 margin on the log growth.
+  int phase = 0;
+  const auto system = [&phase](const std::vector<double>& x, std::vector<double>& dxdt, double) {
+    dxdt[0] = (phase == 0 ? 1.0 : -2.0) * x[0];
+  };
+  auto sys = system;
+  const double t_b = 3.3, T = 5.0;
+  std::vector<double> starts;
+  const FtleResult r = finite_time_lyapunov(sys, {0.1}, ftle_settings(T), {t_b, 7.0}, [&](double t) {
+    starts.push_back(t);
+    phase = t < t_b ? 0 : 1;
+  });
+  REQUIRE(r.status == FtleStatus::ok);
+  const std::vector<double> expected_starts{0, 0.5, 1, 1.5, 2, 2.5, 3, 3.3, 3.5, 4, 4.5};
+  CHECK(starts == expected_starts);
+  REQUIRE(r.growth.size() == expected_starts.size());
+  for (const auto& g : r.growth) {
+    INFO("t = " << g.t);
+    CHECK(g.log_growth == Approx(g.t < t_b + 1e-12 ? g.t : t_b - 2 * (g.t - t_b)).margin(1e-6));
+  }
+  CHECK(r.growth.back().t == T);
+  CHECK(r.exponent == Approx((t_b - 2 * (T - t_b)) / T).margin(1e-6 / T));
+}
+
+TEST_CASE("FTLE reports numerical trouble as a status, not an exception", "[chaos]") {
+  // dx/dt = x^2 from x = 1 blows up at t = 1.
+  const auto blow_up = [](const std::vector<double>& x, std::vector<double>& dxdt, double) { dxdt[0] = x[0] * x[0]; };
+  auto sys = blow_up;
+  FtleSettings s = ftle_settings(2);
+  s.max_steps = 100000;
+  FtleResult r;
+  REQUIRE_NOTHROW(r = finite_time_lyapunov(sys, {1.0}, s));
+  CHECK(r.status == FtleStatus::failed);
+  CHECK_FALSE(r.reason.empty());
+  CHECK(r.t_reached < 1.0);
+  INFO(r.reason);
+  // Bad settings are argument errors.
+  CHECK_THROWS_AS(finite_time_lyapunov(sys, {1.0}, ftle_settings(0)), ArgumentError);
+}
+
+TEST_CASE("FTLE of the equal double pendulum: regular at small, chaotic at large amplitude", "[chaos]") {
+  const Model model = model_from_yaml(equal_double(1.0, 1.0));
+  Workspace ws(model);
+  SECTION("5 deg / 5 deg: quasi-periodic, exponent near zero") {
+    // Regular (quasi-periodic) motion separates nearby trajectories only linearly in time
+    // (the frequencies depend on the amplitudes), so the finite-time estimate decays like
+    // ln(t) / t; over 100 s it must be small.
+    const FtleResult r = chain_ftle(model, ws, 0, {{deg(5), deg(5)}, {}}, ftle_settings(100));
+    REQUIRE(r.status == FtleStatus::ok);
+    INFO("5/5 deg exponent " << r.exponent << " /s");
+    CHECK(std::fabs(r.exponent) < 0.05);
+  }
+  SECTION("120 deg / 120 deg: chaotic, clearly positive exponent") {
+    const FtleResult r = chain_ftle(model, ws, 0, {{deg(120), deg(120)}, {}}, ftle_settings(100));
+    REQUIRE(r.status == FtleStatus::ok);
+    INFO("120/120 deg exponent " << r.exponent << " /s");
+    CHECK(r.exponent > 0.5);
+  }
+}
+
+TEST_CASE("FTLE of a damped pendulum is the decay rate -zeta omega_n", "[chaos]") {
+  // Linearised about the hanging rest, I_p theta'' + c theta' + k theta = 0 with k = m g d. Its
+  // eigenvalues are -zeta omega_n +- i omega_n sqrt(1 - zeta^2), omega_n = sqrt(k / I_p),
+  // zeta = c / (2 sqrt(I_p k)) (Thomson & Dahleh, Theory of Vibration with Applications, 5th ed.,
+  // sec. 2.6). When underdamped both have the real part -zeta omega_n = -c / (2 I_p), so every
+  // separation decays like exp(-zeta omega_n t) times a bounded oscillating factor: both Lyapunov
+  // exponents equal -zeta omega_n. The swing itself decays to rest, so the linearisation about it
+  // tends to this one. Point mass on a 1 m link: I_p = 1 kg m^2, omega_n = sqrt(g) ~ 3.13 rad/s,
+  // and with T_ref = sqrt(L / g) = 1 / omega_n the weighted norm is nearly round in the phase
+  // plane, so the oscillating factor is close to 1.
+  const double c = 0.4, I_p = 1.0;
+  const Model model = model_from_yaml(fmt::format(R"(
+swaybound: 1
+name: damped pendulum
+gravity: {}
+links:
+  - {{name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {{damper: {{coefficient: {}}}}}}}
+cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1]}}}}]}}
+base: {{scenarios: [{{name: still, accel: []}}, {{name: jolt, accel: [{{for: 3.25 s, x: 2}}]}}]}}
+)",
+                                                  kG, c));
+  Workspace ws(model);
+  const double expected = -c / (2 * I_p);  // -zeta omega_n [1/s]
+  SECTION("still base") {
+    const FtleResult r = chain_ftle(model, ws, 0, {{deg(5)}, {}}, ftle_settings(50));
+    REQUIRE(r.status == FtleStatus::ok);
+    INFO("damped exponent " << r.exponent << " /s, expected " << expected);
+    CHECK(r.exponent == Approx(expected).epsilon(0.05));
+  }
+  SECTION("a base-acceleration phase: a breakpoint, and the same decay rate") {
+    // During the jolt the pendulum swings about the tilted rest -atan(a / g); the linearisation
+    // there has stiffness m d sqrt(g^2 + a^2) but the same -c / (2 I_p). The swing of ~17 deg
+    // about it adds a small amplitude-dependent shear, hence the same 5% band.
+    REQUIRE(model.scenarios[1].phases.size() == 2);
+    const FtleResult r = chain_ftle(model, ws, 1, {{deg(5)}, {}}, ftle_settings(50));
+    REQUIRE(r.status == FtleStatus::ok);
+    INFO("damped exponent with a jolt " << r.exponent << " /s, expected " << expected);
+    CHECK(r.exponent == Approx(expected).epsilon(0.05));
+    CHECK(ws.scenario == 1);
+    CHECK(ws.phase == 1);
+    // The phase boundary at 3.25 s is an extra interval end (100 on the 0.5 s grid, plus one).
+    CHECK(r.growth.size() == 101);
+    CHECK(r.growth[6].t == 3.25);
+  }
+}
+
+TEST_CASE("Divergence times of a perturbation ladder follow 1 / lambda", "[chaos]") {
+  // Chaotic 120/120 deg double pendulum started from theta0 and from theta0 (1 + delta): the
+  // separation grows like delta exp(lambda t), so the time to reach 0.1 rad grows like
+  // ln(1 / delta) / lambda. A factor-2 band on the slope is used because the finite-time exponent
+  // varies along the trajectory (common practice; no source).
+  const Model model = model_from_yaml(equal_double(1.0, 1.0));
+  const std::vector<double> theta0{deg(120), deg(120)};
+  const double duration = 40;
+  const RunSettings run = settings(duration, 1e-12, 1e-14, 100);
+  const Trace reference = run_trace(model, {theta0, {}}, run);
+  REQUIRE(reference.outcome.status == RunStatus::ok);
+
+  std::vector<double> logs, times;
+  for (double delta : {1e-4, 1e-6, 1e-8, 1e-10}) {
+    const Trace perturbed = run_trace(model, {{theta0[0] * (1 + delta), theta0[1] * (1 + delta)}, {}}, run);
+    REQUIRE(perturbed.outcome.status == RunStatus::ok);
+    REQUIRE(perturbed.samples.size() == reference.samples.size());
+    double first = -1;
+    for (std::size_t i = 0; i < reference.samples.size() && first < 0; ++i) {
+      const auto& a = reference.samples[i].x;
+      const auto& b = perturbed.samples[i].x;
+      if (std::max(std::fabs(a[0] - b[0]), std::fabs(a[1] - b[1])) > 0.1) first = reference.samples[i].t;
+    }
+    INFO("delta " << delta);
+    REQUIRE(first > 0);
+    logs.push_back(std::log(1 / delta));
+    times.push_back(first);
+  }
+  for (std::size_t k = 1; k < times.size(); ++k) CHECK(times[k] > times[k - 1]);
+
+  // Least-squares slope of the time against ln(1 / delta).
+  const double n = static_cast<double>(logs.size());
+  double sx = 0, sy = 0, sxx = 0, sxy = 0;
+  for (std::size_t k = 0; k < logs.size(); ++k) {
+    sx += logs[k];
+    sy += times[k];
+    sxx += logs[k] * logs[k];
+    sxy += logs[k] * times[k];
+  }
+  const double slope = (n * sxy - sx * sy) / (n * sxx - sx * sx);
+
+  Workspace ws(model);
+  const FtleResult r = chain_ftle(model, ws, 0, {theta0, {}}, ftle_settings(100));
+  REQUIRE(r.status == FtleStatus::ok);
+  INFO(fmt::format("times {} s, slope {:.4g} s, 1/lambda {:.4g} s (lambda {:.4g} /s)", fmt::join(times, ", "), slope,
+                   1 / r.exponent, r.exponent));
+  CHECK(slope > 0.5 / r.exponent);
+  CHECK(slope < 2.0 / r.exponent);
+}
