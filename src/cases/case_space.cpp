@@ -52,9 +52,19 @@ std::string slug(const std::string& name) {
 }
 
 CaseSpace::CaseSpace(const Spec& spec) : spec_(&spec) {
-  for (const auto& s : spec.scenarios) slugs_.push_back(slug(s.name));
+  for (const auto& s : spec.scenarios) {
+    std::string name = slug(s.name);
+    for (int k = 2; std::find(slugs_.begin(), slugs_.end(), name) != slugs_.end(); ++k)
+      name = fmt::format("{}-{}", slug(s.name), k);
+    slugs_.push_back(name);
+  }
   for (std::size_t i = 0; i < spec.cases.initial.size(); ++i) {
     const InitialSetSpec& set = spec.cases.initial[i];
+    // Two sets of one kind (or name) get "-2", "-3", ... so every id stays unique.
+    std::string name = slug(set.name);
+    for (int k = 2; std::find(set_slugs_.begin(), set_slugs_.end(), name) != set_slugs_.end(); ++k)
+      name = fmt::format("{}-{}", slug(set.name), k);
+    set_slugs_.push_back(name);
     offsets_.push_back(starts_);
     starts_ += initial_set_size(set);
     std::vector<std::vector<int>> perms;
@@ -148,7 +158,7 @@ CaseDef CaseSpace::at(long index) const {
   c.initial.omega.assign(n, 0.0);
   fill_start(set, c.set, c.start, c.initial);
   const int width = static_cast<int>(std::to_string(initial_set_size(set)).size());
-  c.id = fmt::format("{}/{}-{:0{}}", slugs_[static_cast<std::size_t>(c.scenario)], slug(set.name), c.start + 1,
+  c.id = fmt::format("{}/{}-{:0{}}", slugs_[static_cast<std::size_t>(c.scenario)], set_slugs_[static_cast<std::size_t>(c.set)], c.start + 1,
                      std::max(width, 3));
   return c;
 }

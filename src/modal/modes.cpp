@@ -235,8 +235,9 @@ ModalResult modal_analysis(const Model& model) {
     if (p.has_damper() && p.damper_alpha < 1.0)
       notes.push_back(fmt::format(
           "damper at the pivot of {} (exponent {:g} < 1) linearised on its linear segment below linear_below = "
-          "{:g} rad/s: {:.6g} N m s/rad; for relative swing rates W above that its equivalent viscous "
-          "coefficient falls like C W^(exponent-1), so larger swings are damped less than these ratios say",
+          "{:g} rad/s: {:.6g} N m s/rad. The power law itself has infinite slope at rest, so this value follows "
+          "the choice of linear_below; for relative swing rates W above it the equivalent viscous coefficient "
+          "falls like C W^(exponent-1), so larger swings are damped less than these ratios say",
           link_label(model, i), p.damper_alpha, p.damper_linear_below, small_signal_damper_coefficient(p)));
     if (p.has_damper() && p.damper_alpha > 1.0)
       notes.push_back(fmt::format(

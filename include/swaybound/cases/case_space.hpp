@@ -5,7 +5,8 @@
 //
 // Order: scenario-major, then the initial sets in spec order, then the starts of each set.
 // Id: "<scenario-slug>/<set-name>-<k>", k counted from 1 within the set and zero-padded to the
-// width of the set's size, e.g. "brake-from-travel-speed/grid-017".
+// width of the set's size (at least 3), e.g. "brake-from-travel-speed/grid-017". Sets with the same
+// name are told apart as "random", "random-2", ...
 #include <cstdint>
 #include <string>
 #include <vector>
@@ -38,7 +39,8 @@ class CaseSpace {
   const Spec* spec_;
   std::vector<long> offsets_;                      ///< first start of each set within a scenario
   std::vector<std::vector<std::vector<int>>> lhs_; ///< per set, per dimension: stratum permutation
-  std::vector<std::string> slugs_;
+  std::vector<std::string> slugs_;      ///< per scenario
+  std::vector<std::string> set_slugs_;  ///< per initial set, unique
   long starts_ = 0, total_ = 0;
   double envelope_ = 0;
 };

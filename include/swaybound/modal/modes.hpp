@@ -58,7 +58,8 @@ struct ModalResult {
 
 /// Small-signal damping coefficient of a pivot's power-law damper [N m s/rad]: C for exponent 1;
 /// for exponent < 1 the slope of the linear segment below `linear_below` w0, C w0^(alpha - 1)
-/// (forces.hpp); for exponent > 1 the slope at rest, 0.
+/// (forces.hpp; it depends on w0, because the power law itself has infinite slope at rest); for
+/// exponent > 1 the slope at rest, 0.
 double small_signal_damper_coefficient(const PivotModel& pivot);
 
 /// Linearised damping matrix C [N m s/rad] about the rest position (pivot dampers and dashpots).
