@@ -1,6 +1,7 @@
 #include "swaybound/checks/check_run.hpp"
 
 #include <algorithm>
+#include <chrono>
 #include <cmath>
 #include <map>
 
@@ -16,6 +17,10 @@ namespace swaybound {
 namespace {
 
 constexpr std::size_t kFailedListed = 100;
+
+double seconds_since(std::chrono::steady_clock::time_point start) {
+  return std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+}
 constexpr int kOnsetScanPoints = 16;
 
 FtleSettings ftle_settings(const Spec& spec, const RunSettings& run) {
@@ -209,6 +214,7 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   case_options.ftle_separation = spec.chaos.separation;
   case_options.ftle_renormalise = spec.chaos.renormalise;
 
+  const auto cases_start = std::chrono::steady_clock::now();
   RunSettings streaming = run;
   streaming.output_rate = 0;
   CheckSet checks(spec);
@@ -240,6 +246,8 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
         if (options.on_case) options.on_case(m);
       });
 
+  report.seconds_cases = seconds_since(cases_start);
+  const auto chaos_start = std::chrono::steady_clock::now();
   report.modes = modal_analysis(model);
   for (std::size_t i = 0; i < spec.limits.size(); ++i) {
     const LimitSpec& l = spec.limits[i];
@@ -262,20 +270,31 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
                         report.chaos.onset.found ? "onset search" : "onset search (no onset up to chaos.onset.max)");
     }
   checks.finish();
+  report.seconds_chaos = seconds_since(chaos_start);
 
-  // Accuracy audit: each governing case again at a 100x tighter tolerance.
+  // Accuracy audit: each governing case again at a 100x tighter tolerance, in parallel.
+  const auto audit_start = std::chrono::steady_clock::now();
   if (options.audit) {
     RunSettings tight = streaming;
     tight.rtol = std::max(run.rtol / 100, 1e-15);
     tight.atol = std::max(run.atol / 100, 1e-18);
+    std::vector<long> governing;
+    for (const auto& c : checks.results())
+      if (c.per_case && c.governing >= 0 && std::find(governing.begin(), governing.end(), c.governing) == governing.end())
+        governing.push_back(c.governing);
+    std::sort(governing.begin(), governing.end());
     std::map<long, CaseMetrics> rerun;
-    Workspace ws(model);
+    RunnerOptions audit_runner;
+    audit_runner.jobs = options.jobs;
+    run_parallel(
+        model, static_cast<long>(governing.size()), audit_runner,
+        [&](long k, Workspace& ws) {
+          return run_case(model, spec, ws, space.at(governing[static_cast<std::size_t>(k)]), tight, case_options);
+        },
+        [&](CaseMetrics&& m) { rerun.emplace(m.index, std::move(m)); });
     for (auto& c : checks.results()) {
       if (!c.per_case || c.governing < 0) continue;
-      auto it = rerun.find(c.governing);
-      if (it == rerun.end())
-        it = rerun.emplace(c.governing, run_case(model, spec, ws, space.at(c.governing), tight, case_options)).first;
-      const CaseMetrics& m = it->second;
+      const CaseMetrics& m = rerun.at(c.governing);
       int link;
       double time;
       int slot = 0;
@@ -287,6 +306,7 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
       c.audit_warning = !(std::fabs(c.audit_change) <= std::fabs(c.margin));
     }
   }
+  report.seconds_audit = seconds_since(audit_start);
   report.checks = checks.results();
   report.pass = checks.all_pass();
   return report;

@@ -113,7 +113,9 @@ Action add_check(CLI::App& app) {
       fs::rename(temp, target);
       fs::remove_all(old, ec);
       print_summary(report, std::cout);
-      std::cerr << fmt::format("wrote {}/results.json and cases.csv\n", target.string());
+      std::cerr << fmt::format("wrote {}/results.json and cases.csv (cases {:.1f} s, modes and chaos {:.1f} s, "
+                               "accuracy audit {:.1f} s)\n",
+                               target.string(), report.seconds_cases, report.seconds_chaos, report.seconds_audit);
       return report.pass ? kExitPass : kExitFail;
     } catch (...) {
       fs::remove_all(temp, ec);

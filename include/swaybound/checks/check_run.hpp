@@ -75,6 +75,8 @@ struct CheckReport {
   std::string max_audit_case;
   long total_steps = 0;
   bool pass = false;
+  // Wall time of the stages [s] (not written to results.json, which must not depend on the host).
+  double seconds_cases = 0, seconds_chaos = 0, seconds_audit = 0;
 };
 
 CheckReport run_check(const Spec& spec, const CheckOptions& options);
