@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <chrono>
+#include <filesystem>
 #include <cmath>
 #include <map>
 
@@ -197,7 +198,11 @@ ChaosMap chaos_map(const Model& model, const Spec& spec, const RunSettings& run,
 CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   CheckReport report;
   report.spec_file = spec.source_file;
-  report.spec_sha256 = sha256_file(spec.source_file);
+  // The spec's own bytes when it came from a file; its normalised form otherwise (a sized spec).
+  std::error_code exists_error;
+  report.spec_sha256 = !spec.source_file.empty() && std::filesystem::is_regular_file(spec.source_file, exists_error)
+                           ? sha256_file(spec.source_file)
+                           : sha256_hex(normalised_yaml(spec));
   const Model model = build_model(spec);
   const CaseSpace space(spec);
   report.case_count = space.size();
@@ -304,6 +309,38 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
                              : std::nan("");
       c.audit_change = c.audit_value - c.worst;
       c.audit_warning = !(std::fabs(c.audit_change) <= std::fabs(c.margin));
+    }
+  }
+  if (options.record) {
+    std::vector<long> governing;
+    for (const auto& c : checks.results())
+      if (c.per_case && c.governing >= 0) governing.push_back(c.governing);
+    std::sort(governing.begin(), governing.end());
+    governing.erase(std::unique(governing.begin(), governing.end()), governing.end());
+    RunSettings recording = run;
+    Workspace ws(model);
+    const int n = model.n;
+    for (long index : governing) {
+      const CaseDef def = space.at(index);
+      RecordedCase rc;
+      rc.index = index;
+      rc.id = def.id;
+      rc.theta.assign(static_cast<std::size_t>(n), {});
+      rc.load.assign(static_cast<std::size_t>(n), {});
+      rc.tension.assign(static_cast<std::size_t>(n), {});
+      const Observer on_sample = [&](const StepView& v) {
+        rc.t.push_back(v.t);
+        for (int i = 0; i < n; ++i) {
+          const auto k = static_cast<std::size_t>(i);
+          double top, bottom;
+          link_tension(model, *v.ws, i, top, bottom);
+          rc.theta[k].push_back(v.x[i]);
+          rc.load[k].push_back(v.ws->reaction[k]);
+          rc.tension[k].push_back(i + 1 < n ? std::min(top, bottom) : top);
+        }
+      };
+      simulate_case(model, ws, def.scenario, def.initial, recording, {}, on_sample);
+      report.recorded.push_back(std::move(rc));
     }
   }
   report.seconds_audit = seconds_since(audit_start);

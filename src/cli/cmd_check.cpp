@@ -32,12 +32,12 @@ std::string engineering(double v, const std::string& unit) {
 }
 
 void print_summary(const CheckReport& r, std::ostream& out) {
-  out << fmt::format("{:<34} {:>14} {:>14} {:>14} {:>8}  {:<9} {}\n", "check", "limit", "worst", "margin", "ratio",
+  out << fmt::format("{:<46} {:>14} {:>14} {:>14} {:>8}  {:<8} {}\n", "check", "limit", "worst", "margin", "ratio",
                      "verdict", "governing case");
   for (const auto& c : r.checks) {
     std::string name = c.key + " (" + c.subject + ")";
-    if (name.size() > 34) name = name.substr(0, 33) + "~";
-    out << fmt::format("{:<34} {:>14} {:>14} {:>14} {:>8}  {:<9} {}\n", name, engineering(c.limit_value, c.unit),
+    if (name.size() > 46) name = name.substr(0, 45) + "~";
+    out << fmt::format("{:<46} {:>14} {:>14} {:>14} {:>8}  {:<8} {}\n", name, engineering(c.limit_value, c.unit),
                        engineering(c.worst, c.unit), engineering(c.margin, c.unit),
                        std::isfinite(c.margin_ratio) ? fmt::format("{:+.1f}%", 100 * c.margin_ratio) : "-",
                        c.pass ? "pass" : "FAIL", c.governing_id);

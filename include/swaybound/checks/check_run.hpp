@@ -56,9 +56,20 @@ struct ChaosSummary {
   ChaosMap map;
 };
 
+/// A governing case re-run at the spec's tolerance with its time series recorded (for plots).
+struct RecordedCase {
+  long index = -1;
+  std::string id;
+  std::vector<double> t;                    ///< [s] at cases.output_rate
+  std::vector<std::vector<double>> theta;   ///< per link [rad]
+  std::vector<std::vector<double>> load;    ///< pivot load per link [N]
+  std::vector<std::vector<double>> tension; ///< least axial tension per link (either end) [N]
+};
+
 struct CheckOptions {
   int jobs = 0;                   ///< 0 = all hardware threads
   bool audit = true;              ///< re-run governing cases at a 100x tighter tolerance
+  bool record = true;             ///< re-run governing cases with recording (for the packet's plots)
   std::function<void(const Progress&)> progress;
   std::function<void(const CaseMetrics&)> on_case;  ///< every case, in case order
 };
@@ -69,6 +80,7 @@ struct CheckReport {
   std::vector<CheckResult> checks;
   ModalResult modes;
   ChaosSummary chaos;
+  std::vector<RecordedCase> recorded;  ///< every governing case, recorded, in case order
   std::vector<FailedCase> failed;  ///< the first 100 failed cases
   long failed_total = 0;
   double max_audit_relative = 0;   ///< largest energy-audit residual / energy scale over the cases
