@@ -8,6 +8,8 @@
 #include <mutex>
 #include <thread>
 
+#include "swaybound/core/cancel.hpp"
+
 namespace swaybound {
 
 int default_jobs() {
@@ -34,6 +36,7 @@ void run_parallel(const Model& model, long count, const RunnerOptions& options,
       for (;;) {
         const long i = next_index.fetch_add(1);
         if (i >= count) return;
+        throw_if_cancelled();
         {
           std::unique_lock lock(mutex);
           room.wait(lock, [&] { return stop || i < next_to_consume + options.window; });

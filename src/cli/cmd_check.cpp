@@ -5,12 +5,16 @@
 #include <filesystem>
 #include <fstream>
 #include <iostream>
+#include <sstream>
 
 #include <fmt/format.h>
 
 #include "commands.hpp"
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/checks/check_run.hpp"
+#include "swaybound/core/cancel.hpp"
+#include "swaybound/core/hash.hpp"
+#include "swaybound/report/packet.hpp"
 #include "swaybound/report/results.hpp"
 #include "swaybound/spec.hpp"
 
@@ -52,75 +56,90 @@ void print_summary(const CheckReport& r, std::ostream& out) {
   out << "caution: a screening and design aid, not a certification; the design goes to a licensed engineer's review.\n";
 }
 
+std::string read_file_text(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  std::ostringstream s;
+  s << in.rdbuf();
+  if (!in && !in.eof()) throw RunError(fmt::format("cannot read {}", path));
+  return s.str();
+}
+
+/// Host-independent run settings for the MANIFEST.
+std::vector<std::string> manifest_settings(const Spec& spec, const CheckReport& report) {
+  std::vector<std::string> out;
+  out.push_back(fmt::format("solver: {} rtol={:g} atol={:g} max_steps={} min_step={:g} s max_seconds={:g} s",
+                            spec.solver.method == Stepper::dopri5 ? "dopri5" : "rkf78", spec.solver.rtol,
+                            spec.solver.atol, spec.solver.max_steps, spec.solver.min_step, spec.solver.max_seconds));
+  std::string seeds;
+  for (const auto& set : spec.cases.initial)
+    if (set.kind == InitialKind::random) seeds += fmt::format("{}{}={}", seeds.empty() ? "" : " ", set.name, set.seed);
+  out.push_back("seeds: " + (seeds.empty() ? std::string("none") : seeds));
+  out.push_back(fmt::format("cases: {} x {:g} s, output_rate={:g} /s", report.case_count, spec.cases.duration,
+                            spec.cases.output_rate));
+  out.push_back(fmt::format("chaos: horizon={:g} s separation={:g} renormalise={:g} s", spec.chaos.horizon,
+                            spec.chaos.separation, spec.chaos.renormalise));
+  out.push_back("accuracy_audit: governing cases at rtol/100, atol/100");
+  return out;
+}
+
 }  // namespace
 
 Action add_check(CLI::App& app) {
-  auto* cmd = app.add_subcommand("check", "Run every case of a spec against its limits and write results to DIR");
+  auto* cmd = app.add_subcommand("check", "Run every case of a spec against its limits and write the packet to DIR");
   struct Options {
     std::string spec, out = "reports/check";
     int jobs = 0;
     long max_cases = kDefaultMaxCases;
-    bool no_audit = false, quiet = false;
+    bool no_audit = false, quiet = false, force = false;
   };
   auto o = std::make_shared<Options>();
   cmd->add_option("SPEC", o->spec, "YAML design spec")->required();
-  cmd->add_option("--out", o->out, "Output folder (written whole, replaced only when complete)")->capture_default_str();
+  cmd->add_option("--out", o->out, "Packet folder (written whole, replaced only when complete)")->capture_default_str();
   cmd->add_option("--jobs", o->jobs, "Threads (default: every core)")->check(CLI::NonNegativeNumber);
   cmd->add_option("--max-cases", o->max_cases, "Cap on the number of cases")->check(CLI::PositiveNumber)->capture_default_str();
   cmd->add_flag("--no-audit", o->no_audit, "Skip re-running governing cases at a tighter tolerance");
+  cmd->add_flag("--force", o->force, "Replace a packet made from a different spec, or a folder that is not a packet");
   cmd->add_flag("--quiet", o->quiet, "No progress on stderr");
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
     const Spec spec = load_spec(o->spec, LoadOptions{o->max_cases});
+    const std::string spec_sha = sha256_file(o->spec);
+    // Checks the overwrite rule and that the folder can be written before any work is done.
+    PacketWriter packet(o->out, spec_sha, o->force);
     const CaseSpace space(spec);
     std::cerr << fmt::format("{}: {} cases ({} starts x {} scenarios), {:g} s each\n", o->spec, space.size(),
                              space.starts(), spec.scenarios.size(), spec.cases.duration);
+    install_cancel_handlers();
 
-    const fs::path target(o->out);
-    const fs::path parent = target.has_parent_path() ? target.parent_path() : fs::path(".");
-    std::error_code ec;
-    fs::create_directories(parent, ec);
-    const fs::path temp = parent / fmt::format(".{}.partial-{}", target.filename().string(), ::getpid());
-    fs::remove_all(temp, ec);
-    if (!fs::create_directories(temp, ec) || ec)
-      throw RunError(fmt::format("cannot create the output folder {}: {}", temp.string(), ec.message()));
-    try {
-      std::ofstream csv(temp / "cases.csv", std::ios::binary);
-      csv << cases_csv_header(spec);
-      CheckOptions options;
-      options.jobs = o->jobs;
-      options.audit = !o->no_audit;
-      options.on_case = [&](const CaseMetrics& m) { csv << cases_csv_row(spec, m); };
-      if (!o->quiet && ::isatty(2))
-        options.progress = [](const Progress& p) {
-          const double rate = p.elapsed > 0 ? p.done / p.elapsed : 0;
-          std::cerr << fmt::format("\r  {}/{} cases, {:.0f} cases/s, {:.0f} s left   ", p.done, p.total, rate,
-                                   rate > 0 ? (p.total - p.done) / rate : 0.0)
-                    << (p.done == p.total ? "\n" : "") << std::flush;
-        };
-      const CheckReport report = run_check(spec, options);
-      csv.close();
-      if (!csv) throw RunError(fmt::format("writing {} failed", (temp / "cases.csv").string()));
-      {
-        std::ofstream json(temp / "results.json", std::ios::binary);
-        json << results_json(spec, report);
-        if (!json) throw RunError(fmt::format("writing {} failed", (temp / "results.json").string()));
-      }
-      fs::copy_file(spec.source_file, temp / "spec.yaml", fs::copy_options::overwrite_existing);
-      // Replace the previous output only now that the new one is complete.
-      const fs::path old = parent / fmt::format(".{}.old-{}", target.filename().string(), ::getpid());
-      if (fs::exists(target)) fs::rename(target, old);
-      fs::rename(temp, target);
-      fs::remove_all(old, ec);
-      print_summary(report, std::cout);
-      std::cerr << fmt::format("wrote {}/results.json and cases.csv (cases {:.1f} s, modes and chaos {:.1f} s, "
-                               "accuracy audit {:.1f} s)\n",
-                               target.string(), report.seconds_cases, report.seconds_chaos, report.seconds_audit);
-      return report.pass ? kExitPass : kExitFail;
-    } catch (...) {
-      fs::remove_all(temp, ec);
-      throw;
-    }
+    std::ofstream csv(packet.path("cases.csv"), std::ios::binary);
+    csv << cases_csv_header(spec);
+    CheckOptions options;
+    options.jobs = o->jobs;
+    options.audit = !o->no_audit;
+    options.on_case = [&](const CaseMetrics& m) { csv << cases_csv_row(spec, m); };
+    if (!o->quiet && ::isatty(2))
+      options.progress = [](const Progress& p) {
+        const double rate = p.elapsed > 0 ? p.done / p.elapsed : 0;
+        std::cerr << fmt::format("\r  {}/{} cases, {:.0f} cases/s, {:.0f} s left   ", p.done, p.total, rate,
+                                 rate > 0 ? (p.total - p.done) / rate : 0.0)
+                  << (p.done == p.total ? "\n" : "") << std::flush;
+      };
+    const CheckReport report = run_check(spec, options);
+    csv.close();
+    if (!csv) throw RunError(fmt::format("writing {} failed (disk full or not writable?)", packet.path("cases.csv")));
+    packet.write("results.json", results_json(spec, report));
+    packet.write("spec.yaml", read_file_text(o->spec));
+    throw_if_cancelled();
+    ManifestInfo info;
+    info.spec_file = "spec.yaml";
+    info.spec_sha256 = spec_sha;
+    info.date_utc = now_utc_iso8601();
+    info.settings = manifest_settings(spec, report);
+    packet.commit(info);
+    print_summary(report, std::cout);
+    std::cerr << fmt::format("wrote the packet {} (cases {:.1f} s, modes and chaos {:.1f} s, accuracy audit {:.1f} s)\n",
+                             packet.target(), report.seconds_cases, report.seconds_chaos, report.seconds_audit);
+    return report.pass ? kExitPass : kExitFail;
   };
 }
 

@@ -17,5 +17,6 @@ Action add_validate(CLI::App& app);
 Action add_simulate(CLI::App& app);
 Action add_modes(CLI::App& app);
 Action add_check(CLI::App& app);
+Action add_diff(CLI::App& app);
 
 }  // namespace swaybound::cli

@@ -5,6 +5,7 @@
 #include <fmt/format.h>
 
 #include "commands.hpp"
+#include "swaybound/core/cancel.hpp"
 #include "swaybound/core/error.hpp"
 #include "swaybound/core/version.hpp"
 
@@ -14,7 +15,7 @@ int main(int argc, char** argv) {
                "A screening and design aid: results go to a licensed engineer's review."};
   app.set_version_flag("--version", fmt::format("swaybound {} ({})", tool_version(), git_commit()));
   app.require_subcommand(1);
-  std::vector<cli::Action> actions{cli::add_validate(app), cli::add_simulate(app), cli::add_modes(app), cli::add_check(app)};
+  std::vector<cli::Action> actions{cli::add_validate(app), cli::add_simulate(app), cli::add_modes(app), cli::add_check(app), cli::add_diff(app)};
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
@@ -26,6 +27,9 @@ int main(int argc, char** argv) {
       const int status = action();
       if (status >= 0) return status;
     }
+  } catch (const Interrupted& e) {
+    std::cerr << "swaybound: " << e.what() << "; nothing was written and any previous output is intact\n";
+    return 128 + (e.signal_number() > 0 ? e.signal_number() : 2);
   } catch (const SpecError& e) {
     for (const auto& d : e.diagnostics()) std::cerr << SpecError::format(e.file(), d) << '\n';
     std::cerr << fmt::format("{}: {} error{}; nothing was written\n", e.file(), e.diagnostics().size(),

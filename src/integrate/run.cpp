@@ -5,6 +5,8 @@
 #include <cmath>
 
 #include <boost/numeric/odeint.hpp>
+
+#include "swaybound/core/cancel.hpp"
 #include <fmt/format.h>
 
 namespace swaybound {
@@ -154,6 +156,7 @@ class Driver {
       return false;
     }
     if ((outcome_.steps & 255) == 0) {
+      throw_if_cancelled();  // a long case stops promptly on SIGINT/SIGTERM
       const double elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - started_).count();
       if (elapsed > settings_.max_seconds) {
         fail(RunStatus::time_budget,
@@ -181,6 +184,8 @@ class Driver {
         emit_samples_up_to(t1, [&](double ts, State& out) { stepper.calc_state(ts, out); });
         if (phase_end) break;
       }
+    } catch (const Interrupted&) {
+      throw;
     } catch (const std::exception& e) {
       fail(finite(stepper.current_state()) ? RunStatus::step_collapse : RunStatus::non_finite,
            fmt::format("no step could be accepted near t = {:.6g} s ({})", stepper.current_time(), e.what()));

@@ -122,7 +122,7 @@ TEST_CASE("swaybound check: exit status, files, and nothing written for a bad sp
   CHECK(fs::exists(out / "spec.yaml"));
   const fs::path bad = fs::temp_directory_path() / "swaybound-test-cli-fail.yaml";
   std::ofstream(bad) << pendulum(peak * 0.9);
-  CHECK(run_cli(fmt::format("check {} --out {}", bad.string(), out.string())) == 1);
+  CHECK(run_cli(fmt::format("check {} --out {} --force", bad.string(), out.string())) == 1);
   const fs::path broken = fs::temp_directory_path() / "swaybound-test-cli-broken.yaml";
   std::ofstream(broken) << "swaybound: 1\nname: x\nlinks: []\n";
   const fs::path untouched = fs::temp_directory_path() / "swaybound-test-check-none";

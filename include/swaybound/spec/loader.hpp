@@ -3,6 +3,8 @@
 // as a SpecError, each with file:line:column, the key path, what is wrong and what is allowed.
 #include <string>
 #include <string_view>
+#include <utility>
+#include <vector>
 
 #include "swaybound/spec/spec.hpp"
 
@@ -34,4 +36,10 @@ long case_count(const Spec& spec);
 /// The normalised spec as YAML in SI, with a comment on every value that came from a default.
 std::string normalised_yaml(const Spec& spec);
 
+}  // namespace swaybound
+
+namespace swaybound {
+/// The normalised spec flattened to (key path, value) pairs, list items named by their `name`
+/// where they have one: ("links[hook].mass", "8500"). For comparing two revisions of a spec.
+std::vector<std::pair<std::string, std::string>> flatten_spec(const Spec& spec);
 }  // namespace swaybound

@@ -1,0 +1,144 @@
+// The packet folder: MANIFEST hashes, the overwrite rule, interrupted runs, diff of two revisions.
+#include <catch2/catch.hpp>
+#include <chrono>
+#include <csignal>
+#include <filesystem>
+#include <fstream>
+#include <sys/wait.h>
+#include <thread>
+#include <unistd.h>
+
+#include <fmt/format.h>
+
+#include "swaybound/report/diff.hpp"
+#include "swaybound/report/packet.hpp"
+
+using namespace swaybound;
+namespace fs = std::filesystem;
+
+namespace {
+
+fs::path temp(const std::string& name) { return fs::temp_directory_path() / ("swaybound-packet-" + name); }
+
+std::string spec_text(double damper, double duration = 8, int count = 6) {
+  return fmt::format(R"(
+swaybound: 1
+name: packet test
+links:
+  - {{name: rope, kind: rope, length: 3, mass: 10, pivot: {{damper: {{coefficient: {}}}}}}}
+  - {{name: load, length: 1, mass: 400, com: 0.7, inertia: 20}}
+base: {{scenarios: [{{name: brake, initial_velocity: {{x: 1}}, accel: [{{for: 1.2 s, x: -0.8}}]}}]}}
+cases: {{duration: {} s, initial: [{{random: {{count: {}, seed: 5, theta: [[-5 deg, 5 deg], [-5 deg, 5 deg]]}}}}]}}
+limits:
+  - {{peak_angle: 20 deg}}
+  - {{residual_sway: 4 deg, after: 6 s}}
+)",
+                     damper, duration, count);
+}
+
+fs::path write_spec(const std::string& name, const std::string& text) {
+  const fs::path p = temp(name + ".yaml");
+  std::ofstream(p) << text;
+  return p;
+}
+
+int run_cli(const std::string& args) {
+  const int status = std::system((std::string(SWAYBOUND_CLI) + " " + args + " >/dev/null 2>&1").c_str());
+  return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+}
+
+bool partial_left(const fs::path& parent) {
+  for (const auto& e : fs::directory_iterator(parent))
+    if (e.path().filename().string().find(".partial-") != std::string::npos) return true;
+  return false;
+}
+
+}  // namespace
+
+TEST_CASE("the MANIFEST lists every file with a SHA-256 that verifies", "[packet]") {
+  const fs::path out = temp("manifest");
+  fs::remove_all(out);
+  REQUIRE(run_cli(fmt::format("check {} --out {}", write_spec("m", spec_text(2000)).string(), out.string())) == 0);
+  CHECK(verify_manifest(out.string()).empty());
+  std::ifstream manifest(out / "MANIFEST");
+  std::string text((std::istreambuf_iterator<char>(manifest)), {});
+  for (const char* name : {"results.json", "cases.csv", "spec.yaml"}) CHECK(text.find(std::string("  ") + name) != std::string::npos);
+  CHECK(text.find("tool: swaybound") != std::string::npos);
+  CHECK(text.find("seeds: random=5") != std::string::npos);
+  std::ofstream(out / "cases.csv", std::ios::app) << "tampered\n";
+  CHECK(verify_manifest(out.string()) == std::vector<std::string>{"cases.csv"});
+}
+
+TEST_CASE("a packet from another spec is replaced only with --force", "[packet]") {
+  const fs::path out = temp("force");
+  fs::remove_all(out);
+  REQUIRE(run_cli(fmt::format("check {} --out {}", write_spec("f1", spec_text(2000)).string(), out.string())) == 0);
+  const std::string first = packet_spec_sha256(out.string());
+  const fs::path other = write_spec("f2", spec_text(1500));
+  CHECK(run_cli(fmt::format("check {} --out {}", other.string(), out.string())) == 2);
+  CHECK(packet_spec_sha256(out.string()) == first);
+  CHECK(verify_manifest(out.string()).empty());
+  CHECK(run_cli(fmt::format("check {} --out {} --force", other.string(), out.string())) == 0);
+  CHECK(packet_spec_sha256(out.string()) != first);
+  // A folder that is not a packet is not replaced without --force either.
+  const fs::path plain = temp("plain-folder");
+  fs::remove_all(plain);
+  fs::create_directories(plain);
+  std::ofstream(plain / "notes.txt") << "keep me";
+  CHECK(run_cli(fmt::format("check {} --out {}", other.string(), plain.string())) == 2);
+  CHECK(fs::exists(plain / "notes.txt"));
+}
+
+TEST_CASE("an output folder that cannot be created is reported before any work", "[packet]") {
+  const fs::path file = temp("a-file");
+  std::ofstream(file) << "x";
+  CHECK(run_cli(fmt::format("check {} --out {}/sub", write_spec("w", spec_text(2000)).string(), file.string())) == 2);
+}
+
+TEST_CASE("SIGINT during a check leaves the previous packet intact and no half packet", "[packet][interrupt]") {
+  const fs::path out = temp("interrupt");
+  fs::remove_all(out);
+  const fs::path spec = write_spec("i", spec_text(2000, 8, 4));
+  REQUIRE(run_cli(fmt::format("check {} --out {}", spec.string(), out.string())) == 0);
+  const std::string before = packet_spec_sha256(out.string());
+  // The same spec with many long cases, so the run is still going when the signal arrives.
+  std::ofstream(spec) << spec_text(2000, 600, 400);
+  const pid_t pid = fork();
+  if (pid == 0) {
+    const std::string o = out.string(), s = spec.string();
+    std::freopen("/dev/null", "w", stdout);
+    std::freopen("/dev/null", "w", stderr);
+    execl(SWAYBOUND_CLI, SWAYBOUND_CLI, "check", s.c_str(), "--out", o.c_str(), "--force", "--jobs", "2",
+          static_cast<char*>(nullptr));
+    _exit(127);
+  }
+  std::this_thread::sleep_for(std::chrono::milliseconds(700));
+  kill(pid, SIGINT);
+  int status = 0;
+  waitpid(pid, &status, 0);
+  REQUIRE(WIFEXITED(status));
+  CHECK(WEXITSTATUS(status) == 128 + SIGINT);
+  CHECK(packet_spec_sha256(out.string()) == before);
+  CHECK(verify_manifest(out.string()).empty());
+  CHECK_FALSE(partial_left(out.parent_path()));
+}
+
+TEST_CASE("diff flags a worsened margin after a spec edit and exits 1", "[packet][diff]") {
+  const fs::path a = temp("rev-a"), b = temp("rev-b");
+  fs::remove_all(a);
+  fs::remove_all(b);
+  REQUIRE(run_cli(fmt::format("check {} --out {}", write_spec("ra", spec_text(2000)).string(), a.string())) == 0);
+  // Less damping: the residual sway grows and its margin shrinks.
+  REQUIRE(run_cli(fmt::format("check {} --out {}", write_spec("rb", spec_text(400)).string(), b.string())) <= 1);
+  const DiffResult d = diff_results(a.string(), b.string(), 0.01);
+  REQUIRE(d.specs_compared);
+  REQUIRE(d.spec_changes.size() == 1);
+  CHECK(d.spec_changes[0].key == "links[rope].pivot.damper.coefficient");
+  CHECK(d.regression());
+  bool residual_shrunk = false;
+  for (const auto& r : d.rows) residual_shrunk |= r.check.rfind("residual_sway", 0) == 0 && (r.shrunk || r.newly_failing);
+  CHECK(residual_shrunk);
+  CHECK(run_cli(fmt::format("diff {} {}", a.string(), b.string())) == 1);
+  CHECK(run_cli(fmt::format("diff {} {} --markdown", a.string(), a.string())) == 0);
+  CHECK(run_cli(fmt::format("diff {} {}", a.string(), temp("missing").string())) == 2);
+}
