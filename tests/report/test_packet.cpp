@@ -10,6 +10,7 @@
 
 #include <fmt/format.h>
 
+#include "swaybound/core/error.hpp"
 #include "swaybound/report/diff.hpp"
 #include "swaybound/report/packet.hpp"
 
@@ -141,4 +142,22 @@ TEST_CASE("diff flags a worsened margin after a spec edit and exits 1", "[packet
   CHECK(run_cli(fmt::format("diff {} {}", a.string(), b.string())) == 1);
   CHECK(run_cli(fmt::format("diff {} {} --markdown", a.string(), a.string())) == 0);
   CHECK(run_cli(fmt::format("diff {} {}", a.string(), temp("missing").string())) == 2);
+}
+
+TEST_CASE("a full disk is reported as a write error and leaves no packet", "[packet][faults]") {
+  // /dev/full fails every write with ENOSPC, as a full disk does; a file of the packet that points
+  // there makes the write fail the way a full tmpfs would.
+  if (!fs::exists("/dev/full")) {
+    WARN("no /dev/full on this machine; the full-disk check is skipped");
+    return;
+  }
+  const fs::path out = temp("full-disk");
+  fs::remove_all(out);
+  {
+    PacketWriter packet(out.string(), "0", false);
+    fs::create_symlink("/dev/full", packet.path("results.json"));
+    CHECK_THROWS_AS(packet.write("results.json", std::string(1 << 16, 'x')), RunError);
+  }
+  CHECK_FALSE(fs::exists(out));
+  CHECK_FALSE(partial_left(out.parent_path()));
 }
