@@ -14,6 +14,7 @@
 #include "swaybound/checks/check_run.hpp"
 #include "swaybound/core/cancel.hpp"
 #include "swaybound/core/hash.hpp"
+#include "swaybound/report/document.hpp"
 #include "swaybound/report/packet.hpp"
 #include "swaybound/report/results.hpp"
 #include "swaybound/spec.hpp"
@@ -109,7 +110,6 @@ Action add_check(CLI::App& app) {
     const CaseSpace space(spec);
     std::cerr << fmt::format("{}: {} cases ({} starts x {} scenarios), {:g} s each\n", o->spec, space.size(),
                              space.starts(), spec.scenarios.size(), spec.cases.duration);
-    install_cancel_handlers();
 
     std::ofstream csv(packet.path("cases.csv"), std::ios::binary);
     csv << cases_csv_header(spec);
@@ -129,11 +129,17 @@ Action add_check(CLI::App& app) {
     if (!csv) throw RunError(fmt::format("writing {} failed (disk full or not writable?)", packet.path("cases.csv")));
     packet.write("results.json", results_json(spec, report));
     packet.write("spec.yaml", read_file_text(o->spec));
+    const std::string date = now_utc_iso8601();
+    ReportMeta meta;
+    meta.date = date.substr(0, 10);
+    const std::string cases_text = read_file_text(packet.path("cases.csv"));
+    write_report_pdf(spec, report, packet.path("report.pdf"), meta, cases_text);
+    packet.write("report.html", report_html(spec, report, meta, cases_text));
     throw_if_cancelled();
     ManifestInfo info;
     info.spec_file = "spec.yaml";
     info.spec_sha256 = spec_sha;
-    info.date_utc = now_utc_iso8601();
+    info.date_utc = date;
     info.settings = manifest_settings(spec, report);
     packet.commit(info);
     print_summary(report, std::cout);

@@ -18,5 +18,6 @@ Action add_simulate(CLI::App& app);
 Action add_modes(CLI::App& app);
 Action add_check(CLI::App& app);
 Action add_diff(CLI::App& app);
+Action add_size(CLI::App& app);
 
 }  // namespace swaybound::cli

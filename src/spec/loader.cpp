@@ -9,6 +9,8 @@
 
 #include <fmt/format.h>
 #include <yaml-cpp/depthguard.h>  // YAML::DeepRecursion
+#include <yaml-cpp/eventhandler.h>
+#include <yaml-cpp/parser.h>
 
 #include "loader_parts.hpp"
 
@@ -219,6 +221,7 @@ void read_wind_one(Context& ctx, const YAML::Node& node, const std::string& path
   if (!m.ok()) return;
   WindSpec w;
   w.mark = m.mark();
+  w.link = -1;  // no link until one is read: WindSpec's default 0 made a wind without 'link' read links[0] of an empty chain
   if (m.require("link", "the link the wind acts on")) w.link = read_link_ref(ctx, m.get("link"), m.path("link"), spec);
   if (m.require("speed", "the steady wind speed, e.g. '12 m/s'"))
     if (auto v = read_quantity(ctx, m.get("speed"), m.path("speed"), u::speed)) w.speed = *v;
@@ -375,6 +378,40 @@ Mark first_invalid_utf8(std::string_view s) {
   return {};
 }
 
+/// yaml-cpp 0.7's LoadAll never returns on a token that its document parser does not consume, such
+/// as a ',' outside brackets (",", "[1],", "a: 1\n,"): it appends empty documents forever while
+/// memory grows (jbeder/yaml-cpp#1040; fixed upstream by PR #1319, after Debian 12's 0.7). Found
+/// by fuzzing (tests/fuzz). This first pass walks the documents with an event handler that keeps
+/// nothing and stops when a document starts where the previous one did, which a parse that makes
+/// progress never does; it returns that position (line 0 when the stream is fine) and the character
+/// there. It throws the same YAML exceptions as LoadAll.
+std::pair<Mark, char> stuck_yaml_document(const std::string& text) {
+  struct Probe : YAML::EventHandler {
+    YAML::Mark start;
+    void OnDocumentStart(const YAML::Mark& mark) override { start = mark; }
+    void OnDocumentEnd() override {}
+    void OnNull(const YAML::Mark&, YAML::anchor_t) override {}
+    void OnAlias(const YAML::Mark&, YAML::anchor_t) override {}
+    void OnScalar(const YAML::Mark&, const std::string&, YAML::anchor_t, const std::string&) override {}
+    void OnSequenceStart(const YAML::Mark&, const std::string&, YAML::anchor_t, YAML::EmitterStyle::value) override {}
+    void OnSequenceEnd() override {}
+    void OnMapStart(const YAML::Mark&, const std::string&, YAML::anchor_t, YAML::EmitterStyle::value) override {}
+    void OnMapEnd() override {}
+  } probe;
+  std::istringstream in(text);
+  YAML::Parser parser(in);
+  int previous = -1;
+  // Every document that makes progress starts at a later byte, so there are at most size + 1.
+  for (std::size_t documents = 0; parser.HandleNextDocument(probe); ++documents) {
+    if (probe.start.pos == previous || documents > text.size()) {
+      const auto at = static_cast<std::size_t>(probe.start.pos);
+      return {Mark{probe.start.line + 1, probe.start.column + 1}, at < text.size() ? text[at] : ' '};
+    }
+    previous = probe.start.pos;
+  }
+  return {};
+}
+
 }  // namespace
 
 Spec load_spec(const std::string& path, const LoadOptions& options) {
@@ -391,7 +428,12 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   // '---' or '...' line, even text that is not YAML.
   std::vector<YAML::Node> documents;
   try {
-    documents = YAML::LoadAll(std::string(text));
+    const std::string whole(text);
+    if (const auto [stuck, token] = stuck_yaml_document(whole); stuck.line > 0)
+      throw SpecError(file_label, {{stuck, "", fmt::format("not valid YAML: unexpected '{}' outside a list or map", token),
+                                    "a ',' separates items only inside [...] or {...}; remove it, or quote the "
+                                    "value that contains it"}});
+    documents = YAML::LoadAll(whole);
   } catch (const YAML::DeepRecursion& e) {
     // yaml-cpp's depth guard: its message is "bad file" and its position is wherever the scanner had
     // read ahead to (often the end of the file), so neither helps; report it for the whole file.

@@ -48,9 +48,11 @@ int run_cli(const std::string& args) {
   return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
 }
 
-bool partial_left(const fs::path& parent) {
-  for (const auto& e : fs::directory_iterator(parent))
-    if (e.path().filename().string().find(".partial-") != std::string::npos) return true;
+/// A half-written packet of `target` (other tests may be writing their own beside it).
+bool partial_left(const fs::path& target) {
+  const std::string prefix = "." + target.filename().string() + ".partial-";
+  for (const auto& e : fs::directory_iterator(target.parent_path()))
+    if (e.path().filename().string().rfind(prefix, 0) == 0) return true;
   return false;
 }
 
@@ -113,7 +115,10 @@ TEST_CASE("SIGINT during a check leaves the previous packet intact and no half p
           static_cast<char*>(nullptr));
     _exit(127);
   }
-  std::this_thread::sleep_for(std::chrono::milliseconds(700));
+  // Wait until the run is under way (its half-written packet exists), then interrupt it.
+  for (int k = 0; k < 400 && !partial_left(out); ++k) std::this_thread::sleep_for(std::chrono::milliseconds(25));
+  REQUIRE(partial_left(out));
+  std::this_thread::sleep_for(std::chrono::milliseconds(200));
   kill(pid, SIGINT);
   int status = 0;
   waitpid(pid, &status, 0);
@@ -121,7 +126,7 @@ TEST_CASE("SIGINT during a check leaves the previous packet intact and no half p
   CHECK(WEXITSTATUS(status) == 128 + SIGINT);
   CHECK(packet_spec_sha256(out.string()) == before);
   CHECK(verify_manifest(out.string()).empty());
-  CHECK_FALSE(partial_left(out.parent_path()));
+  CHECK_FALSE(partial_left(out));
 }
 
 TEST_CASE("diff flags a worsened margin after a spec edit and exits 1", "[packet][diff]") {
@@ -159,5 +164,5 @@ TEST_CASE("a full disk is reported as a write error and leaves no packet", "[pac
     CHECK_THROWS_AS(packet.write("results.json", std::string(1 << 16, 'x')), RunError);
   }
   CHECK_FALSE(fs::exists(out));
-  CHECK_FALSE(partial_left(out.parent_path()));
+  CHECK_FALSE(partial_left(out));
 }

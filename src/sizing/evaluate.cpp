@@ -1,0 +1,267 @@
+#include "swaybound/sizing/evaluate.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include <fmt/format.h>
+
+#include "swaybound/cases/case_space.hpp"
+#include "swaybound/cases/runner.hpp"
+#include "swaybound/core/error.hpp"
+#include "swaybound/model/model.hpp"
+#include "swaybound/modal/modes.hpp"
+#include "swaybound/spec/loader.hpp"
+
+namespace swaybound {
+
+namespace {
+
+struct KindInfo {
+  std::string_view key;
+  LimitKind kind;
+  units::Dim dim;
+  bool lower;
+};
+const KindInfo kKinds[] = {
+    {"peak_angle", LimitKind::peak_angle, units::angle, false},
+    {"relative_angle", LimitKind::relative_angle, units::angle, false},
+    {"peak_rate", LimitKind::peak_rate, units::angular_rate, false},
+    {"pivot_load", LimitKind::pivot_load, units::force, false},
+    {"dynamic_factor", LimitKind::dynamic_factor, units::dimensionless, false},
+    {"rope_tension_min", LimitKind::rope_tension_min, units::force, true},
+    {"residual_sway", LimitKind::residual_sway, units::angle, false},
+    {"ftle_max", LimitKind::ftle_max, units::rate, false},
+    {"modal_damping_min", LimitKind::modal_damping_min, units::dimensionless, true},
+    {"onset_margin", LimitKind::onset_margin, units::dimensionless, true},
+};
+
+const KindInfo& kind_info(LimitKind kind) {
+  for (const auto& k : kKinds)
+    if (k.kind == kind) return k;
+  return kKinds[0];
+}
+
+/// Running worst value of the objective metric over the cases offered (when it is not a check's).
+struct MetricAccumulator {
+  const ObjectiveMetric* metric = nullptr;
+  double value = std::nan("");
+  void offer(const CaseMetrics& m) {
+    if (!metric->active || metric->check >= 0 || !m.ok()) return;
+    int link;
+    double time;
+    const double v = limit_value_in_case(metric->limit, metric->residual_slot, m, link, time);
+    if (std::isnan(v)) return;
+    if (std::isnan(value) || (metric->lower ? v < value : v > value)) value = v;
+  }
+};
+
+bool has_kind(const Spec& spec, LimitKind kind) {
+  for (const auto& l : spec.limits)
+    if (l.kind == kind) return true;
+  return false;
+}
+
+DesignOutcome outcome_from(const Spec& spec, const std::vector<CheckResult>& checks) {
+  DesignOutcome out;
+  for (const auto& c : checks) {
+    out.ratio.push_back(constraint_ratio(spec, c));
+    out.worst.push_back(c.worst);
+    out.governing.push_back(c.per_case ? c.governing : -1);
+  }
+  return out;
+}
+
+}  // namespace
+
+double constraint_scale(const Spec& spec, const LimitSpec& limit) {
+  if (limit.value != 0) return std::fabs(limit.value);
+  const units::Dim dim = kind_info(limit.kind).dim;
+  if (dim == units::force) {
+    double mass = 0;
+    for (const auto& l : spec.links) mass += l.mass;
+    return mass * spec.gravity > 0 ? mass * spec.gravity : 1.0;
+  }
+  if (limit.kind == LimitKind::ftle_max) {
+    const double horizon = limit.horizon > 0 ? limit.horizon : spec.cases.duration;
+    return horizon > 0 ? 1.0 / horizon : 1.0;
+  }
+  return 1.0;
+}
+
+double constraint_ratio(const Spec& spec, const CheckResult& check) {
+  const LimitSpec& limit = spec.limits.at(static_cast<std::size_t>(check.limit));
+  double r = std::isnan(check.margin) ? -1.0 : check.margin / constraint_scale(spec, limit);
+  if (check.failed_cases > 0) r = std::min(r, -1.0);
+  if (std::isnan(r)) r = -1.0;
+  return std::clamp(r, -1e6, 1e6);
+}
+
+ObjectiveMetric objective_metric(const Spec& spec) {
+  ObjectiveMetric m;
+  if (!spec.sizing || spec.sizing->objective != Objective::min_metric) return m;
+  const SizingSpec& s = *spec.sizing;
+  const KindInfo* info = nullptr;
+  for (const auto& k : kKinds)
+    if (k.key == s.metric) info = &k;
+  const std::string file = spec.source_file.empty() ? std::string("spec") : spec.source_file;
+  if (!info)
+    throw SpecError(file, {Diagnostic{s.mark, "sizing.objective.min", fmt::format("unknown limit kind '{}'", s.metric),
+                                      "name a limit kind from specs/README.md, 'limits'"}});
+  m.active = true;
+  m.limit.kind = info->kind;
+  m.limit.key = std::string(info->key);
+  m.limit.link = s.metric_link;
+  m.lower = info->lower;
+  m.unit = units::si_unit(info->dim);
+  m.label = fmt::format("worst {}{}", info->key,
+                        s.metric_link >= 0
+                            ? fmt::format(" (link '{}')", spec.links[static_cast<std::size_t>(s.metric_link)].name)
+                            : std::string());
+  int slot = 0;
+  for (std::size_t i = 0; i < spec.limits.size(); ++i) {
+    const LimitSpec& l = spec.limits[i];
+    if (l.kind == info->kind && l.link == s.metric_link) {
+      m.check = static_cast<int>(i);
+      m.limit = l;
+      m.residual_slot = slot;
+      break;
+    }
+    slot += l.kind == LimitKind::residual_sway;
+  }
+  const bool needs_limit = info->kind == LimitKind::residual_sway || info->kind == LimitKind::ftle_max ||
+                           info->kind == LimitKind::onset_margin;
+  if (needs_limit && m.check < 0)
+    throw SpecError(file, {Diagnostic{s.mark, "sizing.objective",
+                                      fmt::format("objective {{min: {}}} needs a {} limit{} in the spec", info->key,
+                                                  info->key, s.metric_link >= 0 ? " for the same link" : ""),
+                                      info->kind == LimitKind::residual_sway
+                                          ? "add the limit: it gives the time after which sway counts"
+                                          : "add the limit: it switches its computation on and sets its horizon"}});
+  return m;
+}
+
+double DesignOutcome::least() const {
+  double least = std::numeric_limits<double>::infinity();
+  for (double r : ratio) least = std::min(least, r);
+  return least;
+}
+
+DesignEvaluator::DesignEvaluator(const Spec& base, std::vector<DesignVariable> variables, int jobs)
+    : base_(base), variables_(std::move(variables)), jobs_(jobs) {
+  const CaseSpace space(base_);
+  case_count_ = space.size();
+  envelope_ = space.envelope_amplitude();
+  metric_ = objective_metric(base_);
+}
+
+Spec DesignEvaluator::design(const std::vector<double>& values) const {
+  Spec s = base_;
+  apply_design(s, variables_, values);
+  return s;
+}
+
+DesignOutcome DesignEvaluator::screen(const std::vector<double>& values, const std::vector<long>& cases,
+                                      const std::vector<double>* onset_worst) const {
+  const Spec spec = design(values);
+  const Model model = build_model(spec);
+  const CaseSpace space(spec);
+  RunSettings run = RunSettings::from_spec(spec);
+  run.output_rate = 0;  // as run_check streams its cases
+  CaseOptions case_options;
+  case_options.ftle = has_kind(spec, LimitKind::ftle_max);
+  case_options.ftle_horizon = spec.chaos.horizon;
+  case_options.ftle_separation = spec.chaos.separation;
+  case_options.ftle_renormalise = spec.chaos.renormalise;
+
+  CheckSet checks(spec);
+  MetricAccumulator metric{&metric_};
+  long run_count = 0, failed = 0;
+  RunnerOptions runner;
+  runner.jobs = jobs_;
+  run_parallel(
+      model, static_cast<long>(cases.size()), runner,
+      [&](long k, Workspace& ws) {
+        return run_case(model, spec, ws, space.at(cases[static_cast<std::size_t>(k)]), run, case_options);
+      },
+      [&](CaseMetrics&& m) {
+        checks.offer(m);
+        metric.offer(m);
+        ++run_count;
+        failed += !m.ok();
+      });
+
+  double least_damping = std::nan("");
+  if (has_kind(spec, LimitKind::modal_damping_min) ||
+      (metric_.active && metric_.limit.kind == LimitKind::modal_damping_min)) {
+    least_damping = modal_analysis(model).least_damping_ratio;
+    for (std::size_t i = 0; i < spec.limits.size(); ++i)
+      if (spec.limits[i].kind == LimitKind::modal_damping_min)
+        checks.set_global(static_cast<int>(i), least_damping, "modal analysis");
+  }
+  if (has_kind(spec, LimitKind::onset_margin) && onset_worst) {
+    for (std::size_t i = 0; i < spec.limits.size(); ++i)
+      if (spec.limits[i].kind == LimitKind::onset_margin)
+        checks.set_global(static_cast<int>(i), onset_worst->at(i), "last full check");
+  } else if (has_kind(spec, LimitKind::onset_margin)) {
+    // The onset search of run_check itself, on a spec reduced to one start at rest (run_check
+    // searches from the first scenario whatever the case set); the ratio uses the full case set's
+    // envelope, as the full check does.
+    Spec reduced = spec;
+    reduced.source_file.clear();
+    InitialSetSpec rest;
+    rest.kind = InitialKind::single;
+    rest.name = "rest";
+    reduced.cases.initial = {rest};
+    reduced.limits.clear();
+    for (const auto& l : spec.limits)
+      if (l.kind == LimitKind::onset_margin) reduced.limits.push_back(l);
+    reduced.chaos.map = false;
+    CheckOptions o;
+    o.jobs = jobs_;
+    o.audit = false;
+    o.record = false;
+    const CheckReport r = run_check(reduced, o);
+    const double ratio = envelope_ > 0 ? r.chaos.onset.amplitude / envelope_ : INFINITY;
+    for (std::size_t i = 0; i < spec.limits.size(); ++i)
+      if (spec.limits[i].kind == LimitKind::onset_margin) checks.set_global(static_cast<int>(i), ratio, "onset search");
+  }
+  checks.finish();
+  DesignOutcome out = outcome_from(spec, checks.results());
+  out.cases = run_count;
+  out.failed_cases = failed;
+  out.geometry = varies_geometry(variables_) ? geometry_margin(spec) : INFINITY;
+  if (metric_.active) {
+    if (metric_.check >= 0)
+      out.metric = checks.results()[static_cast<std::size_t>(metric_.check)].worst;
+    else if (metric_.limit.kind == LimitKind::modal_damping_min)
+      out.metric = least_damping;
+    else
+      out.metric = metric.value;
+  }
+  return out;
+}
+
+DesignOutcome DesignEvaluator::check(const Spec& design, CheckOptions options, CheckReport& report) const {
+  MetricAccumulator metric{&metric_};
+  const auto user = options.on_case;
+  options.on_case = [&](const CaseMetrics& m) {
+    metric.offer(m);
+    if (user) user(m);
+  };
+  report = run_check(design, options);
+  DesignOutcome out = outcome_from(design, report.checks);
+  out.cases = report.case_count;
+  out.failed_cases = report.failed_total;
+  out.geometry = varies_geometry(variables_) ? geometry_margin(design) : INFINITY;
+  if (metric_.active) {
+    if (metric_.check >= 0)
+      out.metric = report.checks[static_cast<std::size_t>(metric_.check)].worst;
+    else if (metric_.limit.kind == LimitKind::modal_damping_min)
+      out.metric = report.modes.least_damping_ratio;
+    else
+      out.metric = metric.value;
+  }
+  return out;
+}
+
+}  // namespace swaybound

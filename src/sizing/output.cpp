@@ -1,0 +1,215 @@
+// Files of a sizing run: the history CSV, the before/after table and the summary JSON.
+#include <cmath>
+#include <sstream>
+
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+
+#include "swaybound/core/version.hpp"
+#include "swaybound/sizing/sizing.hpp"
+
+namespace swaybound {
+
+namespace {
+
+/// An SI value in the unit an engineer reads (deg for angles, kN for forces).
+std::string engineering(double v, const std::string& unit) {
+  if (std::isnan(v)) return "-";
+  if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
+  if (unit == "rad") return fmt::format("{:.3f} deg", v * 180 / M_PI);
+  if (unit == "rad/s") return fmt::format("{:.3f} deg/s", v * 180 / M_PI);
+  if (unit == "N") return fmt::format("{:.2f} kN", v / 1000);
+  if (unit.empty() || unit == "-") return fmt::format("{:.5g}", v);
+  return fmt::format("{:.5g} {}", v, unit);
+}
+
+std::string percent(double ratio) {
+  if (std::isnan(ratio)) return "-";
+  if (std::fabs(ratio) >= 1e5) return ratio > 0 ? "> +1e7%" : "< -1e7%";
+  return fmt::format("{:+.2f}%", 100 * ratio);
+}
+
+std::string csv_quote(const std::string& s) {
+  if (s.find_first_of(",\"\n") == std::string::npos) return s;
+  std::string out = "\"";
+  for (char c : s) {
+    if (c == '"') out += '"';
+    out += c;
+  }
+  return out + "\"";
+}
+
+std::string number(double v) {
+  if (std::isnan(v)) return "";
+  if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
+  return fmt::format("{:.12g}", v);
+}
+
+nlohmann::json json_number(double v) {
+  if (!std::isfinite(v)) return nullptr;
+  return v;
+}
+
+std::string objective_name(const Spec& spec) {
+  switch (spec.sizing->objective) {
+    case Objective::min_cost: return "min_cost";
+    case Objective::min_metric: return "min_metric";
+    case Objective::max_margin: return "max_margin";
+  }
+  return "";
+}
+
+std::string bound_name(int at_bound) { return at_bound < 0 ? "low end" : at_bound > 0 ? "high end" : ""; }
+
+}  // namespace
+
+std::string sizing_history_csv(const Spec& spec, const SizingResult& r) {
+  std::ostringstream out;
+  out << "evaluation,kind,cases";
+  for (const auto& v : r.variables) out << ',' << csv_quote(fmt::format("{} [{}]", v.path, v.unit));
+  out << ",cost [-]," << csv_quote(fmt::format("objective: {}{}", r.objective_label,
+                                                r.objective_unit.empty() ? " [-]" : " [" + r.objective_unit + "]"));
+  for (std::size_t i = 0; i < spec.limits.size(); ++i) {
+    const std::string subject = i < r.after.checks.size() ? r.after.checks[i].subject : std::string();
+    out << ',' << csv_quote(fmt::format("margin ratio {} {} ({}) [-]", i, spec.limits[i].key, subject));
+  }
+  out << ",geometry margin [-],least margin ratio [-],pass,elapsed [s]\n";
+  for (const auto& e : r.history) {
+    out << e.number << ',' << evaluation_kind_name(e.kind) << ',' << e.cases;
+    for (double v : e.values) out << ',' << number(v);
+    out << ',' << number(e.cost) << ',' << number(e.objective);
+    for (std::size_t i = 0; i < spec.limits.size(); ++i) out << ',' << (i < e.ratio.size() ? number(e.ratio[i]) : "");
+    out << ',' << (std::isinf(e.geometry) ? std::string() : number(e.geometry)) << ',' << number(e.least) << ','
+        << (e.pass ? 1 : 0) << ',' << fmt::format("{:.3f}", e.seconds) << '\n';
+  }
+  return out.str();
+}
+
+std::string sizing_table_markdown(const Spec& spec, const SizingResult& r) {
+  std::ostringstream out;
+  const SizingSpec& s = *spec.sizing;
+  out << fmt::format("# Sizing: {}\n\n", spec.name);
+  out << fmt::format("Spec `{}` (sha256 {}), swaybound {} ({}).\n\n", r.source_file, r.source_sha256, tool_version(),
+                     git_commit());
+  out << fmt::format("Objective `{}`; search `{}` ({}), seed {}; budget {} evaluations, {:g} s.\n", objective_name(spec),
+                     s.mode == SearchMode::local ? "local" : "global", r.algorithm, s.seed, s.max_evaluations,
+                     s.max_seconds);
+  if (!r.catalogue_method.empty()) out << fmt::format("Catalogue variables: {}.\n", r.catalogue_method);
+  out << fmt::format(
+      "{} evaluations ({} on {} screening cases, {} full checks of {} cases incl. the design as given and the final "
+      "check); the search ended by: {}.\n\n",
+      r.evaluations, r.screening_evaluations, r.screening_size, r.full_checks, r.case_count, r.stop_reason);
+
+  out << "## Design variables\n\n| variable | range or catalogue | cost weight | before | after | at a bound |\n"
+         "|---|---|---|---|---|---|\n";
+  for (const auto& v : r.variable_outcomes) {
+    std::string range;
+    if (v.discrete) {
+      for (const auto& dv : r.variables)
+        if (dv.path == v.path)
+          for (double c : dv.catalogue) range += (range.empty() ? "" : ", ") + fmt::format("{:.6g}", c);
+      range = "{" + range + "} " + v.unit;
+    } else {
+      range = fmt::format("{:.6g} to {:.6g} {}", v.lo, v.hi, v.unit);
+    }
+    out << fmt::format("| `{}` | {} | {:g} | {:.6g} {} | {:.6g} {} | {} |\n", v.path, range, v.cost, v.before, v.unit,
+                       v.after, v.unit, bound_name(v.at_bound));
+  }
+  out << fmt::format("\n## Objective\n\n| {} | before | after |\n|---|---|---|\n| value | {} | {} |\n", r.objective_label,
+                     engineering(r.objective_before, r.objective_unit), engineering(r.objective_after, r.objective_unit));
+
+  out << fmt::format("\n## Checks on every case ({} cases)\n\n", r.case_count);
+  out << "| check | limit | worst before | margin before | worst after | margin after | verdict after | binding |\n"
+         "|---|---|---|---|---|---|---|---|\n";
+  for (const auto& l : r.limits)
+    out << fmt::format("| {} ({}) | {} | {} | {} | {} | {} | {} | {} |\n", l.key, l.subject,
+                       engineering(l.limit_value, l.unit), engineering(l.worst_before, l.unit), percent(l.ratio_before),
+                       engineering(l.worst_after, l.unit), percent(l.ratio_after), l.pass_after ? "pass" : "FAIL",
+                       l.binding ? "yes" : "");
+  if (std::isfinite(r.outcome_after.geometry))
+    out << fmt::format("| geometry (points on their links) | on the link | | | | {} | {} | |\n",
+                       percent(r.outcome_after.geometry), r.outcome_after.geometry >= 0 ? "pass" : "FAIL");
+  out << "\nMargins are margin / |limit| (a limit of 0: margin / the chain's weight for forces, x horizon for "
+         "ftle_max); binding: below 1% or failing.\n";
+
+  out << "\n## Verdict\n\n";
+  if (r.feasible) {
+    out << "The sized design passes every check on every case (the final check of the sized spec file, "
+           "results.json).\n";
+  } else {
+    out << "**No design within the ranges and the budget passes every check.** The design reported is the best "
+           "found; it fails:\n\n";
+    for (const auto& l : r.limits)
+      if (!l.pass_after)
+        out << fmt::format("- {} ({}): worst {} against {}, short by {} ({}), governing case {}\n", l.key, l.subject,
+                           engineering(l.worst_after, l.unit), engineering(l.limit_value, l.unit),
+                           engineering(l.shortfall, l.unit), percent(l.ratio_after), l.governing_after);
+    if (std::isfinite(r.outcome_after.geometry) && r.outcome_after.geometry < 0)
+      out << "- a point placed on a link lies beyond the link's end\n";
+    bool any = false;
+    for (const auto& v : r.variable_outcomes)
+      if (v.at_bound != 0) {
+        if (!any) out << "\nVariables at a bound of their range (widen it, or change the design):\n\n";
+        any = true;
+        out << fmt::format("- `{}` = {:.6g} {} at the {}\n", v.path, v.after, v.unit, bound_name(v.at_bound));
+      }
+  }
+  out << "\nCaution: a screening and design aid, not a certification. The sized design goes to a licensed "
+         "engineer's review and sign-off.\n";
+  return out.str();
+}
+
+std::string sizing_summary_json(const Spec& spec, const SizingResult& r) {
+  using nlohmann::json;
+  const SizingSpec& s = *spec.sizing;
+  json j;
+  j["schema"] = "swaybound.sizing/1";
+  j["tool"] = {{"name", "swaybound"}, {"version", std::string(tool_version())}, {"commit", std::string(git_commit())}};
+  j["spec"] = {{"name", spec.name}, {"sha256", r.source_sha256}};
+  j["objective"] = {{"kind", objective_name(spec)},
+                    {"label", r.objective_label},
+                    {"unit", r.objective_unit},
+                    {"before", json_number(r.objective_before)},
+                    {"after", json_number(r.objective_after)}};
+  j["search"] = {{"mode", s.mode == SearchMode::local ? "local" : "global"},
+                 {"algorithm", r.algorithm},
+                 {"catalogue_method", r.catalogue_method},
+                 {"seed", s.seed},
+                 {"budget_evaluations", s.max_evaluations},
+                 {"budget_seconds", s.max_seconds},
+                 {"stopped_by", r.stop_reason},
+                 {"evaluations", r.evaluations},
+                 {"screening_evaluations", r.screening_evaluations},
+                 {"full_checks", r.full_checks},
+                 {"screening_cases", r.screening_size},
+                 {"cases", r.case_count}};
+  j["feasible"] = r.feasible;
+  json vars = json::array();
+  for (std::size_t i = 0; i < r.variable_outcomes.size(); ++i) {
+    const auto& v = r.variable_outcomes[i];
+    json o = {{"path", v.path}, {"unit", v.unit}, {"low", v.lo}, {"high", v.hi}, {"cost", v.cost},
+              {"before", v.before}, {"after", v.after}, {"at_bound", bound_name(v.at_bound)}};
+    if (v.discrete) o["catalogue"] = r.variables[i].catalogue;
+    vars.push_back(o);
+  }
+  j["variables"] = vars;
+  json limits = json::array();
+  for (const auto& l : r.limits)
+    limits.push_back({{"limit", l.limit},
+                      {"key", l.key},
+                      {"subject", l.subject},
+                      {"unit", l.unit},
+                      {"value", l.limit_value},
+                      {"worst_before", json_number(l.worst_before)},
+                      {"worst_after", json_number(l.worst_after)},
+                      {"margin_ratio_before", json_number(l.ratio_before)},
+                      {"margin_ratio_after", json_number(l.ratio_after)},
+                      {"pass_after", l.pass_after},
+                      {"binding", l.binding},
+                      {"shortfall", json_number(l.shortfall)},
+                      {"governing_after", l.governing_after}});
+  j["limits"] = limits;
+  return j.dump(2) + "\n";
+}
+
+}  // namespace swaybound

@@ -1,0 +1,353 @@
+// Sizing: the optimiser against closed forms and a bisection on the full simulation, an active
+// constraint known in advance, an infeasible problem, catalogue values, and seeded determinism.
+//
+// The test problem throughout: a point mass m on a massless rigid link of length L (com = L,
+// inertia 0) with a linear rotary damper c at the pivot, released at rest from theta0, with the
+// limit residual_sway r after time T. Linearised (small angle):
+//   m L^2 theta'' + c theta' + m g L theta = 0,  w_n = sqrt(g / L),  zeta = c / (2 m L^2 w_n),
+//   theta(t) = theta0 e^(-zeta w_n t) [cos w_d t + zeta / sqrt(1 - zeta^2) sin w_d t],
+//   w_d = w_n sqrt(1 - zeta^2)
+// (Thomson & Dahleh, Theory of Vibration with Applications, 5th ed., sec. 2.6: free vibration
+// with viscous damping; logarithmic decrement). The rate is proportional to
+// e^(-zeta w_n t) sin(w_d t), so the extremes of theta fall at t_k = k pi / w_d, where
+//   |theta(t_k)| = theta0 exp(-k pi zeta / sqrt(1 - zeta^2))       (exact, no envelope factor),
+// the logarithmic decrement per half cycle. The damped free response lies inside the envelope
+//   |theta(t)| <= theta0 e^(-zeta w_n t) / sqrt(1 - zeta^2).
+// With theta0 = 2 deg, r = 0.5 deg, T = 9.5 s, L = 1 m: t_9 ~ 9.03 s < T < t_10 ~ 10.04 s, and T
+// lies near a zero crossing, so the largest |theta| after T is the peak at t_10 (checked below).
+// The least damping then has the closed form
+//   10 pi zeta / sqrt(1 - zeta^2) = ln(theta0 / r)  =>  zeta* = a / sqrt(1 + a^2),
+//   a = ln(theta0 / r) / (10 pi),  c* = 2 m L^2 w_n zeta*.
+#include <catch2/catch.hpp>
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <numbers>
+#include <sstream>
+#include <sys/wait.h>
+
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+
+#include "swaybound/core/hash.hpp"
+#include "swaybound/sizing/sizing.hpp"
+#include "swaybound/spec.hpp"
+
+using namespace swaybound;
+namespace fs = std::filesystem;
+using std::numbers::pi;
+
+namespace {
+
+constexpr double kG = 9.81, kMass = 10, kLength = 1, kTheta0Deg = 2, kLimitDeg = 0.5, kAfter = 9.5;
+
+double deg(double d) { return d * pi / 180; }
+double natural() { return std::sqrt(kG / kLength); }
+double coefficient_of(double zeta) { return 2 * kMass * kLength * kLength * natural() * zeta; }
+double zeta_of(double c) { return c / (2 * kMass * kLength * kLength * natural()); }
+
+/// c* from the logarithmic decrement over 10 half cycles (see the file comment).
+double closed_form_least_damping() {
+  const double a = std::log(kTheta0Deg / kLimitDeg) / (10 * pi);
+  return coefficient_of(a / std::sqrt(1 + a * a));
+}
+
+/// Linear response theta(t) / theta0 for damping c.
+double linear_response(double c, double t) {
+  const double z = zeta_of(c), wd = natural() * std::sqrt(1 - z * z);
+  return std::exp(-z * natural() * t) * (std::cos(wd * t) + z / std::sqrt(1 - z * z) * std::sin(wd * t));
+}
+
+std::string pendulum(const std::string& sizing, const std::string& extra_limits = "", const std::string& extra = "",
+                     double damper = 8) {
+  return fmt::format(R"(
+swaybound: 1
+name: damped pendulum
+gravity: {g}
+links:
+  - {{name: arm, length: {L}, mass: {m}, com: {L}, inertia: 0, pivot: {{damper: {{coefficient: {c}}}}}}}
+{extra}
+cases: {{duration: 11 s, initial: [{{single: {{theta: [{th} deg]}}}}]}}
+limits:
+  - {{residual_sway: {r} deg, after: {T} s}}
+{limits}
+sizing:
+{sizing}
+solver: {{rtol: 1e-10, atol: 1e-12}}
+)",
+                     fmt::arg("g", kG), fmt::arg("L", kLength), fmt::arg("m", kMass), fmt::arg("c", damper),
+                     fmt::arg("extra", extra), fmt::arg("th", kTheta0Deg), fmt::arg("r", kLimitDeg),
+                     fmt::arg("T", kAfter), fmt::arg("limits", extra_limits), fmt::arg("sizing", sizing));
+}
+
+Spec spec_file(const std::string& name, const std::string& text) {
+  const fs::path path = fs::temp_directory_path() / ("swaybound-test-sizing-" + name + ".yaml");
+  std::ofstream(path) << text;
+  return load_spec(path.string());
+}
+
+SizingOptions quiet() {
+  SizingOptions o;
+  o.jobs = 2;
+  o.audit = false;
+  return o;
+}
+
+/// The least damper coefficient whose full check passes, by bisection on run_check.
+double bisect_least_damping(const Spec& spec, double lo, double hi) {
+  std::string why;
+  const auto path = parse_spec_path(spec, "links[arm].pivot.damper.coefficient", why);
+  REQUIRE(path);
+  const auto passes = [&](double c) {
+    Spec s = spec;
+    set_spec_value(s, *path, c);
+    CheckOptions o;
+    o.audit = false;
+    o.record = false;
+    o.jobs = 1;
+    return run_check(s, o).pass;
+  };
+  REQUIRE_FALSE(passes(lo));
+  REQUIRE(passes(hi));
+  for (int k = 0; k < 40 && hi - lo > 1e-9 * hi; ++k) {
+    const double mid = 0.5 * (lo + hi);
+    (passes(mid) ? hi : lo) = mid;
+  }
+  return hi;
+}
+
+int run_cli(const std::string& args) {
+  const int status = std::system((std::string(SWAYBOUND_CLI) + " " + args + " >/dev/null 2>&1").c_str());
+  return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+}
+
+std::string read_text(const fs::path& path) {
+  std::ifstream in(path, std::ios::binary);
+  std::ostringstream s;
+  s << in.rdbuf();
+  return s.str();
+}
+
+const char* kOneDamper = R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+  budget: {evaluations: 60}
+)";
+
+}  // namespace
+
+TEST_CASE("least damper for a residual-sway limit: optimiser vs bisection vs the damped free response",
+          "[sizing][reference]") {
+  const double exact = closed_form_least_damping();  // about 2.7615 N m s/rad
+  const double z = zeta_of(exact), wd = natural() * std::sqrt(1 - z * z);
+  // The derivation's premises: T between the 9th and 10th extreme, |theta(T)| below the 10th peak.
+  REQUIRE(9 * pi / wd < kAfter);
+  REQUIRE(10 * pi / wd > kAfter);
+  REQUIRE(std::fabs(linear_response(exact, kAfter)) < 0.2 * kLimitDeg / kTheta0Deg);
+
+  const Spec spec = spec_file("one-damper", pendulum(kOneDamper));
+  const double bisected = bisect_least_damping(spec, 0.5, 10);
+  INFO("closed form " << exact << ", bisection on the full simulation " << bisected);
+
+  SECTION("the bisection agrees with the closed form of the logarithmic decrement") {
+    // The simulation is the nonlinear pendulum (sin theta): at 2 deg its period is longer by
+    // theta0^2 / 16 = 7.6e-5 (from memory: the first term of the series for the large-amplitude
+    // period), and the residual is the largest |theta| at an accepted step (rtol 1e-10: steps of
+    // a few ms, a peak error below 1e-4). 0.2% covers both with room.
+    CHECK(bisected == Approx(exact).epsilon(2e-3));
+  }
+  SECTION("the bisection lies between the bounds the envelope gives") {
+    // Upper: the envelope theta0 e^(-zeta w_n T) / sqrt(1 - zeta^2) reaches r at T (it bounds
+    // |theta| for all t >= T). Lower: the first extreme after T is at most half a damped period
+    // later, and it equals theta0 e^(-zeta w_n t_k): zeta w_n (T + pi / w_d) = ln(theta0 / r).
+    // Both solved for zeta by fixed-point iteration.
+    const double wn = natural(), ln = std::log(kTheta0Deg / kLimitDeg);
+    double zu = 0.05, zl = 0.05;
+    for (int k = 0; k < 100; ++k) {
+      zu = (ln + std::log(1 / std::sqrt(1 - zu * zu))) / (wn * kAfter);
+      zl = ln / (wn * (kAfter + pi / (wn * std::sqrt(1 - zl * zl))));
+    }
+    const double upper = coefficient_of(zu), lower = coefficient_of(zl);
+    INFO("envelope bounds " << lower << " .. " << upper);
+    CHECK(lower <= bisected);
+    CHECK(bisected <= upper);
+    // The bracket is about (T + pi / w_d) / T = 1.106 wide (the sqrt factor adds ~0.07%).
+    CHECK(upper / lower < 1.11);
+  }
+  SECTION("the optimiser finds a coefficient within 1% above the least one, verified") {
+    const SizingResult r = run_sizing(spec, quiet());
+    REQUIRE(r.values.size() == 1);
+    INFO("optimiser " << r.values[0] << " after " << r.evaluations << " evaluations");
+    CHECK(r.feasible);
+    CHECK(r.after.pass);
+    CHECK(r.values[0] >= bisected * (1 - 1e-9));
+    CHECK(r.values[0] <= bisected * 1.01);
+    CHECK(r.evaluations <= 60);
+    REQUIRE(r.limits.size() == 1);
+    CHECK(r.limits[0].binding);
+    CHECK(r.limits[0].pass_after);
+    // The design reported is the one checked: the final check's spec holds the values found.
+    std::string why;
+    CHECK(get_spec_value(r.sized, *parse_spec_path(r.sized, r.variables[0].path, why)) == r.values[0]);
+    CHECK(r.history.back().kind == EvaluationKind::final_check);
+    CHECK(r.history.front().kind == EvaluationKind::initial);
+  }
+}
+
+TEST_CASE("two dampers, one cheaper per unit of effect: the constraint binds and the dearer one goes to zero",
+          "[sizing]") {
+  // A horizontal dashpot from the bob to a base point 50 m away adds, for small angles, a rotary
+  // damping c_d a^2 (a = 1 m: the distance of the bob from the pivot; the line of action is
+  // horizontal to within a theta / 50). The system then needs c_r + c_d a^2 >= c*, a linear
+  // program: with cost c_r + 0.5 c_d the optimum puts everything into the dashpot,
+  // c_r = 0 (its low bound), c_d = c* / a^2, and residual_sway is the active constraint.
+  const std::string dashpot = R"(dashpots:
+  - {name: steady, from: {link: arm, at: 1 m}, to: {base: [-50 m, -1 m]}, coefficient: 5 N s/m})";
+  const std::string sizing = R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0, 10], cost: 1}
+    - {path: "dashpots[steady].coefficient", range: [0, 10], cost: 0.5}
+  budget: {evaluations: 120}
+)";
+  const Spec spec = spec_file("two-dampers", pendulum(sizing, "  - {peak_angle: 10 deg}", dashpot, 5));
+  const SizingResult r = run_sizing(spec, quiet());
+  const double exact = closed_form_least_damping();
+  INFO("rotary " << r.values[0] << ", dashpot " << r.values[1] << ", c* " << exact << ", " << r.evaluations
+                 << " evaluations");
+  CHECK(r.feasible);
+  CHECK(r.variable_outcomes[0].at_bound == -1);
+  CHECK(r.values[0] <= 0.01);
+  // Within 1% above c* (plus 0.5% for the nonlinear pendulum and the dashpot's cos^2 theta).
+  CHECK(r.values[1] >= exact * (1 - 5e-3));
+  CHECK(r.values[1] <= exact * (1 + 1.5e-2));
+  REQUIRE(r.limits.size() == 2);
+  CHECK(r.limits[0].key == "residual_sway");
+  CHECK(r.limits[0].binding);
+  CHECK(r.limits[1].key == "peak_angle");
+  CHECK_FALSE(r.limits[1].binding);
+  CHECK(r.objective_after == Approx(r.values[0] + 0.5 * r.values[1]));
+}
+
+TEST_CASE("a problem with no feasible design is reported infeasible, with the binding limit and the bound",
+          "[sizing]") {
+  // The range stops at 1.5 N m s/rad, well below c* ~ 2.76: the best design is the high end, where
+  // the residual sway is the 10th extreme of the damped free response (see the file comment).
+  const std::string sizing = R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 1.5], cost: 1}
+  budget: {evaluations: 40}
+)";
+  const std::string text = pendulum(sizing, "  - {peak_angle: 10 deg}", "", 1);
+  const Spec spec = spec_file("infeasible", text);
+  const SizingResult r = run_sizing(spec, quiet());
+  CHECK_FALSE(r.feasible);
+  CHECK_FALSE(r.after.pass);
+  REQUIRE(r.values.size() == 1);
+  CHECK(r.values[0] == Approx(1.5).epsilon(1e-3));
+  CHECK(r.variable_outcomes[0].at_bound == +1);
+  REQUIRE(r.limits.size() == 2);
+  const LimitOutcome& sway = r.limits[0];
+  CHECK(sway.key == "residual_sway");
+  CHECK_FALSE(sway.pass_after);
+  CHECK(sway.binding);
+  const double expected = deg(kTheta0Deg) * std::exp(-10 * pi * zeta_of(1.5) / std::sqrt(1 - std::pow(zeta_of(1.5), 2)));
+  INFO("residual at c = 1.5: " << sway.worst_after << " rad, closed form " << expected);
+  CHECK(sway.worst_after == Approx(expected).epsilon(5e-3));
+  CHECK(sway.shortfall == Approx(sway.worst_after - deg(kLimitDeg)).epsilon(1e-9));
+  CHECK(r.limits[1].pass_after);
+  CHECK_FALSE(r.limits[1].binding);
+  const std::string table = sizing_table_markdown(spec, r);
+  CHECK(table.find("No design within the ranges") != std::string::npos);
+  CHECK(table.find("at the high end") != std::string::npos);
+  // The command line: exit 1, and the files are written.
+  const fs::path file = fs::temp_directory_path() / "swaybound-test-sizing-infeasible.yaml";
+  const fs::path out = fs::temp_directory_path() / "swaybound-test-size-infeasible";
+  fs::remove_all(out);
+  CHECK(run_cli(fmt::format("size {} --out {} --jobs 1", file.string(), out.string())) == 1);
+  CHECK(fs::exists(out / "sizing.md"));
+}
+
+TEST_CASE("catalogue values are respected", "[sizing]") {
+  SECTION("one catalogue damper: the least catalogue value above c*") {
+    const std::string sizing = R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", catalogue: [1, 2, 2.5, 3, 4, 6], cost: 1}
+  budget: {evaluations: 40}
+)";
+    const Spec spec = spec_file("catalogue", pendulum(sizing, "", "", 6));
+    const SizingResult r = run_sizing(spec, quiet());
+    CHECK(r.feasible);
+    CHECK(r.values[0] == 3.0);  // c* ~ 2.76 (file comment)
+    CHECK(r.catalogue_method.find("enumeration") != std::string::npos);
+  }
+  SECTION("a catalogue damper with a continuous dashpot: the dearer dashpot makes up the rest") {
+    // As in the two-damper case, but the rotary damper is cheaper (0.5 per unit) and comes only
+    // in {0, 1, 2}: the optimum takes 2 and the dashpot c* - 2.
+    const std::string dashpot = R"(dashpots:
+  - {name: steady, from: {link: arm, at: 1 m}, to: {base: [-50 m, -1 m]}, coefficient: 5 N s/m})";
+    const std::string sizing = R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", catalogue: [0, 1, 2], cost: 0.5}
+    - {path: "dashpots[steady].coefficient", range: [0, 10], cost: 1}
+  budget: {evaluations: 150}
+)";
+    const Spec spec = spec_file("catalogue-mixed", pendulum(sizing, "", dashpot, 1));
+    const SizingResult r = run_sizing(spec, quiet());
+    const double exact = closed_form_least_damping();
+    INFO("rotary " << r.values[0] << ", dashpot " << r.values[1] << ", c* " << exact);
+    CHECK(r.feasible);
+    CHECK(r.values[0] == 2.0);
+    CHECK(r.values[0] + r.values[1] >= exact * (1 - 5e-3));
+    CHECK(r.values[0] + r.values[1] <= exact * (1 + 1.5e-2));
+  }
+}
+
+TEST_CASE("the same seed gives the same design", "[sizing][determinism]") {
+  const std::string sizing = R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+  mode: global
+  seed: 42
+  budget: {evaluations: 60}
+)";
+  const Spec spec = spec_file("seeded", pendulum(sizing));
+  SizingOptions one = quiet(), two = quiet();
+  two.jobs = 1;
+  const SizingResult a = run_sizing(spec, one);
+  const SizingResult b = run_sizing(spec, two);
+  CHECK(a.algorithm.find("ISRES") != std::string::npos);
+  CHECK(a.values == b.values);
+  REQUIRE(a.history.size() == b.history.size());
+  for (std::size_t k = 0; k < a.history.size(); ++k) CHECK(a.history[k].values == b.history[k].values);
+  CHECK(a.feasible);
+  CHECK(a.values[0] <= closed_form_least_damping() * 1.01);
+}
+
+TEST_CASE("swaybound size: files, the sized spec and its check, exit status 2 without a sizing section",
+          "[sizing][cli]") {
+  const fs::path spec = fs::temp_directory_path() / "swaybound-test-size-cli.yaml";
+  std::ofstream(spec) << pendulum(kOneDamper);
+  const fs::path out = fs::temp_directory_path() / "swaybound-test-size-out";
+  fs::remove_all(out);
+  REQUIRE(run_cli(fmt::format("size {} --out {} --jobs 2", spec.string(), out.string())) == 0);
+  for (const char* name :
+       {"sized_spec.yaml", "results.json", "cases.csv", "sizing_history.csv", "sizing.md", "sizing.json"})
+    CHECK(fs::exists(out / name));
+  // The sized spec loads, carries its header, and results.json is the check of exactly that file.
+  const std::string sized = read_text(out / "sized_spec.yaml");
+  CHECK(sized.find("# Sized by swaybound") != std::string::npos);
+  CHECK(sized.find("licensed professional engineer") != std::string::npos);
+  const Spec reloaded = load_spec((out / "sized_spec.yaml").string());
+  CHECK(reloaded.links[0].pivot.damper->coefficient < 2.8);
+  const auto results = nlohmann::json::parse(read_text(out / "results.json"));
+  CHECK(results["spec"]["sha256"] == sha256_file((out / "sized_spec.yaml").string()));
+  const auto summary = nlohmann::json::parse(read_text(out / "sizing.json"));
+  CHECK(summary["feasible"] == true);
+  const std::string history = read_text(out / "sizing_history.csv");
+  CHECK(history.rfind("evaluation,kind,cases,links[arm].pivot.damper.coefficient [N m s/rad]", 0) == 0);
+  CHECK(history.find(",final,") != std::string::npos);
+
+  const fs::path plain = fs::temp_directory_path() / "swaybound-test-size-plain.yaml";
+  std::string text = pendulum(kOneDamper);
+  text.erase(text.find("sizing:"), text.find("solver:") - text.find("sizing:"));
+  std::ofstream(plain) << text;
+  const fs::path none = fs::temp_directory_path() / "swaybound-test-size-none";
+  fs::remove_all(none);
+  CHECK(run_cli(fmt::format("size {} --out {}", plain.string(), none.string())) == 2);
+  CHECK_FALSE(fs::exists(none));
+  CHECK_THROWS_AS(run_sizing(load_spec(plain.string())), SpecError);
+}
