@@ -1,0 +1,50 @@
+// reports/gantry_hook_block/ is the committed example packet of the demo spec. This test makes the
+// packet again and compares it with the committed one through `swaybound diff` and the numbers of
+// results.json, so any change in the figures is noticed (and the example must then be regenerated
+// and the change explained in the commit).
+#include <catch2/catch.hpp>
+#include <cmath>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <sys/wait.h>
+
+#include <nlohmann/json.hpp>
+
+#include "swaybound/report/diff.hpp"
+#include "swaybound/report/packet.hpp"
+
+using namespace swaybound;
+namespace fs = std::filesystem;
+
+TEST_CASE("the committed example packet matches a fresh check of the demo spec", "[packet][example]") {
+  const fs::path source(SWAYBOUND_SOURCE_DIR);
+  const fs::path committed = source / "reports/gantry_hook_block";
+  REQUIRE(fs::exists(committed / "results.json"));
+  CHECK(verify_manifest(committed.string()).empty());
+  const fs::path fresh = fs::temp_directory_path() / "swaybound-example-packet";
+  fs::remove_all(fresh);
+  const std::string cmd = std::string(SWAYBOUND_CLI) + " check " + (source / "specs/gantry_hook_block.yaml").string() +
+                          " --out " + fresh.string() + " --quiet >/dev/null 2>&1";
+  const int status = std::system(cmd.c_str());
+  REQUIRE(WIFEXITED(status));
+  CHECK(WEXITSTATUS(status) == 0);
+  const DiffResult d = diff_results(committed.string(), fresh.string(), 0.0);
+  CHECK(d.specs_compared);
+  CHECK(d.spec_changes.empty());
+  INFO(diff_report(d, false));
+  CHECK_FALSE(d.regression());
+  // Every worst value the same to 1e-6 relative (allowing only the last digits of libm to differ).
+  std::ifstream a(committed / "results.json"), b(fresh / "results.json");
+  const auto ja = nlohmann::json::parse(a), jb = nlohmann::json::parse(b);
+  REQUIRE(ja["checks"].size() == jb["checks"].size());
+  for (std::size_t i = 0; i < ja["checks"].size(); ++i) {
+    const auto& x = ja["checks"][i]["worst"];
+    const auto& y = jb["checks"][i]["worst"];
+    INFO(ja["checks"][i]["limit"]);
+    REQUIRE(x.is_number() == y.is_number());
+    if (x.is_number()) CHECK(y.get<double>() == Approx(x.get<double>()).epsilon(1e-6).margin(1e-12));
+    CHECK(ja["checks"][i]["governing_case"] == jb["checks"][i]["governing_case"]);
+  }
+  CHECK(ja["cases"]["count"] == jb["cases"]["count"]);
+}
