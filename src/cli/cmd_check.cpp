@@ -15,6 +15,7 @@
 #include "swaybound/core/cancel.hpp"
 #include "swaybound/core/hash.hpp"
 #include "swaybound/report/document.hpp"
+#include "swaybound/report/format.hpp"
 #include "swaybound/report/packet.hpp"
 #include "swaybound/report/results.hpp"
 #include "swaybound/spec.hpp"
@@ -25,17 +26,6 @@ namespace fs = std::filesystem;
 
 namespace {
 
-/// An SI value in the unit an engineer reads: deg for angles, kN for forces.
-std::string engineering(double v, const std::string& unit) {
-  if (std::isnan(v)) return "-";
-  if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
-  if (unit == "rad") return fmt::format("{:.3f} deg", v * 180 / M_PI);
-  if (unit == "rad/s") return fmt::format("{:.3f} deg/s", v * 180 / M_PI);
-  if (unit == "N") return fmt::format("{:.2f} kN", v / 1000);
-  if (unit.empty()) return fmt::format("{:.4g}", v);
-  return fmt::format("{:.4g} {}", v, unit);
-}
-
 void print_summary(const CheckReport& r, std::ostream& out) {
   out << fmt::format("{:<46} {:>14} {:>14} {:>14} {:>8}  {:<8} {}\n", "check", "limit", "worst", "margin", "ratio",
                      "verdict", "governing case");
@@ -44,7 +34,7 @@ void print_summary(const CheckReport& r, std::ostream& out) {
     if (name.size() > 46) name = name.substr(0, 45) + "~";
     out << fmt::format("{:<46} {:>14} {:>14} {:>14} {:>8}  {:<8} {}\n", name, engineering(c.limit_value, c.unit),
                        engineering(c.worst, c.unit), engineering(c.margin, c.unit),
-                       std::isfinite(c.margin_ratio) ? fmt::format("{:+.1f}%", 100 * c.margin_ratio) : "-",
+                       ratio_percent(c.margin_ratio),
                        c.pass ? "pass" : "FAIL", c.governing_id);
     if (c.failed_cases > 0)
       out << fmt::format("    {} case(s) failed to run; first: {}\n", c.failed_cases, c.first_failure);

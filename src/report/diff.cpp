@@ -9,6 +9,7 @@
 #include <nlohmann/json.hpp>
 
 #include "swaybound/core/error.hpp"
+#include "swaybound/report/format.hpp"
 #include "swaybound/report/results.hpp"
 #include "swaybound/spec/loader.hpp"
 
@@ -45,17 +46,6 @@ Loaded load(const std::string& path) {
 double number(const nlohmann::json& j, const char* key) {
   return j.contains(key) && j[key].is_number() ? j[key].get<double>() : std::nan("");
 }
-
-std::string engineering(double v, const std::string& unit) {
-  if (std::isnan(v)) return "-";
-  if (unit == "rad") return fmt::format("{:.3f} deg", v * 180 / M_PI);
-  if (unit == "rad/s") return fmt::format("{:.3f} deg/s", v * 180 / M_PI);
-  if (unit == "N") return fmt::format("{:.2f} kN", v / 1000);
-  if (unit.empty()) return fmt::format("{:.4g}", v);
-  return fmt::format("{:.4g} {}", v, unit);
-}
-
-std::string percent(double r) { return std::isfinite(r) ? fmt::format("{:+.1f}%", 100 * r) : "-"; }
 
 }  // namespace
 
@@ -144,7 +134,7 @@ std::string diff_report(const DiffResult& d, bool markdown) {
     for (const auto& r : d.rows)
       out += fmt::format("| {} | {} | {} | {} | {} | {} | {} | {} |\n", r.check, engineering(r.old_worst, r.unit),
                          engineering(r.new_worst, r.unit), engineering(r.old_margin, r.unit),
-                         engineering(r.new_margin, r.unit), percent(r.new_ratio - r.old_ratio), verdict_change(r),
+                         engineering(r.new_margin, r.unit), ratio_percent(r.new_ratio - r.old_ratio), verdict_change(r),
                          flag(r));
     if (d.specs_compared) {
       out += fmt::format("\n{} spec value(s) changed:\n\n", d.spec_changes.size());
@@ -166,7 +156,7 @@ std::string diff_report(const DiffResult& d, bool markdown) {
     std::string name = r.check.size() > 46 ? r.check.substr(0, 45) + "~" : r.check;
     out += fmt::format("{:<46} {:>14} {:>14} {:>14} {:>14} {:>9}  {} {}\n", name, engineering(r.old_worst, r.unit),
                        engineering(r.new_worst, r.unit), engineering(r.old_margin, r.unit),
-                       engineering(r.new_margin, r.unit), percent(r.new_ratio - r.old_ratio), verdict_change(r), flag(r));
+                       engineering(r.new_margin, r.unit), ratio_percent(r.new_ratio - r.old_ratio), verdict_change(r), flag(r));
   }
   if (d.specs_compared) {
     out += fmt::format("spec values changed: {}\n", d.spec_changes.size());

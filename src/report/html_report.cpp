@@ -5,6 +5,7 @@
 #include <fmt/format.h>
 
 #include "report_model.hpp"
+#include "text.hpp"
 #include "swaybound/report/document.hpp"
 
 namespace swaybound {
@@ -13,21 +14,7 @@ namespace {
 
 using namespace report_doc;
 
-std::string esc(const std::string& s) {
-  std::string out;
-  out.reserve(s.size());
-  for (char c : s) {
-    switch (c) {
-      case '&': out += "&amp;"; break;
-      case '<': out += "&lt;"; break;
-      case '>': out += "&gt;"; break;
-      case '"': out += "&quot;"; break;
-      case '\'': out += "&#39;"; break;
-      default: out += c;
-    }
-  }
-  return out;
-}
+std::string esc(const std::string& s) { return report_text::escape(s); }
 
 /// A CSS string literal (for @page margin boxes).
 std::string css_string(const std::string& s) {

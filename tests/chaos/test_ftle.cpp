@@ -28,19 +28,8 @@ struct Lorenz {
   }
 };
 
-/// Two point masses on massless links (as equal_double() in tests/dynamics/test_references.cpp).
-std::string equal_double(double length, double mass) {
-  return fmt::format(R"(
-swaybound: 1
-name: equal double pendulum
-gravity: {0}
-links:
-  - {{name: upper, length: {1}, mass: {2}, com: {1}, inertia: 0}}
-  - {{name: lower, length: {1}, mass: {2}, com: {1}, inertia: 0}}
-cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1]}}}}]}}
-)",
-                     kG, length, mass);
-}
+/// Two point masses on massless links (tests/dynamics/fixtures.hpp).
+std::string equal_double(double length, double mass) { return swaybound::testing::equal_double_yaml(length, mass, kG); }
 
 FtleSettings ftle_settings(double horizon) {
   FtleSettings s;

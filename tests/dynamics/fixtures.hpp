@@ -1,6 +1,8 @@
 #pragma once
 // Shared fixtures for dynamics tests: build a model from inline YAML, run a case, keep samples.
 #include <string>
+
+#include <fmt/format.h>
 #include <vector>
 
 #include "swaybound/integrate/run.hpp"
@@ -24,6 +26,22 @@ struct Trace {
 };
 
 inline Model model_from_yaml(const std::string& yaml) { return build_model(load_spec_text(yaml, "inline.yaml")); }
+
+/// Equal double pendulum: two point masses `mass` on massless links `length`, gravity `g`, plus
+/// `extra` YAML (limits, base, ...).
+inline std::string equal_double_yaml(double length, double mass, double g = 9.81, const std::string& extra = "") {
+  return fmt::format(R"(
+swaybound: 1
+name: equal double pendulum
+gravity: {0}
+links:
+  - {{name: upper, length: {1}, mass: {2}, com: {1}, inertia: 0}}
+  - {{name: lower, length: {1}, mass: {2}, com: {1}, inertia: 0}}
+cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1]}}}}]}}
+{3}
+)",
+                     g, length, mass, extra);
+}
 
 /// Runs one case, keeping samples at `output_rate` per second (dense output).
 inline Trace run_trace(const Model& model, const InitialState& start, RunSettings settings, int scenario = 0) {

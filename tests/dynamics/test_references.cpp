@@ -31,17 +31,7 @@ cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1]}}}}]}}
 }
 
 std::string equal_double(double length, double mass, const std::string& extra = "") {
-  return fmt::format(R"(
-swaybound: 1
-name: equal double pendulum
-gravity: {0}
-links:
-  - {{name: upper, length: {1}, mass: {2}, com: {1}, inertia: 0}}
-  - {{name: lower, length: {1}, mass: {2}, com: {1}, inertia: 0}}
-cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1]}}}}]}}
-{3}
-)",
-                     kG, length, mass, extra);
+  return equal_double_yaml(length, mass, kG, extra);
 }
 }  // namespace
 

@@ -13,6 +13,7 @@
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
+#include "../dynamics/fixtures.hpp"
 #include "swaybound/dynamics/chain.hpp"
 #include "swaybound/modal/modes.hpp"
 #include "swaybound/spec.hpp"
@@ -70,16 +71,7 @@ TEST_CASE("modes: equal double pendulum of point masses", "[modal]") {
   // Point masses m on massless links L: w^2 = (2 -+ sqrt 2) g / L, mode shapes theta2/theta1 = +-sqrt 2
   // (Goldstein, Classical Mechanics, 3rd ed., ch. 6).
   const double L = 1.5, m = 3.0;
-  const Model model = model_of(fmt::format(R"(
-swaybound: 1
-name: equal double pendulum
-gravity: {0}
-links:
-  - {{name: upper, length: {1}, mass: {2}, com: {1}, inertia: 0}}
-  - {{name: lower, length: {1}, mass: {2}, com: {1}, inertia: 0}}
-cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1]}}}}]}}
-)",
-                                           kG, L, m));
+  const Model model = model_of(swaybound::testing::equal_double_yaml(L, m, kG));
   const ModalResult r = modal_analysis(model);
   REQUIRE(r.modes.size() == 2);
   const double w_slow = std::sqrt((2 - std::sqrt(2.0)) * kG / L), w_fast = std::sqrt((2 + std::sqrt(2.0)) * kG / L);
