@@ -3,29 +3,31 @@
 #include <unistd.h>
 
 #include <cmath>
-#include <filesystem>
 #include <fstream>
 #include <iostream>
+#include <sstream>
 
 #include <fmt/format.h>
 
 #include "commands.hpp"
 #include "swaybound/cases/case_space.hpp"
+#include "swaybound/core/cancel.hpp"
+#include "swaybound/core/hash.hpp"
+#include "swaybound/report/packet.hpp"
 #include "swaybound/report/results.hpp"
 #include "swaybound/sizing/sizing.hpp"
 #include "swaybound/spec.hpp"
 
 namespace swaybound::cli {
 
-namespace fs = std::filesystem;
-
 namespace {
 
-void write_text(const fs::path& path, const std::string& text) {
-  std::ofstream out(path, std::ios::binary);
-  out << text;
-  out.close();
-  if (!out) throw RunError(fmt::format("writing {} failed", path.string()));
+std::string read_file_text(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  std::ostringstream s;
+  s << in.rdbuf();
+  if (!in && !in.eof()) throw RunError(fmt::format("cannot read {}", path));
+  return s.str();
 }
 
 }  // namespace
@@ -38,7 +40,7 @@ Action add_size(CLI::App& app) {
     int jobs = 0;
     long max_cases = kDefaultMaxCases;
     long screening = 64;
-    bool no_audit = false, quiet = false;
+    bool no_audit = false, quiet = false, force = false;
   };
   auto o = std::make_shared<Options>();
   cmd->add_option("SPEC", o->spec, "YAML design spec with a sizing section")->required();
@@ -50,6 +52,7 @@ Action add_size(CLI::App& app) {
       ->check(CLI::NonNegativeNumber)
       ->capture_default_str();
   cmd->add_flag("--no-audit", o->no_audit, "Final check without re-running governing cases at a tighter tolerance");
+  cmd->add_flag("--force", o->force, "Replace an output folder made from a different spec, or one that is not ours");
   cmd->add_flag("--quiet", o->quiet, "No progress on stderr");
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
@@ -57,6 +60,9 @@ Action add_size(CLI::App& app) {
     // Input errors (no sizing section, an objective that cannot be computed) before anything is written.
     design_variables(spec);
     objective_metric(spec);
+    const std::string spec_sha = sha256_file(o->spec);
+    // Checks the overwrite rule and that the folder can be written before any work is done.
+    PacketWriter packet(o->out, spec_sha, o->force);
     const CaseSpace space(spec);
     const SizingSpec& s = *spec.sizing;
     std::cerr << fmt::format("{}: {} design variable(s), {} cases ({} starts x {} scenarios), {:g} s each; budget "
@@ -64,67 +70,66 @@ Action add_size(CLI::App& app) {
                              o->spec, s.variables.size(), space.size(), space.starts(), spec.scenarios.size(),
                              spec.cases.duration, s.max_evaluations, s.max_seconds,
                              s.mode == SearchMode::local ? "local" : "global", s.seed);
+    install_cancel_handlers();
 
-    const fs::path target(o->out);
-    const fs::path parent = target.has_parent_path() ? target.parent_path() : fs::path(".");
-    std::error_code ec;
-    fs::create_directories(parent, ec);
-    const fs::path temp = parent / fmt::format(".{}.partial-{}", target.filename().string(), ::getpid());
-    fs::remove_all(temp, ec);
-    if (!fs::create_directories(temp, ec) || ec)
-      throw RunError(fmt::format("cannot create the output folder {}: {}", temp.string(), ec.message()));
-    try {
-      std::ofstream csv(temp / "cases.csv", std::ios::binary);
-      SizingOptions options;
-      options.jobs = o->jobs;
-      options.screening_cases = o->screening;
-      options.audit = !o->no_audit;
-      options.load = LoadOptions{o->max_cases};
-      bool header_written = false;
-      options.on_final_case = [&](const CaseMetrics& m) {
-        if (!header_written) csv << cases_csv_header(spec);
-        header_written = true;
-        csv << cases_csv_row(spec, m);
+    std::ofstream csv(packet.path("cases.csv"), std::ios::binary);
+    SizingOptions options;
+    options.jobs = o->jobs;
+    options.screening_cases = o->screening;
+    options.audit = !o->no_audit;
+    options.load = LoadOptions{o->max_cases};
+    bool header_written = false;
+    options.on_final_case = [&](const CaseMetrics& m) {
+      if (!header_written) csv << cases_csv_header(spec);
+      header_written = true;
+      csv << cases_csv_row(spec, m);
+    };
+    options.write_sized_spec = [&](const std::string& text) {
+      packet.write("sized_spec.yaml", text);
+      return packet.path("sized_spec.yaml");
+    };
+    const bool terminal = !o->quiet && ::isatty(2);
+    if (terminal)
+      options.progress = [](const SizingProgress& p) {
+        std::cerr << fmt::format("\r  {:>4}/{} evaluations  best {}{}  least margin {}  {:.0f} s left  [{}]     ",
+                                 p.evaluations, p.max_evaluations,
+                                 std::isnan(p.best_objective) ? std::string("-") : fmt::format("{:.6g}", p.best_objective),
+                                 std::isnan(p.best_objective) ? "" : p.best_verified ? " (verified)" : " (screened)",
+                                 std::isnan(p.best_least) ? std::string("-") : fmt::format("{:+.2f}%", 100 * p.best_least),
+                                 p.seconds_left, p.phase)
+                  << std::flush;
       };
-      options.write_sized_spec = [&](const std::string& text) {
-        write_text(temp / "sized_spec.yaml", text);
-        return (temp / "sized_spec.yaml").string();
-      };
-      const bool terminal = !o->quiet && ::isatty(2);
-      if (terminal)
-        options.progress = [](const SizingProgress& p) {
-          std::cerr << fmt::format("\r  {:>4}/{} evaluations  best {}{}  least margin {}  {:.0f} s left  [{}]     ",
-                                   p.evaluations, p.max_evaluations,
-                                   std::isnan(p.best_objective) ? std::string("-") : fmt::format("{:.6g}", p.best_objective),
-                                   std::isnan(p.best_objective) ? "" : p.best_verified ? " (verified)" : " (screened)",
-                                   std::isnan(p.best_least) ? std::string("-") : fmt::format("{:+.2f}%", 100 * p.best_least),
-                                   p.seconds_left, p.phase)
-                    << std::flush;
-        };
-      const SizingResult result = run_sizing(spec, options);
-      if (terminal) std::cerr << '\n';
-      csv.close();
-      if (!csv) throw RunError(fmt::format("writing {} failed", (temp / "cases.csv").string()));
-      write_text(temp / "results.json", results_json(result.sized, result.after));
-      write_text(temp / "sizing_history.csv", sizing_history_csv(spec, result));
-      const std::string table = sizing_table_markdown(spec, result);
-      write_text(temp / "sizing.md", table);
-      write_text(temp / "sizing.json", sizing_summary_json(spec, result));
-      fs::copy_file(spec.source_file, temp / "input_spec.yaml", fs::copy_options::overwrite_existing);
-      // Replace the previous output only now that the new one is complete.
-      const fs::path old = parent / fmt::format(".{}.old-{}", target.filename().string(), ::getpid());
-      if (fs::exists(target)) fs::rename(target, old);
-      fs::rename(temp, target);
-      fs::remove_all(old, ec);
-      std::cout << table;
-      std::cerr << fmt::format("wrote {}/sized_spec.yaml, results.json, cases.csv, sizing_history.csv, sizing.md, "
-                               "sizing.json ({} evaluations, {:.1f} s)\n",
-                               target.string(), result.evaluations, result.seconds);
-      return result.feasible ? kExitPass : kExitFail;
-    } catch (...) {
-      fs::remove_all(temp, ec);
-      throw;
-    }
+    const SizingResult result = run_sizing(spec, options);
+    if (terminal) std::cerr << '\n';
+    csv.close();
+    if (!csv) throw RunError(fmt::format("writing {} failed (disk full or not writable?)", packet.path("cases.csv")));
+    packet.write("results.json", results_json(result.sized, result.after));
+    packet.write("sizing_history.csv", sizing_history_csv(spec, result));
+    const std::string table = sizing_table_markdown(spec, result);
+    packet.write("sizing.md", table);
+    packet.write("sizing.json", sizing_summary_json(spec, result));
+    packet.write("input_spec.yaml", read_file_text(o->spec));
+    throw_if_cancelled();
+    ManifestInfo info;
+    info.spec_file = "input_spec.yaml";
+    info.spec_sha256 = spec_sha;
+    info.date_utc = now_utc_iso8601();
+    info.settings.push_back(fmt::format("sizing: objective={} mode={} seed={} budget={} evaluations, {:g} s; "
+                                        "screening={} cases",
+                                        s.objective == Objective::min_cost     ? "min_cost"
+                                        : s.objective == Objective::max_margin ? "max_margin"
+                                                                               : "min_metric",
+                                        s.mode == SearchMode::local ? "local" : "global", s.seed, s.max_evaluations,
+                                        s.max_seconds, result.screening_size));
+    info.settings.push_back(fmt::format("sized spec: sized_spec.yaml sha256={} (results.json is its check)",
+                                        result.after.spec_sha256));
+    info.settings.push_back(fmt::format("accuracy_audit: {}", o->no_audit ? "off" : "governing cases at rtol/100, atol/100"));
+    packet.commit(info);
+    std::cout << table;
+    std::cerr << fmt::format("wrote {}: sized_spec.yaml, results.json, cases.csv, sizing_history.csv, sizing.md, "
+                             "sizing.json ({} evaluations, {:.1f} s)\n",
+                             packet.target(), result.evaluations, result.seconds);
+    return result.feasible ? kExitPass : kExitFail;
   };
 }
 

@@ -274,14 +274,13 @@ void finish_reactions(const Model& model, Workspace& ws) {
 
 double mechanical_energy(const Model& model, const Workspace& ws) {
   double energy = 0;
-  double px = ws.base_x, py = ws.base_y, vx = ws.base_vx, vy = ws.base_vy;
+  double py = ws.base_y, vx = ws.base_vx, vy = ws.base_vy;  // x positions do not enter the energy
   for (int k = 0; k < model.n; ++k) {
     const double c = model.com[k];
     const double cy = py - c * ws.cos_t[k];
     const double cvx = vx + c * ws.omega[k] * ws.cos_t[k], cvy = vy + c * ws.omega[k] * ws.sin_t[k];
     energy += 0.5 * model.mass[k] * (cvx * cvx + cvy * cvy) + 0.5 * model.inertia[k] * ws.omega[k] * ws.omega[k] +
               model.mass[k] * model.gravity * cy;
-    px += model.length[k] * ws.sin_t[k];
     py -= model.length[k] * ws.cos_t[k];
     vx += model.length[k] * ws.omega[k] * ws.cos_t[k];
     vy += model.length[k] * ws.omega[k] * ws.sin_t[k];

@@ -143,6 +143,10 @@ class Driver {
   bool after_step(const State& x, double t, double dt_taken, bool phase_end) {
     ++outcome_.steps;
     if (!finite(x)) {
+      if (ws_.friction_unconverged > 0)  // the cause, not the symptom: a pin-friction iteration that diverged
+        fail(RunStatus::friction_unconverged,
+             fmt::format("pin friction did not converge in {} evaluations; the state became non-finite at t = {:.6g} s",
+                         ws_.friction_unconverged, t));
       fail(RunStatus::non_finite, fmt::format("the state became non-finite at t = {:.6g} s", t));
       return false;
     }

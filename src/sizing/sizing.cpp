@@ -638,8 +638,8 @@ SizingResult Sizer::run() {
     metric_scale_ = std::isfinite(metric) && metric != 0 ? std::fabs(metric) : 1.0;
     Point p = make_point(r.initial_values, r.outcome_before);
     p.verified = true;
-    record(p, EvaluationKind::initial);
     if (initial_in_range_) consider_verified(p);
+    record(p, EvaluationKind::initial);
     // 2. The screening set: every k-th case, the governing and the failed cases of the design as given.
     const long n = r.case_count;
     const long target = options_.screening_cases;

@@ -30,6 +30,7 @@
 #include <nlohmann/json.hpp>
 
 #include "swaybound/core/hash.hpp"
+#include "swaybound/report/packet.hpp"
 #include "swaybound/sizing/sizing.hpp"
 #include "swaybound/spec.hpp"
 
@@ -337,6 +338,9 @@ TEST_CASE("swaybound size: files, the sized spec and its check, exit status 2 wi
   CHECK(results["spec"]["sha256"] == sha256_file((out / "sized_spec.yaml").string()));
   const auto summary = nlohmann::json::parse(read_text(out / "sizing.json"));
   CHECK(summary["feasible"] == true);
+  CHECK(verify_manifest(out.string()).empty());
+  // The same input replaces its own output without --force.
+  CHECK(run_cli(fmt::format("size {} --out {} --jobs 1 --quiet", spec.string(), out.string())) == 0);
   const std::string history = read_text(out / "sizing_history.csv");
   CHECK(history.rfind("evaluation,kind,cases,links[arm].pivot.damper.coefficient [N m s/rad]", 0) == 0);
   CHECK(history.find(",final,") != std::string::npos);
@@ -350,4 +354,49 @@ TEST_CASE("swaybound size: files, the sized spec and its check, exit status 2 wi
   CHECK(run_cli(fmt::format("size {} --out {}", plain.string(), none.string())) == 2);
   CHECK_FALSE(fs::exists(none));
   CHECK_THROWS_AS(run_sizing(load_spec(plain.string())), SpecError);
+}
+
+TEST_CASE("other objectives and the time budget", "[sizing]") {
+  const auto sized = [](const std::string& name, const std::string& extra) {
+    const std::string sizing = std::string(R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+  budget: {evaluations: 40}
+)") + extra;
+    return run_sizing(spec_file(name, pendulum(sizing, "  - {modal_damping_min: 0.01}")), quiet());
+  };
+  SECTION("max_margin: more damping, more margin; the high end") {
+    const SizingResult r = sized("max-margin", "  objective: max_margin\n");
+    CHECK(r.feasible);
+    CHECK(r.variable_outcomes[0].at_bound == +1);
+    CHECK(r.objective_after == Approx(r.outcome_after.least()));
+    CHECK(r.objective_after > r.objective_before);
+  }
+  SECTION("{min: peak_rate}: the peak rate falls with damping; the high end") {
+    const SizingResult r = sized("min-peak-rate", "  objective: {min: peak_rate}\n");
+    CHECK(r.variable_outcomes[0].at_bound == +1);
+    CHECK(r.objective_after < r.objective_before);
+    CHECK(r.objective_unit == "rad/s");
+  }
+  SECTION("{min: modal_damping_min}, a lower-bound kind, is raised: the high end, zeta of the closed form") {
+    const SizingResult r = sized("max-damping", "  objective: {min: modal_damping_min}\n");
+    CHECK(r.variable_outcomes[0].at_bound == +1);
+    CHECK(r.objective_after == Approx(zeta_of(10)).epsilon(1e-9));  // zeta = c / (2 m L^2 w_n)
+  }
+  SECTION("a spent time budget leaves the verified design as given, never an unverified one") {
+    const std::string sizing = R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+  budget: {evaluations: 40, seconds: 1 ms}
+)";
+    const SizingResult r = run_sizing(spec_file("time-budget", pendulum(sizing)), quiet());
+    CHECK(r.stop_reason == "time budget");
+    CHECK(r.feasible);
+    // The design reported passed a full check before the final one (the design as given, 8, unless
+    // an evaluation or two fitted into the millisecond and their best was verified).
+    bool verified_before = false;
+    for (const auto& e : r.history)
+      verified_before |= (e.kind == EvaluationKind::initial || e.kind == EvaluationKind::verification) && e.pass &&
+                         e.values == r.values;
+    CHECK(verified_before);
+    CHECK(r.screening_evaluations <= 5);
+  }
 }

@@ -6,6 +6,9 @@
 // How the search goes (specs/README.md, "sizing", has the user's version):
 //   1. The design as given is checked on every case ("before"). Its governing cases, plus every
 //      k-th case (k chosen so that about `screening_cases` are taken), form the screening set.
+//      The chaotic-onset search (costly, not per case) is screened only once a full check finds
+//      onset_margin failing or within 25% of its limit; until then screening takes its value from
+//      the latest full check (optimistic, so screening stays a relaxation).
 //   2. The search runs on the screening set, with every variable scaled to [0, 1]. Local: COBYLA
 //      (derivative-free, constrained by linear approximations in a trust region) from the design
 //      as given (clamped into the ranges). Global: ISRES (stochastic ranking evolution strategy,
