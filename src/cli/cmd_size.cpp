@@ -10,6 +10,7 @@
 #include <fmt/format.h>
 
 #include "commands.hpp"
+#include "swaybound/report/plot.hpp"
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/core/cancel.hpp"
 #include "swaybound/core/hash.hpp"
@@ -105,6 +106,26 @@ Action add_size(CLI::App& app) {
     if (!csv) throw RunError(fmt::format("writing {} failed (disk full or not writable?)", packet.path("cases.csv")));
     packet.write("results.json", results_json(result.sized, result.after));
     packet.write("sizing_history.csv", sizing_history_csv(spec, result));
+    {
+      // Convergence: the objective and the least constraint value of every evaluation.
+      plot::Series objective{"objective", {}, {}, false, true, 0}, least{"least margin (constraint value)", {}, {}, false, true, 1};
+      for (const auto& e : result.history) {
+        objective.x.push_back(static_cast<double>(e.number));
+        objective.y.push_back(e.objective);
+        least.x.push_back(static_cast<double>(e.number));
+        least.y.push_back(std::isfinite(e.least) ? e.least : std::nan(""));
+      }
+      const plot::Plot objective_plot =
+          plot::scatter_chart("Sizing: objective per evaluation", plot::Axis{"evaluation", ""}, plot::Axis{result.objective_label, result.objective_unit},
+                        {objective});
+      const plot::Plot margin_plot =
+          plot::scatter_chart("Sizing: least margin per evaluation (>= 0 passes)", plot::Axis{"evaluation", ""},
+                        plot::Axis{"least constraint value", ""}, {least}, {plot::RefLine{0.0, "feasible above"}});
+      packet.write("convergence_objective.svg", plot::to_svg(objective_plot, "obj"));
+      packet.write("convergence_margin.svg", plot::to_svg(margin_plot, "mar"));
+      packet.write("convergence_objective.png", plot::to_png(objective_plot));
+      packet.write("convergence_margin.png", plot::to_png(margin_plot));
+    }
     const std::string table = sizing_table_markdown(spec, result);
     packet.write("sizing.md", table);
     packet.write("sizing.json", sizing_summary_json(spec, result));

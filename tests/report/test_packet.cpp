@@ -166,3 +166,30 @@ TEST_CASE("a full disk is reported as a write error and leaves no packet", "[pac
   CHECK_FALSE(fs::exists(out));
   CHECK_FALSE(partial_left(out));
 }
+
+TEST_CASE("swaybound size writes its convergence plots into its output folder", "[packet][sizing]") {
+  const fs::path out = temp("sizing-out");
+  fs::remove_all(out);
+  const fs::path spec = write_spec("sizing", R"(
+swaybound: 1
+name: sizing convergence plot
+gravity: 9.81
+links:
+  - {name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {damper: {coefficient: 5}}}
+cases: {duration: 10 s, initial: [{single: {theta: [2 deg]}}]}
+limits:
+  - {residual_sway: 0.5 deg, after: 9.5 s}
+sizing:
+  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+  budget: {evaluations: 60}
+)");
+  REQUIRE(run_cli(fmt::format("size {} --out {} --quiet", spec.string(), out.string())) == 0);
+  for (const char* name : {"convergence_objective.svg", "convergence_margin.svg"}) {
+    std::ifstream in(out / name);
+    std::string text((std::istreambuf_iterator<char>(in)), {});
+    CHECK(text.find("<svg") != std::string::npos);
+  }
+  CHECK(fs::file_size(out / "convergence_margin.png") > 1000);
+  CHECK(verify_manifest(out.string()).empty());
+}
