@@ -345,7 +345,8 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   }
   report.seconds_audit = seconds_since(audit_start);
   report.checks = checks.results();
-  report.pass = checks.all_pass();
+  // A case that failed to run fails the check run even when no per-case limit touches it.
+  report.pass = checks.all_pass() && report.failed_total == 0;
   return report;
 }
 

@@ -219,10 +219,9 @@ solver: {max_steps: 20000, max_seconds: 20 s}
   require_failed_case(r, "non_finite", "non-finite");
 }
 
-TEST_CASE("a failed case fails the check run even when no per-case limit exists", "[.][known-bug][faults][reliability]") {
-  // Hidden until fixed in src/checks/check_run.cpp (report.pass = checks.all_pass() ignores
-  // failed_total): with no per-case limit, a case that fails to run is listed, but the verdict is
-  // "all checks pass" and `swaybound check` exits 0. Run with: swaybound_tests "[known-bug]".
+TEST_CASE("a failed case fails the check run even when no per-case limit exists", "[faults][reliability]") {
+  // Regression: with no per-case limit, a case that failed to run was listed but the verdict
+  // was "all checks pass" and `swaybound check` exited 0.
   const CheckReport r = check_text("no_limits", R"(swaybound: 1
 name: no per-case limit
 links:

@@ -48,14 +48,6 @@ int run_cli(const std::string& args) {
   return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
 }
 
-/// A half-written packet of `target` (other tests may be writing their own beside it).
-bool partial_left(const fs::path& target) {
-  const std::string prefix = "." + target.filename().string() + ".partial-";
-  for (const auto& e : fs::directory_iterator(target.parent_path()))
-    if (e.path().filename().string().rfind(prefix, 0) == 0) return true;
-  return false;
-}
-
 }  // namespace
 
 TEST_CASE("the MANIFEST lists every file with a SHA-256 that verifies", "[packet]") {
@@ -116,8 +108,9 @@ TEST_CASE("SIGINT during a check leaves the previous packet intact and no half p
     _exit(127);
   }
   // Wait until the run is under way (its half-written packet exists), then interrupt it.
-  for (int k = 0; k < 400 && !partial_left(out); ++k) std::this_thread::sleep_for(std::chrono::milliseconds(25));
-  REQUIRE(partial_left(out));
+  const fs::path own = out.parent_path() / fmt::format(".{}.partial-{}", out.filename().string(), pid);
+  for (int k = 0; k < 400 && !fs::exists(own); ++k) std::this_thread::sleep_for(std::chrono::milliseconds(25));
+  REQUIRE(fs::exists(own));
   std::this_thread::sleep_for(std::chrono::milliseconds(200));
   kill(pid, SIGINT);
   int status = 0;
@@ -126,7 +119,8 @@ TEST_CASE("SIGINT during a check leaves the previous packet intact and no half p
   CHECK(WEXITSTATUS(status) == 128 + SIGINT);
   CHECK(packet_spec_sha256(out.string()) == before);
   CHECK(verify_manifest(out.string()).empty());
-  CHECK_FALSE(partial_left(out));
+  // The interrupted process's own half packet is gone (other processes' folders are not its own).
+  CHECK_FALSE(fs::exists(out.parent_path() / fmt::format(".{}.partial-{}", out.filename().string(), pid)));
 }
 
 TEST_CASE("diff flags a worsened margin after a spec edit and exits 1", "[packet][diff]") {
@@ -164,7 +158,7 @@ TEST_CASE("a full disk is reported as a write error and leaves no packet", "[pac
     CHECK_THROWS_AS(packet.write("results.json", std::string(1 << 16, 'x')), RunError);
   }
   CHECK_FALSE(fs::exists(out));
-  CHECK_FALSE(partial_left(out));
+  CHECK_FALSE(fs::exists(out.parent_path() / fmt::format(".{}.partial-{}", out.filename().string(), ::getpid())));
 }
 
 TEST_CASE("swaybound size writes its convergence plots into its output folder", "[packet][sizing]") {
