@@ -11,7 +11,9 @@ void Scratch<N>::resize(int n) {
   if constexpr (N == Eigen::Dynamic) {
     M.resize(n, n);
     M_inverse.resize(0, 0);
-    llt = Eigen::LLT<Matrix>(n);
+    // Sizes the factor by factoring the identity. Not `llt = LLT<Matrix>(n)`: Eigen 3.4's LLT(Index)
+    // leaves m_info uninitialised and the move assignment reads it (UBSan: invalid enum value).
+    llt.compute(Matrix::Identity(n, n));
     bias.resize(n);
     rhs.resize(n);
     alpha.resize(n);
