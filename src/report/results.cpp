@@ -1,6 +1,7 @@
 #include "swaybound/report/results.hpp"
 
 #include <cmath>
+#include <string_view>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
@@ -121,45 +122,66 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
   return j.dump(2) + "\n";
 }
 
+namespace {
+/// Appends ",value" to a CSV line. (Written out rather than `line += "," + value`: g++ 12 reports a
+/// false -Wrestrict inside <string> for that form at -O2.)
+void add_field(std::string& line, std::string_view value) {
+  line += ',';
+  line += value;
+}
+}  // namespace
+
 std::string cases_csv_header(const Spec& spec) {
   std::string h = "\"case\",\"scenario\",\"set\",\"status\"";
-  for (const auto& l : spec.links) h += "," + csv_quote(fmt::format("theta0({}) [rad]", l.name));
-  for (const auto& l : spec.links) h += "," + csv_quote(fmt::format("omega0({}) [rad/s]", l.name));
+  const auto column = [&h](const std::string& name) { add_field(h, csv_quote(name)); };
+  for (const auto& l : spec.links) column(fmt::format("theta0({}) [rad]", l.name));
+  for (const auto& l : spec.links) column(fmt::format("omega0({}) [rad/s]", l.name));
   for (const auto& l : spec.links) {
-    h += "," + csv_quote(fmt::format("peak_angle({}) [rad]", l.name));
-    h += "," + csv_quote(fmt::format("peak_relative_angle({}) [rad]", l.name));
-    h += "," + csv_quote(fmt::format("peak_rate({}) [rad/s]", l.name));
-    h += "," + csv_quote(fmt::format("peak_pivot_load({}) [N]", l.name));
-    h += "," + csv_quote(fmt::format("dynamic_factor({}) [-]", l.name));
+    column(fmt::format("peak_angle({}) [rad]", l.name));
+    column(fmt::format("peak_relative_angle({}) [rad]", l.name));
+    column(fmt::format("peak_rate({}) [rad/s]", l.name));
+    column(fmt::format("peak_pivot_load({}) [N]", l.name));
+    column(fmt::format("dynamic_factor({}) [-]", l.name));
     if (l.kind == LinkKind::rope) {
-      h += "," + csv_quote(fmt::format("min_rope_tension({}) [N]", l.name));
-      h += "," + csv_quote(fmt::format("min_rope_tension_time({}) [s]", l.name));
+      column(fmt::format("min_rope_tension({}) [N]", l.name));
+      column(fmt::format("min_rope_tension_time({}) [s]", l.name));
     }
   }
   for (std::size_t i = 0; i < spec.limits.size(); ++i)
-    if (spec.limits[i].kind == LimitKind::residual_sway)
-      h += "," + csv_quote(fmt::format("residual_sway(limits[{}]) [rad]", i));
+    if (spec.limits[i].kind == LimitKind::residual_sway) column(fmt::format("residual_sway(limits[{}]) [rad]", i));
   h += ",\"settling_time [s]\",\"ftle [1/s]\",\"energy_audit_relative [-]\",\"steps\",\"reason\"\n";
   return h;
 }
 
 std::string cases_csv_row(const Spec& spec, const CaseMetrics& m) {
-  std::string row = csv_quote(m.id) + "," + csv_quote(spec.scenarios[static_cast<std::size_t>(m.scenario)].name) + "," +
-                    csv_quote(spec.cases.initial[static_cast<std::size_t>(m.set)].name) + "," +
-                    std::string(status_name(m.status));
+  std::string row = csv_quote(m.id);
+  add_field(row, csv_quote(spec.scenarios[static_cast<std::size_t>(m.scenario)].name));
+  add_field(row, csv_quote(spec.cases.initial[static_cast<std::size_t>(m.set)].name));
+  add_field(row, status_name(m.status));
   const std::size_t n = spec.links.size();
-  for (std::size_t i = 0; i < n; ++i) row += "," + csv_number(i < m.initial.theta.size() ? m.initial.theta[i] : 0.0);
-  for (std::size_t i = 0; i < n; ++i) row += "," + csv_number(i < m.initial.omega.size() ? m.initial.omega[i] : 0.0);
+  for (std::size_t i = 0; i < n; ++i) add_field(row, csv_number(i < m.initial.theta.size() ? m.initial.theta[i] : 0.0));
+  for (std::size_t i = 0; i < n; ++i) add_field(row, csv_number(i < m.initial.omega.size() ? m.initial.omega[i] : 0.0));
+  // A failed run has no peaks: its measured fields stay empty.
   const bool ok = m.ok();
+  const auto measured = [&row, ok](double x) { add_field(row, ok ? csv_number(x) : std::string()); };
   for (std::size_t i = 0; i < n; ++i) {
-    const auto v = [&](double x) { return ok ? csv_number(x) : std::string(); };
-    row += "," + v(m.peak_angle[i].value) + "," + v(m.peak_relative[i].value) + "," + v(m.peak_rate[i].value) + "," +
-           v(m.peak_load[i].value) + "," + v(m.dynamic_factor[i]);
-    if (spec.links[i].kind == LinkKind::rope) row += "," + v(m.min_tension[i].value) + "," + v(m.min_tension[i].time);
+    measured(m.peak_angle[i].value);
+    measured(m.peak_relative[i].value);
+    measured(m.peak_rate[i].value);
+    measured(m.peak_load[i].value);
+    measured(m.dynamic_factor[i]);
+    if (spec.links[i].kind == LinkKind::rope) {
+      measured(m.min_tension[i].value);
+      measured(m.min_tension[i].time);
+    }
   }
-  for (double r : m.residual) row += "," + (ok ? csv_number(r) : std::string());
-  row += "," + (ok ? csv_number(m.settling_time) : std::string()) + "," + csv_number(m.ftle) + "," +
-         csv_number(m.audit_relative) + "," + std::to_string(m.steps) + "," + csv_quote(m.reason) + "\n";
+  for (double r : m.residual) measured(r);
+  measured(m.settling_time);
+  add_field(row, csv_number(m.ftle));
+  add_field(row, csv_number(m.audit_relative));
+  add_field(row, std::to_string(m.steps));
+  add_field(row, csv_quote(m.reason));
+  row += '\n';
   return row;
 }
 
