@@ -35,17 +35,17 @@ base:
     - {name: still}
     - {name: brake, initial_velocity: {x: 1 m/s}, accel: [{for: 0.5 s, x: -2 m/s^2}]}
 cases:
-  duration: 6 s
+  duration: 4 s
   initial:
-    - random: {count: 8, seed: 11, theta: [[60 deg, 150 deg], [-150 deg, 150 deg]]}
-    - random: {count: 8, seed: 12, method: latin_hypercube, theta: [[-120 deg, 120 deg], [-120 deg, 120 deg]],
+    - random: {count: 6, seed: 11, theta: [[60 deg, 150 deg], [-150 deg, 150 deg]]}
+    - random: {count: 6, seed: 12, method: latin_hypercube, theta: [[-120 deg, 120 deg], [-120 deg, 120 deg]],
                rate: [[-1, 1], [-2, 2]]}
     - ladder: {from: {theta: [120 deg, 100 deg]}, relative: [1e-3, 1e-6, 1e-9]}
 limits:
   - {peak_angle: 150 deg}
   - {pivot_load: 200 N}
-  - {ftle_max: 0.5 /s, horizon: 6 s}
-chaos: {onset: {max: 120 deg, resolution: 10 deg}}
+  - {ftle_max: 0.5 /s, horizon: 4 s}
+chaos: {onset: {max: 120 deg, resolution: 15 deg}}
 )";
 
 fs::path write_spec() {
@@ -77,17 +77,16 @@ TEST_CASE("results.json is byte-identical for 1, 2 and 4 threads and across repe
   CHECK(results_for(spec, 2) == one);
   CHECK(results_for(spec, 4) == one);
   CHECK(results_for(spec, 4) == one);  // repeated
-  CHECK(results_for(spec, 1) == one);  // repeated
   fs::remove(path);
 }
 
-TEST_CASE("the CLI writes the same results.json for --jobs 1 and --jobs 4, twice", "[determinism][reliability][cli]") {
+TEST_CASE("the CLI writes the same results.json for --jobs 1 and --jobs 4", "[determinism][reliability][cli]") {
   const fs::path path = write_spec();
   const fs::path base = fs::temp_directory_path() / fmt::format("swaybound-determinism-out-{}", ::getpid());
   fs::remove_all(base);
   std::string first;
   int run = 0;
-  for (int jobs : {1, 4, 4}) {
+  for (int jobs : {1, 4}) {
     const fs::path out = base / std::to_string(run++);
     const std::string cmd = fmt::format("{} check '{}' --out '{}' --jobs {} >/dev/null 2>&1", SWAYBOUND_CLI,
                                         path.string(), out.string(), jobs);
