@@ -90,37 +90,75 @@ TEST_CASE("an output folder that cannot be created is reported before any work",
   CHECK(run_cli(fmt::format("check {} --out {}/sub", write_spec("w", spec_text(2000)).string(), file.string())) == 2);
 }
 
-TEST_CASE("SIGINT during a check leaves the previous packet intact and no half packet", "[packet][interrupt]") {
-  const fs::path out = temp("interrupt");
+namespace {
+
+/// `text` with a sizing section over the rope's damper (for `swaybound size`).
+std::string with_sizing(const std::string& text) {
+  return text + R"(sizing:
+  variables:
+    - {path: "links[rope].pivot.damper.coefficient", range: [500, 4000], cost: 1}
+  budget: {evaluations: 40}
+)";
+}
+
+/// Runs `command` (check or size) to completion on a short spec, then again with --force on a long
+/// one and sends it `signal` once its own half-written folder exists. The interrupted run must exit
+/// 128 + signal, leave the first packet as it was (same spec hash, every MANIFEST hash verifies)
+/// and remove its half-written folder.
+void interrupt_and_compare(const std::string& command, int signal, bool sizing) {
+  const std::string tag = fmt::format("interrupt-{}-{}", command, signal);
+  const fs::path out = temp(tag);
   fs::remove_all(out);
-  const fs::path spec = write_spec("i", spec_text(2000, 8, 4));
-  REQUIRE(run_cli(fmt::format("check {} --out {}", spec.string(), out.string())) == 0);
+  const auto text = [sizing](double duration, int count) {
+    const std::string t = spec_text(2000, duration, count);
+    return sizing ? with_sizing(t) : t;
+  };
+  const fs::path spec = write_spec(tag, text(8, 4));
+  REQUIRE(run_cli(fmt::format("{} {} --out {} --quiet", command, spec.string(), out.string())) == 0);
   const std::string before = packet_spec_sha256(out.string());
+  REQUIRE_FALSE(before.empty());
   // The same spec with many long cases, so the run is still going when the signal arrives.
-  std::ofstream(spec) << spec_text(2000, 600, 400);
+  std::ofstream(spec) << text(600, 400);
   const pid_t pid = fork();
   if (pid == 0) {
     const std::string o = out.string(), s = spec.string();
     std::freopen("/dev/null", "w", stdout);
     std::freopen("/dev/null", "w", stderr);
-    execl(SWAYBOUND_CLI, SWAYBOUND_CLI, "check", s.c_str(), "--out", o.c_str(), "--force", "--jobs", "2",
+    execl(SWAYBOUND_CLI, SWAYBOUND_CLI, command.c_str(), s.c_str(), "--out", o.c_str(), "--force", "--jobs", "2",
           static_cast<char*>(nullptr));
     _exit(127);
   }
-  // Wait until the run is under way (its half-written packet exists), then interrupt it.
+  // Wait until the run is under way (its half-written folder exists), then interrupt it.
   const fs::path own = out.parent_path() / fmt::format(".{}.partial-{}", out.filename().string(), pid);
   for (int k = 0; k < 400 && !fs::exists(own); ++k) std::this_thread::sleep_for(std::chrono::milliseconds(25));
   REQUIRE(fs::exists(own));
   std::this_thread::sleep_for(std::chrono::milliseconds(200));
-  kill(pid, SIGINT);
+  kill(pid, signal);
   int status = 0;
   waitpid(pid, &status, 0);
   REQUIRE(WIFEXITED(status));
-  CHECK(WEXITSTATUS(status) == 128 + SIGINT);
+  CHECK(WEXITSTATUS(status) == 128 + signal);
   CHECK(packet_spec_sha256(out.string()) == before);
   CHECK(verify_manifest(out.string()).empty());
   // The interrupted process's own half packet is gone (other processes' folders are not its own).
-  CHECK_FALSE(fs::exists(out.parent_path() / fmt::format(".{}.partial-{}", out.filename().string(), pid)));
+  CHECK_FALSE(fs::exists(own));
+  fs::remove_all(out);
+}
+
+}  // namespace
+
+TEST_CASE("SIGINT during a check leaves the previous packet intact and no half packet", "[packet][interrupt]") {
+  interrupt_and_compare("check", SIGINT, false);
+}
+
+TEST_CASE("SIGTERM during a check leaves the previous packet intact and no half packet", "[packet][interrupt]") {
+  interrupt_and_compare("check", SIGTERM, false);
+}
+
+TEST_CASE("SIGINT and SIGTERM during size leave the previous output intact and no half folder",
+          "[packet][interrupt][sizing]") {
+  SECTION("SIGINT") { interrupt_and_compare("size", SIGINT, true); }
+  SECTION("SIGTERM") { interrupt_and_compare("size", SIGTERM, true); }
 }
 
 TEST_CASE("diff flags a worsened margin after a spec edit and exits 1", "[packet][diff]") {
