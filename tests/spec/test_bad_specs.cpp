@@ -146,6 +146,12 @@ TEST_CASE("a spec file over the 4 MiB cap is refused before it is parsed", "[spe
   REQUIRE(fs::file_size(big.path) > kMaxSpecBytes);
   CHECK(whole_file_error(big.path).find("byte limit") != std::string::npos);
 
+  // A 100 MB file (sparse, so the test writes almost nothing) is refused from its size alone.
+  const TempPath huge("huge.yaml");
+  { std::ofstream(huge.path, std::ios::binary) << kValidSpec; }
+  fs::resize_file(huge.path, std::uintmax_t{100} * 1000 * 1000);
+  CHECK(whole_file_error(huge.path).find("byte limit") != std::string::npos);
+
   // The same cap holds for text given in memory.
   const std::string text = std::string(kValidSpec) + std::string(kMaxSpecBytes, '\n');
   try {
