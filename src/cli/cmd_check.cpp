@@ -5,7 +5,6 @@
 #include <filesystem>
 #include <fstream>
 #include <iostream>
-#include <sstream>
 
 #include <fmt/format.h>
 
@@ -45,14 +44,6 @@ void print_summary(const CheckReport& r, std::ostream& out) {
   out << fmt::format("verdict: {}{}\n", r.pass ? "all checks pass" : "a check fails",
                      r.failed_total > 0 ? fmt::format(" ({} case(s) failed to run)", r.failed_total) : "");
   out << "caution: a screening and design aid, not a certification; the design goes to a licensed engineer's review.\n";
-}
-
-std::string read_file_text(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  if (!in && !in.eof()) throw RunError(fmt::format("cannot read {}", path));
-  return s.str();
 }
 
 /// Host-independent run settings for the MANIFEST.

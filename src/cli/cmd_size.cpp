@@ -5,7 +5,6 @@
 #include <cmath>
 #include <fstream>
 #include <iostream>
-#include <sstream>
 
 #include <fmt/format.h>
 
@@ -20,18 +19,6 @@
 #include "swaybound/spec.hpp"
 
 namespace swaybound::cli {
-
-namespace {
-
-std::string read_file_text(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  if (!in && !in.eof()) throw RunError(fmt::format("cannot read {}", path));
-  return s.str();
-}
-
-}  // namespace
 
 Action add_size(CLI::App& app) {
   auto* cmd = app.add_subcommand("size", "Search the spec's design variables for the least cost (or the objective "

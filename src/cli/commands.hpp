@@ -2,6 +2,7 @@
 // The command-line front end: one function per subcommand, each registering its options on the
 // CLI11 app and returning the action to run. Exit status: 0 pass, 1 a check fails, 2 input/run error.
 #include <functional>
+#include <string>
 
 #include <CLI/CLI.hpp>
 
@@ -19,5 +20,8 @@ Action add_modes(CLI::App& app);
 Action add_check(CLI::App& app);
 Action add_diff(CLI::App& app);
 Action add_size(CLI::App& app);
+
+/// The whole file as bytes (the spec copy in a packet); RunError if it cannot be read.
+std::string read_file_text(const std::string& path);
 
 }  // namespace swaybound::cli
