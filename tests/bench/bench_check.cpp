@@ -1,17 +1,19 @@
 // Check-pipeline benchmark (not a test): a demo check of 2,000 cases of 30 s with a per-case FTLE,
 // its wall time on 2 threads, the pipeline against the bare engine on the same cases, the speed-up
 // from 1 to 2 threads, and peak memory for 1,000 vs 10,000 cases (separate processes).
-// Run: build/release/tests/bench/bench_check [--quick]
+// Run: build/release/tests/bench/bench_check [--quick | --speedup N] (N interleaved runs, medians)
 #include <sys/resource.h>
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <chrono>
 #include <cstdio>
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <string>
+#include <vector>
 
 #include <fmt/format.h>
 
@@ -116,6 +118,28 @@ int main(int argc, char** argv) {
     o.jobs = 2;
     o.audit = false;
     run_check(spec, o);
+    return 0;
+  }
+  if (argc == 3 && std::string(argv[1]) == "--speedup") {
+    // The thread speed-up alone, measured as medians of interleaved 1- and 2-thread runs of the
+    // full pipeline with per-case FTLE (one run of each is easily disturbed by other load).
+    const int repeats = std::max(1, std::atoi(argv[2]));
+    const Spec spec = write_spec("speedup", bench_spec(1000, true));
+    std::vector<double> one, two, ratio;
+    for (int k = 0; k < repeats; ++k) {
+      one.push_back(pipeline(spec, 1));
+      two.push_back(pipeline(spec, 2));
+      ratio.push_back(one.back() / two.back());
+      std::printf("run %d: 1 thread %.2f s, 2 threads %.2f s, %.3fx\n", k + 1, one.back(), two.back(), ratio.back());
+    }
+    const auto median = [](std::vector<double> v) {
+      std::sort(v.begin(), v.end());
+      const std::size_t n = v.size();
+      return n % 2 ? v[n / 2] : 0.5 * (v[n / 2 - 1] + v[n / 2]);
+    };
+    std::printf("2,000 cases, %d interleaved runs each: median 1 thread %.2f s, median 2 threads %.2f s; "
+                "ratio of medians %.3fx, median of pairwise ratios %.3fx\n",
+                repeats, median(one), median(two), median(one) / median(two), median(ratio));
     return 0;
   }
   const bool quick = argc > 1 && std::string(argv[1]) == "--quick";
