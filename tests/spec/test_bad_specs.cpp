@@ -72,20 +72,31 @@ TEST_CASE("every bad spec fails with its exact position and key path", "[spec][b
   }
 }
 
-TEST_CASE("the CLI exits 2 on every bad spec and writes nothing to stdout", "[spec][bad][cli]") {
+TEST_CASE("the CLI exits 2 on every bad spec, writes nothing to stdout and no output folder",
+          "[spec][bad][cli]") {
+  const fs::path out = fs::temp_directory_path() / fmt::format("swaybound_bad_spec_out_{}", ::getpid());
+  fs::remove_all(out);
   for (const auto& file : corpus()) {
     INFO(file.filename().string());
-    const std::string cmd = std::string(SWAYBOUND_CLI) + " validate '" + file.string() + "' 2>/dev/null";
-    FILE* pipe = popen(cmd.c_str(), "r");
-    REQUIRE(pipe != nullptr);
-    std::string out;
-    char buf[256];
-    while (std::fgets(buf, sizeof buf, pipe)) out += buf;
-    const int status = pclose(pipe);
-    CHECK(WIFEXITED(status));
-    CHECK(WEXITSTATUS(status) == 2);
-    CHECK(out.empty());
+    for (const std::string command : {"validate", "check", "size"}) {
+      INFO(command);
+      std::string cmd = fmt::format("{} {} '{}'", SWAYBOUND_CLI, command, file.string());
+      if (command != "validate") cmd += fmt::format(" --out '{}' --quiet", out.string());
+      FILE* pipe = popen((cmd + " 2>/dev/null").c_str(), "r");
+      REQUIRE(pipe != nullptr);
+      std::string printed;
+      char buf[256];
+      while (std::fgets(buf, sizeof buf, pipe)) printed += buf;
+      const int status = pclose(pipe);
+      CHECK(WIFEXITED(status));
+      CHECK(WEXITSTATUS(status) == 2);
+      CHECK(printed.empty());
+      CHECK_FALSE(fs::exists(out));
+    }
   }
+  // Nor a half-written folder beside it.
+  for (const auto& entry : fs::directory_iterator(out.parent_path()))
+    CHECK(entry.path().filename().string().find(out.filename().string() + ".partial") == std::string::npos);
 }
 
 TEST_CASE("alias bombs in the corpus are rejected quickly", "[spec][bad]") {
