@@ -13,6 +13,7 @@
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/core/cancel.hpp"
 #include "swaybound/core/hash.hpp"
+#include "swaybound/report/document.hpp"
 #include "swaybound/report/packet.hpp"
 #include "swaybound/report/results.hpp"
 #include "swaybound/sizing/sizing.hpp"
@@ -117,11 +118,18 @@ Action add_size(CLI::App& app) {
     packet.write("sizing.md", table);
     packet.write("sizing.json", sizing_summary_json(spec, result));
     packet.write("input_spec.yaml", read_file_text(o->spec));
+    // The review documents of the sized design's full check, as `check` writes them for a spec.
+    const std::string date = now_utc_iso8601();
+    ReportMeta meta;
+    meta.date = date.substr(0, 10);
+    const std::string cases_text = read_file_text(packet.path("cases.csv"));
+    write_report_pdf(result.sized, result.after, packet.path("report.pdf"), meta, cases_text);
+    packet.write("report.html", report_html(result.sized, result.after, meta, cases_text));
     throw_if_cancelled();
     ManifestInfo info;
     info.spec_file = "input_spec.yaml";
     info.spec_sha256 = spec_sha;
-    info.date_utc = now_utc_iso8601();
+    info.date_utc = date;
     info.settings.push_back(fmt::format("sizing: objective={} mode={} seed={} budget={} evaluations, {:g} s; "
                                         "screening={} cases",
                                         s.objective == Objective::min_cost     ? "min_cost"
@@ -134,8 +142,8 @@ Action add_size(CLI::App& app) {
     info.settings.push_back(fmt::format("accuracy_audit: {}", o->no_audit ? "off" : "governing cases at rtol/100, atol/100"));
     packet.commit(info);
     std::cout << table;
-    std::cerr << fmt::format("wrote {}: sized_spec.yaml, results.json, cases.csv, sizing_history.csv, sizing.md, "
-                             "sizing.json ({} evaluations, {:.1f} s)\n",
+    std::cerr << fmt::format("wrote {}: sized_spec.yaml, report.pdf, report.html, results.json, cases.csv, "
+                             "sizing_history.csv, sizing.md, sizing.json ({} evaluations, {:.1f} s)\n",
                              packet.target(), result.evaluations, result.seconds);
     return result.feasible ? kExitPass : kExitFail;
   };

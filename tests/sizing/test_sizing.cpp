@@ -325,8 +325,8 @@ TEST_CASE("swaybound size: files, the sized spec and its check, exit status 2 wi
   const fs::path out = fs::temp_directory_path() / "swaybound-test-size-out";
   fs::remove_all(out);
   REQUIRE(run_cli(fmt::format("size {} --out {} --jobs 2", spec.string(), out.string())) == 0);
-  for (const char* name :
-       {"sized_spec.yaml", "results.json", "cases.csv", "sizing_history.csv", "sizing.md", "sizing.json"})
+  for (const char* name : {"sized_spec.yaml", "results.json", "cases.csv", "sizing_history.csv", "sizing.md",
+                           "sizing.json", "report.pdf", "report.html"})
     CHECK(fs::exists(out / name));
   // The sized spec loads, carries its header, and results.json is the check of exactly that file.
   const std::string sized = read_text(out / "sized_spec.yaml");
@@ -336,6 +336,11 @@ TEST_CASE("swaybound size: files, the sized spec and its check, exit status 2 wi
   CHECK(reloaded.links[0].pivot.damper->coefficient < 2.8);
   const auto results = nlohmann::json::parse(read_text(out / "results.json"));
   CHECK(results["spec"]["sha256"] == sha256_file((out / "sized_spec.yaml").string()));
+  // The review documents are those of the same check: the sized spec's hash and its verdict.
+  const std::string html = read_text(out / "report.html");
+  CHECK(html.find(results["spec"]["sha256"].get<std::string>()) != std::string::npos);
+  CHECK(html.find(results["verdict"] == "pass" ? "verdict: pass" : "verdict: FAIL") != std::string::npos);
+  CHECK(read_text(out / "report.pdf").rfind("%PDF-", 0) == 0);
   const auto summary = nlohmann::json::parse(read_text(out / "sizing.json"));
   CHECK(summary["feasible"] == true);
   CHECK(verify_manifest(out.string()).empty());
