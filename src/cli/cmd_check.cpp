@@ -13,7 +13,6 @@
 #include "swaybound/checks/check_run.hpp"
 #include "swaybound/core/cancel.hpp"
 #include "swaybound/core/hash.hpp"
-#include "swaybound/report/document.hpp"
 #include "swaybound/report/format.hpp"
 #include "swaybound/report/packet.hpp"
 #include "swaybound/report/results.hpp"
@@ -111,11 +110,7 @@ Action add_check(CLI::App& app) {
     packet.write("results.json", results_json(spec, report));
     packet.write("spec.yaml", read_file_text(o->spec));
     const std::string date = now_utc_iso8601();
-    ReportMeta meta;
-    meta.date = date.substr(0, 10);
-    const std::string cases_text = read_file_text(packet.path("cases.csv"));
-    write_report_pdf(spec, report, packet.path("report.pdf"), meta, cases_text);
-    packet.write("report.html", report_html(spec, report, meta, cases_text));
+    write_review_documents(packet, spec, report, date);
     throw_if_cancelled();
     ManifestInfo info;
     info.spec_file = "spec.yaml";

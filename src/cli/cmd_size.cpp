@@ -13,7 +13,6 @@
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/core/cancel.hpp"
 #include "swaybound/core/hash.hpp"
-#include "swaybound/report/document.hpp"
 #include "swaybound/report/packet.hpp"
 #include "swaybound/report/results.hpp"
 #include "swaybound/sizing/sizing.hpp"
@@ -120,11 +119,7 @@ Action add_size(CLI::App& app) {
     packet.write("input_spec.yaml", read_file_text(o->spec));
     // The review documents of the sized design's full check, as `check` writes them for a spec.
     const std::string date = now_utc_iso8601();
-    ReportMeta meta;
-    meta.date = date.substr(0, 10);
-    const std::string cases_text = read_file_text(packet.path("cases.csv"));
-    write_report_pdf(result.sized, result.after, packet.path("report.pdf"), meta, cases_text);
-    packet.write("report.html", report_html(result.sized, result.after, meta, cases_text));
+    write_review_documents(packet, result.sized, result.after, date);
     throw_if_cancelled();
     ManifestInfo info;
     info.spec_file = "input_spec.yaml";

@@ -6,6 +6,12 @@
 
 #include <CLI/CLI.hpp>
 
+namespace swaybound {
+class PacketWriter;
+struct CheckReport;
+struct Spec;
+}  // namespace swaybound
+
 namespace swaybound::cli {
 
 inline constexpr int kExitPass = 0;
@@ -23,5 +29,10 @@ Action add_size(CLI::App& app);
 
 /// The whole file as bytes (the spec copy in a packet); RunError if it cannot be read.
 std::string read_file_text(const std::string& path);
+
+/// report.pdf and report.html of `report` into the packet, dated `date_utc` (ISO 8601); the
+/// packet's cases.csv must be complete (the envelope plots read it).
+void write_review_documents(PacketWriter& packet, const Spec& spec, const CheckReport& report,
+                            const std::string& date_utc);
 
 }  // namespace swaybound::cli
