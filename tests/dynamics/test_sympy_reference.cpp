@@ -6,7 +6,6 @@
 #include <catch2/catch.hpp>
 
 #include <algorithm>
-#include <array>
 #include <chrono>
 #include <cmath>
 #include <cstdio>
@@ -24,6 +23,7 @@
 #include <nlohmann/json.hpp>
 
 #include "swaybound/dynamics/chain.hpp"
+#include "../support/process.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/spec.hpp"
 
@@ -138,13 +138,10 @@ std::vector<Result> sympy_reference(const ChainData& d, const std::vector<std::v
   }
   const std::string command = kPython + " '" + kScript + "' < '" + input.string() + "' 2> '" + errors.string() + "'";
   const auto t0 = std::chrono::steady_clock::now();
-  std::string out;
-  FILE* pipe = ::popen(command.c_str(), "r");
-  REQUIRE(pipe != nullptr);
-  std::array<char, 4096> buf{};
-  std::size_t got;
-  while ((got = std::fread(buf.data(), 1, buf.size(), pipe)) > 0) out.append(buf.data(), got);
-  const int status = ::pclose(pipe);
+  const auto run = swaybound::testing::run_command(command);
+  REQUIRE(run.started);
+  const std::string& out = run.out;
+  const int status = run.exited ? run.status : -1;
   seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
   const std::string err = read_file(errors);
   std::filesystem::remove(input);

@@ -14,6 +14,7 @@
 #include <nlohmann/json.hpp>
 
 #include "../dynamics/fixtures.hpp"
+#include "../support/process.hpp"
 #include "swaybound/dynamics/chain.hpp"
 #include "swaybound/modal/modes.hpp"
 #include "swaybound/spec.hpp"
@@ -224,15 +225,11 @@ cases: {duration: 1 s, initial: [{single: {theta: [0.1]}}]}
 TEST_CASE("modes: the CLI prints JSON for the demo spec", "[modal][cli]") {
   const std::string cmd =
       std::string(SWAYBOUND_CLI) + " modes '" + SWAYBOUND_SOURCE_DIR + "/specs/gantry_hook_block.yaml' --json 2>/dev/null";
-  FILE* pipe = popen(cmd.c_str(), "r");
-  REQUIRE(pipe != nullptr);
-  std::string out;
-  char buf[256];
-  while (std::fgets(buf, sizeof buf, pipe)) out += buf;
-  const int status = pclose(pipe);
-  CHECK(WIFEXITED(status));
-  CHECK(WEXITSTATUS(status) == 0);
-  const auto j = nlohmann::json::parse(out, nullptr, false);
+  const auto r = swaybound::testing::run_command(cmd);
+  REQUIRE(r.started);
+  CHECK(r.exited);
+  CHECK(r.status == 0);
+  const auto j = nlohmann::json::parse(r.out, nullptr, false);
   REQUIRE_FALSE(j.is_discarded());
   REQUIRE(j["modes"].size() == 2);
   for (const auto& mode : j["modes"]) {

@@ -11,6 +11,7 @@
 #include <sstream>
 #include <sys/wait.h>
 #include <unistd.h>
+#include <utility>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
@@ -20,6 +21,7 @@
 #include "swaybound/report/plot.hpp"
 #include "swaybound/report/results.hpp"
 #include "swaybound/spec.hpp"
+#include "../support/process.hpp"
 
 using namespace swaybound;
 namespace fs = std::filesystem;
@@ -79,14 +81,9 @@ std::string read(const fs::path& p) {
 
 /// Runs a shell command; returns its exit status and stdout.
 int run(const std::string& command, std::string& out) {
-  out.clear();
-  FILE* pipe = popen(command.c_str(), "r");
-  if (!pipe) return -1;
-  char buffer[4096];
-  std::size_t n;
-  while ((n = fread(buffer, 1, sizeof buffer, pipe)) > 0) out.append(buffer, n);
-  const int status = pclose(pipe);
-  return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+  auto r = swaybound::testing::run_command(command);
+  out = std::move(r.out);
+  return r.status;
 }
 
 std::string checker() { return std::string(SWAYBOUND_SOURCE_DIR) + "/tests/report/check_markup.py"; }

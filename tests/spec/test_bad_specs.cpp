@@ -17,6 +17,7 @@
 #include <unistd.h>
 
 #include "swaybound/spec.hpp"
+#include "../support/process.hpp"
 
 using namespace swaybound;
 namespace fs = std::filesystem;
@@ -82,15 +83,11 @@ TEST_CASE("the CLI exits 2 on every bad spec, writes nothing to stdout and no ou
       INFO(command);
       std::string cmd = fmt::format("{} {} '{}'", SWAYBOUND_CLI, command, file.string());
       if (command != "validate") cmd += fmt::format(" --out '{}' --quiet", out.string());
-      FILE* pipe = popen((cmd + " 2>/dev/null").c_str(), "r");
-      REQUIRE(pipe != nullptr);
-      std::string printed;
-      char buf[256];
-      while (std::fgets(buf, sizeof buf, pipe)) printed += buf;
-      const int status = pclose(pipe);
-      CHECK(WIFEXITED(status));
-      CHECK(WEXITSTATUS(status) == 2);
-      CHECK(printed.empty());
+      const auto r = swaybound::testing::run_command(cmd + " 2>/dev/null");
+      REQUIRE(r.started);
+      CHECK(r.exited);
+      CHECK(r.status == 2);
+      CHECK(r.out.empty());
       CHECK_FALSE(fs::exists(out));
     }
   }
