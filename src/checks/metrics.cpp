@@ -8,65 +8,93 @@
 namespace swaybound {
 
 namespace {
-void offer_max(Extreme& e, double value, double t) {
-  if (value > e.value) {
-    e.value = value;
-    e.time = t;
-  }
+/// Index blocks of the quantities of CaseExtremes: per link angle, relative angle, rate, load,
+/// negated top-end tension, negated bottom-end tension; then one per residual_sway limit.
+enum Block { kAngle, kRelative, kRate, kLoad, kTensionTop, kTensionBottom, kBlocks };
+
+std::vector<double> residual_windows(const Model& model, const Spec& spec) {
+  std::vector<double> from(static_cast<std::size_t>(kBlocks * model.n), 0.0);
+  for (const auto& l : spec.limits)
+    if (l.kind == LimitKind::residual_sway) from.push_back(l.after);
+  return from;
 }
 }  // namespace
+
+CaseExtremes::CaseExtremes(const Model& model, const Spec& spec)
+    : model_(model),
+      finder_(static_cast<int>(residual_windows(model, spec).size()),
+              [this](const StepView& v, double* q) {
+                const int n = model_.n;
+                const double* x = v.x;
+                for (int i = 0; i < n; ++i) {
+                  const auto k = static_cast<std::size_t>(i);
+                  q[kAngle * n + i] = std::fabs(x[i]);
+                  q[kRelative * n + i] = std::fabs(x[i] - (i > 0 ? x[i - 1] : 0.0));
+                  q[kRate * n + i] = std::fabs(x[n + i]);
+                  q[kLoad * n + i] = v.ws->reaction[k];
+                  double top = 0, bottom = 0;
+                  if (model_.kind[k] == LinkKind::rope) link_tension(model_, *v.ws, i, top, bottom);
+                  q[kTensionTop * n + i] = -top;
+                  q[kTensionBottom * n + i] = -bottom;
+                }
+                for (std::size_t r = 0; r < residual_links_.size(); ++r) {
+                  double worst = 0;
+                  for (int i = 0; i < n; ++i)
+                    if (residual_links_[r] < 0 || residual_links_[r] == i) worst = std::max(worst, std::fabs(x[i]));
+                  q[kBlocks * n + static_cast<int>(r)] = worst;
+                }
+              },
+              residual_windows(model, spec)) {
+  for (const auto& l : spec.limits)
+    if (l.kind == LimitKind::residual_sway) residual_links_.push_back(l.link);
+}
+
+void CaseExtremes::write(CaseMetrics& m) const {
+  const int n = model_.n;
+  const auto nn = static_cast<std::size_t>(n);
+  const auto peak = [&](int block, int i) { return finder_.max(block * n + i); };
+  m.peak_angle.resize(nn);
+  m.peak_relative.resize(nn);
+  m.peak_rate.resize(nn);
+  m.peak_load.resize(nn);
+  m.min_tension.assign(nn, Extreme{std::nan(""), 0});
+  for (int i = 0; i < n; ++i) {
+    const auto k = static_cast<std::size_t>(i);
+    m.peak_angle[k] = peak(kAngle, i);
+    m.peak_relative[k] = peak(kRelative, i);
+    m.peak_rate[k] = peak(kRate, i);
+    m.peak_load[k] = peak(kLoad, i);
+    if (model_.kind[k] != LinkKind::rope) continue;
+    // The lower end of the last link is free (tension 0 there): only the top end counts.
+    Extreme low = peak(kTensionTop, i);
+    if (i + 1 < n && peak(kTensionBottom, i).value > low.value) low = peak(kTensionBottom, i);
+    m.min_tension[k] = {-low.value, low.time};
+  }
+  m.residual.assign(residual_links_.size(), 0.0);
+  for (std::size_t r = 0; r < residual_links_.size(); ++r)
+    m.residual[r] = std::max(0.0, finder_.max(kBlocks * n + static_cast<int>(r)).value);
+}
 
 CaseMetrics run_case(const Model& model, const Spec& spec, Workspace& ws, const CaseDef& def,
                      const RunSettings& settings, const CaseOptions& options) {
   const int n = model.n;
-  const auto nn = static_cast<std::size_t>(n);
   CaseMetrics m;
   m.index = def.index;
   m.id = def.id;
   m.scenario = def.scenario;
   m.set = def.set;
   m.initial = def.initial;
-  m.peak_angle.resize(nn);
-  m.peak_relative.resize(nn);
-  m.peak_rate.resize(nn);
-  m.peak_load.resize(nn);
-  m.min_tension.assign(nn, Extreme{std::nan(""), 0});
-  for (int i = 0; i < n; ++i)
-    if (model.kind[static_cast<std::size_t>(i)] == LinkKind::rope) m.min_tension[static_cast<std::size_t>(i)].value = INFINITY;
-  std::vector<const LimitSpec*> residual_limits;
-  for (const auto& l : spec.limits)
-    if (l.kind == LimitKind::residual_sway) residual_limits.push_back(&l);
-  m.residual.assign(residual_limits.size(), 0.0);
   const double band = spec.cases.settling_band;
   double last_outside = 0;
   bool outside_now = false;
+  CaseExtremes extremes(model, spec);
 
   const Observer on_step = [&](const StepView& v) {
-    const double* x = v.x;
     bool outside = false;
-    for (int i = 0; i < n; ++i) {
-      const auto k = static_cast<std::size_t>(i);
-      const double angle = std::fabs(x[i]);
-      offer_max(m.peak_angle[k], angle, v.t);
-      offer_max(m.peak_relative[k], std::fabs(x[i] - (i > 0 ? x[i - 1] : 0.0)), v.t);
-      offer_max(m.peak_rate[k], std::fabs(x[n + i]), v.t);
-      offer_max(m.peak_load[k], v.ws->reaction[k], v.t);
-      if (model.kind[k] == LinkKind::rope) {
-        double top, bottom;
-        link_tension(model, *v.ws, i, top, bottom);
-        const double low = i + 1 < n ? std::min(top, bottom) : top;
-        if (low < m.min_tension[k].value) m.min_tension[k] = {low, v.t};
-      }
-      outside |= angle > band;
-    }
-    for (std::size_t r = 0; r < residual_limits.size(); ++r) {
-      const LimitSpec& l = *residual_limits[r];
-      if (v.t < l.after) continue;
-      for (int i = 0; i < n; ++i)
-        if (l.link < 0 || l.link == i) m.residual[r] = std::max(m.residual[r], std::fabs(x[i]));
-    }
+    for (int i = 0; i < n; ++i) outside |= std::fabs(v.x[i]) > band;
     if (outside) last_outside = v.t;
     outside_now = outside;
+    extremes.observe(v);
   };
   const RunOutcome out = simulate_case(model, ws, def.scenario, def.initial, settings, on_step);
   m.status = out.status;
@@ -75,6 +103,7 @@ CaseMetrics run_case(const Model& model, const Spec& spec, Workspace& ws, const 
   m.evaluations = out.evaluations;
   m.audit_relative = out.audit_scale > 0 ? out.max_audit_residual / out.audit_scale : out.max_audit_residual;
   m.settling_time = outside_now ? std::nan("") : last_outside;
+  extremes.write(m);
   for (int i = 0; i < n; ++i) {
     const auto k = static_cast<std::size_t>(i);
     m.dynamic_factor.push_back(m.peak_load[k].value / (model.gravity * model.mass_below[k]));

@@ -9,6 +9,7 @@
 #include <fmt/format.h>
 
 #include "commands.hpp"
+#include "swaybound/checks/metrics.hpp"
 #include "swaybound/core/units.hpp"
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/model/model.hpp"
@@ -46,16 +47,6 @@ std::string csv_quote(const std::string& s) {
   for (char c : s) out += c == '"' ? std::string("\"\"") : std::string(1, c);
   return out + "\"";
 }
-
-struct Peak {
-  double value = 0, time = 0;
-  void offer(double v, double t) {
-    if (v > value) {
-      value = v;
-      time = t;
-    }
-  }
-};
 
 }  // namespace
 
@@ -127,25 +118,16 @@ Action add_simulate(CLI::App& app) {
       }
       csv << ',' << v.energy << ',' << v.x[2 * n] << ',' << v.x[2 * n + 1] << ',' << v.audit_residual << '\n';
     };
-    std::vector<Peak> angle(n), rate(n), load(n);
-    std::vector<Peak> slack(n);  // of -tension: the lowest tension
-    std::vector<double> lowest_tension(n, INFINITY), lowest_time(n, 0);
-    const Observer on_step = [&](const StepView& v) {
-      for (int i = 0; i < n; ++i) {
-        angle[i].offer(std::fabs(v.x[i]), v.t);
-        rate[i].offer(std::fabs(v.x[n + i]), v.t);
-        load[i].offer(v.ws->reaction[i], v.t);
-        double top, bottom;
-        link_tension(model, *v.ws, i, top, bottom);
-        const double low = i + 1 < n ? std::min(top, bottom) : top;
-        if (low < lowest_tension[i]) {
-          lowest_tension[i] = low;
-          lowest_time[i] = v.t;
-        }
-      }
-    };
+    // The same extremes as a check reports, located between steps and on both sides of jumps.
+    CaseExtremes extremes(model, spec);
+    const Observer on_step = [&](const StepView& v) { extremes.observe(v); };
     Workspace ws(model);
     const RunOutcome outcome = simulate_case(model, ws, scenario, start, settings, on_step, on_sample);
+    CaseMetrics peaks;
+    extremes.write(peaks);
+    const auto& angle = peaks.peak_angle;
+    const auto& rate = peaks.peak_rate;
+    const auto& load = peaks.peak_load;
 
     std::cerr << fmt::format("scenario '{}', {:g} s, {} steps ({} rejected), {} evaluations\n",
                              model.scenarios[static_cast<std::size_t>(scenario)].name, outcome.t_reached,
@@ -156,9 +138,12 @@ Action add_simulate(CLI::App& app) {
                                model.names[i], angle[i].value * 180 / M_PI, angle[i].time, rate[i].value * 180 / M_PI,
                                load[i].value, load[i].time);
       if (model.kind[i] == LinkKind::rope)
-        std::cerr << fmt::format(", least rope tension {:.1f} N at {:.3f} s", lowest_tension[i], lowest_time[i]);
+        std::cerr << fmt::format(", least rope tension {:.1f} N at {:.3f} s", peaks.min_tension[i].value,
+                                 peaks.min_tension[i].time);
       std::cerr << '\n';
     }
+    std::cerr << fmt::format("  extremes located between steps: {} brackets searched, {} interpolant evaluations\n",
+                             extremes.finder().searches(), extremes.finder().probes());
     std::cerr << fmt::format("  energy audit: largest residual {:.3g} J ({:.3g} of the energy scale {:.4g} J)\n",
                              outcome.max_audit_residual, outcome.max_audit_residual / outcome.audit_scale,
                              outcome.audit_scale);

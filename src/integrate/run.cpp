@@ -53,6 +53,8 @@ struct System {
     last_t = t;
     std::copy(x.begin(), x.end(), last_x.begin());
   }
+  /// Forgets the last evaluation: the inputs change at a jump while (x, t) stay the same.
+  void invalidate() { last_t = std::nan(""); }
   /// Makes ws hold the evaluation at (x, t).
   void ensure(const State& x, double t, State& scratch) {
     if (t == last_t && std::equal(x.begin(), x.end(), last_x.begin())) return;
@@ -64,14 +66,14 @@ bool finite(const State& x) {
   return std::all_of(x.begin(), x.end(), [](double v) { return std::isfinite(v); });
 }
 
-class Driver {
+class Driver final : public DenseProbe {
  public:
   Driver(const Model& model, Workspace& ws, const RunSettings& settings, const Observer& on_step,
          const Observer& on_sample)
       : model_(model), ws_(ws), settings_(settings), on_step_(on_step), on_sample_(on_sample),
         system_{&model, &ws, std::nan(""), State(static_cast<std::size_t>(model.state_size()))},
         scratch_(static_cast<std::size_t>(model.state_size())),
-        sample_(static_cast<std::size_t>(model.state_size())),
+        sample_(static_cast<std::size_t>(model.state_size())), probe_state_(static_cast<std::size_t>(model.state_size())),
         started_(std::chrono::steady_clock::now()) {}
 
   RunOutcome run(State x) {
@@ -81,17 +83,22 @@ class Driver {
     ws_.lazy_reactions = true;
     const long evaluations_before = ws_.evaluations;
     outcome_.audit_scale = model_.energy_scale;
-    system_.ensure(x, 0.0, scratch_);
-    outcome_.energy0 = mechanical_energy(model_, ws_);
-    observe(x, 0.0, on_step_);
     next_sample_ = 0;
-    emit_samples_up_to(0.0, [&](double, State& out) { out = x; });
     double t = 0;
+    bool first = true;
     for (std::size_t k = 0; k < scenario.phases.size() && t < settings_.duration && ok(); ++k) {
       const Phase& phase = scenario.phases[k];
       if (phase.t1 <= t) continue;
       ws_.phase = static_cast<int>(k);
+      // The segment's first state under its own inputs: the right-hand limit at the jump.
+      system_.invalidate();
+      system_.ensure(x, t, scratch_);
+      if (first) outcome_.energy0 = mechanical_energy(model_, ws_);
+      first = false;
+      observe(x, t, on_step_, true, Segment::start);
+      emit_samples_up_to(t, true, [&](double, State& out) { out = x; });
       const double t_end = std::min(phase.t1, settings_.duration);
+      final_segment_ = t_end >= settings_.duration;
       if (settings_.method == Stepper::dopri5)
         integrate_dopri5(x, t, t_end);
       else
@@ -114,29 +121,55 @@ class Driver {
     outcome_.reason = std::move(reason);
   }
 
-  /// Calls `observer` with ws evaluated at (x, t); `audit` folds the residual into the outcome.
-  void observe(const State& x, double t, const Observer& observer, bool audit = true) {
+  enum class Segment { inside, start, end };
+
+  /// The view of ws evaluated at (x, t) with the energy audit.
+  StepView view(const State& x, double t) {
     finish_reactions(model_, ws_);
     const double energy = mechanical_energy(model_, ws_);
     const auto n = static_cast<std::size_t>(model_.n);
     const double residual = energy + x[2 * n] - x[2 * n + 1] - outcome_.energy0;
-    if (audit) outcome_.max_audit_residual = std::max(outcome_.max_audit_residual, std::fabs(residual));
-    if (observer) observer(StepView{t, x.data(), &ws_, energy, residual});
+    return StepView{t, x.data(), &ws_, energy, residual};
   }
 
-  /// Emits every output sample with time <= t, getting each state from `interpolate`.
+  /// Calls `observer` with ws evaluated at (x, t); `audit` folds the residual into the outcome.
+  /// The view of an accepted step inside a segment carries this driver as its dense probe.
+  void observe(const State& x, double t, const Observer& observer, bool audit, Segment segment = Segment::inside) {
+    StepView v = view(x, t);
+    if (audit) outcome_.max_audit_residual = std::max(outcome_.max_audit_residual, std::fabs(v.audit_residual));
+    if (!observer) return;
+    v.segment_start = segment == Segment::start;
+    v.segment_end = segment == Segment::end;
+    if (segment != Segment::start && interpolate_) v.probe = this;
+    observer(v);
+  }
+
+  /// Emits every output sample with time <= t (or < t when `include_t` is false: a sample on a
+  /// jump belongs to the next phase), getting each state from `interpolate`.
   template <class Interpolate>
-  void emit_samples_up_to(double t, Interpolate&& interpolate) {
+  void emit_samples_up_to(double t, bool include_t, Interpolate&& interpolate) {
     if (!on_sample_ || settings_.output_rate <= 0) return;
+    const double slack = 1e-12 * std::max(1.0, t);
     for (;;) {
       const double ts = static_cast<double>(next_sample_) / settings_.output_rate;
-      if (ts > t + 1e-12 * std::max(1.0, t) || ts > settings_.duration * (1 + 1e-12)) return;
+      if (include_t ? ts > t + slack : ts >= t - slack) return;
+      if (ts > settings_.duration * (1 + 1e-12)) return;
       interpolate(ts, sample_);
       system_(sample_, scratch_, ts);
       observe(sample_, ts, on_sample_, false);
       ++next_sample_;
     }
   }
+
+ public:
+  StepView at(double t) override {
+    t = std::clamp(t, from, to);
+    interpolate_(t, probe_state_);
+    system_(probe_state_, scratch_, t);
+    return view(probe_state_, t);
+  }
+
+ private:
 
   /// Checks after an accepted step; false when the run must stop. A short step that only closes
   /// a phase (`phase_end`) is not a collapse.
@@ -175,17 +208,34 @@ class Driver {
     auto stepper = odeint::make_dense_output(settings_.atol, settings_.rtol, odeint::runge_kutta_dopri5<State>());
     double dt = std::min(initial_step_, t_end - t);
     stepper.initialize(x, t, dt);
+    // The previous accepted step's interpolant, kept so that an extreme near a step boundary can be
+    // located on both sides of it (copy-assigned each step: no allocation after the first).
+    auto previous = stepper;
+    bool have_previous = false;
+    interpolate_ = [&](double ts, State& out) {
+      if (have_previous && ts < stepper.previous_time())
+        previous.calc_state(ts, out);
+      else
+        stepper.calc_state(ts, out);
+    };
     try {
       while (stepper.current_time() < t_end) {
         const double remaining = t_end - stepper.current_time();
+        if (have_steps_) {
+          previous = stepper;
+          have_previous = true;
+        }
         if (stepper.current_time_step() > remaining)
           stepper.initialize(stepper.current_state(), stepper.current_time(), remaining);
         const auto [t0, t1] = stepper.do_step(std::ref(system_));
+        have_steps_ = true;
         const bool phase_end = t1 >= t_end - 1e-14 * std::max(1.0, t_end);
         system_.ensure(stepper.current_state(), t1, scratch_);
         if (!after_step(stepper.current_state(), t1, t1 - t0, phase_end)) break;
-        observe(stepper.current_state(), t1, on_step_);
-        emit_samples_up_to(t1, [&](double ts, State& out) { stepper.calc_state(ts, out); });
+        from = have_previous ? previous.previous_time() : t0;
+        to = t1;
+        observe(stepper.current_state(), t1, on_step_, true, phase_end ? Segment::end : Segment::inside);
+        emit_samples_up_to(t1, !phase_end || final_segment_, [&](double ts, State& out) { stepper.calc_state(ts, out); });
         if (phase_end) break;
       }
     } catch (const Interrupted&) {
@@ -194,6 +244,8 @@ class Driver {
       fail(finite(stepper.current_state()) ? RunStatus::step_collapse : RunStatus::non_finite,
            fmt::format("no step could be accepted near t = {:.6g} s ({})", stepper.current_time(), e.what()));
     }
+    interpolate_ = nullptr;
+    have_steps_ = false;
     x = stepper.current_state();
     t = stepper.current_time();
     initial_step_ = std::max(stepper.current_time_step(), 1e-6);
@@ -206,11 +258,29 @@ class Driver {
     // uncontrolled RKF78 step from the step's start to the sample time (shorter than the accepted
     // step, so at least as accurate), which keeps the sample at the stepper's own order.
     odeint::runge_kutta_fehlberg78<State> sampler;
-    State x_old(x.size());
+    State x_old(x.size()), x_older(x.size());
+    double t_old = t, t_older = t;
+    bool have_older = false;
+    const auto from_start = [&](const State& start, double t_start, double ts, State& out) {
+      out = start;
+      if (ts > t_start) sampler.do_step(std::ref(system_), out, t_start, ts - t_start);
+    };
+    interpolate_ = [&](double ts, State& out) {
+      if (have_older && ts < t_old)
+        from_start(x_older, t_older, ts, out);
+      else
+        from_start(x_old, t_old, ts, out);
+    };
     int failures = 0;
+    bool stepped = false;
     while (t < t_end) {
       dt = std::min(dt, t_end - t);
-      const double t_old = t;
+      if (stepped) {
+        x_older = x_old;
+        t_older = t_old;
+        have_older = true;
+      }
+      t_old = t;
       x_old = x;
       if (stepper.try_step(std::ref(system_), x, t, dt) == odeint::fail) {
         ++outcome_.rejected;
@@ -222,19 +292,21 @@ class Driver {
         continue;
       }
       failures = 0;
+      stepped = true;
       const bool phase_end = t >= t_end - 1e-14 * std::max(1.0, t_end);
       system_.ensure(x, t, scratch_);
       if (!after_step(x, t, t - t_old, phase_end)) break;
-      observe(x, t, on_step_);
-      emit_samples_up_to(t, [&](double ts, State& out) {
-        out = x_old;
-        if (ts > t_old) sampler.do_step(std::ref(system_), out, t_old, ts - t_old);
-      });
+      from = have_older ? t_older : t_old;
+      to = t;
+      observe(x, t, on_step_, true, phase_end ? Segment::end : Segment::inside);
+      emit_samples_up_to(t, !phase_end || final_segment_,
+                         [&](double ts, State& out) { from_start(x_old, t_old, ts, out); });
       if (phase_end) {
         t = t_end;
         break;
       }
     }
+    interpolate_ = nullptr;
     initial_step_ = std::max(dt, 1e-6);
   }
 
@@ -245,6 +317,10 @@ class Driver {
   const Observer& on_sample_;
   System system_;
   State scratch_, sample_;
+  State probe_state_;                              ///< state at a probe time [as x]
+  std::function<void(double, State&)> interpolate_;  ///< the current segment's dense output
+  bool have_steps_ = false;                        ///< an accepted step exists in this segment (dopri5)
+  bool final_segment_ = false;                     ///< this segment ends the run
   std::chrono::steady_clock::time_point started_;
   RunOutcome outcome_;
   long next_sample_ = 0;

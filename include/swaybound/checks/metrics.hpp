@@ -1,23 +1,20 @@
 #pragma once
-// Per-case metrics, kept as running extremes by an observer of the accepted steps, so a case costs
-// O(links) memory whatever its length. Peaks are taken at the accepted steps of the adaptive
-// stepper; the accuracy audit (checks.hpp) re-runs governing cases at a tighter tolerance, which
-// also shortens the steps, and reports how far each figure moves.
+// Per-case metrics, kept as running extremes by an observer of the run, so a case costs O(links)
+// memory whatever its length. Extremes are located on the dense output between accepted steps and
+// on both sides of every jump of an input (integrate/extremes.hpp), so a reported peak is the peak
+// to within the solver tolerance; the accuracy audit (checks.hpp) re-runs governing cases at a
+// tighter tolerance and reports how far each figure moves.
 #include <cmath>
 #include <string>
 #include <vector>
 
 #include "swaybound/cases/case_space.hpp"
+#include "swaybound/integrate/extremes.hpp"
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/spec/spec.hpp"
 
 namespace swaybound {
-
-struct Extreme {
-  double value = 0;  ///< SI
-  double time = 0;   ///< when it happened [s]
-};
 
 struct CaseMetrics {
   long index = 0;
@@ -48,6 +45,24 @@ struct CaseOptions {
   double ftle_horizon = 0;        ///< [s]
   double ftle_separation = 1e-8;
   double ftle_renormalise = 0.5;  ///< [s]
+};
+
+/// The extremes a case reports, located by an ExtremeFinder: per link |theta|, |theta_i -
+/// theta_{i-1}|, |omega|, the pivot load, the least tension at each end of a rope link; per
+/// residual_sway limit the largest |theta| of its links after its time.
+class CaseExtremes {
+ public:
+  CaseExtremes(const Model& model, const Spec& spec);
+  /// The on_step observer.
+  void observe(const StepView& v) { finder_.observe(v); }
+  /// Writes the extremes into m (peak_*, min_tension, residual).
+  void write(CaseMetrics& m) const;
+  const ExtremeFinder& finder() const { return finder_; }
+
+ private:
+  const Model& model_;
+  std::vector<int> residual_links_;  ///< per residual_sway limit: its link, or -1 for every link
+  ExtremeFinder finder_;
 };
 
 /// Runs one case with the metrics observer (and the FTLE when asked).

@@ -38,14 +38,42 @@ struct RunSettings {
   static RunSettings from_spec(const Spec& spec);
 };
 
+class DenseProbe;
+
 /// What an observer sees: the time, the state, and the workspace evaluated at exactly this state
 /// (reactions, torques, powers), plus the energy audit.
+///
+/// A run is cut into segments at every jump of an input (phase boundaries of base acceleration and
+/// wind). `on_step` sees each segment's first state evaluated under the segment's own inputs
+/// (`segment_start`: the right-hand limit at a jump, and t = 0), every accepted step, and the
+/// segment's last state under the old inputs (`segment_end`: the left-hand limit), so both sides of
+/// every jump are observed at the same t.
 struct StepView {
   double t = 0;
   const double* x = nullptr;     ///< state, layout as in chain.hpp
   const Workspace* ws = nullptr;
   double energy = 0;             ///< mechanical energy [J]
   double audit_residual = 0;     ///< E + dissipated - work in - E(0) [J]
+  bool segment_start = false;    ///< first state of a segment (t = 0 or just after a jump)
+  bool segment_end = false;      ///< last state of a segment (just before a jump, or the end of the run)
+  /// Evaluates the run between accepted steps (on_step views of accepted steps only; null at a
+  /// segment start and for samples).
+  DenseProbe* probe = nullptr;
+};
+
+/// The run between accepted steps, from the stepper's dense output (Dormand-Prince: its
+/// continuous extension; RKF78: one uncontrolled step from the start of the step holding t). It
+/// covers the previous and the current accepted step of the segment, [from, to]. Each `at` call
+/// re-evaluates the workspace at the interpolated state, so read everything needed from a view
+/// before probing: an earlier view's `ws` no longer describes it.
+class DenseProbe {
+ public:
+  double from = 0, to = 0;  ///< the span `at` accepts [s]
+  /// The view at time t (clamped to [from, to]); valid until the next call.
+  virtual StepView at(double t) = 0;
+
+ protected:
+  ~DenseProbe() = default;
 };
 
 using Observer = std::function<void(const StepView&)>;
@@ -61,8 +89,10 @@ struct RunOutcome {
   double audit_scale = 0;         ///< energy scale the residual is judged against [J]
 };
 
-/// Integrates one case. `on_step` (optional) sees t = 0 and every accepted step; `on_sample`
-/// (optional) sees t = k / output_rate from dense output. Never throws for numerical trouble:
+/// Integrates one case. `on_step` (optional) sees every segment start, every accepted step and
+/// every segment end (see StepView); `on_sample` (optional) sees t = k / output_rate from dense
+/// output. A sample that falls on a jump is right-continuous: it is taken under the new phase,
+/// except at the end of the run. Never throws for numerical trouble:
 /// the outcome carries the status and the reason.
 RunOutcome simulate_case(const Model& model, Workspace& ws, int scenario, const InitialState& start,
                          const RunSettings& settings, const Observer& on_step = {},
