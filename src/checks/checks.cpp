@@ -63,7 +63,13 @@ double limit_value_in_case(const LimitSpec& limit, int slot, const CaseMetrics& 
       case LimitKind::peak_rate: offer(m.peak_rate[k].value, i, m.peak_rate[k].time); break;
       case LimitKind::pivot_load: offer(m.peak_load[k].value, i, m.peak_load[k].time); break;
       case LimitKind::dynamic_factor: offer(m.dynamic_factor[k], i, m.peak_load[k].time); break;
-      case LimitKind::rope_tension_min: offer(m.min_tension[k].value, i, m.min_tension[k].time); break;
+      case LimitKind::rope_tension_min: {
+        const auto& e = limit.end == RopeEnd::top      ? m.min_tension_top[k]
+                        : limit.end == RopeEnd::bottom ? m.min_tension_bottom[k]
+                                                       : m.min_tension[k];
+        offer(e.value, i, e.time);
+        break;
+      }
       default: break;
     }
   }
@@ -95,6 +101,8 @@ CheckSet::CheckSet(const Spec& spec) : spec_(&spec) {
       c.subject = "every link";
     if (l.kind == LimitKind::residual_sway) c.subject += fmt::format(", after {:g} s", l.after);
     if (l.kind == LimitKind::ftle_max) c.subject += fmt::format(", horizon {:g} s", l.horizon);
+    if (l.kind == LimitKind::rope_tension_min)
+      c.subject += l.end == RopeEnd::top ? ", top end" : l.end == RopeEnd::bottom ? ", bottom end" : ", either end";
     results_.push_back(std::move(c));
   }
 }

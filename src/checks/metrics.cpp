@@ -58,6 +58,8 @@ void CaseExtremes::write(CaseMetrics& m) const {
   m.peak_rate.resize(nn);
   m.peak_load.resize(nn);
   m.min_tension.assign(nn, Extreme{std::nan(""), 0});
+  m.min_tension_top.assign(nn, Extreme{std::nan(""), 0});
+  m.min_tension_bottom.assign(nn, Extreme{std::nan(""), 0});
   for (int i = 0; i < n; ++i) {
     const auto k = static_cast<std::size_t>(i);
     m.peak_angle[k] = peak(kAngle, i);
@@ -66,9 +68,10 @@ void CaseExtremes::write(CaseMetrics& m) const {
     m.peak_load[k] = peak(kLoad, i);
     if (model_.kind[k] != LinkKind::rope) continue;
     // The lower end of the last link is free (tension 0 there): only the top end counts.
-    Extreme low = peak(kTensionTop, i);
-    if (i + 1 < n && peak(kTensionBottom, i).value > low.value) low = peak(kTensionBottom, i);
-    m.min_tension[k] = {-low.value, low.time};
+    const Extreme top = peak(kTensionTop, i), bottom = peak(kTensionBottom, i);
+    m.min_tension_top[k] = {-top.value, top.time};
+    if (i + 1 < n) m.min_tension_bottom[k] = {-bottom.value, bottom.time};
+    m.min_tension[k] = i + 1 < n && bottom.value > top.value ? m.min_tension_bottom[k] : m.min_tension_top[k];
   }
   m.residual.assign(residual_links_.size(), 0.0);
   for (std::size_t r = 0; r < residual_links_.size(); ++r)

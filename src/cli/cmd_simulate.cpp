@@ -138,8 +138,11 @@ Action add_simulate(CLI::App& app) {
                                model.names[i], angle[i].value * 180 / M_PI, angle[i].time, rate[i].value * 180 / M_PI,
                                load[i].value, load[i].time);
       if (model.kind[i] == LinkKind::rope)
-        std::cerr << fmt::format(", least rope tension {:.1f} N at {:.3f} s", peaks.min_tension[i].value,
-                                 peaks.min_tension[i].time);
+        std::cerr << fmt::format(", least rope tension at the top end {:.1f} N at {:.3f} s",
+                                 peaks.min_tension_top[i].value, peaks.min_tension_top[i].time)
+                  << (i + 1 < n ? fmt::format(", at the bottom end {:.1f} N at {:.3f} s",
+                                              peaks.min_tension_bottom[i].value, peaks.min_tension_bottom[i].time)
+                                : std::string());
       std::cerr << '\n';
     }
     std::cerr << fmt::format("  extremes located between steps: {} brackets searched, {} interpolant evaluations\n",

@@ -145,6 +145,8 @@ std::string cases_csv_header(const Spec& spec) {
     if (l.kind == LinkKind::rope) {
       column(fmt::format("min_rope_tension({}) [N]", l.name));
       column(fmt::format("min_rope_tension_time({}) [s]", l.name));
+      column(fmt::format("min_rope_tension_top({}) [N]", l.name));
+      column(fmt::format("min_rope_tension_bottom({}) [N]", l.name));
     }
   }
   for (std::size_t i = 0; i < spec.limits.size(); ++i)
@@ -173,6 +175,8 @@ std::string cases_csv_row(const Spec& spec, const CaseMetrics& m) {
     if (spec.links[i].kind == LinkKind::rope) {
       measured(m.min_tension[i].value);
       measured(m.min_tension[i].time);
+      measured(m.min_tension_top[i].value);
+      measured(m.min_tension_bottom[i].value);
     }
   }
   for (double r : m.residual) measured(r);

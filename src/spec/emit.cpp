@@ -241,6 +241,8 @@ std::string normalised_yaml(const Spec& spec) {
       if (l.link >= 0) out << YAML::Key << "link" << YAML::Value << spec.links[static_cast<std::size_t>(l.link)].name;
       if (l.kind == LimitKind::residual_sway) out << YAML::Key << "after" << YAML::Value << fmt::format("{:.12g}", l.after);
       if (l.kind == LimitKind::ftle_max) out << YAML::Key << "horizon" << YAML::Value << fmt::format("{:.12g}", l.horizon);
+      if (l.end != RopeEnd::either)
+        out << YAML::Key << "end" << YAML::Value << (l.end == RopeEnd::top ? "top" : "bottom");
       out << YAML::EndMap;
       if (const auto unit = u::si_unit(dims[static_cast<int>(l.kind)]); !unit.empty()) out << YAML::Comment(unit);
     }

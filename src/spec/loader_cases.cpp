@@ -262,7 +262,7 @@ void read_limits(const MapView& top, Spec& spec) {
   if (!top.has("limits")) return;
   const YAML::Node list = top.get("limits");
   if (!expect_sequence(ctx, list, "limits", "limits")) return;
-  std::vector<std::string_view> keys{"link", "after", "horizon"};
+  std::vector<std::string_view> keys{"link", "after", "horizon", "end"};
   for (const auto& info : kLimits) keys.push_back(info.key);
   for (std::size_t i = 0; i < list.size(); ++i) {
     const std::string path = fmt::format("limits[{}]", i);
@@ -306,6 +306,20 @@ void read_limits(const MapView& top, Spec& spec) {
       if (!any_rope && !spec.links.empty())
         ctx.error(m.mark(), path, "no link is of kind rope, so there is no rope tension to check",
                   "set kind: rope on the rope links or remove this limit");
+    }
+    if (m.has("end")) {
+      if (limit.kind != LimitKind::rope_tension_min)
+        ctx.error(m.key_mark("end"), m.path("end"), "'end' belongs to rope_tension_min only", "remove it");
+      else if (auto k = read_choice(ctx, m.get("end"), m.path("end"), {"either", "top", "bottom"}))
+        limit.end = *k == "top" ? RopeEnd::top : *k == "bottom" ? RopeEnd::bottom : RopeEnd::either;
+      // The bottom end of the last link is free: there must be a rope with a link below it.
+      bool any_bottom = false;
+      for (std::size_t k = 0; k + 1 < spec.links.size(); ++k)
+        any_bottom |= spec.links[k].kind == LinkKind::rope && (limit.link < 0 || limit.link == static_cast<int>(k));
+      if (limit.end == RopeEnd::bottom && !any_bottom && !spec.links.empty())
+        ctx.error(m.get("end"), m.path("end"),
+                  "the bottom end of the last link hangs free (no tension to check)",
+                  "use end: top, or name a rope link that has a link below it");
     }
     if (m.has("after")) {
       if (limit.kind != LimitKind::residual_sway)

@@ -130,3 +130,54 @@ TEST_CASE("swaybound check: exit status, files, and nothing written for a bad sp
   CHECK(run_cli(fmt::format("check {} --out {}", broken.string(), untouched.string())) == 2);
   CHECK_FALSE(fs::exists(untouched));
 }
+
+TEST_CASE("rope_tension_min reads the end it names: top, bottom or either", "[check][rope]") {
+  // A rope (30 kg, uniform) carrying a 2,000 kg block, hanging at rest: by statics the top end
+  // carries both weights, (30 + 2000) g, the bottom end the block's, 2000 g; either end's least is
+  // the bottom's. The limits sit between the two so that top passes and bottom fails.
+  const double g = 9.81;
+  const Spec spec = spec_file("rope-ends", fmt::format(R"(
+swaybound: 1
+name: rope ends
+gravity: {}
+links:
+  - {{name: rope, kind: rope, length: 5 m, mass: 30 kg}}
+  - {{name: block, length: 1 m, mass: 2000 kg}}
+cases: {{duration: 2 s, initial: [{{single: {{theta: [0 deg, 0 deg]}}}}]}}
+limits:
+  - {{rope_tension_min: 19.9 kN, link: rope, end: top}}
+  - {{rope_tension_min: 19.9 kN, link: rope, end: bottom}}
+  - {{rope_tension_min: 19.9 kN, link: rope}}
+)",
+                                                          g));
+  CheckOptions options;
+  options.audit = false;
+  const CheckReport r = run_check(spec, options);
+  REQUIRE(r.checks.size() == 3);
+  CHECK(r.checks[0].worst == Approx(2030 * g).epsilon(1e-9));
+  CHECK(r.checks[0].pass);
+  CHECK(r.checks[0].subject == "link 'rope', top end");
+  CHECK(r.checks[1].worst == Approx(2000 * g).epsilon(1e-9));
+  CHECK_FALSE(r.checks[1].pass);
+  CHECK(r.checks[1].subject == "link 'rope', bottom end");
+  CHECK(r.checks[2].worst == Approx(2000 * g).epsilon(1e-9));
+  CHECK(r.checks[2].subject == "link 'rope', either end");
+
+  // The bottom end of the last link hangs free: naming it is an input error at `end`.
+  try {
+    spec_file("rope-free-end", R"(
+swaybound: 1
+name: free end
+links:
+  - {name: rope, kind: rope, length: 5 m, mass: 30 kg}
+cases: {duration: 2 s, initial: [{single: {theta: [0 deg]}}]}
+limits:
+  - {rope_tension_min: 1 kN, end: bottom}
+)");
+    FAIL("a bottom-end limit on a free end loaded");
+  } catch (const SpecError& e) {
+    REQUIRE(e.diagnostics().size() == 1);
+    CHECK(e.diagnostics()[0].path == "limits[0].end");
+    CHECK(e.diagnostics()[0].mark.line == 8);
+  }
+}

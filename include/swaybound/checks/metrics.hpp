@@ -29,6 +29,8 @@ struct CaseMetrics {
   std::vector<Extreme> peak_load;      ///< max |pivot reaction| [N] per pivot
   std::vector<double> dynamic_factor;  ///< peak load / static load (weight below the pivot) [-]
   std::vector<Extreme> min_tension;    ///< least axial tension of rope links, either end [N]; NaN for rigid
+  std::vector<Extreme> min_tension_top;     ///< of which at the top end (what the pivot above sees) [N]
+  std::vector<Extreme> min_tension_bottom;  ///< at the bottom end [N]; NaN for rigid links and the last link
   std::vector<double> residual;        ///< per residual_sway limit: max |theta| after its time [rad]
   double settling_time = 0;            ///< time after which every |theta| stays within the band [s];
                                        ///< NaN when the run ends outside the band

@@ -143,6 +143,10 @@ enum class LimitKind {
   onset_margin,      ///< chaotic-onset amplitude / largest start amplitude [-] (lower bound)
 };
 
+/// Which end of a rope link a rope_tension_min limit reads: the top end is what the sheave or
+/// the pivot above sees; the bottom end is where the link below hangs.
+enum class RopeEnd { either, top, bottom };
+
 struct LimitSpec {
   LimitKind kind{};
   std::string key;      ///< the key as written, e.g. "peak_angle"
@@ -150,6 +154,7 @@ struct LimitSpec {
   int link = -1;        ///< -1: every link the limit applies to
   double after = 0;     ///< residual_sway [s]
   double horizon = 0;   ///< ftle_max [s]
+  RopeEnd end = RopeEnd::either;  ///< rope_tension_min: the least of both ends, or one end
   Mark mark;
 };
 
