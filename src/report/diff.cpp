@@ -22,7 +22,8 @@ namespace {
 
 struct Loaded {
   nlohmann::json json;
-  fs::path spec;  ///< the spec the results were computed from (spec.yaml or sized_spec.yaml), empty when absent
+  /// The spec the results were computed from (spec.yaml, or sized_spec.yaml); empty when absent.
+  fs::path spec;
 };
 
 /// Verifies `path` (verify.hpp) and reads its results; refuses (RunError listing the findings) a
@@ -32,12 +33,15 @@ Loaded load(const std::string& path, const char* side) {
   if (!v.intact()) {
     std::string findings;
     for (const auto& f : v.findings) findings += fmt::format("\n  {}: {} [{}]", f.file, f.problem, f.method);
-    throw RunError(fmt::format("{} ({}) fails verification ({} finding(s)); not compared:{}\nrun `swaybound verify {}` "
-                               "for the details, and make the packet again from its spec",
-                               path, side, v.findings.size(), findings, path));
+    throw RunError(
+        fmt::format("{} ({}) fails verification ({} finding(s)); not compared:{}\nrun `swaybound verify {}` "
+                    "for the details, and make the packet again from its spec",
+                    path, side, v.findings.size(), findings, path));
   }
   std::ifstream in(v.results_file);
-  if (!in) throw RunError(fmt::format("cannot read {}: give a results.json file or a packet folder", v.results_file));
+  if (!in)
+    throw RunError(
+        fmt::format("cannot read {}: give a results.json file or a packet folder", v.results_file));
   Loaded l;
   try {
     l.json = nlohmann::json::parse(in);

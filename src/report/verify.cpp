@@ -41,7 +41,9 @@ std::string read_bytes(const fs::path& p) {
 }
 
 bool is_sha256_hex(std::string_view s) {
-  return s.size() == 64 && std::all_of(s.begin(), s.end(), [](char c) { return (c >= '0' && c <= '9') || (c >= 'a' && c <= 'f'); });
+  return s.size() == 64 && std::all_of(s.begin(), s.end(), [](char c) {
+           return (c >= '0' && c <= '9') || (c >= 'a' && c <= 'f');
+         });
 }
 
 /// MANIFEST as written by PacketWriter::commit: the header line, "key: value" lines (any number,
@@ -85,7 +87,8 @@ Manifest parse_manifest(const std::string& text) {
 
 /// A MANIFEST name that stays inside the folder (no separators, not "." or "..").
 bool plain_name(const std::string& name) {
-  return name.find('/') == std::string::npos && name.find('\\') == std::string::npos && name != "." && name != "..";
+  return name.find('/') == std::string::npos && name.find('\\') == std::string::npos && name != "." &&
+         name != "..";
 }
 
 /// Data records of a CSV text after its header line (a newline inside quotes does not end a record).
@@ -109,11 +112,11 @@ long csv_records(const std::string& text) {
 /// above the limit), as in checks.cpp; false for an upper bound; an empty optional for a key that
 /// names no limit kind.
 std::optional<bool> lower_bound_limit(const std::string& key) {
-  static const std::map<std::string, bool> kinds = {
-      {"peak_angle", false},       {"relative_angle", false}, {"peak_rate", false},
-      {"pivot_load", false},       {"dynamic_factor", false}, {"residual_sway", false},
-      {"ftle_max", false},         {"rope_tension_min", true}, {"modal_damping_min", true},
-      {"onset_margin", true}};
+  static const std::map<std::string, bool> kinds = {{"peak_angle", false},       {"relative_angle", false},
+                                                    {"peak_rate", false},        {"pivot_load", false},
+                                                    {"dynamic_factor", false},   {"residual_sway", false},
+                                                    {"ftle_max", false},         {"rope_tension_min", true},
+                                                    {"modal_damping_min", true}, {"onset_margin", true}};
   const auto it = kinds.find(key);
   if (it == kinds.end()) return std::nullopt;
   return it->second;
@@ -121,7 +124,9 @@ std::optional<bool> lower_bound_limit(const std::string& key) {
 
 /// Modal damping and the onset margin are values of the design, not of each case: no failed case
 /// counts against them (checks.cpp, is_per_case).
-bool per_case_limit(const std::string& key) { return key != "modal_damping_min" && key != "onset_margin"; }
+bool per_case_limit(const std::string& key) {
+  return key != "modal_damping_min" && key != "onset_margin";
+}
 
 /// A number of results.json: finite, or NaN where the file holds null (non-finite values are
 /// written as null); `present` false when the key is missing or holds something else.
@@ -163,8 +168,11 @@ class Verifier {
   Manifest manifest(const fs::path& dir) {
     const Manifest m = parse_manifest(read_bytes(dir / "MANIFEST"));
     if (m.header != kManifestHeader)
-      add("MANIFEST", fmt::format("first line is '{}', not '{}'", m.header, kManifestHeader), "MANIFEST header line read");
-    if (!m.has_files) add("MANIFEST", "no 'files:' line: no file of the packet can be verified", "MANIFEST read line by line");
+      add("MANIFEST", fmt::format("first line is '{}', not '{}'", m.header, kManifestHeader),
+          "MANIFEST header line read");
+    if (!m.has_files)
+      add("MANIFEST", "no 'files:' line: no file of the packet can be verified",
+          "MANIFEST read line by line");
     for (const auto& line : m.malformed)
       add("MANIFEST", fmt::format("line '{}' in the files section is not 'SHA-256  name'", line),
           "MANIFEST read line by line");
@@ -181,13 +189,16 @@ class Verifier {
       }
       std::error_code ec;
       if (!fs::is_regular_file(dir / name, ec)) {
-        add(name, "listed in MANIFEST but missing from the folder", "MANIFEST files section against the folder");
+        add(name, "listed in MANIFEST but missing from the folder",
+            "MANIFEST files section against the folder");
         continue;
       }
       const std::string actual = sha256_file((dir / name).string());
       ++r_.files_hashed;
       if (actual != hash)
-        add(name, fmt::format("SHA-256 is {}, MANIFEST records {}: the file changed after the packet was written", actual, hash),
+        add(name,
+            fmt::format("SHA-256 is {}, MANIFEST records {}: the file changed after the packet was written",
+                        actual, hash),
             "SHA-256 of the file recomputed");
     }
     std::vector<std::string> extra;
@@ -206,7 +217,8 @@ class Verifier {
 
   /// SHA-256 of `file` in `dir` against `recorded` (from `where`); a finding when they differ or
   /// the file is absent.
-  void spec_hash(const fs::path& dir, const std::string& file, const std::string& recorded, const std::string& where) {
+  void spec_hash(const fs::path& dir, const std::string& file, const std::string& recorded,
+                 const std::string& where) {
     std::error_code ec;
     if (!fs::is_regular_file(dir / file, ec)) {
       add(file, fmt::format("missing, though {} records its SHA-256", where), "folder listing");
@@ -239,8 +251,9 @@ class Verifier {
       const auto listed = static_cast<double>(j["failed_cases"].size());
       const double expected = std::min(failed, static_cast<double>(kFailedListed));
       if (listed != expected)
-        add(file, fmt::format("lists {} failed case(s) where cases.failed = {:g} (it lists the first {})", listed, failed,
-                              kFailedListed),
+        add(file,
+            fmt::format("lists {} failed case(s) where cases.failed = {:g} (it lists the first {})", listed,
+                        failed, kFailedListed),
             "failed_cases counted against cases.failed");
     }
     bool all_pass = failed == 0;
@@ -253,10 +266,11 @@ class Verifier {
         first_failing = fmt::format("check {} ({})", index, c.is_object() ? c.value("limit", "?") : "?");
       all_pass &= pass;
     }
-    const std::string verdict = j.contains("verdict") && j["verdict"].is_string() ? j["verdict"].get<std::string>() : "";
+    const std::string verdict =
+        j.contains("verdict") && j["verdict"].is_string() ? j["verdict"].get<std::string>() : "";
     const std::string expected = all_pass ? "pass" : "fail";
     if (verdict != expected) {
-      const std::string why = all_pass ? "every check passes and no case failed to run"
+      const std::string why = all_pass     ? "every check passes and no case failed to run"
                               : failed > 0 ? fmt::format("{:g} case(s) failed to run", failed)
                                            : first_failing + " fails";
       add(file, fmt::format("overall verdict is '{}', but {}", verdict, why),
@@ -276,21 +290,26 @@ class Verifier {
     const std::string key = c.value("limit", "");
     const std::string label = fmt::format("check {} ({}, {})", index, key, c.value("applies_to", ""));
     const std::string unit = c.contains("unit") && c["unit"].is_string() ? c["unit"].get<std::string>() : "";
-    const std::string recorded_verdict = c.contains("verdict") && c["verdict"].is_string() ? c["verdict"].get<std::string>() : "";
+    const std::string recorded_verdict =
+        c.contains("verdict") && c["verdict"].is_string() ? c["verdict"].get<std::string>() : "";
     if (recorded_verdict != "pass" && recorded_verdict != "fail")
-      add(file, fmt::format("{}: verdict '{}' is neither pass nor fail", label, recorded_verdict), "results.json read");
+      add(file, fmt::format("{}: verdict '{}' is neither pass nor fail", label, recorded_verdict),
+          "results.json read");
 
     const std::optional<bool> lower = lower_bound_limit(key);
     const std::string recorded_bound = c.value("bound", "");
     bool is_lower = recorded_bound == "lower";
     if (!lower) {
-      add(file, fmt::format("{}: '{}' names no limit kind", label, key), "limit name against the limit kinds");
+      add(file, fmt::format("{}: '{}' names no limit kind", label, key),
+          "limit name against the limit kinds");
     } else {
       is_lower = *lower;
       const std::string expected_bound = is_lower ? "lower" : "upper";
       if (recorded_bound != expected_bound)
-        add(file, fmt::format("{}: bound '{}', but {} is {} limit", label, recorded_bound, key,
-                              is_lower ? "a lower (worst value must stay above it)" : "an upper (worst value must stay below it)"),
+        add(file,
+            fmt::format("{}: bound '{}', but {} is {} limit", label, recorded_bound, key,
+                        is_lower ? "a lower (worst value must stay above it)"
+                                 : "an upper (worst value must stay below it)"),
             "bound against the limit kind");
     }
 
@@ -298,9 +317,13 @@ class Verifier {
     const double failed_here = json_number(c, "failed_cases", present);
     const double expected_failed = per_case_limit(key) ? failed_total : 0;
     if (!present || failed_here != expected_failed)
-      add(file, fmt::format("{}: failed_cases {}, but {}", label, present ? fmt::format("{:g}", failed_here) : "missing",
-                            per_case_limit(key) ? fmt::format("{:g} case(s) failed to run (cases.failed), and a failed case fails every per-case check", failed_total)
-                                                : std::string("this check is not per case (0 expected)")),
+      add(file,
+          fmt::format("{}: failed_cases {}, but {}", label,
+                      present ? fmt::format("{:g}", failed_here) : "missing",
+                      per_case_limit(key) ? fmt::format("{:g} case(s) failed to run (cases.failed), and a "
+                                                        "failed case fails every per-case check",
+                                                        failed_total)
+                                          : std::string("this check is not per case (0 expected)")),
           "failed_cases against cases.failed");
 
     const double limit = json_number(c, "limit_value", present);
@@ -315,7 +338,8 @@ class Verifier {
     const double ratio = json_number(c, "margin_ratio", present);
     if (!present) add(file, fmt::format("{}: no margin_ratio (number or null)", label), "results.json read");
 
-    const std::string margin_rule = is_lower ? "worst - limit_value (lower bound)" : "limit_value - worst (upper bound)";
+    const std::string margin_rule =
+        is_lower ? "worst - limit_value (lower bound)" : "limit_value - worst (upper bound)";
     double expected_margin = std::nan("");
     double scale = std::max(std::fabs(limit), std::fabs(worst));
     if (std::isnan(worst)) {
@@ -326,18 +350,22 @@ class Verifier {
       expected_margin = is_lower ? worst - limit : limit - worst;
       if (std::isnan(margin) || !close(margin, expected_margin, scale))
         add(file,
-            fmt::format("{}: margin {} from limit {} and worst {}", label, both(margin, expected_margin, unit),
-                        engineering(limit, unit), engineering(worst, unit)),
+            fmt::format("{}: margin {} from limit {} and worst {}", label,
+                        both(margin, expected_margin, unit), engineering(limit, unit),
+                        engineering(worst, unit)),
             "margin recomputed as " + margin_rule);
       const double expected_ratio = limit != 0 ? expected_margin / std::fabs(limit) : std::nan("");
-      const bool ratio_ok = std::isnan(expected_ratio) ? std::isnan(ratio)
-                                                       : !std::isnan(ratio) && close(ratio, expected_ratio, scale / std::fabs(limit));
+      const bool ratio_ok =
+          std::isnan(expected_ratio)
+              ? std::isnan(ratio)
+              : !std::isnan(ratio) && close(ratio, expected_ratio, scale / std::fabs(limit));
       if (!ratio_ok)
         add(file, fmt::format("{}: margin_ratio {}", label, both(ratio, expected_ratio, "")),
             "margin_ratio recomputed as margin / |limit_value|");
     }
     // checks.cpp: pass = no failed case, a margin was computed, and it is >= 0.
-    const bool near_zero = !std::isnan(expected_margin) && std::fabs(expected_margin) <= kRelativeTolerance * scale;
+    const bool near_zero =
+        !std::isnan(expected_margin) && std::fabs(expected_margin) <= kRelativeTolerance * scale;
     bool pass = failed_here == 0 && !std::isnan(expected_margin) && expected_margin >= 0;
     if (near_zero && failed_here == 0) pass = recorded_verdict == "pass";
     if ((recorded_verdict == "pass") != pass && (recorded_verdict == "pass" || recorded_verdict == "fail")) {
@@ -352,7 +380,8 @@ class Verifier {
       add(file, fmt::format("{}: verdict '{}', but {}", label, recorded_verdict, why),
           fmt::format("verdict recomputed as: no failed case and margin ({}) >= 0", margin_rule));
     }
-    if (c.contains("accuracy_audit") && c["accuracy_audit"].is_object()) audit(c["accuracy_audit"], label, unit, worst, expected_margin);
+    if (c.contains("accuracy_audit") && c["accuracy_audit"].is_object())
+      audit(c["accuracy_audit"], label, unit, worst, expected_margin);
     return pass;
   }
 
@@ -370,8 +399,10 @@ class Verifier {
     const bool warning = !(std::fabs(expected) <= std::fabs(margin));
     if (a["warning"].get<bool>() != warning)
       add("results.json",
-          fmt::format("{}: accuracy_audit warning {}, but the audit moves the worst value by {} against a margin of {}",
-                      label, a["warning"].get<bool>(), engineering(expected, unit), engineering(margin, unit)),
+          fmt::format("{}: accuracy_audit warning {}, but the audit moves the worst value by {} against a "
+                      "margin of {}",
+                      label, a["warning"].get<bool>(), engineering(expected, unit),
+                      engineering(margin, unit)),
           "accuracy_audit.warning recomputed as |change| > |margin|");
   }
 
@@ -383,7 +414,8 @@ class Verifier {
 
 int results_schema_version(std::string_view schema) {
   constexpr std::string_view prefix = "swaybound.results/";
-  if (schema.substr(0, prefix.size()) != prefix || schema.size() == prefix.size() || schema.size() > prefix.size() + 6)
+  if (schema.substr(0, prefix.size()) != prefix || schema.size() == prefix.size() ||
+      schema.size() > prefix.size() + 6)
     return 0;
   int n = 0;
   for (char c : schema.substr(prefix.size())) {
@@ -405,9 +437,10 @@ VerifyResult verify_packet(const std::string& path) {
     dir = p;
     results = dir / "results.json";
     if (!fs::is_regular_file(dir / "MANIFEST", ec))
-      throw RunError(fmt::format("{} is not a swaybound packet: it has no MANIFEST (give its results.json to verify "
-                                 "that file alone)",
-                                 path));
+      throw RunError(
+          fmt::format("{} is not a swaybound packet: it has no MANIFEST (give its results.json to verify "
+                      "that file alone)",
+                      path));
     packet = true;
   } else if (fs::is_regular_file(p, ec)) {
     results = p;
@@ -428,7 +461,8 @@ VerifyResult verify_packet(const std::string& path) {
     const auto spec = m.keys.find("spec");
     const auto spec_sha = m.keys.find("spec_sha256");
     if (spec == m.keys.end() || spec_sha == m.keys.end() || !plain_name(spec->second))
-      v.add("MANIFEST", "lacks the 'spec:' or 'spec_sha256:' line naming the spec copy", "MANIFEST read line by line");
+      v.add("MANIFEST", "lacks the 'spec:' or 'spec_sha256:' line naming the spec copy",
+            "MANIFEST read line by line");
     else
       v.spec_hash(dir, spec->second, spec_sha->second, "MANIFEST spec_sha256");
     const auto sized = m.keys.find("sized spec");
@@ -438,7 +472,8 @@ VerifyResult verify_packet(const std::string& path) {
       const std::string text = sized == m.keys.end() ? std::string() : sized->second;
       const auto at = text.find("sha256=");
       if (at == std::string::npos || !is_sha256_hex(text.substr(at + 7, 64)))
-        v.add("MANIFEST", "lacks the 'sized spec: sized_spec.yaml sha256=...' line", "MANIFEST read line by line");
+        v.add("MANIFEST", "lacks the 'sized spec: sized_spec.yaml sha256=...' line",
+              "MANIFEST read line by line");
       else
         v.spec_hash(dir, results_spec, text.substr(at + 7, 64), "MANIFEST 'sized spec'");
     } else if (spec != m.keys.end()) {
@@ -449,7 +484,8 @@ VerifyResult verify_packet(const std::string& path) {
     for (const char* name : {"spec.yaml", "sized_spec.yaml"})
       if (results_spec.empty() && fs::is_regular_file(dir / name, ec)) results_spec = name;
   }
-  if (!results_spec.empty() && fs::is_regular_file(dir / results_spec, ec)) r.spec_copy = (dir / results_spec).string();
+  if (!results_spec.empty() && fs::is_regular_file(dir / results_spec, ec))
+    r.spec_copy = (dir / results_spec).string();
 
   if (!fs::is_regular_file(results, ec)) {
     v.add("results.json", "missing from the packet", "folder listing");
@@ -463,25 +499,33 @@ VerifyResult verify_packet(const std::string& path) {
     v.add("results.json", fmt::format("is not valid JSON: {}", e.what()), "results.json parsed");
     return r;
   }
-  const std::string schema = j.is_object() && j.contains("schema") && j["schema"].is_string() ? j["schema"].get<std::string>() : "";
+  const std::string schema =
+      j.is_object() && j.contains("schema") && j["schema"].is_string() ? j["schema"].get<std::string>() : "";
   const int version = results_schema_version(schema);
   const int ours = results_schema_version(kResultsSchema);
   if (version != 0 && version != ours)
-    throw RunError(fmt::format("{}: unsupported schema version {} (this swaybound reads {})", results.string(), version, ours));
+    throw RunError(fmt::format("{}: unsupported schema version {} (this swaybound reads {})",
+                               results.string(), version, ours));
   if (version == 0) {
-    if (!packet) throw RunError(fmt::format("{} is not a swaybound results file (no schema {})", results.string(), kResultsSchema));
-    v.add("results.json", fmt::format("is not a swaybound results file (schema '{}')", schema), "results.json schema read");
+    if (!packet)
+      throw RunError(
+          fmt::format("{} is not a swaybound results file (no schema {})", results.string(), kResultsSchema));
+    v.add("results.json", fmt::format("is not a swaybound results file (schema '{}')", schema),
+          "results.json schema read");
     return r;
   }
 
-  const std::string recorded_spec = j.contains("spec") && j["spec"].is_object() ? j["spec"].value("sha256", "") : "";
+  const std::string recorded_spec =
+      j.contains("spec") && j["spec"].is_object() ? j["spec"].value("sha256", "") : "";
   if (!r.spec_copy.empty()) {
     const std::string actual = sha256_file(r.spec_copy);
     if (actual != recorded_spec)
-      v.add(results_spec, fmt::format("SHA-256 is {}, results.json records spec.sha256 {}", actual, recorded_spec),
+      v.add(results_spec,
+            fmt::format("SHA-256 is {}, results.json records spec.sha256 {}", actual, recorded_spec),
             fmt::format("SHA-256 of {} against results.json spec.sha256", results_spec));
   } else if (packet) {
-    v.add("results.json", "the spec copy its results were computed from is missing from the packet", "folder listing");
+    v.add("results.json", "the spec copy its results were computed from is missing from the packet",
+          "folder listing");
   }
 
   v.consistency(j);
@@ -504,14 +548,15 @@ VerifyResult verify_packet(const std::string& path) {
 std::string verify_report(const VerifyResult& r) {
   std::string out;
   for (const auto& f : r.findings) out += fmt::format("{}: {} [{}]\n", f.file, f.problem, f.method);
-  const std::string counted = fmt::format("{} file hash(es), {} check(s){}", r.files_hashed, r.checks_verified,
-                                          r.cases_csv_counted ? ", the cases.csv row count" : "");
+  const std::string counted =
+      fmt::format("{} file hash(es), {} check(s){}", r.files_hashed, r.checks_verified,
+                  r.cases_csv_counted ? ", the cases.csv row count" : "");
   if (r.intact())
     out += fmt::format("{}: intact ({}: {} verified{})\n", r.path, r.kind, counted,
                        r.kind == "results file" ? "; no MANIFEST, so no file hash" : "");
   else
-    out += fmt::format("{}: FAILS verification, {} finding(s) ({}: {} verified)\n", r.path, r.findings.size(), r.kind,
-                       counted);
+    out += fmt::format("{}: FAILS verification, {} finding(s) ({}: {} verified)\n", r.path, r.findings.size(),
+                       r.kind, counted);
   return out;
 }
 

@@ -22,7 +22,9 @@ namespace fs = std::filesystem;
 
 namespace {
 
-fs::path temp(const std::string& name) { return fs::temp_directory_path() / ("swaybound-verify-" + name); }
+fs::path temp(const std::string& name) {
+  return fs::temp_directory_path() / ("swaybound-verify-" + name);
+}
 
 const double kDegree = M_PI / 180;
 
@@ -49,10 +51,14 @@ limits:
                      peak_angle, solver);
 }
 
-std::string cli() { return std::string(SWAYBOUND_CLI); }
+std::string cli() {
+  return std::string(SWAYBOUND_CLI);
+}
 
 /// Runs the CLI with `args`; its exit status and everything it printed (stdout and stderr).
-testing::CommandResult run_cli(const std::string& args) { return testing::run_command(cli() + " " + args + " 2>&1"); }
+testing::CommandResult run_cli(const std::string& args) {
+  return testing::run_command(cli() + " " + args + " 2>&1");
+}
 
 /// A fresh packet of `text` in `name` (check exit status `expected`).
 fs::path make_packet(const std::string& name, const std::string& text, int expected = 0) {
@@ -79,11 +85,17 @@ std::string read_text(const fs::path& p) {
   return s.str();
 }
 
-void write_text(const fs::path& p, const std::string& text) { std::ofstream(p, std::ios::binary) << text; }
+void write_text(const fs::path& p, const std::string& text) {
+  std::ofstream(p, std::ios::binary) << text;
+}
 
-nlohmann::ordered_json read_json(const fs::path& p) { return nlohmann::ordered_json::parse(read_text(p)); }
+nlohmann::ordered_json read_json(const fs::path& p) {
+  return nlohmann::ordered_json::parse(read_text(p));
+}
 
-void write_json(const fs::path& p, const nlohmann::ordered_json& j) { write_text(p, j.dump(2) + "\n"); }
+void write_json(const fs::path& p, const nlohmann::ordered_json& j) {
+  write_text(p, j.dump(2) + "\n");
+}
 
 /// Rewrites the MANIFEST line of `name` with the file's present SHA-256, as someone covering an
 /// edit would: what is left to catch the edit is results.json's own consistency.
@@ -118,7 +130,8 @@ const fs::path& passing_packet() {
 
 }  // namespace
 
-TEST_CASE("an untouched packet verifies: check packet, sizing folder, the committed example", "[verify][packet]") {
+TEST_CASE("an untouched packet verifies: check packet, sizing folder, the committed example",
+          "[verify][packet]") {
   const fs::path packet = passing_packet();
   const VerifyResult r = verify_packet(packet.string());
   INFO(verify_report(r));
@@ -136,7 +149,8 @@ TEST_CASE("an untouched packet verifies: check packet, sizing folder, the commit
 
   // The example packet holds the three lower-bound kinds (rope_tension_min, modal_damping_min,
   // onset_margin) and ftle_max, as the tool wrote them.
-  const VerifyResult example = verify_packet((fs::path(SWAYBOUND_SOURCE_DIR) / "reports/gantry_hook_block").string());
+  const VerifyResult example =
+      verify_packet((fs::path(SWAYBOUND_SOURCE_DIR) / "reports/gantry_hook_block").string());
   INFO(verify_report(example));
   CHECK(example.intact());
   CHECK(example.checks_verified == 8);
@@ -156,7 +170,8 @@ sizing:
   budget: {evaluations: 40}
 )";
   fs::remove_all(sizing);
-  REQUIRE(run_cli(fmt::format("size {} --out {} --quiet", sizing_spec.string(), sizing.string())).status == 0);
+  REQUIRE(run_cli(fmt::format("size {} --out {} --quiet", sizing_spec.string(), sizing.string())).status ==
+          0);
   const VerifyResult s = verify_packet(sizing.string());
   INFO(verify_report(s));
   CHECK(s.intact());
@@ -185,20 +200,23 @@ TEST_CASE("verify catches a MANIFEST hash that does not match its file", "[verif
   CHECK(run_cli("verify " + dir.string()).status == 1);
 }
 
-TEST_CASE("verify catches a worst value edited past its limit with the verdict left pass", "[verify][packet]") {
+TEST_CASE("verify catches a worst value edited past its limit with the verdict left pass",
+          "[verify][packet]") {
   const fs::path dir = copy_packet(passing_packet(), "worst-edited");
   auto j = read_json(dir / "results.json");
   const std::size_t i = check_index(j, "peak_angle");
   REQUIRE(j["checks"][i]["verdict"] == "pass");
   REQUIRE(j["verdict"] == "pass");
-  j["checks"][i]["worst"] = 17.2 * kDegree;  // against a 12 deg limit; margin, verdict and overall verdict untouched
+  j["checks"][i]["worst"] =
+      17.2 * kDegree;  // against a 12 deg limit; margin, verdict and overall verdict untouched
   write_json(dir / "results.json", j);
 
   SECTION("the hash in MANIFEST left as it was") {
     const VerifyResult r = verify_packet(dir.string());
     INFO(verify_report(r));
     CHECK(count_findings(r, "results.json", "MANIFEST records") == 1);
-    CHECK(count_findings(r, "results.json", "verdict 'pass', but worst 17.200 deg against limit 12.000 deg") == 1);
+    CHECK(count_findings(r, "results.json",
+                         "verdict 'pass', but worst 17.200 deg against limit 12.000 deg") == 1);
   }
   SECTION("the hash in MANIFEST rewritten to match") {
     rehash(dir, "results.json");
@@ -207,9 +225,11 @@ TEST_CASE("verify catches a worst value edited past its limit with the verdict l
     CHECK(count_findings(r, "results.json", "MANIFEST records") == 0);
     CHECK(count_findings(r, "results.json", "(peak_angle, every link): margin 4.") == 1);
     CHECK(count_findings(r, "results.json", "(peak_angle, every link): verdict 'pass'") == 1);
-    CHECK(count_findings(r, "results.json", "overall verdict is 'pass', but check 1 (peak_angle) fails") == 1);
+    CHECK(count_findings(r, "results.json", "overall verdict is 'pass', but check 1 (peak_angle) fails") ==
+          1);
     // Only the edited check is flagged.
-    for (const char* other : {"residual_sway", "peak_rate", "pivot_load", "dynamic_factor", "rope_tension_min"})
+    for (const char* other :
+         {"residual_sway", "peak_rate", "pivot_load", "dynamic_factor", "rope_tension_min"})
       CHECK(count_findings(r, "results.json", std::string("(") + other) == 0);
     CHECK(run_cli("verify " + dir.string()).status == 1);
   }
@@ -226,7 +246,8 @@ TEST_CASE("verify catches a flipped overall verdict", "[verify][packet]") {
   INFO(verify_report(r));
   REQUIRE(r.findings.size() == 1);
   CHECK(r.findings[0].file == "results.json");
-  CHECK(r.findings[0].problem == "overall verdict is 'fail', but every check passes and no case failed to run");
+  CHECK(r.findings[0].problem ==
+        "overall verdict is 'fail', but every check passes and no case failed to run");
 }
 
 TEST_CASE("verify catches an edited spec copy", "[verify][packet]") {
@@ -254,23 +275,27 @@ TEST_CASE("verify catches an edited spec copy", "[verify][packet]") {
   }
 }
 
-TEST_CASE("verify applies each limit kind's sign convention (lower bounds: worst - limit)", "[verify][packet]") {
-  const fs::path dir = copy_packet(fs::path(SWAYBOUND_SOURCE_DIR) / "reports/gantry_hook_block", "lower-bound");
+TEST_CASE("verify applies each limit kind's sign convention (lower bounds: worst - limit)",
+          "[verify][packet]") {
+  const fs::path dir =
+      copy_packet(fs::path(SWAYBOUND_SOURCE_DIR) / "reports/gantry_hook_block", "lower-bound");
   auto j = read_json(dir / "results.json");
 
   SECTION("a rope going slack, with the margin worked out as for an upper bound") {
     auto& c = j["checks"][check_index(j, "rope_tension_min")];
     REQUIRE(c["bound"] == "lower");
     REQUIRE(c["limit_value"].get<double>() == 0.0);
-    c["worst"] = -500.0;   // N: the rope pushes
-    c["margin"] = 500.0;   // limit - worst, the upper-bound rule
+    c["worst"] = -500.0;  // N: the rope pushes
+    c["margin"] = 500.0;  // limit - worst, the upper-bound rule
     c["verdict"] = "pass";
     c.erase("accuracy_audit");
     write_json(dir / "results.json", j);
     rehash(dir, "results.json");
     const VerifyResult r = verify_packet(dir.string());
     INFO(verify_report(r));
-    CHECK(count_findings(r, "results.json", "(rope_tension_min, link 'hoist rope'): margin 0.50 kN, but recomputed -0.50 kN") == 1);
+    CHECK(count_findings(r, "results.json",
+                         "(rope_tension_min, link 'hoist rope'): margin 0.50 kN, but recomputed -0.50 kN") ==
+          1);
     CHECK(count_findings(r, "results.json", "(rope_tension_min, link 'hoist rope'): verdict 'pass'") == 1);
   }
   SECTION("an upper limit relabelled lower, its margin made to agree") {
@@ -313,7 +338,8 @@ TEST_CASE("a packet whose cases failed to run verifies; hiding the failures is c
   rehash(dir, "results.json");
   const VerifyResult hidden = verify_packet(dir.string());
   INFO(verify_report(hidden));
-  CHECK(count_findings(hidden, "results.json", "overall verdict is 'pass', but 6 case(s) failed to run") == 1);
+  CHECK(count_findings(hidden, "results.json", "overall verdict is 'pass', but 6 case(s) failed to run") ==
+        1);
 }
 
 TEST_CASE("verify catches cases.csv rows removed and files added", "[verify][packet]") {
@@ -330,7 +356,8 @@ TEST_CASE("verify catches cases.csv rows removed and files added", "[verify][pac
   CHECK(r.findings.size() == 2);
 }
 
-TEST_CASE("verify: a folder that is not a packet, or a path that does not exist, is an input error", "[verify][packet]") {
+TEST_CASE("verify: a folder that is not a packet, or a path that does not exist, is an input error",
+          "[verify][packet]") {
   const fs::path plain = temp("not-a-packet");
   fs::remove_all(plain);
   fs::create_directories(plain);
@@ -360,7 +387,8 @@ TEST_CASE("diff refuses a packet that fails verification", "[verify][diff]") {
   CHECK_NOTHROW(diff_results(passing_packet().string(), passing_packet().string(), 0.01));
 }
 
-TEST_CASE("diff --require-pass fails a new design that fails a check even with no regression", "[verify][diff]") {
+TEST_CASE("diff --require-pass fails a new design that fails a check even with no regression",
+          "[verify][diff]") {
   const fs::path failing = make_packet("failing", spec_text("2 deg"), 1);
   const fs::path again = copy_packet(failing, "failing-again");
   const DiffResult d = diff_results(failing.string(), again.string(), 0.01);
@@ -370,7 +398,9 @@ TEST_CASE("diff --require-pass fails a new design that fails a check even with n
   const auto gated = run_cli(fmt::format("diff {} {} --require-pass", failing.string(), again.string()));
   CHECK(gated.status == 1);
   CHECK(gated.out.find("the new design fails a check") != std::string::npos);
-  CHECK(run_cli(fmt::format("diff {} {} --require-pass", failing.string(), passing_packet().string())).status == 0);
+  CHECK(
+      run_cli(fmt::format("diff {} {} --require-pass", failing.string(), passing_packet().string())).status ==
+      0);
 }
 
 TEST_CASE("diff names an unsupported schema version", "[verify][diff]") {
@@ -380,14 +410,15 @@ TEST_CASE("diff names an unsupported schema version", "[verify][diff]") {
   auto j = read_json(passing_packet() / "results.json");
   j["schema"] = "swaybound.results/2";
   write_json(dir / "results.json", j);
-  const auto cmd = run_cli(fmt::format("diff {} {}", passing_packet().string(), (dir / "results.json").string()));
+  const auto cmd =
+      run_cli(fmt::format("diff {} {}", passing_packet().string(), (dir / "results.json").string()));
   CHECK(cmd.status == 2);
   CHECK(cmd.out.find("unsupported schema version 2 (this swaybound reads 1)") != std::string::npos);
   CHECK(cmd.out.find("not a swaybound results file") == std::string::npos);
   j["schema"] = "something else";
   write_json(dir / "results.json", j);
-  CHECK(run_cli(fmt::format("diff {} {}", passing_packet().string(), (dir / "results.json").string())).out.find(
-            "not a swaybound results file") != std::string::npos);
+  CHECK(run_cli(fmt::format("diff {} {}", passing_packet().string(), (dir / "results.json").string()))
+            .out.find("not a swaybound results file") != std::string::npos);
   CHECK(results_schema_version("swaybound.results/1") == 1);
   CHECK(results_schema_version("swaybound.results/12") == 12);
   CHECK(results_schema_version("swaybound.results/") == 0);
