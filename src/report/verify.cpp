@@ -145,6 +145,12 @@ double json_number(const Json& object, const char* key, bool& present) {
   return std::nan("");
 }
 
+/// The text at `key` of `object`; "" when it is missing or not text.
+std::string text(const Json& object, const char* key) {
+  if (!object.is_object() || !object.contains(key) || !object[key].is_string()) return "";
+  return object[key].get<std::string>();
+}
+
 bool close(double recorded, double expected, double scale) {
   return std::fabs(recorded - expected) <= kRelativeTolerance * scale;
 }
@@ -247,7 +253,9 @@ class Verifier {
       add(file, "'cases' lacks a case count or a failed-case count", "results.json read");
       return;
     }
-    if (j.contains("failed_cases") && j["failed_cases"].is_array()) {
+    if (!j.contains("failed_cases") || !j["failed_cases"].is_array()) {
+      add(file, "has no 'failed_cases' list", "results.json read");
+    } else {
       const auto listed = static_cast<double>(j["failed_cases"].size());
       const double expected = std::min(failed, static_cast<double>(kFailedListed));
       if (listed != expected)
@@ -263,7 +271,7 @@ class Verifier {
       ++index;
       const bool pass = check(c, index, failed);
       if (!pass && first_failing.empty())
-        first_failing = fmt::format("check {} ({})", index, c.is_object() ? c.value("limit", "?") : "?");
+        first_failing = fmt::format("check {} ({})", index, text(c, "limit"));
       all_pass &= pass;
     }
     const std::string verdict =
@@ -287,17 +295,20 @@ class Verifier {
       return false;
     }
     ++r_.checks_verified;
-    const std::string key = c.value("limit", "");
-    const std::string label = fmt::format("check {} ({}, {})", index, key, c.value("applies_to", ""));
-    const std::string unit = c.contains("unit") && c["unit"].is_string() ? c["unit"].get<std::string>() : "";
-    const std::string recorded_verdict =
-        c.contains("verdict") && c["verdict"].is_string() ? c["verdict"].get<std::string>() : "";
-    if (recorded_verdict != "pass" && recorded_verdict != "fail")
+    const std::string key = text(c, "limit");
+    const std::string label = fmt::format("check {} ({}, {})", index, key, text(c, "applies_to"));
+    // diff reads these as text.
+    for (const char* field : {"limit", "applies_to", "bound", "unit", "verdict"})
+      if (!c.contains(field) || !c[field].is_string())
+        add(file, fmt::format("{}: '{}' is missing or not text", label, field), "results.json read");
+    const std::string unit = text(c, "unit");
+    const std::string recorded_verdict = text(c, "verdict");
+    if (!recorded_verdict.empty() && recorded_verdict != "pass" && recorded_verdict != "fail")
       add(file, fmt::format("{}: verdict '{}' is neither pass nor fail", label, recorded_verdict),
           "results.json read");
 
     const std::optional<bool> lower = lower_bound_limit(key);
-    const std::string recorded_bound = c.value("bound", "");
+    const std::string recorded_bound = text(c, "bound");
     bool is_lower = recorded_bound == "lower";
     if (!lower) {
       add(file, fmt::format("{}: '{}' names no limit kind", label, key),
@@ -307,9 +318,9 @@ class Verifier {
       const std::string expected_bound = is_lower ? "lower" : "upper";
       if (recorded_bound != expected_bound)
         add(file,
-            fmt::format("{}: bound '{}', but {} is {} limit", label, recorded_bound, key,
-                        is_lower ? "a lower (worst value must stay above it)"
-                                 : "an upper (worst value must stay below it)"),
+            fmt::format("{}: bound '{}', but {} is {}", label, recorded_bound, key,
+                        is_lower ? "a lower bound (its worst value must stay above the limit)"
+                                 : "an upper bound (its worst value must stay below the limit)"),
             "bound against the limit kind");
     }
 
@@ -372,8 +383,8 @@ class Verifier {
       std::string why;
       if (std::isnan(expected_margin))
         why = "no worst value was computed";
-      else if (failed_here > 0)
-        why = fmt::format("{:g} case(s) failed to run", failed_here);
+      else if (failed_here != 0)
+        why = fmt::format("failed_cases is {:g}, and a case that failed to run fails the check", failed_here);
       else
         why = fmt::format("worst {} against limit {} leaves a margin of {}", engineering(worst, unit),
                           engineering(limit, unit), engineering(expected_margin, unit));
@@ -515,8 +526,7 @@ VerifyResult verify_packet(const std::string& path) {
     return r;
   }
 
-  const std::string recorded_spec =
-      j.contains("spec") && j["spec"].is_object() ? j["spec"].value("sha256", "") : "";
+  const std::string recorded_spec = j.contains("spec") ? text(j["spec"], "sha256") : "";
   if (!r.spec_copy.empty()) {
     const std::string actual = sha256_file(r.spec_copy);
     if (actual != recorded_spec)
@@ -532,7 +542,7 @@ VerifyResult verify_packet(const std::string& path) {
 
   const fs::path csv = dir / "cases.csv";
   bool present = false;
-  const double count = json_number(j.value("cases", Json::object()), "count", present);
+  const double count = json_number(j.contains("cases") ? j["cases"] : Json(), "count", present);
   if (fs::is_regular_file(csv, ec) && present && std::isfinite(count)) {
     const long rows = csv_records(read_bytes(csv));
     r.cases_csv_counted = true;

@@ -371,6 +371,27 @@ TEST_CASE("verify: a folder that is not a packet, or a path that does not exist,
   CHECK(verify_packet((plain / "results.json").string()).intact());
 }
 
+TEST_CASE("a results.json of the wrong shape gives findings, not an internal error", "[verify][diff]") {
+  const fs::path dir = temp("wrong-shape");
+  fs::remove_all(dir);
+  fs::create_directories(dir);
+  auto j = read_json(passing_packet() / "results.json");
+  j["checks"][0]["limit"] = 5;
+  j["checks"][1]["applies_to"] = nullptr;
+  j["failed_cases"] = nlohmann::ordered_json::object();
+  write_json(dir / "results.json", j);
+  const VerifyResult r = verify_packet((dir / "results.json").string());
+  INFO(verify_report(r));
+  CHECK(count_findings(r, "results.json", "check 1 (, every link): 'limit' is missing or not text") == 1);
+  CHECK(count_findings(r, "results.json", "'applies_to' is missing or not text") == 1);
+  CHECK(count_findings(r, "results.json", "has no 'failed_cases' list") == 1);
+  const auto cmd =
+      run_cli(fmt::format("diff {} {}", passing_packet().string(), (dir / "results.json").string()));
+  CHECK(cmd.status == 2);
+  CHECK(cmd.out.find("(NEW) fails verification") != std::string::npos);
+  CHECK(cmd.out.find("internal error") == std::string::npos);
+}
+
 TEST_CASE("diff refuses a packet that fails verification", "[verify][diff]") {
   const fs::path dir = copy_packet(passing_packet(), "diff-tampered");
   auto j = read_json(dir / "results.json");
