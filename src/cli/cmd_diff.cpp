@@ -11,7 +11,7 @@ Action add_diff(CLI::App& app) {
   struct Options {
     std::string old_path, new_path;
     double tolerance = 0.01;
-    bool markdown = false;
+    bool markdown = false, require_pass = false;
   };
   auto o = std::make_shared<Options>();
   cmd->add_option("OLD", o->old_path, "Earlier results.json or packet folder")->required();
@@ -21,11 +21,13 @@ Action add_diff(CLI::App& app) {
       ->check(CLI::NonNegativeNumber)
       ->capture_default_str();
   cmd->add_flag("--markdown", o->markdown, "Markdown output for a pull-request comment");
+  cmd->add_flag("--require-pass", o->require_pass,
+                "Exit 1 also when NEW fails any check, even with no regression against OLD");
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
     const DiffResult d = diff_results(o->old_path, o->new_path, o->tolerance);
     std::cout << diff_report(d, o->markdown);
-    return d.regression() ? kExitFail : kExitPass;
+    return d.regression() || (o->require_pass && d.new_fails()) ? kExitFail : kExitPass;
   };
 }
 

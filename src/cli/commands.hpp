@@ -26,6 +26,7 @@ Action add_modes(CLI::App& app);
 Action add_check(CLI::App& app);
 Action add_diff(CLI::App& app);
 Action add_size(CLI::App& app);
+Action add_verify(CLI::App& app);
 
 /// The whole file as bytes (the spec copy in a packet); RunError if it cannot be read.
 std::string read_file_text(const std::string& path);

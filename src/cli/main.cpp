@@ -15,7 +15,7 @@ int main(int argc, char** argv) {
                "A screening and design aid: results go to a licensed engineer's review."};
   app.set_version_flag("--version", fmt::format("swaybound {} ({})", tool_version(), git_commit()));
   app.require_subcommand(1);
-  std::vector<cli::Action> actions{cli::add_validate(app), cli::add_simulate(app), cli::add_modes(app), cli::add_check(app), cli::add_diff(app), cli::add_size(app)};
+  std::vector<cli::Action> actions{cli::add_validate(app), cli::add_simulate(app), cli::add_modes(app), cli::add_check(app), cli::add_diff(app), cli::add_size(app), cli::add_verify(app)};
   install_cancel_handlers();  // SIGINT/SIGTERM stop long work cleanly (core/cancel.hpp)
   try {
     app.parse(argc, argv);

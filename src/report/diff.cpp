@@ -11,6 +11,7 @@
 #include "swaybound/core/error.hpp"
 #include "swaybound/report/format.hpp"
 #include "swaybound/report/results.hpp"
+#include "swaybound/report/verify.hpp"
 #include "swaybound/spec/loader.hpp"
 
 namespace swaybound {
@@ -21,25 +22,33 @@ namespace {
 
 struct Loaded {
   nlohmann::json json;
-  fs::path spec;  ///< the spec copy, empty when absent
+  /// The spec the results were computed from (spec.yaml, or sized_spec.yaml); empty when absent.
+  fs::path spec;
 };
 
-Loaded load(const std::string& path) {
-  fs::path file(path);
-  std::error_code ec;
-  if (fs::is_directory(file, ec)) file /= "results.json";
-  std::ifstream in(file);
-  if (!in) throw RunError(fmt::format("cannot read {}: give a results.json file or a packet folder", file.string()));
+/// Verifies `path` (verify.hpp) and reads its results; refuses (RunError listing the findings) a
+/// packet or results file that fails verification, since its figures cannot be trusted.
+Loaded load(const std::string& path, const char* side) {
+  const VerifyResult v = verify_packet(path);
+  if (!v.intact()) {
+    std::string findings;
+    for (const auto& f : v.findings) findings += fmt::format("\n  {}: {} [{}]", f.file, f.problem, f.method);
+    throw RunError(
+        fmt::format("{} ({}) fails verification ({} finding(s)); not compared:{}\nrun `swaybound verify {}` "
+                    "for the details, and make the packet again from its spec",
+                    path, side, v.findings.size(), findings, path));
+  }
+  std::ifstream in(v.results_file);
+  if (!in)
+    throw RunError(
+        fmt::format("cannot read {}: give a results.json file or a packet folder", v.results_file));
   Loaded l;
   try {
     l.json = nlohmann::json::parse(in);
   } catch (const nlohmann::json::exception& e) {
-    throw RunError(fmt::format("{} is not valid JSON: {}", file.string(), e.what()));
+    throw RunError(fmt::format("{} is not valid JSON: {}", v.results_file, e.what()));
   }
-  if (!l.json.is_object() || l.json.value("schema", "") != kResultsSchema)
-    throw RunError(fmt::format("{} is not a swaybound results file (schema {})", file.string(), kResultsSchema));
-  const fs::path spec = file.parent_path() / "spec.yaml";
-  if (fs::is_regular_file(spec, ec)) l.spec = spec;
+  if (!v.spec_copy.empty()) l.spec = v.spec_copy;
   return l;
 }
 
@@ -56,9 +65,11 @@ bool DiffResult::regression() const {
 }
 
 DiffResult diff_results(const std::string& old_path, const std::string& new_path, double tolerance) {
-  const Loaded a = load(old_path), b = load(new_path);
+  const Loaded a = load(old_path, "OLD"), b = load(new_path, "NEW");
   DiffResult d;
   d.tolerance = tolerance;
+  d.old_verdict = a.json.value("verdict", "");
+  d.new_verdict = b.json.value("verdict", "");
   std::map<std::string, std::size_t> index;
   const auto row_for = [&](const nlohmann::json& c) -> DiffRow& {
     const std::string name = fmt::format("{} ({})", c.value("limit", ""), c.value("applies_to", ""));
@@ -101,7 +112,7 @@ DiffResult diff_results(const std::string& old_path, const std::string& new_path
     }
   }
   if (a.spec.empty() || b.spec.empty()) {
-    d.specs_note = "the spec copies (spec.yaml beside results.json) are not both present";
+    d.specs_note = "the spec copies (spec.yaml, or sized_spec.yaml of a sizing folder) are not both present";
   } else {
     try {
       const auto fa = flatten_spec(load_spec(a.spec.string(), LoadOptions{1'000'000'000L}));
@@ -148,6 +159,7 @@ std::string diff_report(const DiffResult& d, bool markdown) {
     out += fmt::format("\n**{}** (margin tolerance {:.1f}% of the limit)\n",
                        d.regression() ? "Regression: a check newly fails, was removed, or lost margin" : "No regression",
                        100 * d.tolerance);
+    if (d.new_fails()) out += "\nThe new design fails a check (its verdict is fail).\n";
     return out;
   }
   out += fmt::format("{:<46} {:>14} {:>14} {:>14} {:>14} {:>9}  {}\n", "check", "old worst", "new worst", "old margin",
@@ -168,6 +180,7 @@ std::string diff_report(const DiffResult& d, bool markdown) {
   }
   out += d.regression() ? "regression: a check newly fails, was removed, or lost more margin than the tolerance\n"
                         : "no regression\n";
+  if (d.new_fails()) out += "the new design fails a check (its verdict is fail)\n";
   return out;
 }
 

@@ -29,12 +29,17 @@ struct DiffResult {
   std::string specs_note;  ///< why the specs were not compared, when they were not
   std::vector<SpecChange> spec_changes;
   double tolerance = 0;
+  std::string old_verdict, new_verdict;  ///< the overall verdicts of results.json ("pass" or "fail")
   bool regression() const;
+  /// NEW fails a check (or a case failed to run), regression or not.
+  bool new_fails() const { return new_verdict != "pass"; }
 };
 
-/// OLD and NEW are results.json files or packet folders. The spec copies (spec.yaml beside
-/// results.json) are compared when both exist. Throws RunError when a results file is unreadable
-/// or not a swaybound results file.
+/// OLD and NEW are results.json files or packet folders (check packets or sizing folders). Each is
+/// verified first (verify_packet) and refused when it fails. The specs the results were computed
+/// from (spec.yaml, or a sizing folder's sized_spec.yaml) are compared when both exist. Throws
+/// RunError when a side fails verification (listing the findings), is unreadable, not a swaybound
+/// results file, or of a schema version this build does not read.
 DiffResult diff_results(const std::string& old_path, const std::string& new_path, double tolerance);
 
 /// Plain-text table, or Markdown for a pull-request comment.
