@@ -9,7 +9,9 @@
 #include <fmt/format.h>
 
 #include "commands.hpp"
+#include "swaybound/cases/case_space.hpp"
 #include "swaybound/checks/metrics.hpp"
+#include "swaybound/dynamics/forces.hpp"
 #include "swaybound/core/units.hpp"
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/model/model.hpp"
@@ -48,18 +50,47 @@ std::string csv_quote(const std::string& s) {
   return out + "\"";
 }
 
+/// The case to run: by id, else the first case (of `scenario` when >= 0).
+CaseDef pick_case(const CaseSpace& space, const std::string& id, int scenario) {
+  std::string some;
+  for (long k = 0; k < space.size(); ++k) {
+    CaseDef def = space.at(k);
+    if (id.empty() ? scenario < 0 || def.scenario == scenario : def.id == id) return def;
+    if (k < 5) some += (some.empty() ? "" : ", ") + def.id;
+  }
+  if (id.empty()) throw ArgumentError("--scenario: the case set has no case of this scenario");
+  throw ArgumentError(fmt::format("--case: no case '{}' in the spec's case set ({} cases: {}{}); case ids are listed in "
+                                  "cases.csv of a check packet",
+                                  id, space.size(), some, space.size() > 5 ? ", ..." : ""));
+}
+
+/// "theta = [10 deg, 5 deg], omega = [0 deg/s, 0 deg/s]" for every link (missing values are 0).
+std::string describe_start(const Model& model, const InitialState& start) {
+  std::string theta, omega;
+  for (int i = 0; i < model.n; ++i) {
+    const auto k = static_cast<std::size_t>(i);
+    theta += fmt::format("{}{:.6g} deg", i ? ", " : "", (k < start.theta.size() ? start.theta[k] : 0.0) * 180 / M_PI);
+    omega += fmt::format("{}{:.6g} deg/s", i ? ", " : "", (k < start.omega.size() ? start.omega[k] : 0.0) * 180 / M_PI);
+  }
+  return "theta = [" + theta + "], omega = [" + omega + "]";
+}
+
 }  // namespace
 
 Action add_simulate(CLI::App& app) {
   auto* cmd = app.add_subcommand("simulate", "Simulate one case and write its time series as CSV");
   struct Options {
-    std::string spec, scenario, theta, rate, duration, output_rate, out;
+    std::string spec, case_id, scenario, theta, rate, duration, output_rate, out;
   };
   auto o = std::make_shared<Options>();
   cmd->add_option("SPEC", o->spec, "YAML design spec")->required();
+  cmd->add_option("--case", o->case_id,
+                  "Run this case of the spec's case set, by its id (as in cases.csv and the packet); default: the first "
+                  "case, or the first of --scenario");
   cmd->add_option("--scenario", o->scenario, "Base-motion scenario by name (default: the first)");
-  cmd->add_option("--theta", o->theta, "Initial link angles, top first, e.g. \"10 deg, -5 deg\" (default: 0)");
-  cmd->add_option("--rate", o->rate, "Initial angular rates, e.g. \"0, 5 deg/s\" (default: 0)");
+  cmd->add_option("--theta", o->theta,
+                  "A start of your own instead of a case: link angles, top first, e.g. \"10 deg, -5 deg\" (missing: 0)");
+  cmd->add_option("--rate", o->rate, "With --theta: angular rates, e.g. \"0, 5 deg/s\" (missing: 0)");
   cmd->add_option("--duration", o->duration, "Simulated time, e.g. \"20 s\" (default: cases.duration)");
   cmd->add_option("--output-rate", o->output_rate, "Samples per second, e.g. 100 (default: cases.output_rate)");
   cmd->add_option("-o,--output", o->out, "CSV file to write (default: standard output)");
@@ -83,15 +114,35 @@ Action add_simulate(CLI::App& app) {
       if (scenario < 0) throw ArgumentError(fmt::format("--scenario: no scenario '{}' (have {})", o->scenario, names));
     }
     InitialState start;
-    if (!o->theta.empty()) start.theta = parse_list("--theta", o->theta, units::angle);
-    if (!o->rate.empty()) start.omega = parse_list("--rate", o->rate, units::angular_rate);
-    if (start.theta.size() > static_cast<std::size_t>(model.n) || start.omega.size() > static_cast<std::size_t>(model.n))
-      throw ArgumentError(fmt::format("--theta/--rate: at most {} values (one per link)", model.n));
+    const bool own_start = !o->theta.empty() || !o->rate.empty();
+    if (!o->case_id.empty() && (own_start || !o->scenario.empty()))
+      throw ArgumentError("--case names both the start and the scenario: leave out --theta, --rate and --scenario, "
+                          "or leave out --case");
+    std::string start_label;
+    if (own_start) {
+      if (!o->theta.empty()) start.theta = parse_list("--theta", o->theta, units::angle);
+      if (!o->rate.empty()) start.omega = parse_list("--rate", o->rate, units::angular_rate);
+      if (start.theta.size() > static_cast<std::size_t>(model.n) || start.omega.size() > static_cast<std::size_t>(model.n))
+        throw ArgumentError(fmt::format("--theta/--rate: at most {} values (one per link)", model.n));
+      start_label = "your start (--theta/--rate)";
+    } else {
+      const CaseDef def = pick_case(CaseSpace(spec), o->case_id, o->scenario.empty() ? -1 : scenario);
+      start = def.initial;
+      scenario = def.scenario;
+      start_label = o->case_id.empty() ? fmt::format("case {} (the first{} of the spec's case set; --case ID runs another)",
+                                                     def.id, o->scenario.empty() ? "" : " of this scenario")
+                                       : fmt::format("case {}", def.id);
+    }
+    std::cerr << fmt::format("start: {}, scenario '{}': {}\n", start_label,
+                             model.scenarios[static_cast<std::size_t>(scenario)].name, describe_start(model, start));
 
     const int n = model.n;
     std::ostringstream csv;
     csv.precision(10);
     csv << csv_quote("t [s]");
+    for (const char* name : {"base_x [m]", "base_y [m]", "base_vx [m/s]", "base_vy [m/s]", "base_ax [m/s^2]",
+                             "base_ay [m/s^2]"})
+      csv << ',' << csv_quote(name);
     for (int i = 0; i < n; ++i) {
       const std::string& name = model.names[static_cast<std::size_t>(i)];
       csv << ',' << csv_quote(fmt::format("theta({}) [rad]", name)) << ','
@@ -102,19 +153,38 @@ Action add_simulate(CLI::App& app) {
       const std::string& name = model.names[static_cast<std::size_t>(i)];
       csv << ',' << csv_quote(fmt::format("pivot_x({}) [N]", name)) << ','
           << csv_quote(fmt::format("pivot_y({}) [N]", name)) << ',' << csv_quote(fmt::format("pivot_load({}) [N]", name))
-          << ',' << csv_quote(fmt::format("tension({}) [N]", name));
+          << ',' << csv_quote(fmt::format("tension_top({}) [N]", name)) << ','
+          << csv_quote(fmt::format("tension_bottom({}) [N]", name));
     }
-    csv << ',' << csv_quote("energy [J]") << ',' << csv_quote("dissipated [J]") << ',' << csv_quote("work_in [J]")
-        << ',' << csv_quote("audit_residual [J]") << '\n';
+    for (std::size_t w = 0; w < model.wind.size(); ++w) {
+      const std::string& on = model.names[static_cast<std::size_t>(model.wind[w].point.link)];
+      csv << ',' << csv_quote(fmt::format("wind_force_x(wind[{}] on {}) [N]", w, on)) << ','
+          << csv_quote(fmt::format("wind_force_y(wind[{}] on {}) [N]", w, on));
+    }
+    csv << ',' << csv_quote("energy (kinetic + potential in the ground frame; potential 0 at the top pivot's start height) [J]")
+        << ',' << csv_quote("dissipated (by dampers, friction and dashpots, since t = 0) [J]") << ','
+        << csv_quote("work_in (done on the chain by the moving base and the wind, since t = 0) [J]") << ','
+        << csv_quote("audit_residual (energy + dissipated - work_in - energy at t = 0) [J]") << '\n';
 
     const Observer on_sample = [&](const StepView& v) {
       csv << v.t;
+      const Workspace& w = *v.ws;
+      csv << ',' << w.base_x << ',' << w.base_y << ',' << w.base_vx << ',' << w.base_vy << ',' << w.base_ax << ','
+          << w.base_ay;
       for (int i = 0; i < n; ++i)
         csv << ',' << v.x[i] << ',' << v.x[n + i] << ',' << v.x[i] - (i > 0 ? v.x[i - 1] : 0.0);
       for (int i = 0; i < n; ++i) {
         double top, bottom;
         link_tension(model, *v.ws, i, top, bottom);
-        csv << ',' << v.ws->reaction_x[i] << ',' << v.ws->reaction_y[i] << ',' << v.ws->reaction[i] << ',' << top;
+        csv << ',' << v.ws->reaction_x[i] << ',' << v.ws->reaction_y[i] << ',' << v.ws->reaction[i] << ',' << top << ','
+            << bottom + 0.0;
+      }
+      const Phase& phase = model.scenarios[static_cast<std::size_t>(w.scenario)].phases[static_cast<std::size_t>(w.phase)];
+      for (std::size_t k = 0; k < model.wind.size(); ++k) {
+        double px, py, vx, vy, fx, fy;
+        point_state(model, w, model.wind[k].point, px, py, vx, vy);
+        drag_force(model.wind[k].drag_factor, phase.wind_speed[k], vx, vy, fx, fy);
+        csv << ',' << fx + 0.0 << ',' << fy + 0.0;  // + 0.0: no "-0"
       }
       csv << ',' << v.energy << ',' << v.x[2 * n] << ',' << v.x[2 * n + 1] << ',' << v.audit_residual << '\n';
     };
