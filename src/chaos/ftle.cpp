@@ -5,6 +5,11 @@
 
 namespace swaybound {
 
+double ftle_rate_weight(const Model& model) {
+  const double length = std::accumulate(model.length.begin(), model.length.end(), 0.0);
+  return std::sqrt(length / model.gravity);
+}
+
 FtleResult chain_ftle(const Model& model, Workspace& ws, int scenario, const InitialState& start,
                       const FtleSettings& s) {
   SWAYBOUND_REQUIRE(scenario >= 0 && scenario < static_cast<int>(model.scenarios.size()),
@@ -19,9 +24,12 @@ FtleResult chain_ftle(const Model& model, Workspace& ws, int scenario, const Ini
   std::copy(start.theta.begin(), start.theta.end(), x0.begin());
   std::copy(start.omega.begin(), start.omega.end(), x0.begin() + model.n);
 
-  // Norm: angles [rad] with weight 1, rates [rad/s] with weight T_ref = sqrt(L_tot / g) [s].
-  const double length = std::accumulate(model.length.begin(), model.length.end(), 0.0);
-  const double t_ref = std::sqrt(length / model.gravity);
+  // Norm: angles [rad] with weight 1, rates [rad/s] with weight T_ref [s], by default
+  // sqrt(L_tot / g) (the time scale of the chain's slowest swing, so both terms are comparable).
+  const double t_ref = s.rate_weight > 0 ? s.rate_weight : ftle_rate_weight(model);
+  SWAYBOUND_REQUIRE(s.direction.empty() || s.direction.size() == 2 * n,
+                    "the initial direction has {} components for {} links (give 2 per link: angles, then rates)",
+                    s.direction.size(), model.n);
   FtleSettings settings = s;
   settings.measured = 2 * model.n;
   settings.weights.assign(2 * n, 1.0);

@@ -24,17 +24,6 @@ double seconds_since(std::chrono::steady_clock::time_point start) {
 }
 constexpr int kOnsetScanPoints = 16;
 
-FtleSettings ftle_settings(const Spec& spec, const RunSettings& run) {
-  FtleSettings fs;
-  fs.horizon = spec.chaos.horizon;
-  fs.separation = spec.chaos.separation;
-  fs.renormalise = spec.chaos.renormalise;
-  fs.rtol = run.rtol;
-  fs.atol = run.atol;
-  fs.max_steps = run.max_steps;
-  return fs;
-}
-
 /// FTLE of one start under scenario 0 (NaN when the run fails).
 double ftle_of(const Model& model, Workspace& ws, const Spec& spec, const RunSettings& run, const InitialState& start,
                int scenario = 0) {
@@ -215,9 +204,7 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   }
   CaseOptions case_options;
   case_options.ftle = has_ftle_limit;
-  case_options.ftle_horizon = spec.chaos.horizon;
-  case_options.ftle_separation = spec.chaos.separation;
-  case_options.ftle_renormalise = spec.chaos.renormalise;
+  case_options.ftle_settings = ftle_settings(spec, run);
 
   const auto cases_start = std::chrono::steady_clock::now();
   RunSettings streaming = run;

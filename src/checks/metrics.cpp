@@ -78,6 +78,19 @@ void CaseExtremes::write(CaseMetrics& m) const {
     m.residual[r] = std::max(0.0, finder_.max(kBlocks * n + static_cast<int>(r)).value);
 }
 
+FtleSettings ftle_settings(const Spec& spec, const RunSettings& run) {
+  FtleSettings fs;
+  fs.horizon = spec.chaos.horizon;
+  fs.separation = spec.chaos.separation;
+  fs.renormalise = spec.chaos.renormalise;
+  fs.rate_weight = spec.chaos.rate_weight;
+  fs.direction = spec.chaos.direction;
+  fs.rtol = run.rtol;
+  fs.atol = run.atol;
+  fs.max_steps = run.max_steps;
+  return fs;
+}
+
 CaseMetrics run_case(const Model& model, const Spec& spec, Workspace& ws, const CaseDef& def,
                      const RunSettings& settings, const CaseOptions& options) {
   const int n = model.n;
@@ -112,10 +125,7 @@ CaseMetrics run_case(const Model& model, const Spec& spec, Workspace& ws, const 
     m.dynamic_factor.push_back(m.peak_load[k].value / (model.gravity * model.mass_below[k]));
   }
   if (options.ftle && m.ok()) {
-    FtleSettings fs;
-    fs.horizon = options.ftle_horizon;
-    fs.separation = options.ftle_separation;
-    fs.renormalise = options.ftle_renormalise;
+    FtleSettings fs = options.ftle_settings;
     fs.rtol = settings.rtol;
     fs.atol = settings.atol;
     fs.max_steps = settings.max_steps;

@@ -7,6 +7,7 @@
 #include <iostream>
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include "commands.hpp"
 #include "swaybound/cases/case_space.hpp"
@@ -57,8 +58,11 @@ std::vector<std::string> manifest_settings(const Spec& spec, const CheckReport& 
   out.push_back("seeds: " + (seeds.empty() ? std::string("none") : seeds));
   out.push_back(fmt::format("cases: {} x {:g} s, output_rate={:g} /s", report.case_count, spec.cases.duration,
                             spec.cases.output_rate));
-  out.push_back(fmt::format("chaos: horizon={:g} s separation={:g} renormalise={:g} s", spec.chaos.horizon,
-                            spec.chaos.separation, spec.chaos.renormalise));
+  std::string chaos = fmt::format("chaos: horizon={:g} s separation={:g} renormalise={:g} s", spec.chaos.horizon,
+                                  spec.chaos.separation, spec.chaos.renormalise);
+  if (spec.chaos.rate_weight > 0) chaos += fmt::format(" rate_weight={:g} s", spec.chaos.rate_weight);
+  if (!spec.chaos.direction.empty()) chaos += fmt::format(" direction=[{:g}]", fmt::join(spec.chaos.direction, ", "));
+  out.push_back(chaos);
   out.push_back("accuracy_audit: governing cases at rtol/100, atol/100");
   return out;
 }

@@ -81,6 +81,7 @@ Action add_simulate(CLI::App& app) {
   auto* cmd = app.add_subcommand("simulate", "Simulate one case and write its time series as CSV");
   struct Options {
     std::string spec, case_id, scenario, theta, rate, duration, output_rate, out;
+    bool ftle = false;
   };
   auto o = std::make_shared<Options>();
   cmd->add_option("SPEC", o->spec, "YAML design spec")->required();
@@ -94,6 +95,9 @@ Action add_simulate(CLI::App& app) {
   cmd->add_option("--duration", o->duration, "Simulated time, e.g. \"20 s\" (default: cases.duration)");
   cmd->add_option("--output-rate", o->output_rate, "Samples per second, e.g. 100 (default: cases.output_rate)");
   cmd->add_option("-o,--output", o->out, "CSV file to write (default: standard output)");
+  cmd->add_flag("--ftle", o->ftle,
+                "Also compute the finite-time Lyapunov exponent of this start (chaos settings of the spec; horizon: "
+                "chaos.horizon, else the ftle_max limit's, else cases.duration)");
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
     const Spec spec = load_spec(o->spec);
@@ -220,6 +224,18 @@ Action add_simulate(CLI::App& app) {
     std::cerr << fmt::format("  energy audit: largest residual {:.3g} J ({:.3g} of the energy scale {:.4g} J)\n",
                              outcome.max_audit_residual, outcome.max_audit_residual / outcome.audit_scale,
                              outcome.audit_scale);
+    if (o->ftle) {
+      FtleSettings fs = ftle_settings(spec, RunSettings::from_spec(spec));
+      const FtleResult f = chain_ftle(model, ws, scenario, start, fs);
+      if (f.status == FtleStatus::ok)
+        std::cerr << fmt::format("  FTLE over {:g} s: {:.6g} 1/s (separation {:g}, renormalised every {:g} s, rate "
+                                 "weight {:.4g} s{})\n",
+                                 fs.horizon, f.exponent, fs.separation, fs.renormalise,
+                                 fs.rate_weight > 0 ? fs.rate_weight : ftle_rate_weight(model),
+                                 fs.direction.empty() ? ", equal initial direction" : ", initial direction of the spec");
+      else
+        std::cerr << fmt::format("  FTLE: the run failed: {}\n", f.reason);
+    }
     if (outcome.status != RunStatus::ok) {
       std::cerr << fmt::format("swaybound: run failed ({}): {}; no output written\n", status_name(outcome.status),
                                outcome.reason);

@@ -169,9 +169,7 @@ DesignOutcome DesignEvaluator::screen(const std::vector<double>& values, const s
   run.output_rate = 0;  // as run_check streams its cases
   CaseOptions case_options;
   case_options.ftle = has_kind(spec, LimitKind::ftle_max);
-  case_options.ftle_horizon = spec.chaos.horizon;
-  case_options.ftle_separation = spec.chaos.separation;
-  case_options.ftle_renormalise = spec.chaos.renormalise;
+  case_options.ftle_settings = ftle_settings(spec, run);
 
   CheckSet checks(spec);
   MetricAccumulator metric{&metric_};

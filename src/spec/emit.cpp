@@ -255,6 +255,17 @@ std::string normalised_yaml(const Spec& spec) {
     w.value("separation", c.separation, u::dimensionless);
     w.value("renormalise", c.renormalise, u::duration);
     w.value("horizon", c.horizon, u::duration);
+    if (c.rate_weight > 0) w.value("rate_weight", c.rate_weight, u::duration);
+    if (!c.direction.empty()) {
+      const std::size_t n = c.direction.size() / 2;
+      out << YAML::Key << "direction" << YAML::Value << YAML::Flow << YAML::BeginMap;
+      for (const auto& [key, offset] : {std::pair{"theta", std::size_t{0}}, std::pair{"rate", n}}) {
+        out << YAML::Key << key << YAML::Value << YAML::Flow << YAML::BeginSeq;
+        for (std::size_t i = 0; i < n; ++i) out << fmt::format("{:.12g}", c.direction[offset + i]);
+        out << YAML::EndSeq;
+      }
+      out << YAML::EndMap;
+    }
     w.value("uncertainty", c.uncertainty, u::angle);
     w.value("tolerance", c.tolerance, u::angle);
     w.value("threshold", c.threshold, u::rate);

@@ -358,6 +358,40 @@ double sizing_upper_bound(const Spec& spec, const SpecPath& path) {
 }
 }  // namespace
 
+namespace {
+/// chaos.rate_weight and chaos.direction: the norm and the initial direction of the FTLE's
+/// separation vector.
+void read_ftle_norm(const MapView& m, Spec& spec) {
+  Context& ctx = m.ctx();
+  ChaosSpec& c = spec.chaos;
+  read_optional(m, "rate_weight", c.rate_weight, u::duration, Bounds::positive());
+  if (!m.has("direction")) return;
+  MapView d(ctx, m.get("direction"), "chaos.direction", {"theta", "rate"});
+  if (!d.ok()) return;
+  const std::size_t n = spec.links.size();
+  std::vector<double> direction(2 * n, 0.0);
+  bool any = false;
+  for (const auto& [key, offset] : {std::pair{"theta", std::size_t{0}}, std::pair{"rate", n}}) {
+    if (!d.has(key) || !expect_sequence(ctx, d.get(key), d.path(key), "one number per link")) continue;
+    const YAML::Node list = d.get(key);
+    if (list.size() > n)
+      ctx.error(list, d.path(key), fmt::format("{} numbers for {} links", list.size(), n),
+                "give at most one number per link, top link first (missing ones are 0)");
+    for (std::size_t i = 0; i < list.size() && i < n; ++i)
+      if (auto v = read_quantity(ctx, list[i], fmt::format("{}[{}]", d.path(key), i), u::dimensionless,
+                                 Bounds{-1e6, 1e6, false, false})) {
+        direction[offset + i] = *v;
+        any |= *v != 0;
+      }
+  }
+  if (!any)
+    ctx.error(d.mark(), "chaos.direction", "the direction is zero",
+              "give at least one non-zero component under theta or rate (it is normalised in the FTLE's norm)");
+  else
+    c.direction = std::move(direction);
+}
+}  // namespace
+
 void read_chaos(const MapView& top, Spec& spec) {
   Context& ctx = top.ctx();
   ChaosSpec& c = spec.chaos;
@@ -369,7 +403,8 @@ void read_chaos(const MapView& top, Spec& spec) {
     return;
   }
   MapView m(ctx, top.get("chaos"), "chaos",
-            {"separation", "renormalise", "horizon", "uncertainty", "tolerance", "threshold", "onset", "map"});
+            {"separation", "renormalise", "horizon", "rate_weight", "direction", "uncertainty", "tolerance", "threshold",
+             "onset", "map"});
   if (!m.ok()) return;
   c.given = true;
   c.mark = m.mark();
@@ -381,6 +416,7 @@ void read_chaos(const MapView& top, Spec& spec) {
     c.horizon = spec.cases.duration;
     ctx.defaults_filled.push_back("chaos.horizon");
   }
+  read_ftle_norm(m, spec);
   read_optional(m, "uncertainty", c.uncertainty, u::angle, Bounds::positive());
   read_optional(m, "tolerance", c.tolerance, u::angle, Bounds::positive());
   read_optional(m, "threshold", c.threshold, u::rate, Bounds::any());

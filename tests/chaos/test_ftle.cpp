@@ -10,6 +10,7 @@
 
 #include "../dynamics/fixtures.hpp"
 #include "swaybound/chaos/ftle.hpp"
+#include "swaybound/checks/metrics.hpp"
 
 using namespace swaybound;
 using namespace swaybound::testing;
@@ -216,4 +217,47 @@ TEST_CASE("Divergence times of a perturbation ladder follow 1 / lambda", "[chaos
                    1 / r.exponent, r.exponent));
   CHECK(slope > 0.5 / r.exponent);
   CHECK(slope < 2.0 / r.exponent);
+}
+
+TEST_CASE("chaos.rate_weight and chaos.direction set the FTLE's norm and first direction", "[chaos][ftle]") {
+  // A uniform rod swinging at 1e-3 rad is a harmonic oscillator, omega0 = sqrt(3 g / (2 L)). Its
+  // tangent flow rotates a separation (d_theta, d_omega) = (cos w t, -w sin w t) from (1, 0) and
+  // (sin w t / w, cos w t) from (0, 1); renormalising does not turn it, so over a horizon H the
+  // FTLE is ln(|d(H)| / |d(0)|) / H in the norm sqrt(d_theta^2 + (T d_omega)^2):
+  //   from (1, 0): 0.5 ln(cos^2 wH + (T w)^2 sin^2 wH) / H;  from (0, 1): 0.5 ln(cos^2 wH + sin^2 wH / (T w)^2) / H,
+  // and 0 for T = 1 / w (closed form of the linear oscillator, e.g. Strogatz, Nonlinear Dynamics
+  // and Chaos, 5.1). The default T = sqrt(L / g) gives (T w)^2 = 1.5.
+  const double g = 9.81, L = 2.0, H = 20.0;
+  const double w = std::sqrt(1.5 * g / L);
+  const auto run = [&](const std::string& chaos) {
+    const Spec spec = load_spec_text(fmt::format(R"(
+swaybound: 1
+name: small swing
+gravity: {}
+links: [{{name: rod, length: {} m, mass: 10 kg}}]
+cases: {{duration: {} s, initial: [{{single: {{theta: [0.001 rad]}}}}]}}
+solver: {{rtol: 1e-12, atol: 1e-14}}
+chaos: {{horizon: {} s, {}}}
+)",
+                                                 g, L, H, H, chaos),
+                                     "small.yaml");
+    const Model model = build_model(spec);
+    Workspace ws(model);
+    const FtleResult r = chain_ftle(model, ws, 0, {{0.001}, {}}, ftle_settings(spec, RunSettings::from_spec(spec)));
+    REQUIRE(r.status == FtleStatus::ok);
+    return r.exponent;
+  };
+  const double c = std::cos(w * H), s = std::sin(w * H);
+  CHECK(run("direction: {theta: [1]}") == Approx(0.5 * std::log(c * c + 1.5 * s * s) / H).margin(1e-6));
+  CHECK(run("direction: {rate: [1]}") == Approx(0.5 * std::log(c * c + s * s / 1.5) / H).margin(1e-6));
+  const std::string isotropic = fmt::format("rate_weight: {:.17g} s", 1 / w);
+  CHECK(std::fabs(run(isotropic + ", direction: {theta: [1]}")) < 1e-6);
+  CHECK(std::fabs(run(isotropic + ", direction: {theta: [0.3], rate: [0.7]}")) < 1e-6);
+  // The two readings differ by more than the tolerance, so the keys are really used.
+  CHECK(std::fabs(0.5 * std::log(c * c + 1.5 * s * s) / H) > 1e-3);
+
+  for (const char* bad : {"direction: {theta: [0], rate: [0]}", "direction: {theta: [1, 2]}", "rate_weight: -1 s"}) {
+    INFO(bad);
+    CHECK_THROWS_AS(run(bad), SpecError);
+  }
 }

@@ -57,6 +57,8 @@ struct FtleSettings {
   /// Initial direction u per measured component (normalised here in the weighted norm); empty =
   /// equal weighted components, u_k = 1 / (w_k sqrt(measured)).
   std::vector<double> direction;
+  /// chain_ftle only: weight T of the rates in the norm [s]; 0 = sqrt(total length / g).
+  double rate_weight = 0;
   long max_steps = 5'000'000;  ///< accepted-step budget
   double initial_step = 1e-3;  ///< first trial step [s]
 };
@@ -259,5 +261,8 @@ FtleResult finite_time_lyapunov(System& system, std::vector<double> x0, const Ft
 /// the pin-friction fixed point did not converge is reported as failed.
 FtleResult chain_ftle(const Model& model, Workspace& ws, int scenario, const InitialState& start,
                       const FtleSettings& s);
+
+/// The default weight of the rates in chain_ftle's norm, sqrt(total length / g) [s].
+double ftle_rate_weight(const Model& model);
 
 }  // namespace swaybound

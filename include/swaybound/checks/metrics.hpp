@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "swaybound/cases/case_space.hpp"
+#include "swaybound/chaos/ftle.hpp"
 #include "swaybound/integrate/extremes.hpp"
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/model/model.hpp"
@@ -41,12 +42,14 @@ struct CaseMetrics {
   bool ok() const { return status == RunStatus::ok; }
 };
 
+/// The FTLE settings of a spec's chaos section (horizon, separation, renormalisation interval,
+/// norm and initial direction) with the solver tolerances and step budget of `run`.
+FtleSettings ftle_settings(const Spec& spec, const RunSettings& run);
+
 /// What a check run computes per case besides the metrics.
 struct CaseOptions {
   bool ftle = false;              ///< compute the FTLE (doubles the cost of a case)
-  double ftle_horizon = 0;        ///< [s]
-  double ftle_separation = 1e-8;
-  double ftle_renormalise = 0.5;  ///< [s]
+  FtleSettings ftle_settings;     ///< its settings (from `ftle_settings`)
 };
 
 /// The extremes a case reports, located by an ExtremeFinder: per link |theta|, |theta_i -

@@ -163,6 +163,8 @@ struct ChaosSpec {
   double separation = 1e-8;       ///< initial separation d0 of the nearby trajectory [-]
   double renormalise = 0.5;       ///< renormalisation interval [s]
   double horizon = 0;             ///< FTLE horizon [s]; 0 = the ftle_max limit's, else cases.duration
+  double rate_weight = 0;         ///< weight T of the rates in the separation norm [s]; 0 = sqrt(total length / g)
+  std::vector<double> direction;  ///< initial separation direction, angles then rates (2N) [-]; empty = equal
   double uncertainty = 1.7453292519943295e-4;  ///< initial uncertainty for the predictability horizon [rad] (0.01 deg)
   double tolerance = 0.017453292519943295;     ///< tolerated deviation for the predictability horizon [rad] (1 deg)
   double threshold = 0.05;        ///< FTLE above which motion counts as chaotic [1/s]
