@@ -188,6 +188,8 @@ PacketWriter::PacketWriter(std::string dir, const std::string& spec_name, const 
   try {
     kill_point("locked");
     std::vector<packet_detail::RunRecord> runs = packet_detail::clean_stale_runs(target, lock_->recorded(), notices_);
+    packet_detail::clean_legacy_temporaries(target, notices_);
+    lock_->record(runs);
     kill_point("recovered");
     if (const std::string notice = check_overwrite(); !notice.empty()) notices_.push_back(notice);
     const packet_detail::RunRecord self{static_cast<long>(::getpid()), packet_detail::new_token()};

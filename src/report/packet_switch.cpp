@@ -6,17 +6,20 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <cerrno>
 #include <chrono>
 #include <csignal>
 #include <cstdio>
 #include <cstdlib>
 #include <cstring>
+#include <set>
 #include <sstream>
 
 #include <fmt/format.h>
 
 #include "swaybound/core/error.hpp"
+#include "swaybound/report/packet.hpp"
 
 namespace swaybound::packet_detail {
 
@@ -184,6 +187,52 @@ std::vector<RunRecord> clean_stale_runs(const fs::path& target, const std::vecto
     if (!clean) kept.push_back(run);
   }
   return kept;
+}
+
+void clean_legacy_temporaries(const fs::path& target, std::vector<std::string>& notices) {
+  // The files `check` and `size` write; a legacy half-written folder holds some of them.
+  static const std::set<std::string> packet_names{
+      "MANIFEST",       "cases.csv",       "results.json",    "spec.yaml",       "input_spec.yaml",
+      "report.pdf",     "report.html",     "sized_spec.yaml", "sizing.md",       "sizing.json",
+      "sizing_history.csv", "convergence_objective.svg", "convergence_margin.svg",
+      "convergence_objective.png", "convergence_margin.png"};
+  const std::string prefix = fmt::format(".{}.partial-", target.filename().string());
+  std::error_code ec;
+  std::vector<fs::path> candidates;
+  for (auto it = fs::directory_iterator(target.parent_path(), ec); !ec && it != fs::directory_iterator();
+       it.increment(ec)) {
+    const std::string name = it->path().filename().string();
+    if (name.rfind(prefix, 0) == 0 && it->is_directory() && !it->is_symlink()) candidates.push_back(it->path());
+  }
+  std::sort(candidates.begin(), candidates.end());
+  for (const auto& folder : candidates) {
+    std::string rest = folder.filename().string().substr(prefix.size());
+    const bool old = rest.size() > 4 && rest.compare(rest.size() - 4, 4, ".old") == 0;
+    if (old) rest.resize(rest.size() - 4);
+    if (rest.empty() || rest.size() > 9 || rest.find_first_not_of("0123456789") != std::string::npos) continue;
+    const long pid = std::stol(rest);
+    if (process_alive(pid)) continue;
+    if (old) {
+      if (!verify_manifest(folder.string()).empty() || !foreign_files(folder.string()).empty()) continue;
+      if (!fs::exists(fs::symlink_status(target, ec))) {
+        fs::rename(folder, target, ec);
+        if (ec) continue;
+        fsync_path(target.parent_path(), O_RDONLY | O_DIRECTORY);
+        notices.push_back(fmt::format("restored the previous packet from {}, which an interrupted run (process {}) "
+                                      "had moved aside",
+                                      folder.filename().string(), pid));
+        continue;
+      }
+    } else {
+      bool ours = true;
+      for (auto it = fs::directory_iterator(folder, ec); ours && !ec && it != fs::directory_iterator(); it.increment(ec))
+        ours = it->is_regular_file() && !it->is_symlink() && packet_names.count(it->path().filename().string()) > 0;
+      if (!ours || ec) continue;
+    }
+    fs::remove_all(folder, ec);
+    if (!ec)
+      notices.push_back(fmt::format("removed {}, left by an interrupted run (process {})", folder.filename().string(), pid));
+  }
 }
 
 std::string new_token() {

@@ -55,6 +55,13 @@ class OutputLock {
 std::vector<RunRecord> clean_stale_runs(const fs::path& target, const std::vector<RunRecord>& runs,
                                         std::vector<std::string>& notices);
 
+/// Cleans up after killed runs of swaybound versions before the lock file (folders
+/// `.NAME.partial-PID` and `.NAME.partial-PID.old` of a process that is gone): a `.old` folder
+/// holding a whole packet (every MANIFEST hash verifies, nothing else in it) is put back when the
+/// target is missing, else removed; a `.partial-PID` folder is removed when it holds only files
+/// with the names a packet's files have. Anything else is left alone.
+void clean_legacy_temporaries(const fs::path& target, std::vector<std::string>& notices);
+
 /// A new random token (16 hex digits).
 std::string new_token();
 

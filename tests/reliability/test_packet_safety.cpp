@@ -5,6 +5,7 @@
 #include <catch2/catch.hpp>
 #include <fcntl.h>
 #include <chrono>
+#include <cerrno>
 #include <csignal>
 #include <cstdio>
 #include <filesystem>
@@ -351,6 +352,54 @@ TEST_CASE("folders beside a packet that are not provably a killed run's are left
   CHECK(check(spec, out).code == 0);
   CHECK(fs::exists(live));
   CHECK(fs::exists(lookalike / "keep.txt"));
+}
+
+TEST_CASE("leftovers of killed runs of earlier versions are recovered or removed when provably theirs",
+          "[packet][reliability]") {
+  // Earlier versions wrote into .NAME.partial-PID and moved the old packet to .NAME.partial-PID.old;
+  // a SIGKILL between their two renames left no packet at all.
+  const fs::path dir = scratch("legacy-leftovers"), out = dir / "packet";
+  const fs::path spec = write_file(dir / "spec.yaml", spec_yaml("hook block", 5));
+  REQUIRE(check(spec, out).code == 0);
+  const std::string old_sha = sha256_file(spec.string());
+  long dead = 999999;
+  while (::kill(static_cast<pid_t>(dead), 0) == 0 || errno != ESRCH) ++dead;
+  fs::rename(out, dir / fmt::format(".packet.partial-{}.old", dead));
+  const fs::path half = dir / fmt::format(".packet.partial-{}", dead);
+  fs::create_directories(half);
+  write_file(half / "cases.csv", "case,peak\n");
+  // Named the same way but holding a file no packet has: not provably a run's, so kept.
+  const fs::path lookalike = dir / fmt::format(".packet.partial-{}", dead + 1);
+  fs::create_directories(lookalike);
+  write_file(lookalike / "notes.txt", "keep");
+  write_file(spec, spec_yaml("hook block", 6));
+  REQUIRE(check(spec, out, {}, {{"SWAYBOUND_TEST_KILL_AT", "recovered"}}).signal == SIGKILL);
+  CHECK(whole_packet(out, old_sha));
+  CHECK_FALSE(fs::exists(half));
+  CHECK_FALSE(fs::exists(dir / fmt::format(".packet.partial-{}.old", dead)));
+  CHECK(read_file(lookalike / "notes.txt") == "keep");
+  const Run next = check(spec, out);
+  CHECK(next.code == 0);
+  CHECK(whole_packet(out, sha256_file(spec.string())));
+}
+
+TEST_CASE("size follows the same rule for its output folder", "[packet][reliability][sizing]") {
+  const fs::path dir = scratch("size"), out = dir / "sized";
+  const fs::path spec = write_file(dir / "spec.yaml", spec_yaml("hook block", 5, 1, 10) + R"(sizing:
+  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+  budget: {evaluations: 20}
+)");
+  REQUIRE(cli({"size", spec.string(), "--out", out.string(), "--quiet"}).code == 0);
+  const std::string sha = sha256_file(spec.string());
+  write_file(out / "signed_review.txt", "approved");
+  const Run r = cli({"size", spec.string(), "--out", out.string(), "--quiet", "--force"});
+  CHECK(r.code == 2);
+  CHECK(contains(r.err, "signed_review.txt"));
+  CHECK(read_file(out / "signed_review.txt") == "approved");
+  CHECK(packet_spec_sha256(out.string()) == sha);
+  CHECK(verify_manifest(out.string()).empty());
+  CHECK(leftovers(out).empty());
 }
 
 TEST_CASE("two runs writing one packet at once: the second refuses at once and names the first",
