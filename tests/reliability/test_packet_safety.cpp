@@ -203,7 +203,7 @@ TEST_CASE("a packet file changed after it was written is not overwritten", "[pac
   CHECK(read_file(out / "report.html") == edited);
 }
 
-TEST_CASE("a new revision of a design replaces its packet without --force; another design needs it",
+TEST_CASE("a new revision of a design replaces its packet without --force, another design needs it",
           "[packet][reliability]") {
   const fs::path dir = scratch("revisions"), out = dir / "packet";
   const fs::path spec = write_file(dir / "spec.yaml", spec_yaml("hook block", 5));
@@ -434,7 +434,7 @@ TEST_CASE("files put into the packet while a run is going stop its replacement",
   const fs::path spec = write_file(dir / "spec.yaml", spec_yaml("hook block", 5));
   REQUIRE(check(spec, out).code == 0);
   const std::string sha = sha256_file(spec.string());
-  write_file(spec, spec_yaml("hook block", 0.01, 60, 2000));
+  write_file(spec, spec_yaml("hook block", 0.01, 24, 2000));
   const fs::path err = dir / "run.err";
   const pid_t pid = start_cli({"check", spec.string(), "--out", out.string(), "--quiet", "--jobs", "1"}, {}, err);
   const auto partial_exists = [&]() {
