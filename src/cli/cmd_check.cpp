@@ -79,7 +79,9 @@ Action add_check(CLI::App& app) {
   cmd->add_option("--jobs", o->jobs, "Threads (default: every core)")->check(CLI::NonNegativeNumber);
   cmd->add_option("--max-cases", o->max_cases, "Cap on the number of cases")->check(CLI::PositiveNumber)->capture_default_str();
   cmd->add_flag("--no-audit", o->no_audit, "Skip re-running governing cases at a tighter tolerance");
-  cmd->add_flag("--force", o->force, "Replace the packet of another design (a different spec name:); files swaybound did not write are never deleted");
+  cmd->add_flag("--force", o->force,
+                "Replace the packet of another design (a spec with another name); never deletes files "
+                "swaybound did not write");
   cmd->add_flag("--quiet", o->quiet, "No progress on stderr");
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;

@@ -85,11 +85,12 @@ std::string listing(const std::vector<std::string>& names) {
 
 /// Whether `folder` is the root of a mounted file system (a packet cannot be renamed over it).
 bool is_mount_point(const fs::path& folder) {
-  struct statx x{};
+  struct statx x {};
   if (::statx(AT_FDCWD, folder.c_str(), AT_SYMLINK_NOFOLLOW, STATX_BASIC_STATS, &x) == 0 &&
       (x.stx_attributes_mask & STATX_ATTR_MOUNT_ROOT))
     return (x.stx_attributes & STATX_ATTR_MOUNT_ROOT) != 0;
-  struct stat own{}, parent{};
+  struct stat own {
+  }, parent{};
   return ::stat(folder.c_str(), &own) == 0 && ::stat(folder.parent_path().c_str(), &parent) == 0 &&
          own.st_dev != parent.st_dev;
 }
@@ -153,41 +154,51 @@ std::vector<std::string> foreign_files(const std::string& dir) {
   return foreign;
 }
 
-PacketWriter::PacketWriter(std::string dir, const std::string& spec_name, const std::string& spec_sha256, bool force)
+PacketWriter::PacketWriter(std::string dir, const std::string& spec_name, const std::string& spec_sha256,
+                           bool force)
     : dir_(std::move(dir)), spec_name_(manifest_name(spec_name)), spec_sha256_(spec_sha256), force_(force) {
   if (dir_.empty())
-    throw RunError("the output folder (--out) is empty; give the folder to write the packet to, e.g. --out reports/check");
+    throw RunError(
+        "the output folder (--out) is empty; give the folder to write the packet to, e.g. --out "
+        "reports/check");
   fs::path target = fs::absolute(dir_).lexically_normal();
   if (!target.has_filename() && target != target.root_path()) target = target.parent_path();  // "DIR/" is DIR
   std::error_code ec;
   if (fs::is_symlink(fs::symlink_status(target, ec))) {
     // Write where the link points; the link itself stays.
     target = fs::canonical(target, ec);
-    if (ec) throw RunError(fmt::format("{} is a symbolic link to nothing ({}); choose another --out", dir_, ec.message()));
+    if (ec)
+      throw RunError(
+          fmt::format("{} is a symbolic link to nothing ({}); choose another --out", dir_, ec.message()));
   }
   if (target == target.root_path())
-    throw RunError(fmt::format("--out {} is the root folder; choose a folder for the packet, e.g. --out reports/check", dir_));
+    throw RunError(fmt::format(
+        "--out {} is the root folder; choose a folder for the packet, e.g. --out reports/check", dir_));
   const auto status = fs::symlink_status(target, ec);
   if (fs::exists(status) && !fs::is_directory(status))
-    throw RunError(fmt::format("{} exists and is not a folder; swaybound never replaces what it did not write (--force "
-                               "does not change that): choose another --out",
-                               dir_));
+    throw RunError(
+        fmt::format("{} exists and is not a folder; swaybound never replaces what it did not write (--force "
+                    "does not change that): choose another --out",
+                    dir_));
   if (fs::is_directory(status) && is_mount_point(target))
-    throw RunError(fmt::format("{} is a mount point; a packet is written beside its folder and renamed into place, "
-                               "which cannot be done to a mount point: choose a folder inside it, e.g. --out {}/packet",
-                               dir_, dir_));
+    throw RunError(
+        fmt::format("{} is a mount point; a packet is written beside its folder and renamed into place, "
+                    "which cannot be done to a mount point: choose a folder inside it, e.g. --out {}/packet",
+                    dir_, dir_));
   target_path_ = target.string();
   const fs::path parent = target.parent_path();
   fs::create_directories(parent, ec);
   if (ec)
-    throw RunError(fmt::format("cannot create the folder {} for the packet {}: {}; choose an --out in a folder you "
-                               "can write to",
-                               parent.string(), dir_, ec.message()));
+    throw RunError(
+        fmt::format("cannot create the folder {} for the packet {}: {}; choose an --out in a folder you "
+                    "can write to",
+                    parent.string(), dir_, ec.message()));
   // From here to the end of the run the lock is held, so no other run writes or checks the target.
   lock_ = std::make_unique<packet_detail::OutputLock>(target, dir_);
   try {
     kill_point("locked");
-    std::vector<packet_detail::RunRecord> runs = packet_detail::clean_stale_runs(target, lock_->recorded(), notices_);
+    std::vector<packet_detail::RunRecord> runs =
+        packet_detail::clean_stale_runs(target, lock_->recorded(), notices_);
     packet_detail::clean_legacy_temporaries(target, notices_);
     lock_->record(runs);
     kill_point("recovered");
@@ -198,9 +209,10 @@ PacketWriter::PacketWriter(std::string dir, const std::string& spec_name, const 
     temp_ = packet_detail::partial_folder(target, self).string();
     old_ = packet_detail::old_folder(target, self).string();
     if (!fs::create_directory(temp_, ec) || ec)
-      throw RunError(fmt::format("cannot create a folder beside {} to write the packet: {}; choose an --out in a "
-                                 "folder you can write to",
-                                 dir_, ec ? ec.message() : "it exists"));
+      throw RunError(
+          fmt::format("cannot create a folder beside {} to write the packet: {}; choose an --out in a "
+                      "folder you can write to",
+                      dir_, ec ? ec.message() : "it exists"));
     kill_point("temp-created");
   } catch (...) {
     finish();
@@ -214,30 +226,34 @@ std::string PacketWriter::check_overwrite() const {
   const auto status = fs::symlink_status(target, ec);
   if (!fs::exists(status)) return "";
   if (!fs::is_directory(status))
-    throw RunError(fmt::format("{} exists and is not a folder; swaybound never replaces what it did not write (--force "
-                               "does not change that): choose another --out",
-                               dir_));
+    throw RunError(
+        fmt::format("{} exists and is not a folder; swaybound never replaces what it did not write (--force "
+                    "does not change that): choose another --out",
+                    dir_));
   if (fs::is_empty(target, ec)) return "";  // nothing to lose
   const Manifest m = read_manifest(target);
   const std::vector<std::string> foreign = foreign_files(target_path_);
   if (!m.packet || !m.has_files)
-    throw RunError(fmt::format("{} is not empty and is not a swaybound packet (no MANIFEST): {}. swaybound never "
-                               "deletes files it did not write (--force does not change that): choose another --out, "
-                               "e.g. a new folder inside it, or move the files out",
-                               dir_, listing(foreign)));
+    throw RunError(
+        fmt::format("{} is not empty and is not a swaybound packet (no MANIFEST): {}. swaybound never "
+                    "deletes files it did not write (--force does not change that): choose another --out, "
+                    "e.g. a new folder inside it, or move the files out",
+                    dir_, listing(foreign)));
   if (!foreign.empty())
-    throw RunError(fmt::format("{} holds files that swaybound did not write (not in its MANIFEST): {}. swaybound "
-                               "never deletes them (--force does not change that): move them out of {}, or choose "
-                               "another --out",
-                               dir_, listing(foreign), dir_));
+    throw RunError(
+        fmt::format("{} holds files that swaybound did not write (not in its MANIFEST): {}. swaybound "
+                    "never deletes them (--force does not change that): move them out of {}, or choose "
+                    "another --out",
+                    dir_, listing(foreign), dir_));
   std::vector<std::string> changed;
   for (const auto& name : verify_manifest(target_path_))
     if (fs::exists(target / name, ec)) changed.push_back(name);
   if (!changed.empty())
-    throw RunError(fmt::format("files of the packet in {} were changed after swaybound wrote them (their SHA-256 no "
-                               "longer matches its MANIFEST): {}. swaybound does not overwrite them (--force does not "
-                               "change that): move them out of {}, or choose another --out",
-                               dir_, listing(changed), dir_));
+    throw RunError(
+        fmt::format("files of the packet in {} were changed after swaybound wrote them (their SHA-256 no "
+                    "longer matches its MANIFEST): {}. swaybound does not overwrite them (--force does not "
+                    "change that): move them out of {}, or choose another --out",
+                    dir_, listing(changed), dir_));
   const auto key = [&m](const char* name) {
     const auto it = m.keys.find(name);
     return it == m.keys.end() ? std::string() : it->second;
@@ -246,16 +262,19 @@ std::string PacketWriter::check_overwrite() const {
   const bool same_design = !previous_name.empty() && previous_name == spec_name_;
   if (previous_sha == spec_sha256_ && (previous_name.empty() || same_design)) return "";
   if (same_design)
-    return fmt::format("{}: replacing the previous revision of '{}' (spec SHA-256 {}... -> {}...)", dir_, spec_name_,
-                       previous_sha.substr(0, 12), spec_sha256_.substr(0, 12));
-  const std::string what = previous_name.empty()
-                               ? fmt::format("a packet of a different spec (SHA-256 {}...) that records no design name",
-                                             previous_sha.substr(0, 12))
-                               : fmt::format("the packet of another design, '{}'", previous_name);
+    return fmt::format("{}: replacing the previous revision of '{}' (spec SHA-256 {}... -> {}...)", dir_,
+                       spec_name_, previous_sha.substr(0, 12), spec_sha256_.substr(0, 12));
+  const std::string what =
+      previous_name.empty()
+          ? fmt::format("a packet of a different spec (SHA-256 {}...) that records no design name",
+                        previous_sha.substr(0, 12))
+          : fmt::format("the packet of another design, '{}'", previous_name);
   if (force_) return fmt::format("{}: replacing {} (--force)", dir_, what);
-  throw RunError(fmt::format("{} holds {}{}; pass --force to replace it, or choose another --out{}", dir_, what,
-                             previous_name.empty() || spec_name_.empty() ? "" : fmt::format(" (this spec is '{}')", spec_name_),
-                             spec_name_.empty() ? " (a spec with a `name:` replaces its own earlier revisions without --force)" : ""));
+  throw RunError(fmt::format(
+      "{} holds {}{}; pass --force to replace it, or choose another --out{}", dir_, what,
+      previous_name.empty() || spec_name_.empty() ? "" : fmt::format(" (this spec is '{}')", spec_name_),
+      spec_name_.empty() ? " (a spec with a `name:` replaces its own earlier revisions without --force)"
+                         : ""));
 }
 
 void PacketWriter::finish() {
@@ -266,7 +285,8 @@ void PacketWriter::finish() {
     const bool own_left = (!temp_.empty() && fs::exists(fs::symlink_status(temp_, ec))) ||
                           (!old_.empty() && fs::exists(fs::symlink_status(old_, ec)));
     if (!own_left)
-      runs.erase(std::remove_if(runs.begin(), runs.end(), [](const auto& r) { return r.pid == ::getpid(); }), runs.end());
+      runs.erase(std::remove_if(runs.begin(), runs.end(), [](const auto& r) { return r.pid == ::getpid(); }),
+                 runs.end());
     if (!runs.empty()) lock_->record(runs);
     lock_->release(runs.empty());  // no temporaries of any run left: the lock file goes too
   } catch (...) {
@@ -283,9 +303,13 @@ PacketWriter::~PacketWriter() {
   finish();
 }
 
-std::vector<std::string> PacketWriter::take_notices() { return std::exchange(notices_, {}); }
+std::vector<std::string> PacketWriter::take_notices() {
+  return std::exchange(notices_, {});
+}
 
-std::string PacketWriter::path(const std::string& name) const { return (fs::path(temp_) / name).string(); }
+std::string PacketWriter::path(const std::string& name) const {
+  return (fs::path(temp_) / name).string();
+}
 
 void PacketWriter::write(const std::string& name, const std::string& content) {
   std::ofstream out(path(name), std::ios::binary);
@@ -297,7 +321,8 @@ void PacketWriter::write(const std::string& name, const std::string& content) {
 void PacketWriter::commit(const ManifestInfo& info) {
   std::vector<std::string> names;
   for (const auto& entry : fs::directory_iterator(temp_))
-    if (entry.is_regular_file() && entry.path().filename() != kManifest) names.push_back(entry.path().filename().string());
+    if (entry.is_regular_file() && entry.path().filename() != kManifest)
+      names.push_back(entry.path().filename().string());
   std::sort(names.begin(), names.end());
   std::string m = std::string(kManifestHeader) + "\n";
   m += fmt::format("tool: swaybound {} (commit {})\n", tool_version(), git_commit());
@@ -317,7 +342,8 @@ void PacketWriter::commit(const ManifestInfo& info) {
   try {
     check_overwrite();
   } catch (const RunError& e) {
-    throw RunError(std::string(e.what()) + " (found when the run ended; the new packet was not put in place)");
+    throw RunError(std::string(e.what()) +
+                   " (found when the run ended; the new packet was not put in place)");
   }
   const fs::path previous = packet_detail::switch_into_place(temp_, target_path_, old_);
   committed_ = true;

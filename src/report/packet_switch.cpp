@@ -31,7 +31,9 @@ fs::path beside(const fs::path& target, const std::string& suffix) {
   return target.parent_path() / fmt::format(".{}{}", target.filename().string(), suffix);
 }
 
-std::string error_text(int error) { return std::strerror(error); }
+std::string error_text(int error) {
+  return std::strerror(error);
+}
 
 /// Whether process `pid` may still be running (kill(pid, 0) says it exists or is not ours).
 bool process_alive(long pid) {
@@ -41,7 +43,8 @@ bool process_alive(long pid) {
 
 void fsync_path(const fs::path& path, int flags) {
   const int fd = ::open(path.c_str(), flags | O_CLOEXEC);
-  if (fd < 0) throw RunError(fmt::format("cannot open {} to flush it to disk: {}", path.string(), error_text(errno)));
+  if (fd < 0)
+    throw RunError(fmt::format("cannot open {} to flush it to disk: {}", path.string(), error_text(errno)));
   const int status = ::fsync(fd);
   const int error = errno;
   ::close(fd);
@@ -83,7 +86,9 @@ fs::path partial_folder(const fs::path& target, const RunRecord& run) {
 fs::path old_folder(const fs::path& target, const RunRecord& run) {
   return beside(target, fmt::format(".swaybound-old-{}-{}", run.pid, run.token));
 }
-fs::path lock_file(const fs::path& target) { return beside(target, ".swaybound-lock"); }
+fs::path lock_file(const fs::path& target) {
+  return beside(target, ".swaybound-lock");
+}
 
 OutputLock::OutputLock(const fs::path& target, const std::string& shown) : path_(lock_file(target)) {
   // A run that finishes removes the lock file while it still holds the lock; a run that opened the
@@ -92,31 +97,38 @@ OutputLock::OutputLock(const fs::path& target, const std::string& shown) : path_
   for (int attempt = 0; attempt < 20; ++attempt) {
     const int fd = ::open(path_.c_str(), O_RDWR | O_CREAT | O_CLOEXEC, 0644);
     if (fd < 0)
-      throw RunError(fmt::format("cannot write beside {} (the lock file {}): {}; choose an --out in a folder you can "
-                                 "write to",
-                                 shown, path_.filename().string(), error_text(errno)));
+      throw RunError(
+          fmt::format("cannot write beside {} (the lock file {}): {}; choose an --out in a folder you can "
+                      "write to",
+                      shown, path_.filename().string(), error_text(errno)));
     if (::flock(fd, LOCK_EX | LOCK_NB) != 0) {
       const int error = errno;
       const long other = holder_pid(read_all(fd));
       ::close(fd);
       if (error == EWOULDBLOCK)
-        throw RunError(fmt::format("another swaybound run{} is writing {} now; wait for it to finish, or choose "
-                                   "another --out",
-                                   other > 0 ? fmt::format(" (process {})", other) : "", shown));
-      throw RunError(fmt::format("cannot lock {} beside {}: {}", path_.filename().string(), shown, error_text(error)));
+        throw RunError(
+            fmt::format("another swaybound run{} is writing {} now; wait for it to finish, or choose "
+                        "another --out",
+                        other > 0 ? fmt::format(" (process {})", other) : "", shown));
+      throw RunError(
+          fmt::format("cannot lock {} beside {}: {}", path_.filename().string(), shown, error_text(error)));
     }
-    struct stat locked{}, current{};
-    if (::fstat(fd, &locked) == 0 && ::stat(path_.c_str(), &current) == 0 && locked.st_ino == current.st_ino &&
-        locked.st_dev == current.st_dev) {
+    struct stat locked {
+    }, current{};
+    if (::fstat(fd, &locked) == 0 && ::stat(path_.c_str(), &current) == 0 &&
+        locked.st_ino == current.st_ino && locked.st_dev == current.st_dev) {
       fd_ = fd;
       return;
     }
     ::close(fd);
   }
-  throw RunError(fmt::format("cannot take the lock {} beside {}: it keeps being replaced", path_.filename().string(), shown));
+  throw RunError(fmt::format("cannot take the lock {} beside {}: it keeps being replaced",
+                             path_.filename().string(), shown));
 }
 
-OutputLock::~OutputLock() { release(false); }
+OutputLock::~OutputLock() {
+  release(false);
+}
 
 std::vector<RunRecord> OutputLock::recorded() const {
   std::vector<RunRecord> runs;
@@ -135,8 +147,8 @@ std::vector<RunRecord> OutputLock::recorded() const {
 void OutputLock::record(const std::vector<RunRecord>& runs) {
   std::string text = fmt::format("{}\nholder: {}\n", kLockHeader, ::getpid());
   for (const auto& run : runs) text += fmt::format("run: {} {}\n", run.pid, run.token);
-  if (::ftruncate(fd_, 0) != 0 || ::pwrite(fd_, text.data(), text.size(), 0) != static_cast<ssize_t>(text.size()) ||
-      ::fsync(fd_) != 0)
+  if (::ftruncate(fd_, 0) != 0 ||
+      ::pwrite(fd_, text.data(), text.size(), 0) != static_cast<ssize_t>(text.size()) || ::fsync(fd_) != 0)
     throw RunError(fmt::format("cannot write the lock file {}: {}", path_.string(), error_text(errno)));
 }
 
@@ -165,12 +177,14 @@ std::vector<RunRecord> clean_stale_runs(const fs::path& target, const std::vecto
       fs::rename(old, target, ec);
       if (ec) {
         clean = false;
-        notices.push_back(fmt::format("could not restore the previous packet from {}: {}", old.string(), ec.message()));
+        notices.push_back(
+            fmt::format("could not restore the previous packet from {}: {}", old.string(), ec.message()));
       } else {
         fsync_path(target.parent_path(), O_RDONLY | O_DIRECTORY);
-        notices.push_back(fmt::format("restored the previous packet that an interrupted run (process {}) had moved "
-                                      "aside",
-                                      run.pid));
+        notices.push_back(
+            fmt::format("restored the previous packet that an interrupted run (process {}) had moved "
+                        "aside",
+                        run.pid));
       }
     }
     for (const auto& folder : {partial, old}) {
@@ -180,8 +194,8 @@ std::vector<RunRecord> clean_stale_runs(const fs::path& target, const std::vecto
         clean = false;
         notices.push_back(fmt::format("could not remove {}: {}", folder.string(), ec.message()));
       } else {
-        notices.push_back(fmt::format("removed {}, left by an interrupted run (process {})", folder.filename().string(),
-                                      run.pid));
+        notices.push_back(fmt::format("removed {}, left by an interrupted run (process {})",
+                                      folder.filename().string(), run.pid));
       }
     }
     if (!clean) kept.push_back(run);
@@ -191,25 +205,37 @@ std::vector<RunRecord> clean_stale_runs(const fs::path& target, const std::vecto
 
 void clean_legacy_temporaries(const fs::path& target, std::vector<std::string>& notices) {
   // The files `check` and `size` write; a legacy half-written folder holds some of them.
-  static const std::set<std::string> packet_names{
-      "MANIFEST",       "cases.csv",       "results.json",    "spec.yaml",       "input_spec.yaml",
-      "report.pdf",     "report.html",     "sized_spec.yaml", "sizing.md",       "sizing.json",
-      "sizing_history.csv", "convergence_objective.svg", "convergence_margin.svg",
-      "convergence_objective.png", "convergence_margin.png"};
+  static const std::set<std::string> packet_names{"MANIFEST",
+                                                  "cases.csv",
+                                                  "results.json",
+                                                  "spec.yaml",
+                                                  "input_spec.yaml",
+                                                  "report.pdf",
+                                                  "report.html",
+                                                  "sized_spec.yaml",
+                                                  "sizing.md",
+                                                  "sizing.json",
+                                                  "sizing_history.csv",
+                                                  "convergence_objective.svg",
+                                                  "convergence_margin.svg",
+                                                  "convergence_objective.png",
+                                                  "convergence_margin.png"};
   const std::string prefix = fmt::format(".{}.partial-", target.filename().string());
   std::error_code ec;
   std::vector<fs::path> candidates;
   for (auto it = fs::directory_iterator(target.parent_path(), ec); !ec && it != fs::directory_iterator();
        it.increment(ec)) {
     const std::string name = it->path().filename().string();
-    if (name.rfind(prefix, 0) == 0 && it->is_directory() && !it->is_symlink()) candidates.push_back(it->path());
+    if (name.rfind(prefix, 0) == 0 && it->is_directory() && !it->is_symlink())
+      candidates.push_back(it->path());
   }
   std::sort(candidates.begin(), candidates.end());
   for (const auto& folder : candidates) {
     std::string rest = folder.filename().string().substr(prefix.size());
     const bool old = rest.size() > 4 && rest.compare(rest.size() - 4, 4, ".old") == 0;
     if (old) rest.resize(rest.size() - 4);
-    if (rest.empty() || rest.size() > 9 || rest.find_first_not_of("0123456789") != std::string::npos) continue;
+    if (rest.empty() || rest.size() > 9 || rest.find_first_not_of("0123456789") != std::string::npos)
+      continue;
     const long pid = std::stol(rest);
     if (process_alive(pid)) continue;
     if (old) {
@@ -218,20 +244,24 @@ void clean_legacy_temporaries(const fs::path& target, std::vector<std::string>& 
         fs::rename(folder, target, ec);
         if (ec) continue;
         fsync_path(target.parent_path(), O_RDONLY | O_DIRECTORY);
-        notices.push_back(fmt::format("restored the previous packet from {}, which an interrupted run (process {}) "
-                                      "had moved aside",
-                                      folder.filename().string(), pid));
+        notices.push_back(
+            fmt::format("restored the previous packet from {}, which an interrupted run (process {}) "
+                        "had moved aside",
+                        folder.filename().string(), pid));
         continue;
       }
     } else {
       bool ours = true;
-      for (auto it = fs::directory_iterator(folder, ec); ours && !ec && it != fs::directory_iterator(); it.increment(ec))
-        ours = it->is_regular_file() && !it->is_symlink() && packet_names.count(it->path().filename().string()) > 0;
+      for (auto it = fs::directory_iterator(folder, ec); ours && !ec && it != fs::directory_iterator();
+           it.increment(ec))
+        ours = it->is_regular_file() && !it->is_symlink() &&
+               packet_names.count(it->path().filename().string()) > 0;
       if (!ours || ec) continue;
     }
     fs::remove_all(folder, ec);
     if (!ec)
-      notices.push_back(fmt::format("removed {}, left by an interrupted run (process {})", folder.filename().string(), pid));
+      notices.push_back(fmt::format("removed {}, left by an interrupted run (process {})",
+                                    folder.filename().string(), pid));
   }
 }
 
@@ -262,12 +292,14 @@ fs::path switch_into_place(const fs::path& partial, const fs::path& target, cons
   } else {
     const bool exchange_allowed = std::getenv("SWAYBOUND_TEST_NO_EXCHANGE") == nullptr;
     int error = EINVAL;
-    if (exchange_allowed && ::renameat2(AT_FDCWD, partial.c_str(), AT_FDCWD, target.c_str(), RENAME_EXCHANGE) == 0) {
+    if (exchange_allowed &&
+        ::renameat2(AT_FDCWD, partial.c_str(), AT_FDCWD, target.c_str(), RENAME_EXCHANGE) == 0) {
       previous = partial;
       kill_point("exchanged");
     } else {
       if (exchange_allowed) error = errno;
-      if (error != EINVAL && error != ENOSYS && error != ENOTSUP) throw fail("exchanging the new packet with", error);
+      if (error != EINVAL && error != ENOSYS && error != ENOTSUP)
+        throw fail("exchanging the new packet with", error);
       // No atomic exchange here: move the old packet aside, then the new one in. A run killed in
       // between leaves no target and a complete old packet, which the next run restores.
       if (::rename(target.c_str(), old.c_str()) != 0) throw fail("moving aside the previous packet", errno);

@@ -2,19 +2,19 @@
 // step of the replacement leaves the whole old or the whole new packet (and the next run cleans
 // up), two runs cannot write one packet at once, and output that cannot be written is reported
 // before any case runs.
-#include <catch2/catch.hpp>
 #include <fcntl.h>
-#include <chrono>
+#include <sys/stat.h>
+#include <sys/wait.h>
+#include <unistd.h>
+#include <catch2/catch.hpp>
 #include <cerrno>
+#include <chrono>
 #include <csignal>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
-#include <sys/stat.h>
-#include <sys/wait.h>
 #include <thread>
-#include <unistd.h>
 
 #include <fmt/format.h>
 
@@ -67,8 +67,8 @@ struct Run {
 };
 
 /// Starts the CLI with `args` and the extra environment `env`; stderr goes to `err_file`.
-pid_t start_cli(const std::vector<std::string>& args, const std::vector<std::pair<std::string, std::string>>& env,
-                const fs::path& err_file) {
+pid_t start_cli(const std::vector<std::string>& args,
+                const std::vector<std::pair<std::string, std::string>>& env, const fs::path& err_file) {
   std::fflush(stdout);  // else the child would write out what the parent had buffered
   std::fflush(stderr);
   const pid_t pid = fork();
@@ -96,14 +96,16 @@ Run finish_cli(pid_t pid, const fs::path& err_file) {
   return r;
 }
 
-Run cli(const std::vector<std::string>& args, const std::vector<std::pair<std::string, std::string>>& env = {}) {
+Run cli(const std::vector<std::string>& args,
+        const std::vector<std::pair<std::string, std::string>>& env = {}) {
   const fs::path err_file = fs::temp_directory_path() / fmt::format("swaybound-safety-stderr-{}", ::getpid());
   return finish_cli(start_cli(args, env, err_file), err_file);
 }
 
 Run check(const fs::path& spec, const fs::path& out, std::vector<std::string> extra = {},
           const std::vector<std::pair<std::string, std::string>>& env = {}) {
-  std::vector<std::string> args{"check", spec.string(), "--out", out.string(), "--quiet", "--no-audit", "--jobs", "1"};
+  std::vector<std::string> args{"check",   spec.string(), "--out",  out.string(),
+                                "--quiet", "--no-audit",  "--jobs", "1"};
   args.insert(args.end(), extra.begin(), extra.end());
   return cli(args, env);
 }
@@ -113,18 +115,21 @@ std::vector<std::string> leftovers(const fs::path& out) {
   std::vector<std::string> found;
   const std::string prefix = fmt::format(".{}.swaybound-", out.filename().string());
   for (const auto& entry : fs::directory_iterator(out.parent_path()))
-    if (entry.path().filename().string().rfind(prefix, 0) == 0) found.push_back(entry.path().filename().string());
+    if (entry.path().filename().string().rfind(prefix, 0) == 0)
+      found.push_back(entry.path().filename().string());
   return found;
 }
 
 /// `out` holds exactly the whole packet of the spec with SHA-256 `sha`: every MANIFEST hash
 /// verifies and nothing else is in the folder.
 bool whole_packet(const fs::path& out, const std::string& sha) {
-  return fs::is_directory(out) && packet_spec_sha256(out.string()) == sha && verify_manifest(out.string()).empty() &&
-         foreign_files(out.string()).empty();
+  return fs::is_directory(out) && packet_spec_sha256(out.string()) == sha &&
+         verify_manifest(out.string()).empty() && foreign_files(out.string()).empty();
 }
 
-bool contains(const std::string& text, const std::string& part) { return text.find(part) != std::string::npos; }
+bool contains(const std::string& text, const std::string& part) {
+  return text.find(part) != std::string::npos;
+}
 
 /// The line `check` prints after the output checks and before the cases run.
 constexpr const char* kCasesLine = " cases (";
@@ -262,7 +267,8 @@ namespace {
 bool exchange_supported(const fs::path& dir) {
   fs::create_directories(dir / "a");
   fs::create_directories(dir / "b");
-  const bool ok = ::renameat2(AT_FDCWD, (dir / "a").c_str(), AT_FDCWD, (dir / "b").c_str(), RENAME_EXCHANGE) == 0;
+  const bool ok =
+      ::renameat2(AT_FDCWD, (dir / "a").c_str(), AT_FDCWD, (dir / "b").c_str(), RENAME_EXCHANGE) == 0;
   fs::remove_all(dir / "a");
   fs::remove_all(dir / "b");
   return ok;
@@ -334,7 +340,8 @@ TEST_CASE("a SIGKILL at any step of the replacement leaves the whole old or the 
   }
 }
 
-TEST_CASE("folders beside a packet that are not provably a killed run's are left alone", "[packet][reliability]") {
+TEST_CASE("folders beside a packet that are not provably a killed run's are left alone",
+          "[packet][reliability]") {
   const fs::path dir = scratch("not-ours"), out = dir / "packet";
   const fs::path spec = write_file(dir / "spec.yaml", spec_yaml("hook block", 5));
   // Named like a temporary but recorded by no run.
@@ -410,7 +417,8 @@ TEST_CASE("two runs writing one packet at once: the second refuses at once and n
   const std::string sha = sha256_file(spec.string());
   const fs::path slow = write_file(dir / "slow.yaml", spec_yaml("hook block", 0.01, 2000, 3000));
   const fs::path first_err = dir / "first.err";
-  const pid_t first = start_cli({"check", slow.string(), "--out", out.string(), "--quiet", "--jobs", "1"}, {}, first_err);
+  const pid_t first =
+      start_cli({"check", slow.string(), "--out", out.string(), "--quiet", "--jobs", "1"}, {}, first_err);
   const fs::path lock = dir / ".packet.swaybound-lock";
   for (int k = 0; k < 400 && !contains(read_file(lock), fmt::format("holder: {}", first)); ++k)
     std::this_thread::sleep_for(std::chrono::milliseconds(25));
@@ -436,13 +444,15 @@ TEST_CASE("files put into the packet while a run is going stop its replacement",
   const std::string sha = sha256_file(spec.string());
   write_file(spec, spec_yaml("hook block", 0.01, 24, 2000));
   const fs::path err = dir / "run.err";
-  const pid_t pid = start_cli({"check", spec.string(), "--out", out.string(), "--quiet", "--jobs", "1"}, {}, err);
+  const pid_t pid =
+      start_cli({"check", spec.string(), "--out", out.string(), "--quiet", "--jobs", "1"}, {}, err);
   const auto partial_exists = [&]() {
     for (const auto& name : leftovers(out))
       if (contains(name, "swaybound-partial")) return true;
     return false;
   };
-  for (int k = 0; k < 400 && !partial_exists(); ++k) std::this_thread::sleep_for(std::chrono::milliseconds(10));
+  for (int k = 0; k < 400 && !partial_exists(); ++k)
+    std::this_thread::sleep_for(std::chrono::milliseconds(10));
   REQUIRE(partial_exists());
   write_file(out / "signed_review.txt", "approved");
   const Run r = finish_cli(pid, err);
@@ -488,7 +498,8 @@ TEST_CASE("output that cannot be written is reported before any case runs", "[pa
   SECTION("a mount point") {
     fs::path mount;
     for (const char* candidate : {"/dev/shm", "/proc", "/sys"}) {
-      struct stat own{}, parent{};
+      struct stat own {
+      }, parent{};
       if (::stat(candidate, &own) == 0 && ::stat(fs::path(candidate).parent_path().c_str(), &parent) == 0 &&
           own.st_dev != parent.st_dev) {
         mount = candidate;

@@ -21,7 +21,8 @@ namespace {
 
 fs::path temp(const std::string& name) { return fs::temp_directory_path() / ("swaybound-packet-" + name); }
 
-std::string spec_text(double damper, double duration = 8, int count = 6, const std::string& name = "packet test") {
+std::string spec_text(double damper, double duration = 8, int count = 6,
+                      const std::string& name = "packet test") {
   return fmt::format(R"(
 swaybound: 1
 name: {}
@@ -42,7 +43,8 @@ std::vector<std::string> leftovers(const fs::path& out) {
   std::vector<std::string> found;
   const std::string prefix = fmt::format(".{}.swaybound-", out.filename().string());
   for (const auto& entry : fs::directory_iterator(out.parent_path()))
-    if (entry.path().filename().string().rfind(prefix, 0) == 0) found.push_back(entry.path().filename().string());
+    if (entry.path().filename().string().rfind(prefix, 0) == 0)
+      found.push_back(entry.path().filename().string());
   return found;
 }
 
@@ -146,7 +148,8 @@ void interrupt_and_compare(const std::string& command, int signal, bool sizing) 
       if (name.rfind(own_prefix, 0) == 0) return out.parent_path() / name;
     return fs::path();
   };
-  for (int k = 0; k < 400 && own_folder().empty(); ++k) std::this_thread::sleep_for(std::chrono::milliseconds(25));
+  for (int k = 0; k < 400 && own_folder().empty(); ++k)
+    std::this_thread::sleep_for(std::chrono::milliseconds(25));
   const fs::path own = own_folder();
   REQUIRE_FALSE(own.empty());
   std::this_thread::sleep_for(std::chrono::milliseconds(200));

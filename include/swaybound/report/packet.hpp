@@ -22,10 +22,10 @@ class OutputLock;
 }
 
 struct ManifestInfo {
-  std::string spec_file;        ///< name of the spec copy inside the packet
-  std::string spec_name;        ///< the spec's `name:` (the design); recorded as "spec_name:"
+  std::string spec_file;  ///< name of the spec copy inside the packet
+  std::string spec_name;  ///< the spec's `name:` (the design); recorded as "spec_name:"
   std::string spec_sha256;
-  std::string date_utc;         ///< ISO 8601
+  std::string date_utc;               ///< ISO 8601
   std::vector<std::string> settings;  ///< "key: value" lines (solver, seeds, cases), host-independent
 };
 
@@ -60,7 +60,7 @@ class PacketWriter {
   /// Releases the lock, keeping this run in the lock file's record while its folders remain.
   void finish();
 
-  std::string dir_;          ///< as given
+  std::string dir_;  ///< as given
   std::string spec_name_, spec_sha256_;
   bool force_ = false;
   std::string target_path_;  ///< absolute, normalised, symbolic link resolved
