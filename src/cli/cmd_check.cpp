@@ -83,14 +83,18 @@ Action add_check(CLI::App& app) {
   cmd->add_option("--jobs", o->jobs, "Threads (default: every core)")->check(CLI::NonNegativeNumber);
   cmd->add_option("--max-cases", o->max_cases, "Cap on the number of cases")->check(CLI::PositiveNumber)->capture_default_str();
   cmd->add_flag("--no-audit", o->no_audit, "Skip re-running governing cases at a tighter tolerance");
-  cmd->add_flag("--force", o->force, "Replace a packet made from a different spec, or a folder that is not a packet");
+  cmd->add_flag("--force", o->force,
+                "Replace the packet of another design (a spec with another name); never deletes files "
+                "swaybound did not write");
   cmd->add_flag("--quiet", o->quiet, "No progress on stderr");
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
     const Spec spec = load_spec(o->spec, LoadOptions{o->max_cases});
     const std::string spec_sha = sha256_file(o->spec);
-    // Checks the overwrite rule and that the folder can be written before any work is done.
-    PacketWriter packet(o->out, spec_sha, o->force);
+    // Every output problem (the overwrite rule, a folder that cannot be written, another run
+    // writing it) is reported here, before any work is done.
+    PacketWriter packet(o->out, spec.name, spec_sha, o->force);
+    print_notices(packet);
     const CaseSpace space(spec);
     std::cerr << fmt::format("{}: {} cases ({} starts x {} scenarios), {:g} s each\n", o->spec, space.size(),
                              space.starts(), spec.scenarios.size(), spec.cases.duration);
@@ -118,10 +122,12 @@ Action add_check(CLI::App& app) {
     throw_if_cancelled();
     ManifestInfo info;
     info.spec_file = "spec.yaml";
+    info.spec_name = spec.name;
     info.spec_sha256 = spec_sha;
     info.date_utc = date;
     info.settings = manifest_settings(spec, report);
     packet.commit(info);
+    print_notices(packet);
     print_summary(report, std::cout);
     std::cerr << fmt::format("wrote the packet {} (cases {:.1f} s, modes and chaos {:.1f} s, accuracy audit {:.1f} s)\n",
                              packet.target(), report.seconds_cases, report.seconds_chaos, report.seconds_audit);

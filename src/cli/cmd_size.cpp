@@ -40,7 +40,9 @@ Action add_size(CLI::App& app) {
       ->check(CLI::NonNegativeNumber)
       ->capture_default_str();
   cmd->add_flag("--no-audit", o->no_audit, "Final check without re-running governing cases at a tighter tolerance");
-  cmd->add_flag("--force", o->force, "Replace an output folder made from a different spec, or one that is not ours");
+  cmd->add_flag("--force", o->force,
+                "Replace the packet of another design (a spec with another name); never deletes files "
+                "swaybound did not write");
   cmd->add_flag("--quiet", o->quiet, "No progress on stderr");
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
@@ -49,8 +51,10 @@ Action add_size(CLI::App& app) {
     design_variables(spec);
     objective_metric(spec);
     const std::string spec_sha = sha256_file(o->spec);
-    // Checks the overwrite rule and that the folder can be written before any work is done.
-    PacketWriter packet(o->out, spec_sha, o->force);
+    // Every output problem (the overwrite rule, a folder that cannot be written, another run
+    // writing it) is reported here, before any work is done.
+    PacketWriter packet(o->out, spec.name, spec_sha, o->force);
+    print_notices(packet);
     const CaseSpace space(spec);
     const SizingSpec& s = *spec.sizing;
     std::cerr << fmt::format("{}: {} design variable(s), {} cases ({} starts x {} scenarios), {:g} s each; budget "
@@ -123,6 +127,7 @@ Action add_size(CLI::App& app) {
     throw_if_cancelled();
     ManifestInfo info;
     info.spec_file = "input_spec.yaml";
+    info.spec_name = spec.name;
     info.spec_sha256 = spec_sha;
     info.date_utc = date;
     info.settings.push_back(fmt::format("sizing: objective={} mode={} seed={} budget={} evaluations, {:g} s; "
@@ -136,6 +141,7 @@ Action add_size(CLI::App& app) {
                                         result.after.spec_sha256));
     info.settings.push_back(fmt::format("accuracy_audit: {}", o->no_audit ? "off" : "governing cases at rtol/100, atol/100"));
     packet.commit(info);
+    print_notices(packet);
     std::cout << table;
     std::cerr << fmt::format("wrote {}: sized_spec.yaml, report.pdf, report.html, results.json, cases.csv, "
                              "sizing_history.csv, sizing.md, sizing.json ({} evaluations, {:.1f} s)\n",

@@ -31,6 +31,10 @@ Action add_verify(CLI::App& app);
 /// The whole file as bytes (the spec copy in a packet); RunError if it cannot be read.
 std::string read_file_text(const std::string& path);
 
+/// Prints the packet writer's notices (a previous revision replaced, leftovers of a killed run
+/// cleaned up) on stderr.
+void print_notices(PacketWriter& packet);
+
 /// report.pdf and report.html of `report` into the packet, dated `date_utc` (ISO 8601); the
 /// packet's cases.csv must be complete (the envelope plots read it).
 void write_review_documents(PacketWriter& packet, const Spec& spec, const CheckReport& report,

@@ -1,4 +1,5 @@
 #include <fstream>
+#include <iostream>
 #include <sstream>
 
 #include <fmt/format.h>
@@ -16,6 +17,10 @@ std::string read_file_text(const std::string& path) {
   s << in.rdbuf();
   if (!in && !in.eof()) throw RunError(fmt::format("cannot read {}", path));
   return s.str();
+}
+
+void print_notices(PacketWriter& packet) {
+  for (const auto& notice : packet.take_notices()) std::cerr << "swaybound: " << notice << '\n';
 }
 
 void write_review_documents(PacketWriter& packet, const Spec& spec, const CheckReport& report,

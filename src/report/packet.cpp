@@ -1,5 +1,7 @@
 #include "swaybound/report/packet.hpp"
 
+#include <fcntl.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include <algorithm>
@@ -7,10 +9,14 @@
 #include <ctime>
 #include <filesystem>
 #include <fstream>
+#include <map>
+#include <set>
 #include <sstream>
+#include <utility>
 
 #include <fmt/format.h>
 
+#include "packet_switch.hpp"
 #include "swaybound/core/error.hpp"
 #include "swaybound/core/hash.hpp"
 #include "swaybound/core/version.hpp"
@@ -18,6 +24,7 @@
 namespace swaybound {
 
 namespace fs = std::filesystem;
+using packet_detail::kill_point;
 
 namespace {
 constexpr const char* kManifest = "MANIFEST";
@@ -29,6 +36,65 @@ std::string read_text(const fs::path& p) {
   s << in.rdbuf();
   return s.str();
 }
+
+/// A MANIFEST read back: its "key: value" lines before "files:" and its file lines.
+struct Manifest {
+  bool packet = false;  ///< the header line is a packet manifest's
+  bool has_files = false;
+  std::map<std::string, std::string> keys;
+  std::vector<std::pair<std::string, std::string>> files;  ///< (SHA-256, name)
+};
+
+Manifest read_manifest(const fs::path& dir) {
+  Manifest m;
+  std::error_code ec;
+  if (!fs::is_regular_file(dir / kManifest, ec)) return m;
+  std::istringstream in(read_text(dir / kManifest));
+  std::string line;
+  if (!std::getline(in, line)) return m;
+  m.packet = line == kManifestHeader;
+  while (std::getline(in, line)) {
+    if (line == "files:") {
+      m.has_files = true;
+      continue;
+    }
+    if (m.has_files) {
+      if (line.size() >= 67) m.files.emplace_back(line.substr(0, 64), line.substr(66));
+    } else if (const auto colon = line.find(": "); colon != std::string::npos) {
+      m.keys.emplace(line.substr(0, colon), line.substr(colon + 2));
+    }
+  }
+  return m;
+}
+
+/// The spec name as one MANIFEST line holds it (line breaks become spaces).
+std::string manifest_name(std::string name) {
+  std::replace(name.begin(), name.end(), '\n', ' ');
+  std::replace(name.begin(), name.end(), '\r', ' ');
+  return name;
+}
+
+/// Up to ten names, then "and N more".
+std::string listing(const std::vector<std::string>& names) {
+  std::string out;
+  const std::size_t shown = std::min<std::size_t>(names.size(), 10);
+  for (std::size_t i = 0; i < shown; ++i) out += (i ? ", " : "") + names[i];
+  if (names.size() > shown) out += fmt::format(" and {} more", names.size() - shown);
+  return out;
+}
+
+/// Whether `folder` is the root of a mounted file system (a packet cannot be renamed over it).
+bool is_mount_point(const fs::path& folder) {
+  struct statx x {};
+  if (::statx(AT_FDCWD, folder.c_str(), AT_SYMLINK_NOFOLLOW, STATX_BASIC_STATS, &x) == 0 &&
+      (x.stx_attributes_mask & STATX_ATTR_MOUNT_ROOT))
+    return (x.stx_attributes & STATX_ATTR_MOUNT_ROOT) != 0;
+  struct stat own {
+  }, parent{};
+  return ::stat(folder.c_str(), &own) == 0 && ::stat(folder.parent_path().c_str(), &parent) == 0 &&
+         own.st_dev != parent.st_dev;
+}
+
 }  // namespace
 
 std::string now_utc_iso8601() {
@@ -41,70 +107,209 @@ std::string now_utc_iso8601() {
 }
 
 std::string packet_spec_sha256(const std::string& dir) {
-  const fs::path manifest = fs::path(dir) / kManifest;
-  std::error_code ec;
-  if (!fs::is_regular_file(manifest, ec)) return "";
-  std::istringstream in(read_text(manifest));
-  std::string line;
-  if (!std::getline(in, line) || line != kManifestHeader) return "";
-  while (std::getline(in, line))
-    if (line.rfind("spec_sha256: ", 0) == 0) return line.substr(13);
-  return "";
+  const Manifest m = read_manifest(dir);
+  const auto it = m.keys.find("spec_sha256");
+  return m.packet && it != m.keys.end() ? it->second : "";
+}
+
+std::string packet_spec_name(const std::string& dir) {
+  const Manifest m = read_manifest(dir);
+  const auto it = m.keys.find("spec_name");
+  return m.packet && it != m.keys.end() ? it->second : "";
 }
 
 std::vector<std::string> verify_manifest(const std::string& dir) {
   std::vector<std::string> bad;
-  std::istringstream in(read_text(fs::path(dir) / kManifest));
-  std::string line;
-  bool files = false;
-  while (std::getline(in, line)) {
-    if (line == "files:") {
-      files = true;
-      continue;
-    }
-    if (!files || line.size() < 67) continue;
-    const std::string hash = line.substr(0, 64), name = line.substr(66);
+  const Manifest m = read_manifest(dir);
+  for (const auto& [hash, name] : m.files) {
     std::error_code ec;
-    if (!fs::is_regular_file(fs::path(dir) / name, ec) || sha256_file((fs::path(dir) / name).string()) != hash)
-      bad.push_back(name);
+    const fs::path file = fs::path(dir) / name;
+    if (!fs::is_regular_file(file, ec) || sha256_file(file.string()) != hash) bad.push_back(name);
   }
-  if (!files) bad.push_back(kManifest);
+  if (!m.has_files) bad.push_back(kManifest);
   return bad;
 }
 
-PacketWriter::PacketWriter(std::string dir, const std::string& spec_sha256, bool force) : dir_(std::move(dir)) {
-  const fs::path target(dir_);
-  std::error_code ec;
-  if (fs::exists(target, ec) && !force) {
-    if (!fs::is_directory(target, ec))
-      throw RunError(fmt::format("{} exists and is not a folder; choose another --out or pass --force", dir_));
-    const bool empty = fs::is_empty(target, ec);
-    const std::string previous = packet_spec_sha256(dir_);
-    if (!empty && previous.empty())
-      throw RunError(fmt::format("{} holds files that are not a swaybound packet; choose another --out or pass "
-                                 "--force to replace the folder",
-                                 dir_));
-    if (!empty && previous != spec_sha256)
-      throw RunError(fmt::format("{} holds a packet made from a different spec (SHA-256 {}...); pass --force to "
-                                 "replace it, or choose another --out",
-                                 dir_, previous.substr(0, 12)));
+std::vector<std::string> foreign_files(const std::string& dir) {
+  const Manifest m = read_manifest(dir);
+  std::set<std::string> own;
+  if (m.packet && m.has_files) {
+    own.insert(kManifest);
+    for (const auto& file : m.files) own.insert(fs::path(file.second).lexically_normal().generic_string());
   }
-  const fs::path parent = target.has_parent_path() ? target.parent_path() : fs::path(".");
+  std::vector<std::string> foreign;
+  std::error_code ec;
+  for (auto it = fs::recursive_directory_iterator(dir, ec); !ec && it != fs::recursive_directory_iterator();
+       it.increment(ec)) {
+    const std::string relative = it->path().lexically_relative(dir).generic_string();
+    std::error_code entry_error;
+    if (it->is_directory(entry_error) && !it->is_symlink(entry_error)) {
+      if (fs::is_empty(it->path(), entry_error)) foreign.push_back(relative + "/");
+    } else if (own.count(relative) == 0) {
+      foreign.push_back(relative);
+    }
+  }
+  if (ec) foreign.push_back(fmt::format("(the folder could not be read whole: {})", ec.message()));
+  std::sort(foreign.begin(), foreign.end());
+  return foreign;
+}
+
+PacketWriter::PacketWriter(std::string dir, const std::string& spec_name, const std::string& spec_sha256,
+                           bool force)
+    : dir_(std::move(dir)), spec_name_(manifest_name(spec_name)), spec_sha256_(spec_sha256), force_(force) {
+  if (dir_.empty())
+    throw RunError(
+        "the output folder (--out) is empty; give the folder to write the packet to, e.g. --out "
+        "reports/check");
+  fs::path target = fs::absolute(dir_).lexically_normal();
+  if (!target.has_filename() && target != target.root_path()) target = target.parent_path();  // "DIR/" is DIR
+  std::error_code ec;
+  if (fs::is_symlink(fs::symlink_status(target, ec))) {
+    // Write where the link points; the link itself stays.
+    target = fs::canonical(target, ec);
+    if (ec)
+      throw RunError(
+          fmt::format("{} is a symbolic link to nothing ({}); choose another --out", dir_, ec.message()));
+  }
+  if (target == target.root_path())
+    throw RunError(fmt::format(
+        "--out {} is the root folder; choose a folder for the packet, e.g. --out reports/check", dir_));
+  const auto status = fs::symlink_status(target, ec);
+  if (fs::exists(status) && !fs::is_directory(status))
+    throw RunError(
+        fmt::format("{} exists and is not a folder; swaybound never replaces what it did not write (--force "
+                    "does not change that): choose another --out",
+                    dir_));
+  if (fs::is_directory(status) && is_mount_point(target))
+    throw RunError(
+        fmt::format("{} is a mount point; a packet is written beside its folder and renamed into place, "
+                    "which cannot be done to a mount point: choose a folder inside it, e.g. --out {}/packet",
+                    dir_, dir_));
+  target_path_ = target.string();
+  const fs::path parent = target.parent_path();
   fs::create_directories(parent, ec);
-  temp_ = (parent / fmt::format(".{}.partial-{}", target.filename().string(), ::getpid())).string();
-  fs::remove_all(temp_, ec);
-  if (!fs::create_directory(temp_, ec) || ec)
-    throw RunError(fmt::format("cannot create a folder beside {} to write the packet: {}", dir_,
-                               ec ? ec.message() : "unknown error"));
+  if (ec)
+    throw RunError(
+        fmt::format("cannot create the folder {} for the packet {}: {}; choose an --out in a folder you "
+                    "can write to",
+                    parent.string(), dir_, ec.message()));
+  // From here to the end of the run the lock is held, so no other run writes or checks the target.
+  lock_ = std::make_unique<packet_detail::OutputLock>(target, dir_);
+  try {
+    kill_point("locked");
+    std::vector<packet_detail::RunRecord> runs =
+        packet_detail::clean_stale_runs(target, lock_->recorded(), notices_);
+    packet_detail::clean_legacy_temporaries(target, notices_);
+    lock_->record(runs);
+    kill_point("recovered");
+    if (const std::string notice = check_overwrite(); !notice.empty()) notices_.push_back(notice);
+    const packet_detail::RunRecord self{static_cast<long>(::getpid()), packet_detail::new_token()};
+    runs.push_back(self);
+    lock_->record(runs);  // recorded before the folders exist, so a killed run's folders are known
+    temp_ = packet_detail::partial_folder(target, self).string();
+    old_ = packet_detail::old_folder(target, self).string();
+    if (!fs::create_directory(temp_, ec) || ec)
+      throw RunError(
+          fmt::format("cannot create a folder beside {} to write the packet: {}; choose an --out in a "
+                      "folder you can write to",
+                      dir_, ec ? ec.message() : "it exists"));
+    kill_point("temp-created");
+  } catch (...) {
+    finish();
+    throw;
+  }
+}
+
+std::string PacketWriter::check_overwrite() const {
+  const fs::path target(target_path_);
+  std::error_code ec;
+  const auto status = fs::symlink_status(target, ec);
+  if (!fs::exists(status)) return "";
+  if (!fs::is_directory(status))
+    throw RunError(
+        fmt::format("{} exists and is not a folder; swaybound never replaces what it did not write (--force "
+                    "does not change that): choose another --out",
+                    dir_));
+  if (fs::is_empty(target, ec)) return "";  // nothing to lose
+  const Manifest m = read_manifest(target);
+  const std::vector<std::string> foreign = foreign_files(target_path_);
+  if (!m.packet || !m.has_files)
+    throw RunError(
+        fmt::format("{} is not empty and is not a swaybound packet (no MANIFEST): {}. swaybound never "
+                    "deletes files it did not write (--force does not change that): choose another --out, "
+                    "e.g. a new folder inside it, or move the files out",
+                    dir_, listing(foreign)));
+  if (!foreign.empty())
+    throw RunError(
+        fmt::format("{} holds files that swaybound did not write (not in its MANIFEST): {}. swaybound "
+                    "never deletes them (--force does not change that): move them out of {}, or choose "
+                    "another --out",
+                    dir_, listing(foreign), dir_));
+  std::vector<std::string> changed;
+  for (const auto& name : verify_manifest(target_path_))
+    if (fs::exists(target / name, ec)) changed.push_back(name);
+  if (!changed.empty())
+    throw RunError(
+        fmt::format("files of the packet in {} were changed after swaybound wrote them (their SHA-256 no "
+                    "longer matches its MANIFEST): {}. swaybound does not overwrite them (--force does not "
+                    "change that): move them out of {}, or choose another --out",
+                    dir_, listing(changed), dir_));
+  const auto key = [&m](const char* name) {
+    const auto it = m.keys.find(name);
+    return it == m.keys.end() ? std::string() : it->second;
+  };
+  const std::string previous_name = key("spec_name"), previous_sha = key("spec_sha256");
+  const bool same_design = !previous_name.empty() && previous_name == spec_name_;
+  if (previous_sha == spec_sha256_ && (previous_name.empty() || same_design)) return "";
+  if (same_design)
+    return fmt::format("{}: replacing the previous revision of '{}' (spec SHA-256 {}... -> {}...)", dir_,
+                       spec_name_, previous_sha.substr(0, 12), spec_sha256_.substr(0, 12));
+  const std::string what =
+      previous_name.empty()
+          ? fmt::format("a packet of a different spec (SHA-256 {}...) that records no design name",
+                        previous_sha.substr(0, 12))
+          : fmt::format("the packet of another design, '{}'", previous_name);
+  if (force_) return fmt::format("{}: replacing {} (--force)", dir_, what);
+  throw RunError(fmt::format(
+      "{} holds {}{}; pass --force to replace it, or choose another --out{}", dir_, what,
+      previous_name.empty() || spec_name_.empty() ? "" : fmt::format(" (this spec is '{}')", spec_name_),
+      spec_name_.empty() ? " (a spec with a `name:` replaces its own earlier revisions without --force)"
+                         : ""));
+}
+
+void PacketWriter::finish() {
+  if (!lock_) return;
+  try {
+    std::vector<packet_detail::RunRecord> runs = lock_->recorded();
+    std::error_code ec;
+    const bool own_left = (!temp_.empty() && fs::exists(fs::symlink_status(temp_, ec))) ||
+                          (!old_.empty() && fs::exists(fs::symlink_status(old_, ec)));
+    if (!own_left)
+      runs.erase(std::remove_if(runs.begin(), runs.end(), [](const auto& r) { return r.pid == ::getpid(); }),
+                 runs.end());
+    if (!runs.empty()) lock_->record(runs);
+    lock_->release(runs.empty());  // no temporaries of any run left: the lock file goes too
+  } catch (...) {
+    lock_->release(false);
+  }
+  lock_.reset();
 }
 
 PacketWriter::~PacketWriter() {
-  if (committed_) return;
-  std::error_code ec;
-  fs::remove_all(temp_, ec);
+  if (!committed_ && !temp_.empty()) {
+    std::error_code ec;
+    fs::remove_all(temp_, ec);
+  }
+  finish();
 }
 
-std::string PacketWriter::path(const std::string& name) const { return (fs::path(temp_) / name).string(); }
+std::vector<std::string> PacketWriter::take_notices() {
+  return std::exchange(notices_, {});
+}
+
+std::string PacketWriter::path(const std::string& name) const {
+  return (fs::path(temp_) / name).string();
+}
 
 void PacketWriter::write(const std::string& name, const std::string& content) {
   std::ofstream out(path(name), std::ios::binary);
@@ -116,26 +321,40 @@ void PacketWriter::write(const std::string& name, const std::string& content) {
 void PacketWriter::commit(const ManifestInfo& info) {
   std::vector<std::string> names;
   for (const auto& entry : fs::directory_iterator(temp_))
-    if (entry.is_regular_file() && entry.path().filename() != kManifest) names.push_back(entry.path().filename().string());
+    if (entry.is_regular_file() && entry.path().filename() != kManifest)
+      names.push_back(entry.path().filename().string());
   std::sort(names.begin(), names.end());
   std::string m = std::string(kManifestHeader) + "\n";
   m += fmt::format("tool: swaybound {} (commit {})\n", tool_version(), git_commit());
   m += fmt::format("compiler: {}\n", compiler_id());
   m += fmt::format("date: {}\n", info.date_utc);
   m += fmt::format("spec: {}\n", info.spec_file);
+  m += fmt::format("spec_name: {}\n", manifest_name(info.spec_name));
   m += fmt::format("spec_sha256: {}\n", info.spec_sha256);
   for (const auto& s : info.settings) m += s + "\n";
   m += "files:\n";
   for (const auto& name : names) m += fmt::format("{}  {}\n", sha256_file(path(name)), name);
   write(kManifest, m);
-  // Swap in: the old packet moves aside, the new one takes its name, the old one is removed.
-  const fs::path target(dir_);
-  const fs::path old = fs::path(temp_).string() + ".old";
-  std::error_code ec;
-  if (fs::exists(target, ec)) fs::rename(target, old);
-  fs::rename(temp_, target);
+  kill_point("manifest-written");
+  packet_detail::sync_folder(temp_);
+  kill_point("synced");
+  // Files may have been put into the target while this run was going: never switch over them.
+  try {
+    check_overwrite();
+  } catch (const RunError& e) {
+    throw RunError(std::string(e.what()) +
+                   " (found when the run ended; the new packet was not put in place)");
+  }
+  const fs::path previous = packet_detail::switch_into_place(temp_, target_path_, old_);
   committed_ = true;
-  fs::remove_all(old, ec);
+  if (!previous.empty()) {
+    try {
+      packet_detail::remove_folder(previous);
+    } catch (const RunError& e) {
+      notices_.push_back(fmt::format("{}; the next run into {} removes it", e.what(), dir_));
+    }
+  }
+  finish();
 }
 
 }  // namespace swaybound

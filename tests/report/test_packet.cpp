@@ -21,10 +21,11 @@ namespace {
 
 fs::path temp(const std::string& name) { return fs::temp_directory_path() / ("swaybound-packet-" + name); }
 
-std::string spec_text(double damper, double duration = 8, int count = 6) {
+std::string spec_text(double damper, double duration = 8, int count = 6,
+                      const std::string& name = "packet test") {
   return fmt::format(R"(
 swaybound: 1
-name: packet test
+name: {}
 links:
   - {{name: rope, kind: rope, length: 3, mass: 10, pivot: {{damper: {{coefficient: {}}}}}}}
   - {{name: load, length: 1, mass: 400, com: 0.7, inertia: 20}}
@@ -34,7 +35,17 @@ limits:
   - {{peak_angle: 20 deg}}
   - {{residual_sway: 4 deg, after: 6 s}}
 )",
-                     damper, duration, count);
+                     name, damper, duration, count);
+}
+
+/// This process's temporaries and lock file beside `out` (.NAME.swaybound-...), by file name.
+std::vector<std::string> leftovers(const fs::path& out) {
+  std::vector<std::string> found;
+  const std::string prefix = fmt::format(".{}.swaybound-", out.filename().string());
+  for (const auto& entry : fs::directory_iterator(out.parent_path()))
+    if (entry.path().filename().string().rfind(prefix, 0) == 0)
+      found.push_back(entry.path().filename().string());
+  return found;
 }
 
 fs::path write_spec(const std::string& name, const std::string& text) {
@@ -64,24 +75,26 @@ TEST_CASE("the MANIFEST lists every file with a SHA-256 that verifies", "[packet
   CHECK(verify_manifest(out.string()) == std::vector<std::string>{"cases.csv"});
 }
 
-TEST_CASE("a packet from another spec is replaced only with --force", "[packet]") {
+TEST_CASE("a packet of another design is replaced only with --force", "[packet]") {
   const fs::path out = temp("force");
   fs::remove_all(out);
   REQUIRE(run_cli(fmt::format("check {} --out {}", write_spec("f1", spec_text(2000)).string(), out.string())) == 0);
   const std::string first = packet_spec_sha256(out.string());
-  const fs::path other = write_spec("f2", spec_text(1500));
+  const fs::path other = write_spec("f2", spec_text(1500, 8, 6, "another design"));
   CHECK(run_cli(fmt::format("check {} --out {}", other.string(), out.string())) == 2);
   CHECK(packet_spec_sha256(out.string()) == first);
   CHECK(verify_manifest(out.string()).empty());
   CHECK(run_cli(fmt::format("check {} --out {} --force", other.string(), out.string())) == 0);
   CHECK(packet_spec_sha256(out.string()) != first);
-  // A folder that is not a packet is not replaced without --force either.
+  // A folder that is not a packet is not replaced, with or without --force.
   const fs::path plain = temp("plain-folder");
   fs::remove_all(plain);
   fs::create_directories(plain);
   std::ofstream(plain / "notes.txt") << "keep me";
   CHECK(run_cli(fmt::format("check {} --out {}", other.string(), plain.string())) == 2);
+  CHECK(run_cli(fmt::format("check {} --out {} --force", other.string(), plain.string())) == 2);
   CHECK(fs::exists(plain / "notes.txt"));
+  CHECK(leftovers(plain).empty());
 }
 
 TEST_CASE("an output folder that cannot be created is reported before any work", "[packet]") {
@@ -129,9 +142,16 @@ void interrupt_and_compare(const std::string& command, int signal, bool sizing) 
     _exit(127);
   }
   // Wait until the run is under way (its half-written folder exists), then interrupt it.
-  const fs::path own = out.parent_path() / fmt::format(".{}.partial-{}", out.filename().string(), pid);
-  for (int k = 0; k < 400 && !fs::exists(own); ++k) std::this_thread::sleep_for(std::chrono::milliseconds(25));
-  REQUIRE(fs::exists(own));
+  const std::string own_prefix = fmt::format(".{}.swaybound-partial-{}-", out.filename().string(), pid);
+  const auto own_folder = [&]() {
+    for (const auto& name : leftovers(out))
+      if (name.rfind(own_prefix, 0) == 0) return out.parent_path() / name;
+    return fs::path();
+  };
+  for (int k = 0; k < 400 && own_folder().empty(); ++k)
+    std::this_thread::sleep_for(std::chrono::milliseconds(25));
+  const fs::path own = own_folder();
+  REQUIRE_FALSE(own.empty());
   std::this_thread::sleep_for(std::chrono::milliseconds(200));
   kill(pid, signal);
   int status = 0;
@@ -140,8 +160,9 @@ void interrupt_and_compare(const std::string& command, int signal, bool sizing) 
   CHECK(WEXITSTATUS(status) == 128 + signal);
   CHECK(packet_spec_sha256(out.string()) == before);
   CHECK(verify_manifest(out.string()).empty());
-  // The interrupted process's own half packet is gone (other processes' folders are not its own).
+  // The interrupted process's own half packet is gone, and its lock file with it.
   CHECK_FALSE(fs::exists(own));
+  CHECK(leftovers(out).empty());
   fs::remove_all(out);
 }
 
@@ -191,12 +212,12 @@ TEST_CASE("a full disk is reported as a write error and leaves no packet", "[pac
   const fs::path out = temp("full-disk");
   fs::remove_all(out);
   {
-    PacketWriter packet(out.string(), "0", false);
+    PacketWriter packet(out.string(), "full disk", "0", false);
     fs::create_symlink("/dev/full", packet.path("results.json"));
     CHECK_THROWS_AS(packet.write("results.json", std::string(1 << 16, 'x')), RunError);
   }
   CHECK_FALSE(fs::exists(out));
-  CHECK_FALSE(fs::exists(out.parent_path() / fmt::format(".{}.partial-{}", out.filename().string(), ::getpid())));
+  CHECK(leftovers(out).empty());
 }
 
 TEST_CASE("swaybound size writes its convergence plots into its output folder", "[packet][sizing]") {

@@ -93,7 +93,7 @@ TEST_CASE("the CLI exits 2 on every bad spec, writes nothing to stdout and no ou
   }
   // Nor a half-written folder beside it.
   for (const auto& entry : fs::directory_iterator(out.parent_path()))
-    CHECK(entry.path().filename().string().find(out.filename().string() + ".partial") == std::string::npos);
+    CHECK(entry.path().filename().string().find(out.filename().string() + ".swaybound-") == std::string::npos);
 }
 
 TEST_CASE("alias bombs in the corpus are rejected quickly", "[spec][bad]") {
