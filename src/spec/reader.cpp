@@ -245,6 +245,13 @@ std::optional<double> read_quantity(Context& ctx, const YAML::Node& node, const 
                                  : fmt::format("give {}: {}", describe_bounds(bounds, dim), bounds.why));
     return std::nullopt;
   }
+  if (v != 0 && !std::isnormal(v)) {  // subnormal: below 2.2e-308 in SI, no physical input
+    ctx.error(node, path,
+              fmt::format("'{}' is {:g} {} in SI, smaller than the smallest normal double (2.2e-308)", text, v,
+                          units::si_unit(dim)),
+              "give a value of a physical size (a bare number is in SI units)");
+    return std::nullopt;
+  }
   return v;
 }
 
