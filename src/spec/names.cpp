@@ -21,7 +21,11 @@ std::vector<char32_t> decode(std::string_view s) {
   std::vector<char32_t> out;
   for (std::size_t i = 0; i < s.size();) {
     const auto c = static_cast<unsigned char>(s[i]);
-    const std::size_t len = c < 0x80 ? 1 : (c >> 5) == 0x6 ? 2 : (c >> 4) == 0xE ? 3 : (c >> 3) == 0x1E ? 4 : 0;
+    const std::size_t len = c < 0x80           ? 1
+                            : (c >> 5) == 0x6  ? 2
+                            : (c >> 4) == 0xE  ? 3
+                            : (c >> 3) == 0x1E ? 4
+                                               : 0;
     if (len == 0 || i + len > s.size()) {
       out.push_back(0xFFFD);
       ++i;
@@ -57,7 +61,9 @@ std::string encode(const std::vector<char32_t>& cps) {
   return out;
 }
 
-bool is_control(char32_t c) { return c < 0x20 || (c >= 0x7F && c <= 0x9F); }
+bool is_control(char32_t c) {
+  return c < 0x20 || (c >= 0x7F && c <= 0x9F);
+}
 
 /// Characters that draw nothing (or only change the direction of what follows).
 bool is_invisible(char32_t c) {
@@ -68,30 +74,45 @@ bool is_invisible(char32_t c) {
 
 /// Spaces other than U+0020 that render as a gap.
 bool is_other_space(char32_t c) {
-  return c == 0x00A0 || c == 0x1680 || (c >= 0x2000 && c <= 0x200A) || c == 0x202F || c == 0x205F || c == 0x3000;
+  return c == 0x00A0 || c == 0x1680 || (c >= 0x2000 && c <= 0x200A) || c == 0x202F || c == 0x205F ||
+         c == 0x3000;
 }
 
 std::string_view invisible_name(char32_t c) {
   switch (c) {
-    case 0x00AD: return "soft hyphen";
-    case 0x200B: return "zero-width space";
-    case 0x200C: return "zero-width non-joiner";
-    case 0x200D: return "zero-width joiner";
-    case 0x200E: return "left-to-right mark";
-    case 0x200F: return "right-to-left mark";
-    case 0x2060: return "word joiner";
-    case 0xFEFF: return "byte-order mark / zero-width no-break space";
-    default: return "invisible formatting character";
+    case 0x00AD:
+      return "soft hyphen";
+    case 0x200B:
+      return "zero-width space";
+    case 0x200C:
+      return "zero-width non-joiner";
+    case 0x200D:
+      return "zero-width joiner";
+    case 0x200E:
+      return "left-to-right mark";
+    case 0x200F:
+      return "right-to-left mark";
+    case 0x2060:
+      return "word joiner";
+    case 0xFEFF:
+      return "byte-order mark / zero-width no-break space";
+    default:
+      return "invisible formatting character";
   }
 }
 
 std::string_view control_name(char32_t c) {
   switch (c) {
-    case 0x00: return "NUL";
-    case 0x09: return "tab";
-    case 0x0A: return "line feed";
-    case 0x0D: return "carriage return";
-    default: return "control character";
+    case 0x00:
+      return "NUL";
+    case 0x09:
+      return "tab";
+    case 0x0A:
+      return "line feed";
+    case 0x0D:
+      return "carriage return";
+    default:
+      return "control character";
   }
 }
 
@@ -108,7 +129,9 @@ void decompose(char32_t c, std::vector<char32_t>& out) {
   out.push_back(it->mark);
 }
 
-int combining_class(char32_t c) { return c >= 0x300 && c < 0x370 ? kCombiningClass[c - 0x300] : 0; }
+int combining_class(char32_t c) {
+  return c >= 0x300 && c < 0x370 ? kCombiningClass[c - 0x300] : 0;
+}
 
 }  // namespace
 
@@ -120,12 +143,14 @@ NameProblem name_problem(std::string_view name, std::string_view what) {
                           static_cast<std::uint32_t>(cps[i]), control_name(cps[i]), i + 1),
               "write the name as plain visible text on one line (no escapes such as \\0 or \\t)"};
     if (is_invisible(cps[i]))
-      return {fmt::format("the {} name holds an invisible character, U+{:04X} ({}), at character {}", what,
-                          static_cast<std::uint32_t>(cps[i]), invisible_name(cps[i]), i + 1),
-              "retype the name: a name with a character that cannot be seen cannot be told from one without it"};
+      return {
+          fmt::format("the {} name holds an invisible character, U+{:04X} ({}), at character {}", what,
+                      static_cast<std::uint32_t>(cps[i]), invisible_name(cps[i]), i + 1),
+          "retype the name: a name with a character that cannot be seen cannot be told from one without it"};
   }
   if (name_key(name).empty())
-    return {fmt::format("the {} name is empty", what), fmt::format("give the {} a name of visible characters", what)};
+    return {fmt::format("the {} name is empty", what),
+            fmt::format("give the {} a name of visible characters", what)};
   return {};
 }
 
@@ -144,7 +169,8 @@ std::string name_key(std::string_view name) {
     }
     std::size_t j = i;
     while (j < out.size() && combining_class(out[j]) != 0) ++j;
-    std::stable_sort(out.begin() + static_cast<std::ptrdiff_t>(i), out.begin() + static_cast<std::ptrdiff_t>(j),
+    std::stable_sort(out.begin() + static_cast<std::ptrdiff_t>(i),
+                     out.begin() + static_cast<std::ptrdiff_t>(j),
                      [](char32_t a, char32_t b) { return combining_class(a) < combining_class(b); });
     i = j;
   }

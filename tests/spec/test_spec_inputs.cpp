@@ -3,18 +3,18 @@
 // refused. The positions of these errors are in the bad-spec corpus (tests/bad_specs/085..105);
 // these tests cover what the corpus cannot: every angle-valued key, the fix lines, the round trip of
 // the normalised spec and the simulate command line.
+#include <unistd.h>
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
 #include <numbers>
 #include <regex>
-#include <unistd.h>
 
 #include <fmt/format.h>
 
-#include "swaybound/spec.hpp"
 #include "../support/process.hpp"
+#include "swaybound/spec.hpp"
 
 using namespace swaybound;
 namespace fs = std::filesystem;
@@ -75,7 +75,8 @@ sizing:
   variables:
     - {{path: "links[upper].pivot.damper.coefficient", range: [0, {damping}], cost: 1}}
 )",
-                     fmt::arg("angle", angle), fmt::arg("wide", wide), fmt::arg("rate", rate), fmt::arg("damping", damping));
+                     fmt::arg("angle", angle), fmt::arg("wide", wide), fmt::arg("rate", rate),
+                     fmt::arg("damping", damping));
 }
 }  // namespace
 
@@ -84,16 +85,31 @@ TEST_CASE("a bare number is refused at every key whose unit holds an angle", "[s
   REQUIRE(problems(every_angle_key("0.2 deg", "5 deg", "1 deg/s", "300 N m s/rad")).empty());
   const auto all = problems(every_angle_key("0.2", "5", "1", "300"));
   const char* paths[] = {
-      "links[0].pivot.friction.transition_rate", "links[0].pivot.damper.coefficient",
-      "links[0].pivot.damper.linear_below", "cases.settling_band",
-      "cases.initial[0].single.theta[0]", "cases.initial[0].single.theta[1]",
-      "cases.initial[0].single.rate[0]", "cases.initial[1].grid.theta[0][0]",
-      "cases.initial[1].grid.rate[0][1]", "cases.initial[2].random.theta[0][1]",
-      "cases.initial[2].random.rate[0][0]", "cases.initial[3].corners.theta[0][0]",
-      "cases.initial[3].corners.rate[0][1]", "cases.initial[4].ladder.from.theta[1]",
-      "cases.initial[4].ladder.absolute[0]", "limits[0].peak_angle", "limits[1].relative_angle",
-      "limits[2].peak_rate", "limits[3].residual_sway", "chaos.uncertainty", "chaos.tolerance",
-      "chaos.onset.max", "chaos.onset.resolution", "chaos.map.theta[0][0]", "chaos.map.theta[1][1]",
+      "links[0].pivot.friction.transition_rate",
+      "links[0].pivot.damper.coefficient",
+      "links[0].pivot.damper.linear_below",
+      "cases.settling_band",
+      "cases.initial[0].single.theta[0]",
+      "cases.initial[0].single.theta[1]",
+      "cases.initial[0].single.rate[0]",
+      "cases.initial[1].grid.theta[0][0]",
+      "cases.initial[1].grid.rate[0][1]",
+      "cases.initial[2].random.theta[0][1]",
+      "cases.initial[2].random.rate[0][0]",
+      "cases.initial[3].corners.theta[0][0]",
+      "cases.initial[3].corners.rate[0][1]",
+      "cases.initial[4].ladder.from.theta[1]",
+      "cases.initial[4].ladder.absolute[0]",
+      "limits[0].peak_angle",
+      "limits[1].relative_angle",
+      "limits[2].peak_rate",
+      "limits[3].residual_sway",
+      "chaos.uncertainty",
+      "chaos.tolerance",
+      "chaos.onset.max",
+      "chaos.onset.resolution",
+      "chaos.map.theta[0][0]",
+      "chaos.map.theta[1][1]",
       "sizing.variables[0].range[1]",
   };
   for (const char* path : paths) {
@@ -114,7 +130,8 @@ TEST_CASE("the fix line for a bare angle offers both readings", "[spec][units]")
   REQUIRE(all.size() == 3);
   CHECK(find_path(all, "limits[0].peak_angle")->fix == "write `12 deg` or `12 rad` (= 687.5 deg)");
   CHECK(find_path(all, "cases.initial[0].single.theta[0]")->fix == "write `30 deg` or `30 rad` (= 1719 deg)");
-  CHECK(find_path(all, "cases.initial[0].single.rate[0]")->fix == "write `5 deg/s` or `5 rad/s` (= 286.5 deg/s)");
+  CHECK(find_path(all, "cases.initial[0].single.rate[0]")->fix ==
+        "write `5 deg/s` or `5 rad/s` (= 286.5 deg/s)");
 }
 
 TEST_CASE("zero, and quantities without an angle, stay bare", "[spec][units]") {
@@ -133,7 +150,7 @@ cases:
 limits: [{ftle_max: 0.05, horizon: 4}]
 chaos: {threshold: 0.01}
 )",
-                                     "bare.yaml");
+                                   "bare.yaml");
   CHECK(spec.cases.initial[0].theta[0].lo == 0);
   CHECK(spec.cases.initial[1].theta[0].hi == Approx(0.1));
   CHECK(spec.links[0].pivot.damper->coefficient == 0);
@@ -146,14 +163,17 @@ chaos: {threshold: 0.01}
 
 TEST_CASE("the normalised spec writes every angle with its unit and loads back to the same values",
           "[spec][units]") {
-  const Spec spec = load_spec_text(every_angle_key("3 deg", "10 deg", "2 deg/s", "0.4 kN m s/rad"), "angles.yaml");
+  const Spec spec =
+      load_spec_text(every_angle_key("3 deg", "10 deg", "2 deg/s", "0.4 kN m s/rad"), "angles.yaml");
   const std::string once = normalised_yaml(spec);
   INFO(once);
   CHECK(once.find("0.0523598775598 rad") != std::string::npos);  // 3 deg = 3 pi / 180 rad
   CHECK(once.find("400 N m s/rad") != std::string::npos);
   const Spec again = load_spec_text(once, "normalised.yaml");
   // The same text but for the comments, which mark the defaults of the first load.
-  const auto strip_comments = [](const std::string& yaml) { return std::regex_replace(yaml, std::regex(" *#[^\n]*"), ""); };
+  const auto strip_comments = [](const std::string& yaml) {
+    return std::regex_replace(yaml, std::regex(" *#[^\n]*"), "");
+  };
   CHECK(strip_comments(normalised_yaml(again)) == strip_comments(once));
   CHECK(again.limits[0].value == Approx(3 * kDeg).epsilon(1e-12));
   CHECK(again.limits[2].value == Approx(2 * kDeg).epsilon(1e-12));
@@ -165,14 +185,15 @@ TEST_CASE("the normalised spec writes every angle with its unit and loads back t
 }
 
 TEST_CASE("simulate --theta and --rate refuse a bare angle with both readings", "[spec][units][cli]") {
-  const fs::path spec = fs::temp_directory_path() / fmt::format("swaybound_simulate_units_{}.yaml", ::getpid());
+  const fs::path spec =
+      fs::temp_directory_path() / fmt::format("swaybound_simulate_units_{}.yaml", ::getpid());
   {
     std::ofstream(spec) << "swaybound: 1\nname: arm\nlinks: [{name: arm, length: 2 m, mass: 10 kg}]\n"
                            "cases: {duration: 1 s, initial: [{single: {theta: [1 deg]}}]}\n";
   }
   const auto run = [&](const std::string& options) {
-    return swaybound::testing::run_command(
-        fmt::format("{} simulate '{}' --duration 0.05 {} 2>&1 >/dev/null", SWAYBOUND_CLI, spec.string(), options));
+    return swaybound::testing::run_command(fmt::format("{} simulate '{}' --duration 0.05 {} 2>&1 >/dev/null",
+                                                       SWAYBOUND_CLI, spec.string(), options));
   };
   const auto bare = run("--theta 10");  // was a start at 573 deg
   CHECK(bare.status == 2);
@@ -187,9 +208,10 @@ TEST_CASE("simulate --theta and --rate refuse a bare angle with both readings", 
 
 TEST_CASE("gravity, link length and mass outside their ranges: the fix states the range", "[spec]") {
   const auto with = [](const std::string& gravity, const std::string& length, const std::string& mass) {
-    return problems(fmt::format("swaybound: 1\nname: n\ngravity: {}\nlinks: [{{name: arm, length: {}, mass: {}}}]\n"
-                                "cases: {{duration: 5 s, initial: [{{single: {{theta: [1 deg]}}}}]}}\n",
-                                gravity, length, mass));
+    return problems(
+        fmt::format("swaybound: 1\nname: n\ngravity: {}\nlinks: [{{name: arm, length: {}, mass: {}}}]\n"
+                    "cases: {{duration: 5 s, initial: [{{single: {{theta: [1 deg]}}}}]}}\n",
+                    gravity, length, mass));
   };
   REQUIRE(with("1.62 m/s^2", "10 km", "100000 t").empty());  // the ends of the ranges load
   const auto all = with("1e-320", "1e154 m", "1e9 kg");
@@ -199,11 +221,13 @@ TEST_CASE("gravity, link length and mass outside their ranges: the fix states th
   CHECK(find_path(all, "links[0].mass")->fix.find("1e+08 kg]") != std::string::npos);
 }
 
-TEST_CASE("a link whose own pendulum period is outside 1 ms .. 1 day is refused at the key to check", "[spec]") {
+TEST_CASE("a link whose own pendulum period is outside 1 ms .. 1 day is refused at the key to check",
+          "[spec]") {
   const auto link = [](const std::string& extra) {
-    return problems(fmt::format("swaybound: 1\nname: n\nlinks: [{{name: arm, length: 2 m, mass: 10 kg{}}}]\n"
-                                "cases: {{duration: 5 s, initial: [{{single: {{theta: [1 deg]}}}}]}}\n",
-                                extra));
+    return problems(
+        fmt::format("swaybound: 1\nname: n\nlinks: [{{name: arm, length: 2 m, mass: 10 kg{}}}]\n"
+                    "cases: {{duration: 5 s, initial: [{{single: {{theta: [1 deg]}}}}]}}\n",
+                    extra));
   };
   // A uniform 2 m rod: J = m L^2 / 3 about the pivot, h = m L / 2, period 2 pi sqrt(2 L / (3 g)) = 2.3 s.
   CHECK(link("").empty());
@@ -222,13 +246,15 @@ TEST_CASE("a link whose own pendulum period is outside 1 ms .. 1 day is refused 
 
 TEST_CASE("names that read alike are one name; what the comparison does not catch", "[spec]") {
   const auto two_links = [](const std::string& a, const std::string& b) {
-    return problems(fmt::format("swaybound: 1\nname: n\nlinks:\n  - {{name: \"{}\", length: 2 m, mass: 10 kg}}\n"
-                                "  - {{name: \"{}\", length: 1 m, mass: 5 kg}}\n"
-                                "cases: {{duration: 5 s, initial: [{{single: {{theta: [1 deg]}}}}]}}\n",
-                                a, b));
+    return problems(
+        fmt::format("swaybound: 1\nname: n\nlinks:\n  - {{name: \"{}\", length: 2 m, mass: 10 kg}}\n"
+                    "  - {{name: \"{}\", length: 1 m, mass: 5 kg}}\n"
+                    "cases: {{duration: 5 s, initial: [{{single: {{theta: [1 deg]}}}}]}}\n",
+                    a, b));
   };
   // e with dot below and circumflex: precomposed U+1EC7, and e + the two marks in either order.
-  const std::string precomposed = "\xE1\xBB\x87", below_first = "e\xCC\xA3\xCC\x82", above_first = "e\xCC\x82\xCC\xA3";
+  const std::string precomposed = "\xE1\xBB\x87", below_first = "e\xCC\xA3\xCC\x82",
+                    above_first = "e\xCC\x82\xCC\xA3";
   for (const auto& other : {below_first, above_first}) {
     const auto all = two_links("b" + precomposed + "n", "b" + other + "n");
     REQUIRE(all.size() == 1);
@@ -236,7 +262,10 @@ TEST_CASE("names that read alike are one name; what the comparison does not catc
     CHECK(all[0].fix.find("how an accented letter is encoded") != std::string::npos);
   }
   // No-break space inside a name folds to a space.
-  CHECK(two_links("hook block", "hook\xC2\xA0" "block").size() == 1);
+  CHECK(two_links("hook block",
+                  "hook\xC2\xA0"
+                  "block")
+            .size() == 1);
   // Not caught (documented): a Cyrillic a (U+0430) against a Latin a, and case.
   CHECK(two_links("arm", "\xD0\xB0rm").empty());
   CHECK(two_links("arm", "Arm").empty());
@@ -280,11 +309,12 @@ TEST_CASE("a YAML tag is refused, not dropped; quoted values are not tags", "[sp
 
 TEST_CASE("a dashpot whose ends meet at rest is refused", "[spec][bad]") {
   const auto dashpot = [](const std::string& from, const std::string& to) {
-    return problems(fmt::format("swaybound: 1\nname: n\nlinks:\n  - {{name: upper, length: 2 m, mass: 10 kg}}\n"
-                                "  - {{name: lower, length: 1 m, mass: 5 kg}}\n"
-                                "dashpots: [{{from: {}, to: {}, coefficient: 1 kN s/m}}]\n"
-                                "cases: {{duration: 5 s, initial: [{{single: {{theta: [1 deg]}}}}]}}\n",
-                                from, to));
+    return problems(
+        fmt::format("swaybound: 1\nname: n\nlinks:\n  - {{name: upper, length: 2 m, mass: 10 kg}}\n"
+                    "  - {{name: lower, length: 1 m, mass: 5 kg}}\n"
+                    "dashpots: [{{from: {}, to: {}, coefficient: 1 kN s/m}}]\n"
+                    "cases: {{duration: 5 s, initial: [{{single: {{theta: [1 deg]}}}}]}}\n",
+                    from, to));
   };
   // The same point of one link; the lower end of one link and the top of the next (the pivot).
   CHECK(find_path(dashpot("{link: upper, at: 1 m}", "{link: upper, at: 1 m}"), "dashpots[0].to") != nullptr);
