@@ -21,7 +21,8 @@ namespace swaybound::cli {
 
 namespace {
 
-/// Parses "10 deg, -5 deg" into SI values of dimension `dim` (bare numbers are SI).
+/// Parses "10 deg, -5 deg" into SI values of dimension `dim`. Bare numbers are SI, except where the
+/// unit holds an angle: there a bare number other than 0 is refused, as in a spec.
 std::vector<double> parse_list(const std::string& option, const std::string& text, const units::Dim& dim) {
   std::vector<double> out;
   std::stringstream in(text);
@@ -33,6 +34,9 @@ std::vector<double> parse_list(const std::string& option, const std::string& tex
     if (q->has_unit && !(q->dim == dim))
       throw ArgumentError(fmt::format("{}: '{}' is {}, expected {}", option, item, units::a_dim_name(q->dim),
                                       units::a_dim_name(dim)));
+    if (!q->has_unit && q->value != 0 && units::angle_unit_required(dim))
+      throw ArgumentError(fmt::format("{}: '{}' has no unit, and {} must say whether it is in deg or rad; {}", option,
+                                      item, units::a_dim_name(dim), units::bare_angle_fix(q->value, dim)));
     out.push_back(q->value);
   }
   return out;

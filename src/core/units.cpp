@@ -220,6 +220,19 @@ std::string si_unit(const Dim& d) {
   return out;
 }
 
+bool angle_unit_required(const Dim& d) { return d.angle != 0; }
+
+std::string bare_angle_fix(double number, const Dim& d) {
+  // The same unit with every rad written as deg: "rad/s" -> "deg/s", "N m s/rad" -> "N m s/deg".
+  const std::string in_rad = si_unit(d);
+  std::string in_deg = in_rad;
+  for (std::size_t at = in_deg.find("rad"); at != std::string::npos; at = in_deg.find("rad", at + 3))
+    in_deg.replace(at, 3, "deg");
+  // x rad^a = x (180/pi)^a deg^a
+  const double as_deg = number * std::pow(180.0 / std::numbers::pi, d.angle);
+  return fmt::format("write `{0:g} {1}` or `{0:g} {2}` (= {3:.4g} {1})", number, in_deg, in_rad, as_deg);
+}
+
 std::string format_si(double value, const Dim& d) {
   const std::string u = si_unit(d);
   return u.empty() ? fmt::format("{:.12g}", value) : fmt::format("{:.12g} {}", value, u);

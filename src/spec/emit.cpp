@@ -13,6 +13,12 @@ namespace swaybound {
 namespace {
 namespace u = units;
 
+/// An SI value at 12 significant digits; with its unit where the unit holds an angle, since the
+/// loader reads no bare angle (e.g. "0.20943951024 rad", "4000 N m s/rad").
+std::string number(double v, const u::Dim& dim) {
+  return u::angle_unit_required(dim) ? fmt::format("{:.12g} {}", v, u::si_unit(dim)) : fmt::format("{:.12g}", v);
+}
+
 class Writer {
  public:
   explicit Writer(const Spec& spec) : spec_(spec) {}
@@ -31,8 +37,8 @@ class Writer {
     if (std::isinf(v))
       out << ".inf";
     else
-      out << fmt::format("{:.12g}", v);
-    std::string note = u::si_unit(dim);
+      out << number(v, dim);
+    std::string note = u::angle_unit_required(dim) ? std::string() : u::si_unit(dim);
     if (is_default(key)) note += note.empty() ? "default" : ", default";
     if (!note.empty()) out << YAML::Comment(note);
   }
@@ -73,15 +79,15 @@ const char* kind_name(InitialKind k) {
 }
 
 void emit_ranges(YAML::Emitter& out, const char* key, const std::vector<Range>& ranges, bool with_count,
-                 const char* unit) {
+                 const u::Dim& dim) {
   if (ranges.empty()) return;
   out << YAML::Key << key << YAML::Value << YAML::Flow << YAML::BeginSeq;
   for (const auto& r : ranges) {
-    out << YAML::Flow << YAML::BeginSeq << fmt::format("{:.12g}", r.lo) << fmt::format("{:.12g}", r.hi);
+    out << YAML::Flow << YAML::BeginSeq << number(r.lo, dim) << number(r.hi, dim);
     if (with_count) out << r.count;
     out << YAML::EndSeq;
   }
-  out << YAML::EndSeq << YAML::Comment(unit);
+  out << YAML::EndSeq;
 }
 }  // namespace
 
@@ -209,21 +215,20 @@ std::string normalised_yaml(const Spec& spec) {
           << YAML::Key << "method" << YAML::Value
           << (set.method == SamplingMethod::uniform ? "uniform" : "latin_hypercube");
     if (ranged) {
-      emit_ranges(out, "theta", set.theta, set.kind == InitialKind::grid, "rad");
-      emit_ranges(out, "rate", set.rate, set.kind == InitialKind::grid, "rad/s");
+      emit_ranges(out, "theta", set.theta, set.kind == InitialKind::grid, u::angle);
+      emit_ranges(out, "rate", set.rate, set.kind == InitialKind::grid, u::angular_rate);
     } else {
-      for (auto [key, list, unit] : {std::tuple{"theta", &set.theta, "rad"}, {"rate", &set.rate, "rad/s"}}) {
+      for (auto [key, list, dim] : {std::tuple{"theta", &set.theta, u::angle}, {"rate", &set.rate, u::angular_rate}}) {
         if (list->empty()) continue;
         out << YAML::Key << key << YAML::Value << YAML::Flow << YAML::BeginSeq;
-        for (const auto& r : *list) out << fmt::format("{:.12g}", r.lo);
-        out << YAML::EndSeq << YAML::Comment(unit);
+        for (const auto& r : *list) out << number(r.lo, dim);
+        out << YAML::EndSeq;
       }
     }
     if (set.kind == InitialKind::ladder) {
       out << YAML::EndMap << YAML::Key << (set.relative ? "relative" : "absolute") << YAML::Value << YAML::Flow << YAML::BeginSeq;
-      for (double s : set.steps) out << fmt::format("{:.6g}", s);
+      for (double s : set.steps) out << (set.relative ? fmt::format("{:.6g}", s) : fmt::format("{:.6g} rad", s));
       out << YAML::EndSeq;
-      if (!set.relative) out << YAML::Comment("rad");
       out << YAML::Key << "link" << YAML::Value << spec.links[static_cast<std::size_t>(set.perturb_link)].name;
     }
     out << YAML::EndMap << YAML::EndMap << YAML::Comment(fmt::format("{} starts", initial_set_size(set)));
@@ -237,14 +242,15 @@ std::string normalised_yaml(const Spec& spec) {
     for (const auto& l : spec.limits) {
       static const u::Dim dims[] = {u::angle, u::angle, u::angular_rate, u::force, u::dimensionless,
                                     u::force, u::angle, u::rate, u::dimensionless, u::dimensionless};
-      out << YAML::Flow << YAML::BeginMap << YAML::Key << l.key << YAML::Value << fmt::format("{:.12g}", l.value);
+      const u::Dim& dim = dims[static_cast<int>(l.kind)];
+      out << YAML::Flow << YAML::BeginMap << YAML::Key << l.key << YAML::Value << number(l.value, dim);
       if (l.link >= 0) out << YAML::Key << "link" << YAML::Value << spec.links[static_cast<std::size_t>(l.link)].name;
       if (l.kind == LimitKind::residual_sway) out << YAML::Key << "after" << YAML::Value << fmt::format("{:.12g}", l.after);
       if (l.kind == LimitKind::ftle_max) out << YAML::Key << "horizon" << YAML::Value << fmt::format("{:.12g}", l.horizon);
       if (l.end != RopeEnd::either)
         out << YAML::Key << "end" << YAML::Value << (l.end == RopeEnd::top ? "top" : "bottom");
       out << YAML::EndMap;
-      if (const auto unit = u::si_unit(dims[static_cast<int>(l.kind)]); !unit.empty()) out << YAML::Comment(unit);
+      if (const auto unit = u::si_unit(dim); !unit.empty() && !u::angle_unit_required(dim)) out << YAML::Comment(unit);
     }
     out << YAML::EndSeq;
   }
@@ -272,12 +278,11 @@ std::string normalised_yaml(const Spec& spec) {
     out << YAML::Key << "onset" << YAML::Value << YAML::BeginMap << YAML::Key << "direction" << YAML::Value
         << YAML::Flow << YAML::BeginSeq;
     for (double d : c.onset_direction) out << fmt::format("{:.12g}", d);
-    out << YAML::EndSeq << YAML::Key << "max" << YAML::Value << fmt::format("{:.12g}", c.onset_max)
-        << YAML::Key << "resolution" << YAML::Value << fmt::format("{:.12g}", c.onset_resolution) << YAML::EndMap
-        << YAML::Comment("rad");
+    out << YAML::EndSeq << YAML::Key << "max" << YAML::Value << number(c.onset_max, u::angle)
+        << YAML::Key << "resolution" << YAML::Value << number(c.onset_resolution, u::angle) << YAML::EndMap;
     if (c.map) {
       out << YAML::Key << "map" << YAML::Value << YAML::BeginMap;
-      emit_ranges(out, "theta", {c.map_x, c.map_y}, true, "rad");
+      emit_ranges(out, "theta", {c.map_x, c.map_y}, true, u::angle);
       out << YAML::EndMap;
     }
     w.end();
@@ -289,16 +294,17 @@ std::string normalised_yaml(const Spec& spec) {
     for (const auto& v : s.variables) {
       std::string why;
       const auto target = parse_spec_path(spec, v.path, why);
+      const u::Dim dim = target ? spec_path_dim(*target) : u::dimensionless;
       out << YAML::BeginMap << YAML::Key << "path" << YAML::Value << v.path;
       if (v.catalogue.empty()) {
-        out << YAML::Key << "range" << YAML::Value << YAML::Flow << YAML::BeginSeq << fmt::format("{:.12g}", v.lo)
-            << fmt::format("{:.12g}", v.hi) << YAML::EndSeq;
+        out << YAML::Key << "range" << YAML::Value << YAML::Flow << YAML::BeginSeq << number(v.lo, dim)
+            << number(v.hi, dim) << YAML::EndSeq;
       } else {
         out << YAML::Key << "catalogue" << YAML::Value << YAML::Flow << YAML::BeginSeq;
-        for (double c : v.catalogue) out << fmt::format("{:.12g}", c);
+        for (double c : v.catalogue) out << number(c, dim);
         out << YAML::EndSeq;
       }
-      if (target) out << YAML::Comment(u::si_unit(spec_path_dim(*target)));
+      if (target && !u::angle_unit_required(dim)) out << YAML::Comment(u::si_unit(dim));
       out << YAML::Key << "cost" << YAML::Value << fmt::format("{:.12g}", v.cost) << YAML::EndMap;
     }
     out << YAML::EndSeq;

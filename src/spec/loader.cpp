@@ -3,6 +3,7 @@
 #include "swaybound/spec/loader.hpp"
 
 #include <cmath>
+#include <numbers>
 #include <fstream>
 #include <sstream>
 #include <sys/stat.h>
@@ -13,6 +14,7 @@
 #include <yaml-cpp/parser.h>
 
 #include "loader_parts.hpp"
+#include "names.hpp"
 
 namespace swaybound {
 
@@ -22,6 +24,11 @@ namespace u = units;
 int Spec::link_index(const std::string& link_name) const {
   for (std::size_t i = 0; i < links.size(); ++i)
     if (links[i].name == link_name) return static_cast<int>(i);
+  // Names that differ only in what cannot be seen (spec_detail::name_key) are one name; the loader
+  // refuses two such link names, so this match is unique.
+  const std::string key = spec_detail::name_key(link_name);
+  for (std::size_t i = 0; i < links.size(); ++i)
+    if (spec_detail::name_key(links[i].name) == key) return static_cast<int>(i);
   return -1;
 }
 
@@ -46,6 +53,34 @@ int read_link_ref(Context& ctx, const YAML::Node& node, const std::string& path,
 }  // namespace spec_detail
 
 namespace {
+
+/// Reports `name` (of a `what` at `path`) when it is unusable (names.hpp) or names the same thing as
+/// one of `earlier`, the names before it in the list `list`; returns false after reporting.
+bool check_name(Context& ctx, const YAML::Node& node, const std::string& path, std::string_view what,
+                const std::string& name, const std::vector<std::string>& earlier, std::string_view list,
+                std::string_view unique_fix) {
+  const NameProblem problem = name_problem(name, what);
+  if (!problem.message.empty()) {
+    ctx.error(node, path, problem.message, problem.fix);
+    return false;
+  }
+  const std::string key = name_key(name);
+  for (std::size_t i = 0; i < earlier.size(); ++i) {
+    if (name_key(earlier[i]) != key) continue;
+    if (earlier[i] == name)
+      ctx.error(node, path, fmt::format("{} name '{}' is already used by {}[{}]", what, name, list, i),
+                std::string(unique_fix));
+    else
+      ctx.error(node, path,
+                fmt::format("{} name '{}' is the same name as {}[{}] '{}'", what, name, list, i, earlier[i]),
+                fmt::format("the two differ only in spaces at their ends, invisible characters or how an accented "
+                            "letter is encoded (one character or letter + combining accent), so they read alike: "
+                            "{}",
+                            unique_fix));
+    return false;
+  }
+  return true;
+}
 
 void read_friction(const MapView& pivot, LinkSpec& link) {
   if (!pivot.has("friction")) return;
@@ -88,13 +123,10 @@ void read_link(Context& ctx, const YAML::Node& node, const std::string& path, Sp
   if (m.require("name", "a unique name for the link")) {
     if (auto s = read_string(ctx, m.get("name"), m.path("name"))) {
       link.name = *s;
-      if (link.name.empty())
-        ctx.error(m.get("name"), m.path("name"), "link name is empty", "give the link a name");
-      else if (spec.link_index(link.name) >= 0)
-        ctx.error(m.get("name"), m.path("name"),
-                  fmt::format("link name '{}' is already used by links[{}]", link.name,
-                              spec.link_index(link.name)),
-                  "give every link a unique name");
+      std::vector<std::string> earlier;
+      for (const auto& other : spec.links) earlier.push_back(other.name);
+      check_name(ctx, m.get("name"), m.path("name"), "link", link.name, earlier, "links",
+                 "give every link a unique name");
     }
   }
   if (m.has("kind")) {
@@ -105,13 +137,15 @@ void read_link(Context& ctx, const YAML::Node& node, const std::string& path, Sp
   }
   bool have_length = false, have_mass = false;
   if (m.require("length", "the pivot-to-pivot length, e.g. '6 m'")) {
-    if (auto v = read_quantity(ctx, m.get("length"), m.path("length"), u::length, Bounds::positive())) {
+    if (auto v = read_quantity(ctx, m.get("length"), m.path("length"), u::length,
+                               Bounds{0, kMaxLinkLength, true, false, "the tool takes links up to 10 km long"})) {
       link.length = *v;
       have_length = true;
     }
   }
   if (m.require("mass", "the link's mass, e.g. '35 kg'")) {
-    if (auto v = read_quantity(ctx, m.get("mass"), m.path("mass"), u::mass, Bounds::positive())) {
+    if (auto v = read_quantity(ctx, m.get("mass"), m.path("mass"), u::mass,
+                               Bounds{0, kMaxLinkMass, true, false, "the tool takes links up to 100 000 t"})) {
       link.mass = *v;
       have_mass = true;
     }
@@ -183,6 +217,14 @@ void read_attachment(Context& ctx, const YAML::Node& node, const std::string& pa
   }
 }
 
+/// Position of an attachment with the chain hanging at rest from the top pivot at (0, 0), y up.
+std::pair<double, double> rest_position(const AttachmentSpec& a, const Spec& spec) {
+  if (a.link < 0) return {a.base_x, a.base_y};
+  double depth = a.at;
+  for (int i = 0; i < a.link; ++i) depth += spec.links[static_cast<std::size_t>(i)].length;
+  return {0.0, -depth};
+}
+
 void read_dashpots(Context& ctx, const YAML::Node& node, Spec& spec) {
   if (!expect_sequence(ctx, node, "dashpots", "dashpots")) return;
   for (std::size_t i = 0; i < node.size(); ++i) {
@@ -191,14 +233,15 @@ void read_dashpots(Context& ctx, const YAML::Node& node, Spec& spec) {
     if (!m.ok()) continue;
     DashpotSpec d;
     d.mark = m.mark();
+    const std::size_t diagnostics_before = ctx.diagnostics.size();
     d.name = fmt::format("dashpot {}", i + 1);
     if (m.has("name"))
       if (auto s = read_string(ctx, m.get("name"), m.path("name"))) {
         d.name = *s;
-        for (const auto& other : spec.dashpots)
-          if (other.name == d.name)
-            ctx.error(m.get("name"), m.path("name"), fmt::format("dashpot name '{}' is used twice", d.name),
-                      "give every dashpot a unique name (sizing paths address dashpots by name)");
+        std::vector<std::string> earlier;
+        for (const auto& other : spec.dashpots) earlier.push_back(other.name);
+        check_name(ctx, m.get("name"), m.path("name"), "dashpot", d.name, earlier, "dashpots",
+                   "give every dashpot a unique name (sizing paths address dashpots by name)");
       }
     if (m.require("from", "an attachment {link: NAME, at: DISTANCE}"))
       read_attachment(ctx, m.get("from"), m.path("from"), spec, d.from);
@@ -208,9 +251,22 @@ void read_dashpots(Context& ctx, const YAML::Node& node, Spec& spec) {
       if (auto v = read_quantity(ctx, m.get("coefficient"), m.path("coefficient"), u::linear_damping,
                                  Bounds::non_negative()))
         d.coefficient = *v;
-    if (m.has("from") && m.has("to") && d.from.link < 0 && d.to.link < 0)
+    if (m.has("from") && m.has("to") && d.from.link < 0 && d.to.link < 0) {
       ctx.error(m.mark(), path, "both ends are on the base, so the dashpot does nothing",
                 "attach at least one end to a link");
+    } else if (m.has("from") && m.has("to") && diagnostics_before == ctx.diagnostics.size()) {
+      // Its force acts along the line between the ends: at zero length that line has no direction.
+      const auto [ax, ay] = rest_position(d.from, spec);
+      const auto [bx, by] = rest_position(d.to, spec);
+      const double length = std::hypot(ax - bx, ay - by);
+      if (!(length >= kMinDashpotLength))
+        ctx.error(m.key_mark("to"), m.path("to"),
+                  fmt::format("the dashpot has zero length: with the chain hanging at rest both ends are at "
+                              "x = {:.4g} m, y = {:.4g} m{}",
+                              ax, ay, length > 0 ? fmt::format(" (within {:.2g} m)", length) : std::string()),
+                  "move one end: a dashpot acts along the line between its ends, so they must be at least 1 mm "
+                  "apart at rest");
+    }
     spec.dashpots.push_back(d);
   }
 }
@@ -296,10 +352,10 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
     if (s.require("name", "a name for the scenario, used in case ids"))
       if (auto n = read_string(ctx, s.get("name"), s.path("name"))) {
         sc.name = *n;
-        for (const auto& other : spec.scenarios)
-          if (other.name == sc.name)
-            ctx.error(s.get("name"), s.path("name"), fmt::format("scenario name '{}' is used twice", sc.name),
-                      "give every scenario a unique name");
+        std::vector<std::string> earlier;
+        for (const auto& other : spec.scenarios) earlier.push_back(other.name);
+        check_name(ctx, s.get("name"), s.path("name"), "scenario", sc.name, earlier, "base.scenarios",
+                   "give every scenario a unique name");
       }
     if (s.has("initial_velocity"))
       read_xy(ctx, s.get("initial_velocity"), s.path("initial_velocity"), u::speed, sc.initial_vx, sc.initial_vy);
@@ -322,16 +378,45 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
   }
 }
 
+/// Checks what the chain's inputs imply, link by link from the bottom, with the links below each
+/// pivot lumped at the link's lower end: the inertia about the pivot J = m c^2 + I + L^2 M_below
+/// (> 0, or the mass matrix is singular) and the period of the link swinging on its own,
+/// 2 pi sqrt(J / (g h)) with h = m c + L M_below, within [1 ms, 1 day] when h > 0; a huge or
+/// infinite J (an inertia of 1e300 kg m^2) fails the period. The ranges of gravity, length, mass
+/// and the link count keep the rest finite: m c^2 + L^2 M_below <= 1e8 x 1e8 x 101 kg m^2 and the
+/// static load at a pivot, g (m + M_below), <= 100 x 1e8 x 100 N.
 void check_chain(Context& ctx, const YAML::Node& links_node, const Spec& spec) {
-  // Each link needs rotational inertia about its pivot, or the mass matrix is singular.
   double mass_below = 0;
   for (std::size_t k = spec.links.size(); k-- > 0;) {
     const LinkSpec& l = spec.links[k];
-    const double mu = l.mass * l.com * l.com + l.inertia + l.length * l.length * mass_below;
-    if (l.mass > 0 && l.length > 0 && !(mu > 0))
-      ctx.error(links_node[k], fmt::format("links[{}]", k),
+    const double own = l.mass * l.com * l.com + l.length * l.length * mass_below;  // J without I
+    const double inertia = own + l.inertia;
+    const double moment = l.mass * l.com + l.length * mass_below;
+    const std::string path = fmt::format("links[{}]", k);
+    if (l.mass > 0 && l.length > 0 && !(inertia > 0)) {
+      ctx.error(links_node[k], path,
                 "the link has no rotational inertia about its pivot (com = 0, inertia = 0, nothing below)",
                 "give a centre of mass below the pivot (com > 0) or an inertia > 0");
+    } else if (moment > 0) {
+      const double period = 2 * std::numbers::pi * std::sqrt(inertia / (spec.gravity * moment));
+      if (!(period >= kMinPendulumPeriod && period <= kMaxPendulumPeriod)) {
+        // The key to look at: a given inertia that makes most of J, else a given com, else the length.
+        const bool blame_inertia = l.inertia_given && l.inertia > own;
+        const char* key = blame_inertia ? "inertia" : l.com_given ? "com" : "length";
+        const std::string fix =
+            blame_inertia ? fmt::format("check the inertia: it is about the link's centre of mass, in kg m^2 "
+                                        "(a uniform rod of this mass and length has {})",
+                                        u::format_si(l.mass * l.length * l.length / 12, u::moment_of_inertia))
+            : l.com_given ? "check com: the distance of the centre of mass below the pivot, along the link"
+                          : "check the link's length and mass";
+        ctx.error(links_node[k][key], path + "." + key,
+                  fmt::format("link '{}' would swing on its own with a period of {:.3g} s (2 pi sqrt(J / (g h)), "
+                              "J = {:.4g} kg m^2 about its pivot, h = {:.4g} kg m), outside the 1 ms to 1 day a "
+                              "sway check can follow",
+                              l.name, period, inertia, moment),
+                  fix);
+      }
+    }
     mass_below += l.mass;
   }
 }
@@ -376,6 +461,23 @@ Mark first_invalid_utf8(std::string_view s) {
     i += len;
   }
   return {};
+}
+
+/// The last line at or before `line` (1-based) whose indentation holds a tab, and the tab's column;
+/// line 0 when there is none. Blank lines and comment lines are skipped: a tab there harms nothing.
+Mark tab_in_indentation(std::string_view text, int line) {
+  Mark found;
+  int current = 1;
+  for (std::size_t start = 0; start <= text.size() && current <= line; ++current) {
+    const std::size_t end = std::min(text.find('\n', start), text.size());
+    const std::string_view row = text.substr(start, end - start);
+    const std::size_t first = row.find_first_not_of(" \t");
+    const std::size_t tab = row.find('\t');
+    if (first != std::string_view::npos && row[first] != '#' && row[first] != '\r' && tab < first)
+      found = {current, static_cast<int>(tab) + 1};
+    start = end + 1;
+  }
+  return found;
 }
 
 /// yaml-cpp 0.7's LoadAll never returns on a token that its document parser does not consume, such
@@ -443,6 +545,12 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
                                   "a design spec nests a few levels; look for unclosed '[' or '{'"}});
   } catch (const YAML::Exception& e) {
     const Mark at = e.mark.is_null() ? Mark{} : Mark{e.mark.line + 1, e.mark.column + 1};
+    // YAML indents with spaces only; yaml-cpp's words for a tab there vary ("illegal block entry",
+    // "illegal tab when looking for indentation", ...), and some point past the tab.
+    if (const Mark tab = tab_in_indentation(text, at.line); at.line > 0 && tab.line > 0)
+      throw SpecError(file_label, {{tab, "", "a tab is used for indentation; YAML indents with spaces only",
+                                    "replace the tab at the start of this line with spaces (line up the key "
+                                    "under the one it belongs with)"}});
     throw SpecError(file_label, {{at, "", "not valid YAML: " + e.msg,
                                   "fix the YAML syntax at this position (indentation, quotes, brackets)"}});
   }
@@ -476,7 +584,9 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   }
   if (top.require("name", "a name for the mechanism"))
     if (auto s = read_string(ctx, top.get("name"), "name")) spec.name = *s;
-  read_optional(top, "gravity", spec.gravity, u::acceleration, Bounds::positive());
+  read_optional(top, "gravity", spec.gravity, u::acceleration,
+                Bounds{kMinGravity, kMaxGravity, false, false,
+                       "the tool takes gravity from 0.1 to 100 m/s^2 (Earth 9.81 m/s^2, the Moon 1.62 m/s^2)"});
 
   if (top.require("links", "the list of links, top to bottom")) {
     const YAML::Node links = top.get("links");

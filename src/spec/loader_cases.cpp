@@ -349,11 +349,13 @@ void read_limits(const MapView& top, Spec& spec) {
 
 namespace {
 /// Upper end of the allowed range of the value a sizing path addresses, where the loader has one
-/// (damper exponent in (0, 2], friction mu in [0, 2]); +inf otherwise.
+/// (damper exponent in (0, 2], friction mu in [0, 2], link length and mass); +inf otherwise.
 double sizing_upper_bound(const Spec& spec, const SpecPath& path) {
   if (path.field == SpecPath::Field::damper_exponent || path.field == SpecPath::Field::friction_mu) return 2;
   // A centre of mass must stay on its link (0 <= com <= length); a sized length is checked per design.
   if (path.field == SpecPath::Field::com) return spec.links[static_cast<std::size_t>(path.index)].length;
+  if (path.field == SpecPath::Field::length) return kMaxLinkLength;
+  if (path.field == SpecPath::Field::mass) return kMaxLinkMass;
   return std::numeric_limits<double>::infinity();
 }
 }  // namespace

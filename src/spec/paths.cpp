@@ -5,6 +5,8 @@
 
 #include <fmt/format.h>
 
+#include "names.hpp"
+
 namespace swaybound {
 
 namespace {
@@ -78,7 +80,7 @@ std::optional<SpecPath> parse_spec_path(const Spec& spec, std::string_view text,
   }
   if (group == "dashpots") {
     for (std::size_t i = 0; i < spec.dashpots.size(); ++i)
-      if (spec.dashpots[i].name == name) {
+      if (spec_detail::name_key(spec.dashpots[i].name) == spec_detail::name_key(name)) {  // unique (loader)
         if (field != "coefficient") {
           error = fmt::format("unknown field '{}' (a dashpot has: coefficient)", field);
           return std::nullopt;

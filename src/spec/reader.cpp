@@ -79,9 +79,28 @@ std::string node_kind(const YAML::Node& node) {
 }
 }  // namespace
 
+bool check_no_tag(Context& ctx, const YAML::Node& node, const std::string& path) {
+  if (!node.IsDefined()) return true;
+  std::string tag = node.Tag();
+  // "?" is an untagged plain value, "!" an untagged quoted one; anything else was written.
+  if (tag.empty() || tag == "?" || tag == "!") return true;
+  constexpr std::string_view core = "tag:yaml.org,2002:";
+  if (tag.rfind(core, 0) == 0) tag = "!!" + tag.substr(core.size());
+  if (node.IsScalar())
+    ctx.error(node, path,
+              fmt::format("the YAML tag '{}' is not read by swaybound: the value would be read as '{}' without it",
+                          tag, node.Scalar()),
+              fmt::format("remove '{}'; a unit goes after the number, e.g. '6 m'", tag));
+  else
+    ctx.error(node, path, fmt::format("the YAML tag '{}' is not read by swaybound", tag),
+              fmt::format("remove '{}'", tag));
+  return false;
+}
+
 MapView::MapView(Context& ctx, const YAML::Node& node, std::string path,
                  std::vector<std::string_view> allowed)
     : ctx_(&ctx), path_(std::move(path)), mark_(mark_of(node)) {
+  if (!check_no_tag(ctx, node, path_)) return;
   if (!node.IsMap()) {
     ctx.error(node, path_, fmt::format("expected a map of keys, got {}", node_kind(node)),
               fmt::format("write it as a map with keys from: {}", join(allowed)));
@@ -181,11 +200,14 @@ std::string describe_bounds(const Bounds& b, const units::Dim& dim) {
 
 std::optional<double> read_quantity(Context& ctx, const YAML::Node& node, const std::string& path,
                                     const units::Dim& dim, const Bounds& bounds) {
+  if (!check_no_tag(ctx, node, path)) return std::nullopt;
   if (!node.IsScalar()) {
     ctx.error(node, path, fmt::format("expected {}, got {}", units::a_dim_name(dim), node_kind(node)),
-              fmt::format("write a number in {} or a string with a unit, e.g. {}",
-                          units::si_unit(dim).empty() ? "plain form" : units::si_unit(dim),
-                          example_for(dim)));
+              units::angle_unit_required(dim)
+                  ? fmt::format("write a number with its unit, e.g. {}", example_for(dim))
+                  : fmt::format("write a number in {} or a string with a unit, e.g. {}",
+                                units::si_unit(dim).empty() ? "plain form" : units::si_unit(dim),
+                                example_for(dim)));
     return std::nullopt;
   }
   const std::string& text = node.Scalar();
@@ -200,9 +222,18 @@ std::optional<double> read_quantity(Context& ctx, const YAML::Node& node, const 
     ctx.error(node, path,
               fmt::format("expects {}, got '{}' which is {}", units::a_dim_name(dim), text,
                           units::a_dim_name(q->dim)),
-              fmt::format("give {} (bare numbers are in {}), e.g. {}", units::a_dim_name(dim),
-                          units::si_unit(dim).empty() ? "plain form" : units::si_unit(dim),
-                          example_for(dim)));
+              units::angle_unit_required(dim)
+                  ? fmt::format("give {} with its unit, e.g. {}", units::a_dim_name(dim), example_for(dim))
+                  : fmt::format("give {} (bare numbers are in {}), e.g. {}", units::a_dim_name(dim),
+                                units::si_unit(dim).empty() ? "plain form" : units::si_unit(dim),
+                                example_for(dim)));
+    return std::nullopt;
+  }
+  if (!q->has_unit && q->value != 0 && units::angle_unit_required(dim)) {
+    ctx.error(node, path,
+              fmt::format("'{}' has no unit, and {} must say whether it is in deg or rad", text,
+                          units::a_dim_name(dim)),
+              units::bare_angle_fix(q->value, dim));
     return std::nullopt;
   }
   const double v = q->value;
@@ -210,13 +241,22 @@ std::optional<double> read_quantity(Context& ctx, const YAML::Node& node, const 
   const bool above = bounds.hi_open ? !(v < bounds.hi) : !(v <= bounds.hi);
   if (below || above) {
     ctx.error(node, path, fmt::format("{} is out of range", units::format_si(v, dim)),
-              fmt::format("give {}", describe_bounds(bounds, dim)));
+              bounds.why.empty() ? fmt::format("give {}", describe_bounds(bounds, dim))
+                                 : fmt::format("give {}: {}", describe_bounds(bounds, dim), bounds.why));
+    return std::nullopt;
+  }
+  if (v != 0 && !std::isnormal(v)) {  // subnormal: below 2.2e-308 in SI, no physical input
+    ctx.error(node, path,
+              fmt::format("'{}' is {:g} {} in SI, smaller than the smallest normal double (2.2e-308)", text, v,
+                          units::si_unit(dim)),
+              "give a value of a physical size (a bare number is in SI units)");
     return std::nullopt;
   }
   return v;
 }
 
 std::optional<std::string> read_string(Context& ctx, const YAML::Node& node, const std::string& path) {
+  if (!check_no_tag(ctx, node, path)) return std::nullopt;
   if (!node.IsScalar()) {
     ctx.error(node, path, fmt::format("expected text, got {}", node_kind(node)), "write a single line of text");
     return std::nullopt;
@@ -227,6 +267,7 @@ std::optional<std::string> read_string(Context& ctx, const YAML::Node& node, con
 std::optional<long long> read_integer(Context& ctx, const YAML::Node& node, const std::string& path,
                                       long long lo, long long hi) {
   const auto fix = fmt::format("give a whole number from {} to {}", lo, hi);
+  if (!check_no_tag(ctx, node, path)) return std::nullopt;
   if (!node.IsScalar()) {
     ctx.error(node, path, fmt::format("expected a whole number, got {}", node_kind(node)), fix);
     return std::nullopt;
@@ -257,6 +298,7 @@ std::optional<std::string> read_choice(Context& ctx, const YAML::Node& node, con
 }
 
 bool expect_sequence(Context& ctx, const YAML::Node& node, const std::string& path, std::string_view what) {
+  if (!check_no_tag(ctx, node, path)) return false;
   if (node.IsSequence()) return true;
   ctx.error(node, path, fmt::format("expected a list of {}, got {}", what, node_kind(node)),
             fmt::format("write a YAML list ('- ...' lines or [a, b]) of {}", what));

@@ -67,12 +67,19 @@ class MapView {
 struct Bounds {
   double lo = -1e300, hi = 1e300;
   bool lo_open = false, hi_open = false;
+  std::string_view why = {};  ///< said after the range in the fix line, e.g. why the range ends there
   static Bounds positive() { return {0, 1e300, true, false}; }
   static Bounds non_negative() { return {0, 1e300, false, false}; }
   static Bounds any() { return {}; }
 };
 
-/// Reads a quantity of dimension `dim` (bare number = SI) and checks it lies within `bounds`.
+/// Reports a YAML tag on `node` (`!metres 6`, `!!float 6`): the loader reads no tags, so a tag would
+/// be silently dropped. Returns false after reporting.
+bool check_no_tag(Context& ctx, const YAML::Node& node, const std::string& path);
+
+/// Reads a quantity of dimension `dim` and checks it lies within `bounds`. A bare number is SI,
+/// except where the unit holds an angle (units::angle_unit_required): there it must carry a unit
+/// unless it is 0.
 std::optional<double> read_quantity(Context& ctx, const YAML::Node& node, const std::string& path,
                                     const units::Dim& dim, const Bounds& bounds = Bounds::any());
 std::optional<std::string> read_string(Context& ctx, const YAML::Node& node, const std::string& path);

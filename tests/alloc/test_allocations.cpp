@@ -87,7 +87,7 @@ links:
   - {{from: {{link: l{}, at: 0.2 m}}, to: {{base: [1 m, -1 m]}}, coefficient: 80 N s/m}}
 wind: {{speed: 8 m/s, link: l{}, drag_area: 1 m^2, drag_coefficient: 1.2, gust: {{start: 0.5 s, for: 0.5 s, speed: 6 m/s}}}}
 base: {{scenarios: [{{name: brake, initial_velocity: {{x: 1 m/s}}, accel: [{{for: 0.7 s, x: -1.4 m/s^2}}]}}]}}
-cases: {{duration: 2 s, initial: [{{single: {{theta: [20 deg], rate: [0.3]}}}}]}}
+cases: {{duration: 2 s, initial: [{{single: {{theta: [20 deg], rate: [0.3 rad/s]}}}}]}}
 )",
                      n, links, n - 1, n - 1, n - 1);
 }

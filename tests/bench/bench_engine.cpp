@@ -50,7 +50,7 @@ std::string chain_yaml(int n) {
   for (int i = 0; i < n; ++i)
     links += fmt::format("  - {{name: l{}, length: {}, mass: {}, com: {}, inertia: 0}}\n", i, kL, kM, kL);
   return fmt::format("swaybound: 1\nname: bench chain\ngravity: {}\nlinks:\n{}cases: {{duration: 20 s, initial: "
-                     "[{{single: {{theta: [0.1]}}}}]}}\n",
+                     "[{{single: {{theta: [0.1 rad]}}}}]}}\n",
                      kG, links);
 }
 
@@ -182,9 +182,9 @@ int main(int argc, char** argv) {
         std::string with;
         for (int i = 0; i < n; ++i)
           with += fmt::format("  - {{name: l{}, length: 1, mass: 1, com: 1, inertia: 0, pivot: {{damper: "
-                              "{{coefficient: 0.5, exponent: 0.7}}, friction: {{torque: 0.1, pin_radius: 0.01, mu: 0.2}}}}}}\n",
+                              "{{coefficient: 0.5 N m s/rad, exponent: 0.7}}, friction: {{torque: 0.1, pin_radius: 0.01, mu: 0.2}}}}}}\n",
                               i);
-        yaml = fmt::format("swaybound: 1\nname: b\nlinks:\n{}cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1]}}}}]}}\n", with);
+        yaml = fmt::format("swaybound: 1\nname: b\nlinks:\n{}cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1 rad]}}}}]}}\n", with);
       }
       const Model model = build_model(load_spec_text(yaml, "bench.yaml"));
       Workspace ws(model);

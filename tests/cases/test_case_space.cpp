@@ -27,9 +27,9 @@ cases:
     - grid: {theta: [[-10 deg, 10 deg, 3], [-20 deg, 20 deg, 5]], rate: [[0, 0, 1], [-1 deg/s, 1 deg/s, 2]]}
     - random: {count: 50, seed: 3, method: latin_hypercube, theta: [[-5 deg, 5 deg], [0, 30 deg]]}
     - random: {count: 20, seed: 9, theta: [[-5 deg, 5 deg]]}
-    - corners: {theta: [[-1, 1], [0, 0]], rate: [[-2, 2]]}
+    - corners: {theta: [[-1 rad, 1 rad], [0, 0]], rate: [[-2 rad/s, 2 rad/s]]}
     - ladder: {from: {theta: [10 deg, 10 deg]}, relative: [1e-3, 1e-6], link: load}
-    - single: {theta: [1 deg, 2 deg], rate: [0.1]}
+    - single: {theta: [1 deg, 2 deg], rate: [0.1 rad/s]}
 )";
 }
 

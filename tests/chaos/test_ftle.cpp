@@ -139,8 +139,8 @@ swaybound: 1
 name: damped pendulum
 gravity: {}
 links:
-  - {{name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {{damper: {{coefficient: {}}}}}}}
-cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1]}}}}]}}
+  - {{name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {{damper: {{coefficient: {} N m s/rad}}}}}}
+cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1 rad]}}}}]}}
 base: {{scenarios: [{{name: still, accel: []}}, {{name: jolt, accel: [{{for: 3.25 s, x: 2}}]}}]}}
 )",
                                                   kG, c));

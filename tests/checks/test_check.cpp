@@ -86,7 +86,7 @@ swaybound: 1
 name: determinism
 links:
   - {name: rope, kind: rope, length: 3, mass: 10}
-  - {name: load, length: 1, mass: 400, com: 0.7, inertia: 20, pivot: {damper: {coefficient: 300, exponent: 0.8}}}
+  - {name: load, length: 1, mass: 400, com: 0.7, inertia: 20, pivot: {damper: {coefficient: 300 N m s/rad, exponent: 0.8}}}
 base: {scenarios: [{name: brake, initial_velocity: {x: 1}, accel: [{for: 1.2 s, x: -0.8}]}]}
 cases:
   duration: 8 s

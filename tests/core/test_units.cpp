@@ -73,6 +73,27 @@ TEST_CASE("bare numbers are SI and carry no unit", "[units]") {
   CHECK(parse("+10 deg").value == Approx(10 * std::numbers::pi / 180));
 }
 
+TEST_CASE("a bare number is refused wherever the unit holds an angle", "[units]") {
+  // Angles, angular rates and rotary damping (N m s/rad) read differently in rad and deg.
+  CHECK(angle_unit_required(angle));
+  CHECK(angle_unit_required(angular_rate));
+  CHECK(angle_unit_required(rotary_damping));
+  // A per-time rate (an FTLE in 1/s, an output rate) and a torque hold no angle.
+  CHECK_FALSE(angle_unit_required(rate));
+  CHECK_FALSE(angle_unit_required(torque));
+  CHECK_FALSE(angle_unit_required(dimensionless));
+  CHECK_FALSE(angle_unit_required(length));
+}
+
+TEST_CASE("the fix for a bare angle offers both readings", "[units]") {
+  // 12 rad = 12 x 180/pi deg = 687.55 deg (the definition of the degree, SP 811 B.9).
+  CHECK(bare_angle_fix(12, angle) == "write `12 deg` or `12 rad` (= 687.5 deg)");
+  // 5 rad/s = 286.48 deg/s.
+  CHECK(bare_angle_fix(5, angular_rate) == "write `5 deg/s` or `5 rad/s` (= 286.5 deg/s)");
+  // 4000 N m s/rad = 4000 x pi/180 N m s/deg = 69.81 N m s/deg: the angle is in the denominator.
+  CHECK(bare_angle_fix(4000, rotary_damping) == "write `4000 N m s/deg` or `4000 N m s/rad` (= 69.81 N m s/deg)");
+}
+
 TEST_CASE("compound units multiply and divide", "[units]") {
   CHECK(parse("4 kN m s/rad").value == Approx(4000));
   CHECK(parse("950 kg m^2").dim == moment_of_inertia);

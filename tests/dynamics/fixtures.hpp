@@ -37,7 +37,7 @@ gravity: {0}
 links:
   - {{name: upper, length: {1}, mass: {2}, com: {1}, inertia: 0}}
   - {{name: lower, length: {1}, mass: {2}, com: {1}, inertia: 0}}
-cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1]}}}}]}}
+cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1 rad]}}}}]}}
 {3}
 )",
                      g, length, mass, extra);

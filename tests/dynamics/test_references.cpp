@@ -24,7 +24,7 @@ name: single link
 gravity: {}
 links:
   - {{name: arm, kind: {}, length: {}, mass: {}, com: {}, inertia: {}, pivot: {}}}
-cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1]}}}}]}}
+cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1 rad]}}}}]}}
 {}
 )",
                      kG, kind, length, mass, com, inertia, pivot, extra);
@@ -164,7 +164,7 @@ TEST_CASE("log decrement of a lightly damped swing matches the damping ratio", "
   const double L = 2.0, m = 40.0, d = 1.6, I_cm = 3.0, c = 12.0;
   const double I_pivot = I_cm + m * d * d, k = m * kG * d;
   const double zeta = c / (2 * std::sqrt(I_pivot * k));
-  const Model model = model_from_yaml(single_link(L, m, d, I_cm, fmt::format("{{damper: {{coefficient: {}}}}}", c)));
+  const Model model = model_from_yaml(single_link(L, m, d, I_cm, fmt::format("{{damper: {{coefficient: {} N m s/rad}}}}", c)));
   const Trace trace = run_trace(model, {{deg(0.5)}, {}}, settings(30, 1e-11, 1e-14, 4000));
   const auto p = peaks(trace, 0, 1);
   REQUIRE(p.size() >= 6);
@@ -182,7 +182,7 @@ TEST_CASE("Coulomb friction: amplitude falls by 4 T / k per cycle", "[dynamics][
   const double L = 2.0, m = 40.0, d = 1.6, I_cm = 3.0, T = 3.0;
   const double k = m * kG * d;
   const Model model = model_from_yaml(
-      single_link(L, m, d, I_cm, fmt::format("{{friction: {{torque: {}, transition_rate: 0.001}}}}", T)));
+      single_link(L, m, d, I_cm, fmt::format("{{friction: {{torque: {}, transition_rate: 0.001 rad/s}}}}", T)));
   const Trace trace = run_trace(model, {{deg(4.0)}, {}}, settings(12, 1e-10, 1e-12, 4000));
   REQUIRE(trace.outcome.status == RunStatus::ok);
   const auto p = peaks(trace, 0, 1);

@@ -125,7 +125,7 @@ TEST_CASE("pin friction is solved consistently with the reactions it depends on"
 swaybound: 1
 name: pin friction
 links:
-  - {name: a, length: 2, mass: 50, pivot: {friction: {pin_radius: 60 mm, mu: 0.3, transition_rate: 0.05}}}
+  - {name: a, length: 2, mass: 50, pivot: {friction: {pin_radius: 60 mm, mu: 0.3, transition_rate: 0.05 rad/s}}}
   - {name: b, length: 1, mass: 800, com: 0.9, inertia: 20, pivot: {friction: {pin_radius: 40 mm, mu: 0.25}}}
 cases: {duration: 1 s, initial: [{single: {theta: [0]}}]}
 )");

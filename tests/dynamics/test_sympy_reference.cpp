@@ -53,12 +53,12 @@ std::string spec_yaml(const ChainData& d) {
   for (std::size_t i = 0; i < d.links.size(); ++i) {
     const LinkData& l = d.links[i];
     y << "  - {name: l" << i << ", length: " << l.L << ", mass: " << l.m << ", com: " << l.c << ", inertia: " << l.I
-      << ", pivot: {damper: {coefficient: " << l.C << "}";
-    if (l.T > 0) y << ", friction: {torque: " << l.T << ", transition_rate: " << l.wt << "}";
+      << ", pivot: {damper: {coefficient: " << l.C << " N m s/rad}";
+    if (l.T > 0) y << ", friction: {torque: " << l.T << ", transition_rate: " << l.wt << " rad/s}";
     y << "}}\n";
   }
   y << "base: {scenarios: [{name: s, accel: [{for: 1000 s, x: " << d.ax << ", y: " << d.ay << "}]}]}\n";
-  y << "cases: {duration: 1 s, initial: [{single: {theta: [0.1]}}]}\n";
+  y << "cases: {duration: 1 s, initial: [{single: {theta: [0.1 rad]}}]}\n";
   return y.str();
 }
 

@@ -34,7 +34,7 @@ name: single link
 gravity: {}
 links:
   - {{name: arm, length: {}, mass: {}, com: {}, inertia: {}, pivot: {}}}
-cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1]}}}}]}}
+cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1 rad]}}}}]}}
 )",
                      kG, length, mass, com, inertia, pivot);
 }
@@ -105,7 +105,7 @@ TEST_CASE("modes: compound pendulum with a linear rotary damper", "[modal]") {
   SECTION("underdamped") {
     const double c = 12.0;
     const double zeta = c / (2 * std::sqrt(I_pivot * k));
-    const ModalResult r = modal_analysis(model_of(single_link(L, m, d, I_cm, fmt::format("{{damper: {{coefficient: {}}}}}", c))));
+    const ModalResult r = modal_analysis(model_of(single_link(L, m, d, I_cm, fmt::format("{{damper: {{coefficient: {} N m s/rad}}}}", c))));
     REQUIRE(r.modes.size() == 1);
     const Mode& mode = r.modes[0];
     CHECK(mode.frequency_hz == Approx(wn / (2 * pi)).epsilon(1e-10));
@@ -119,7 +119,7 @@ TEST_CASE("modes: compound pendulum with a linear rotary damper", "[modal]") {
   SECTION("overdamped: zeta > 1 from the two real roots") {
     const double zeta = 2.5;
     const double c = zeta * 2 * std::sqrt(I_pivot * k);
-    const ModalResult r = modal_analysis(model_of(single_link(L, m, d, I_cm, fmt::format("{{damper: {{coefficient: {}}}}}", c))));
+    const ModalResult r = modal_analysis(model_of(single_link(L, m, d, I_cm, fmt::format("{{damper: {{coefficient: {} N m s/rad}}}}", c))));
     REQUIRE(r.modes.size() == 1);
     const Mode& mode = r.modes[0];
     CHECK(mode.overdamped);
@@ -139,10 +139,10 @@ TEST_CASE("modes: compound pendulum with a linear rotary damper", "[modal]") {
     const double C = 12.0, alpha = 0.6, w0 = 0.02;
     const double c = C * std::pow(w0, alpha - 1);
     const ModalResult soft = modal_analysis(model_of(single_link(
-        L, m, d, I_cm, fmt::format("{{damper: {{coefficient: {}, exponent: {}, linear_below: {}}}}}", C, alpha, w0))));
+        L, m, d, I_cm, fmt::format("{{damper: {{coefficient: {} N m s/rad, exponent: {}, linear_below: {} rad/s}}}}", C, alpha, w0))));
     CHECK(soft.modes[0].damping_ratio == Approx(c / (2 * std::sqrt(I_pivot * k))).epsilon(1e-10));
     const ModalResult stiff =
-        modal_analysis(model_of(single_link(L, m, d, I_cm, "{damper: {coefficient: 12, exponent: 1.4}}")));
+        modal_analysis(model_of(single_link(L, m, d, I_cm, "{damper: {coefficient: 12 N m s/rad, exponent: 1.4}}")));
     CHECK(stiff.modes[0].damping_ratio == Approx(0).margin(1e-12));
     CHECK(stiff.notes.size() >= 2);
   }
@@ -164,13 +164,13 @@ swaybound: 1
 name: three links
 gravity: 9.81
 links:
-  - {name: a, length: 1.2, mass: 80, pivot: {damper: {coefficient: 150}}}
-  - {name: b, length: 0.6, mass: 25, pivot: {damper: {coefficient: 40}}}
+  - {name: a, length: 1.2, mass: 80, pivot: {damper: {coefficient: 150 N m s/rad}}}
+  - {name: b, length: 0.6, mass: 25, pivot: {damper: {coefficient: 40 N m s/rad}}}
   - {name: c, length: 1.4, mass: 450, com: 0.9, inertia: 110}
 dashpots:
   - {name: steady, from: {link: c, at: 0.9}, to: {base: [1.5, -2.5]}, coefficient: 800}
   - {name: side, from: {link: b, at: 0.3}, to: {base: [-0.7, -0.4]}, coefficient: 120}
-cases: {duration: 1 s, initial: [{single: {theta: [0.1]}}]}
+cases: {duration: 1 s, initial: [{single: {theta: [0.1 rad]}}]}
 )";
   const Model model = model_of(yaml);
   const ModalResult r = modal_analysis(model);

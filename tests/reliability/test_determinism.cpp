@@ -39,7 +39,7 @@ cases:
   initial:
     - random: {count: 6, seed: 11, theta: [[60 deg, 150 deg], [-150 deg, 150 deg]]}
     - random: {count: 6, seed: 12, method: latin_hypercube, theta: [[-120 deg, 120 deg], [-120 deg, 120 deg]],
-               rate: [[-1, 1], [-2, 2]]}
+               rate: [[-1 rad/s, 1 rad/s], [-2 rad/s, 2 rad/s]]}
     - ladder: {from: {theta: [120 deg, 100 deg]}, relative: [1e-3, 1e-6, 1e-9]}
 limits:
   - {peak_angle: 150 deg}

@@ -197,7 +197,7 @@ name: pin friction that does not contract
 links:
   - {name: arm, length: 0.1 m, mass: 40 kg, pivot: {friction: {pin_radius: 0.5 m, mu: 2}}}
   - {name: hook, length: 0.1 m, mass: 40 kg, pivot: {friction: {pin_radius: 0.5 m, mu: 2}}}
-cases: {duration: 5 s, initial: [{single: {theta: [60 deg, -60 deg], rate: [3, -3]}}]}
+cases: {duration: 5 s, initial: [{single: {theta: [60 deg, -60 deg], rate: [3 rad/s, -3 rad/s]}}]}
 limits:
   - {peak_angle: 30 deg}
 solver: {max_steps: 20000, max_seconds: 20 s}

@@ -27,7 +27,7 @@ std::string spec_text(double damper, double duration = 8, int count = 6,
 swaybound: 1
 name: {}
 links:
-  - {{name: rope, kind: rope, length: 3, mass: 10, pivot: {{damper: {{coefficient: {}}}}}}}
+  - {{name: rope, kind: rope, length: 3, mass: 10, pivot: {{damper: {{coefficient: {} N m s/rad}}}}}}
   - {{name: load, length: 1, mass: 400, com: 0.7, inertia: 20}}
 base: {{scenarios: [{{name: brake, initial_velocity: {{x: 1}}, accel: [{{for: 1.2 s, x: -0.8}}]}}]}}
 cases: {{duration: {} s, initial: [{{random: {{count: {}, seed: 5, theta: [[-5 deg, 5 deg], [-5 deg, 5 deg]]}}}}]}}
@@ -109,7 +109,7 @@ namespace {
 std::string with_sizing(const std::string& text) {
   return text + R"(sizing:
   variables:
-    - {path: "links[rope].pivot.damper.coefficient", range: [500, 4000], cost: 1}
+    - {path: "links[rope].pivot.damper.coefficient", range: [500 N m s/rad, 4000 N m s/rad], cost: 1}
   budget: {evaluations: 40}
 )";
 }
@@ -228,13 +228,13 @@ swaybound: 1
 name: sizing convergence plot
 gravity: 9.81
 links:
-  - {name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {damper: {coefficient: 5}}}
+  - {name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {damper: {coefficient: 5 N m s/rad}}}
 cases: {duration: 10 s, initial: [{single: {theta: [2 deg]}}]}
 limits:
   - {residual_sway: 0.5 deg, after: 9.5 s}
 sizing:
   variables:
-    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}
   budget: {evaluations: 60}
 )");
   REQUIRE(run_cli(fmt::format("size {} --out {} --quiet", spec.string(), out.string())) == 0);

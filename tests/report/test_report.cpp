@@ -34,8 +34,8 @@ swaybound: 1
 name: Report test chain
 gravity: 9.81
 links:
-  - {name: rope, kind: rope, length: 3, mass: 10, pivot: {damper: {coefficient: 500}}}
-  - {name: load, length: 1, mass: 400, com: 0.7, inertia: 20, pivot: {damper: {coefficient: 300, exponent: 0.8}}}
+  - {name: rope, kind: rope, length: 3, mass: 10, pivot: {damper: {coefficient: 500 N m s/rad}}}
+  - {name: load, length: 1, mass: 400, com: 0.7, inertia: 20, pivot: {damper: {coefficient: 300 N m s/rad, exponent: 0.8}}}
 wind: {speed: 8 m/s, link: load, drag_area: 1.5 m^2, drag_coefficient: 1.1, gust: {start: 1 s, for: 1 s, speed: 4 m/s}}
 base: {scenarios: [{name: brake, initial_velocity: {x: 1}, accel: [{for: 1.2 s, x: -0.8}]}]}
 cases:

@@ -35,7 +35,7 @@ std::string spec_text(const std::string& peak_angle = "12 deg", const std::strin
 swaybound: 1
 name: verify test
 links:
-  - {{name: rope, kind: rope, length: 3, mass: 10, pivot: {{damper: {{coefficient: 2000}}}}}}
+  - {{name: rope, kind: rope, length: 3, mass: 10, pivot: {{damper: {{coefficient: 2000 N m s/rad}}}}}}
   - {{name: load, length: 1, mass: 400, com: 0.7, inertia: 20}}
 base: {{scenarios: [{{name: brake, initial_velocity: {{x: 1}}, accel: [{{for: 1.2 s, x: -0.8}}]}}]}}
 cases: {{duration: 8 s, initial: [{{random: {{count: 6, seed: 5, theta: [[-5 deg, 5 deg], [-5 deg, 5 deg]]}}}}]}}
@@ -160,13 +160,13 @@ TEST_CASE("an untouched packet verifies: check packet, sizing folder, the commit
 swaybound: 1
 name: sizing verify
 links:
-  - {name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {damper: {coefficient: 5}}}
+  - {name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {damper: {coefficient: 5 N m s/rad}}}
 cases: {duration: 10 s, initial: [{single: {theta: [2 deg]}}]}
 limits:
   - {residual_sway: 0.5 deg, after: 9.5 s}
 sizing:
   variables:
-    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}
   budget: {evaluations: 40}
 )";
   fs::remove_all(sizing);
@@ -453,13 +453,13 @@ TEST_CASE("diff of two sizing folders compares the sized specs", "[verify][diff]
 swaybound: 1
 name: sizing diff
 links:
-  - {{name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {{damper: {{coefficient: 5}}}}}}
+  - {{name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {{damper: {{coefficient: 5 N m s/rad}}}}}}
 cases: {{duration: 10 s, initial: [{{single: {{theta: [2 deg]}}}}]}}
 limits:
   - {{residual_sway: {}, after: 9.5 s}}
 sizing:
   variables:
-    - {{path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}}
+    - {{path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}}
   budget: {{evaluations: 40}}
 )",
                                        limit);

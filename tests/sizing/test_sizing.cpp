@@ -66,7 +66,7 @@ swaybound: 1
 name: damped pendulum
 gravity: {g}
 links:
-  - {{name: arm, length: {L}, mass: {m}, com: {L}, inertia: 0, pivot: {{damper: {{coefficient: {c}}}}}}}
+  - {{name: arm, length: {L}, mass: {m}, com: {L}, inertia: 0, pivot: {{damper: {{coefficient: {c} N m s/rad}}}}}}
 {extra}
 cases: {{duration: 11 s, initial: [{{single: {{theta: [{th} deg]}}}}]}}
 limits:
@@ -130,7 +130,7 @@ std::string read_text(const fs::path& path) {
 }
 
 const char* kOneDamper = R"(  variables:
-    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}
   budget: {evaluations: 60}
 )";
 
@@ -204,7 +204,7 @@ TEST_CASE("two dampers, one cheaper per unit of effect: the constraint binds and
   const std::string dashpot = R"(dashpots:
   - {name: steady, from: {link: arm, at: 1 m}, to: {base: [-50 m, -1 m]}, coefficient: 5 N s/m})";
   const std::string sizing = R"(  variables:
-    - {path: "links[arm].pivot.damper.coefficient", range: [0, 10], cost: 1}
+    - {path: "links[arm].pivot.damper.coefficient", range: [0, 10 N m s/rad], cost: 1}
     - {path: "dashpots[steady].coefficient", range: [0, 10], cost: 0.5}
   budget: {evaluations: 120}
 )";
@@ -232,7 +232,7 @@ TEST_CASE("a problem with no feasible design is reported infeasible, with the bi
   // The range stops at 1.5 N m s/rad, well below c* ~ 2.76: the best design is the high end, where
   // the residual sway is the 10th extreme of the damped free response (see the file comment).
   const std::string sizing = R"(  variables:
-    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 1.5], cost: 1}
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 1.5 N m s/rad], cost: 1}
   budget: {evaluations: 40}
 )";
   const std::string text = pendulum(sizing, "  - {peak_angle: 10 deg}", "", 1);
@@ -268,7 +268,7 @@ TEST_CASE("a problem with no feasible design is reported infeasible, with the bi
 TEST_CASE("catalogue values are respected", "[sizing]") {
   SECTION("one catalogue damper: the least catalogue value above c*") {
     const std::string sizing = R"(  variables:
-    - {path: "links[arm].pivot.damper.coefficient", catalogue: [1, 2, 2.5, 3, 4, 6], cost: 1}
+    - {path: "links[arm].pivot.damper.coefficient", catalogue: [1 N m s/rad, 2 N m s/rad, 2.5 N m s/rad, 3 N m s/rad, 4 N m s/rad, 6 N m s/rad], cost: 1}
   budget: {evaluations: 40}
 )";
     const Spec spec = spec_file("catalogue", pendulum(sizing, "", "", 6));
@@ -283,7 +283,7 @@ TEST_CASE("catalogue values are respected", "[sizing]") {
     const std::string dashpot = R"(dashpots:
   - {name: steady, from: {link: arm, at: 1 m}, to: {base: [-50 m, -1 m]}, coefficient: 5 N s/m})";
     const std::string sizing = R"(  variables:
-    - {path: "links[arm].pivot.damper.coefficient", catalogue: [0, 1, 2], cost: 0.5}
+    - {path: "links[arm].pivot.damper.coefficient", catalogue: [0, 1 N m s/rad, 2 N m s/rad], cost: 0.5}
     - {path: "dashpots[steady].coefficient", range: [0, 10], cost: 1}
   budget: {evaluations: 150}
 )";
@@ -300,7 +300,7 @@ TEST_CASE("catalogue values are respected", "[sizing]") {
 
 TEST_CASE("the same seed gives the same design", "[sizing][determinism]") {
   const std::string sizing = R"(  variables:
-    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}
   mode: global
   seed: 42
   budget: {evaluations: 60}
@@ -364,7 +364,7 @@ TEST_CASE("swaybound size: files, the sized spec and its check, exit status 2 wi
 TEST_CASE("other objectives and the time budget", "[sizing]") {
   const auto sized = [](const std::string& name, const std::string& extra) {
     const std::string sizing = std::string(R"(  variables:
-    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}
   budget: {evaluations: 40}
 )") + extra;
     return run_sizing(spec_file(name, pendulum(sizing, "  - {modal_damping_min: 0.01}")), quiet());
@@ -389,7 +389,7 @@ TEST_CASE("other objectives and the time budget", "[sizing]") {
   }
   SECTION("a spent time budget leaves the verified design as given, never an unverified one") {
     const std::string sizing = R"(  variables:
-    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}
   budget: {evaluations: 40, seconds: 1 ms}
 )";
     const SizingResult r = run_sizing(spec_file("time-budget", pendulum(sizing)), quiet());

@@ -55,6 +55,16 @@ std::optional<Quantity> parse_quantity(std::string_view text, std::string& error
 /// Factor to SI of a single unit expression ("kN m", "km/h"); nullopt if unknown.
 std::optional<Quantity> parse_unit(std::string_view unit, std::string& error);
 
+/// True when a bare number of dimension `d` is refused: its unit holds an angle (an angle, an
+/// angular rate, a rotary damping coefficient in N m s/rad, ...), so a bare number reads one way in
+/// rad and another in deg. Zero is the same in both readings and stays allowed bare; a rate per
+/// time such as an FTLE (1/s) holds no angle and stays bare SI.
+bool angle_unit_required(const Dim& d);
+
+/// The fix line for a bare `number` where dimension `d` (one with an angle) is expected: both
+/// readings, the rad one converted to deg, e.g. "write `12 deg` or `12 rad` (= 687.5 deg)".
+std::string bare_angle_fix(double number, const Dim& d);
+
 /// Formats an SI value with the SI unit of its dimension, e.g. "0.25 m", "4000 N m s/rad".
 std::string format_si(double value, const Dim& d);
 

@@ -14,6 +14,15 @@ namespace swaybound {
 inline constexpr long kDefaultMaxCases = 20'000;       ///< per check run; lifted with --max-cases
 inline constexpr std::size_t kMaxSpecBytes = 4u << 20; ///< 4 MiB: a design spec is a few kB
 inline constexpr int kMaxLinks = 100;
+/// Documented ranges of physical inputs (specs/README.md, "Limits of the loader"): inside them the
+/// derived quantities (inertia about each pivot, static loads, energies) stay finite.
+inline constexpr double kMinGravity = 0.1, kMaxGravity = 100;  ///< m/s^2
+inline constexpr double kMaxLinkLength = 1e4;                  ///< m (10 km)
+inline constexpr double kMaxLinkMass = 1e8;                    ///< kg (100 000 t)
+/// Each link's own pendulum period (loader's estimate) must lie in [1 ms, 1 day].
+inline constexpr double kMinPendulumPeriod = 1e-3, kMaxPendulumPeriod = 86400;  ///< s
+/// A dashpot shorter than this at the hanging rest position has no usable direction.
+inline constexpr double kMinDashpotLength = 1e-3;  ///< m
 
 struct LoadOptions {
   long max_cases = kDefaultMaxCases;  ///< the case cap; a larger case set is an error

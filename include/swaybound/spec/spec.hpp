@@ -235,7 +235,9 @@ struct Spec {
   ReportSpec report;
   std::vector<std::string> defaults_filled;  ///< key paths whose value came from a default
 
-  int link_index(const std::string& link_name) const;  ///< -1 if absent
+  /// Index of the link of that name, -1 if absent. Names that differ only in what cannot be seen
+  /// (invisible characters, spaces at the ends, composed or decomposed accents) match.
+  int link_index(const std::string& link_name) const;
 };
 
 }  // namespace swaybound
