@@ -1,6 +1,7 @@
 // `swaybound simulate`: runs a case of the spec's case set (by id, or the first), says which start
 // it ran, and writes the base motion and wind forces beside the sway.
 #include <catch2/catch.hpp>
+#include <unistd.h>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
@@ -70,7 +71,8 @@ struct Run {
 };
 
 Run simulate(const std::string& args) {
-  const fs::path dir = fs::temp_directory_path() / "swaybound-test-simulate";
+  // Per process: ctest runs the test cases of this file in parallel.
+  const fs::path dir = fs::temp_directory_path() / ("swaybound-test-simulate-" + std::to_string(::getpid()));
   fs::create_directories(dir);
   const fs::path spec = dir / "spec.yaml", err = dir / "stderr.txt";
   std::ofstream(spec) << kSpec;

@@ -39,7 +39,7 @@ std::string spec_yaml(const std::string& name, double damper, int count = 1, dou
   return fmt::format(R"(swaybound: 1
 name: {}
 links:
-  - {{name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {{damper: {{coefficient: {}}}}}}}
+  - {{name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {{damper: {{coefficient: {} N m s/rad}}}}}}
 cases: {{duration: {} s, initial: [{{random: {{count: {}, seed: 3, theta: [[-5 deg, 5 deg]]}}}}]}}
 limits:
   - {{peak_angle: 20 deg}}
@@ -394,7 +394,7 @@ TEST_CASE("size follows the same rule for its output folder", "[packet][reliabil
   const fs::path dir = scratch("size"), out = dir / "sized";
   const fs::path spec = write_file(dir / "spec.yaml", spec_yaml("hook block", 5, 1, 10) + R"(sizing:
   variables:
-    - {path: "links[arm].pivot.damper.coefficient", range: [0.5, 10], cost: 1}
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}
   budget: {evaluations: 20}
 )");
   REQUIRE(cli({"size", spec.string(), "--out", out.string(), "--quiet"}).code == 0);

@@ -3,6 +3,7 @@
 // is wrong; diff refuses a side that fails verification, compares sizing folders' sized specs, names
 // an unknown schema version and, with --require-pass, fails a new design that fails a check.
 #include <catch2/catch.hpp>
+#include <unistd.h>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
@@ -22,8 +23,10 @@ namespace fs = std::filesystem;
 
 namespace {
 
+/// A path of this test process's own (ctest runs test cases in parallel processes, and two runs
+/// writing one packet at once are refused by design).
 fs::path temp(const std::string& name) {
-  return fs::temp_directory_path() / ("swaybound-verify-" + name);
+  return fs::temp_directory_path() / ("swaybound-verify-" + std::to_string(::getpid()) + "-" + name);
 }
 
 const double kDegree = M_PI / 180;
