@@ -56,11 +56,17 @@ double frequency_distance(double a, double b) {
 
 }  // namespace
 
-double small_signal_damper_coefficient(const PivotModel& p) {
-  if (p.damper_c <= 0) return 0.0;
-  if (p.damper_alpha == 1.0) return p.damper_c;
-  if (p.damper_alpha < 1.0) return p.damper_c * std::pow(p.damper_linear_below, p.damper_alpha - 1.0);
+double small_signal_damper_coefficient(const DamperLaw& d) {
+  if (d.c <= 0) return 0.0;
+  if (d.alpha == 1.0) return d.c;
+  if (d.alpha < 1.0) return d.c * std::pow(d.linear_below, d.alpha - 1.0);
   return 0.0;  // alpha > 1: tau ~ |w|^alpha has zero slope at rest
+}
+
+double small_signal_damper_coefficient(const PivotModel& p) {
+  double c = 0;
+  for (const DamperLaw& d : p.dampers) c += small_signal_damper_coefficient(d);
+  return c;
 }
 
 Eigen::MatrixXd linear_damping_matrix(const Model& model) {
@@ -232,17 +238,19 @@ ModalResult modal_analysis(const Model& model) {
           "linearisation (its slope at rest, torque / transition_rate, is an artefact of the regularisation); "
           "real dry friction removes a fixed amplitude per cycle or sticks",
           link_label(model, i)));
-    if (p.has_damper() && p.damper_alpha < 1.0)
-      notes.push_back(fmt::format(
-          "damper at the pivot of {} (exponent {:g} < 1) linearised on its linear segment below linear_below = "
-          "{:g} rad/s: {:.6g} N m s/rad. The power law itself has infinite slope at rest, so this value follows "
-          "the choice of linear_below; for relative swing rates W above it the equivalent viscous coefficient "
-          "falls like C W^(exponent-1), so larger swings are damped less than these ratios say",
-          link_label(model, i), p.damper_alpha, p.damper_linear_below, small_signal_damper_coefficient(p)));
-    if (p.has_damper() && p.damper_alpha > 1.0)
-      notes.push_back(fmt::format(
-          "damper at the pivot of {} (exponent {:g} > 1) has zero slope at rest and adds no small-signal damping",
-          link_label(model, i), p.damper_alpha));
+    for (const DamperLaw& d : p.dampers) {
+      if (d.c > 0 && d.alpha < 1.0)
+        notes.push_back(fmt::format(
+            "damper at the pivot of {} (exponent {:g} < 1) linearised on its linear segment below linear_below = "
+            "{:g} rad/s: {:.6g} N m s/rad. The power law itself has infinite slope at rest, so this value follows "
+            "the choice of linear_below; for relative swing rates W above it the equivalent viscous coefficient "
+            "falls like C W^(exponent-1), so larger swings are damped less than these ratios say",
+            link_label(model, i), d.alpha, d.linear_below, small_signal_damper_coefficient(d)));
+      if (d.c > 0 && d.alpha > 1.0)
+        notes.push_back(fmt::format(
+            "damper at the pivot of {} (exponent {:g} > 1) has zero slope at rest and adds no small-signal damping",
+            link_label(model, i), d.alpha));
+    }
     if (model.kind[static_cast<std::size_t>(i)] == LinkKind::rope)
       notes.push_back(fmt::format("rope {} treated as a rigid link (taut at rest)", link_label(model, i)));
   }

@@ -88,12 +88,7 @@ Model build_model(const Spec& spec) {
       p.pin_friction = f->mu * f->pin_radius;
       p.transition_rate = f->transition_rate;
     }
-    if (const auto& d = l.pivot.damper) {
-      p.damper_c = d->coefficient;
-      p.damper_alpha = d->exponent;
-      p.damper_max = d->max_torque;
-      p.damper_linear_below = d->linear_below;
-    }
+    for (const DamperSpec& d : l.pivot.dampers) p.dampers.push_back({d.coefficient, d.exponent, d.max_torque, d.linear_below});
     m.any_pin_friction |= p.pin_friction > 0;
     m.any_pivot_torque |= p.has_friction() || p.has_damper();
     m.pivots.push_back(p);

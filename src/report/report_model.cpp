@@ -295,11 +295,17 @@ Section design_section(const Spec& spec, const CheckReport& r) {
     } else {
       row.cells.insert(row.cells.end(), {"-", "-", "-", "-"});
     }
-    if (l.pivot.damper) {
-      const auto& dm = *l.pivot.damper;
-      row.cells.insert(row.cells.end(), {num(dm.coefficient / 1000), num(dm.exponent),
-                                         std::isfinite(dm.max_torque) ? num(dm.max_torque / 1000) : "none",
-                                         dm.exponent < 1 ? deg(dm.linear_below) : "-"});
+    if (!l.pivot.dampers.empty()) {
+      // Several dampers side by side: one value per damper in each column, in spec order.
+      std::string c, a, m, w;
+      for (const auto& dm : l.pivot.dampers) {
+        const std::string sep = c.empty() ? "" : " + ";
+        c += sep + num(dm.coefficient / 1000);
+        a += (a.empty() ? "" : ", ") + num(dm.exponent);
+        m += (m.empty() ? "" : ", ") + (std::isfinite(dm.max_torque) ? num(dm.max_torque / 1000) : std::string("none"));
+        w += (w.empty() ? "" : ", ") + (dm.exponent < 1 ? deg(dm.linear_below) : std::string("-"));
+      }
+      row.cells.insert(row.cells.end(), {c, a, m, w});
     } else {
       row.cells.insert(row.cells.end(), {"-", "-", "-", "-"});
     }

@@ -110,7 +110,7 @@ std::string normalised_yaml(const Spec& spec) {
     w.value("mass", l.mass, u::mass);
     w.value("com", l.com, u::length);
     w.value("inertia", l.inertia, u::moment_of_inertia);
-    if (l.pivot.friction || l.pivot.damper) {
+    if (l.pivot.friction || !l.pivot.dampers.empty()) {
       w.begin("pivot");
       if (const auto& f = l.pivot.friction) {
         w.begin("friction");
@@ -120,13 +120,26 @@ std::string normalised_yaml(const Spec& spec) {
         w.value("transition_rate", f->transition_rate, u::angular_rate);
         w.end();
       }
-      if (const auto& d = l.pivot.damper) {
+      const auto emit_damper = [&](const DamperSpec& d) {
+        w.value("coefficient", d.coefficient, u::rotary_damping);
+        w.value("exponent", d.exponent, u::dimensionless);
+        w.value_unless_inf("max_torque", d.max_torque, u::torque);
+        w.value("linear_below", d.linear_below, u::angular_rate);
+      };
+      if (l.pivot.dampers.size() == 1) {
         w.begin("damper");
-        w.value("coefficient", d->coefficient, u::rotary_damping);
-        w.value("exponent", d->exponent, u::dimensionless);
-        w.value_unless_inf("max_torque", d->max_torque, u::torque);
-        w.value("linear_below", d->linear_below, u::angular_rate);
+        emit_damper(l.pivot.dampers[0]);
         w.end();
+      } else if (l.pivot.dampers.size() > 1) {
+        out << YAML::Key << "dampers" << YAML::Value << YAML::BeginSeq;
+        for (std::size_t k = 0; k < l.pivot.dampers.size(); ++k) {
+          w.at(fmt::format("links[{}].pivot.dampers[{}]", i, k));
+          out << YAML::BeginMap;
+          emit_damper(l.pivot.dampers[k]);
+          out << YAML::EndMap;
+        }
+        out << YAML::EndSeq;
+        w.at(fmt::format("links[{}].pivot", i));
       }
       w.end();
     }

@@ -98,10 +98,9 @@ void read_friction(const MapView& pivot, LinkSpec& link) {
   link.pivot.friction = f;
 }
 
-void read_damper(const MapView& pivot, LinkSpec& link) {
-  if (!pivot.has("damper")) return;
-  MapView m(pivot.ctx(), pivot.get("damper"), pivot.path("damper"),
-            {"coefficient", "exponent", "max_torque", "linear_below"});
+/// One damper map at `path`.
+void read_one_damper(Context& ctx, const YAML::Node& node, const std::string& path, LinkSpec& link) {
+  MapView m(ctx, node, path, {"coefficient", "exponent", "max_torque", "linear_below"});
   if (!m.ok()) return;
   DamperSpec d;
   if (m.require("coefficient", "the damping coefficient, e.g. '4 kN m s/rad'")) {
@@ -112,7 +111,25 @@ void read_damper(const MapView& pivot, LinkSpec& link) {
   read_optional(m, "exponent", d.exponent, u::dimensionless, Bounds{0, 2, true, false});
   read_optional(m, "max_torque", d.max_torque, u::torque, Bounds::positive());
   read_optional(m, "linear_below", d.linear_below, u::angular_rate, Bounds::positive());
-  link.pivot.damper = d;
+  link.pivot.dampers.push_back(d);
+}
+
+/// `damper: {...}` (one) or `dampers: [{...}, ...]` (several, side by side: their torques add).
+void read_damper(const MapView& pivot, LinkSpec& link) {
+  Context& ctx = pivot.ctx();
+  if (pivot.has("damper") && pivot.has("dampers")) {
+    ctx.error(pivot.key_mark("dampers"), pivot.path("dampers"), "both 'damper' and 'dampers' are given",
+              "put every damper of the pivot in the 'dampers' list, or keep one under 'damper'");
+    return;
+  }
+  if (pivot.has("damper")) read_one_damper(ctx, pivot.get("damper"), pivot.path("damper"), link);
+  if (!pivot.has("dampers")) return;
+  const YAML::Node list = pivot.get("dampers");
+  if (!expect_sequence(ctx, list, pivot.path("dampers"), "a list of dampers")) return;
+  if (list.size() == 0)
+    ctx.error(list, pivot.path("dampers"), "the list of dampers is empty", "give at least one damper, or remove the key");
+  for (std::size_t k = 0; k < list.size(); ++k)
+    read_one_damper(ctx, list[k], fmt::format("{}[{}]", pivot.path("dampers"), k), link);
 }
 
 void read_link(Context& ctx, const YAML::Node& node, const std::string& path, Spec& spec) {
@@ -175,7 +192,7 @@ void read_link(Context& ctx, const YAML::Node& node, const std::string& path, Sp
     ctx.defaults_filled.push_back(m.path("inertia"));
   }
   if (m.has("pivot")) {
-    MapView p(ctx, m.get("pivot"), m.path("pivot"), {"friction", "damper"});
+    MapView p(ctx, m.get("pivot"), m.path("pivot"), {"friction", "damper", "dampers"});
     if (p.ok()) {
       read_friction(p, link);
       read_damper(p, link);

@@ -590,7 +590,8 @@ void refuse_rkf78_on_rough_forces(Context& ctx, const YAML::Node& node, const Sp
   for (const auto& link : spec.links) {
     const PivotSpec& p = link.pivot;
     const bool friction = p.friction && (p.friction->torque > 0 || p.friction->mu * p.friction->pin_radius > 0);
-    const bool nonlinear = p.damper && (p.damper->exponent != 1 || std::isfinite(p.damper->max_torque));
+    bool nonlinear = false;
+    for (const DamperSpec& d : p.dampers) nonlinear |= d.exponent != 1 || std::isfinite(d.max_torque);
     if (friction || nonlinear)
       rough.push_back(fmt::format("'{}' ({})", link.name,
                                   friction && nonlinear ? "friction and a power-law or saturating damper"

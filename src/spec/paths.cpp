@@ -49,21 +49,46 @@ std::optional<SpecPath> parse_spec_path(const Spec& spec, std::string_view text,
   }
   const std::string_view group = text.substr(0, open);
   const std::string name(text.substr(open + 1, close - open - 1));
-  const std::string_view field = text.substr(close + 2);
+  std::string_view field = text.substr(close + 2);
   if (group == "links") {
     const int index = spec.link_index(name);
     if (index < 0) {
       error = fmt::format("no link is named '{}'", name);
       return std::nullopt;
     }
+    const PivotSpec& pivot = spec.links[static_cast<std::size_t>(index)].pivot;
+    // pivot.dampers[K].X addresses damper K; pivot.damper.X the only damper of the pivot.
+    int damper = 0;
+    std::string normalised;
+    if (field.rfind("pivot.dampers[", 0) == 0) {
+      const auto end = field.find(']');
+      const std::string digits(field.substr(14, end == std::string_view::npos ? 0 : end - 14));
+      if (end == std::string_view::npos || digits.empty() || digits.size() > 3 ||
+          digits.find_first_not_of("0123456789") != std::string::npos || end + 1 >= field.size() ||
+          field[end + 1] != '.') {
+        error = "expected pivot.dampers[K].field with K a damper's position in the list, from 0";
+        return std::nullopt;
+      }
+      damper = std::stoi(digits);
+      if (damper >= static_cast<int>(pivot.dampers.size())) {
+        error = fmt::format("link '{}' has {} damper(s) at its pivot; K runs from 0 to {}", name, pivot.dampers.size(),
+                            static_cast<int>(pivot.dampers.size()) - 1);
+        return std::nullopt;
+      }
+      normalised = "pivot.damper." + std::string(field.substr(end + 2));
+      field = normalised;
+    } else if (field.rfind("pivot.damper.", 0) == 0 && pivot.dampers.size() > 1) {
+      error = fmt::format("link '{}' has {} dampers at its pivot: name one as pivot.dampers[K].{}", name,
+                          pivot.dampers.size(), field.substr(13));
+      return std::nullopt;
+    }
     for (const auto& f : kLinkFields) {
       if (f.name != field) continue;
-      const PivotSpec& pivot = spec.links[static_cast<std::size_t>(index)].pivot;
       const bool damper_field = f.field == Field::damper_coefficient || f.field == Field::damper_exponent ||
                                 f.field == Field::damper_max_torque;
       const bool friction_field = f.field == Field::friction_torque || f.field == Field::friction_pin_radius ||
                                   f.field == Field::friction_mu;
-      if (damper_field && !pivot.damper) {
+      if (damper_field && pivot.dampers.empty()) {
         error = fmt::format("link '{}' has no damper at its pivot to vary", name);
         return std::nullopt;
       }
@@ -71,7 +96,7 @@ std::optional<SpecPath> parse_spec_path(const Spec& spec, std::string_view text,
         error = fmt::format("link '{}' has no friction at its pivot to vary", name);
         return std::nullopt;
       }
-      return SpecPath{f.field, index};
+      return SpecPath{f.field, index, damper};
     }
     std::string all;
     for (const auto& f : kLinkFields) all += (all.empty() ? "" : ", ") + std::string(f.name);
@@ -111,9 +136,9 @@ auto& value_ref(SpecT& spec, const SpecPath& p) {
     case Field::mass: return link.mass;
     case Field::com: return link.com;
     case Field::inertia: return link.inertia;
-    case Field::damper_coefficient: return link.pivot.damper.value().coefficient;
-    case Field::damper_exponent: return link.pivot.damper.value().exponent;
-    case Field::damper_max_torque: return link.pivot.damper.value().max_torque;
+    case Field::damper_coefficient: return link.pivot.dampers.at(static_cast<std::size_t>(p.damper)).coefficient;
+    case Field::damper_exponent: return link.pivot.dampers.at(static_cast<std::size_t>(p.damper)).exponent;
+    case Field::damper_max_torque: return link.pivot.dampers.at(static_cast<std::size_t>(p.damper)).max_torque;
     case Field::friction_torque: return link.pivot.friction.value().torque;
     case Field::friction_pin_radius: return link.pivot.friction.value().pin_radius;
     case Field::friction_mu: return link.pivot.friction.value().mu;

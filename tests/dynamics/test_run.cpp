@@ -92,18 +92,18 @@ TEST_CASE("the same case gives bit-identical results on every run", "[integrate]
 }
 
 TEST_CASE("power-law damper: continuous, odd, saturating, linear below w0", "[dynamics][forces]") {
-  PivotModel p;
-  p.damper_c = 4000;
-  p.damper_alpha = 0.6;
-  p.damper_max = 20000;
-  p.damper_linear_below = 1e-3;
+  DamperLaw p;
+  p.c = 4000;
+  p.alpha = 0.6;
+  p.max_torque = 20000;
+  p.linear_below = 1e-3;
   // Continuous at w0 from both sides, odd in w.
   CHECK(damper_torque(p, 1e-3 * (1 - 1e-12)) == Approx(damper_torque(p, 1e-3 * (1 + 1e-12))).epsilon(1e-9));
   CHECK(damper_torque(p, -0.3) == -damper_torque(p, 0.3));
   CHECK(damper_torque(p, 0.3) == Approx(-4000 * std::pow(0.3, 0.6)));
   CHECK(damper_torque(p, 5e-4) == Approx(-4000 * std::pow(1e-3, -0.4) * 5e-4));
   CHECK(damper_torque(p, 1e6) == -20000);  // saturated
-  p.damper_alpha = 1.0;
+  p.alpha = 1.0;
   CHECK(damper_torque(p, 0.25) == Approx(-1000));
 }
 

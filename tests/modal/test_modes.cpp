@@ -209,7 +209,7 @@ cases: {duration: 1 s, initial: [{single: {theta: [0.1 rad]}}]}
   }
   SECTION("without damping: the undamped natural frequencies") {
     Model bare = model;
-    for (auto& p : bare.pivots) p.damper_c = 0;
+    for (auto& p : bare.pivots) p.dampers.clear();
     bare.any_pivot_torque = false;
     for (auto& d : bare.dashpots) d.coefficient = 0;
     const auto roots = underdamped_roots(Eigen::EigenSolver<Eigen::MatrixXd>(engine_jacobian(bare), false).eigenvalues());

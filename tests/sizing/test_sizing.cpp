@@ -333,7 +333,7 @@ TEST_CASE("swaybound size: files, the sized spec and its check, exit status 2 wi
   CHECK(sized.find("# Sized by swaybound") != std::string::npos);
   CHECK(sized.find("licensed professional engineer") != std::string::npos);
   const Spec reloaded = load_spec((out / "sized_spec.yaml").string());
-  CHECK(reloaded.links[0].pivot.damper->coefficient < 2.8);
+  CHECK(reloaded.links[0].pivot.dampers[0].coefficient < 2.8);
   const auto results = nlohmann::json::parse(read_text(out / "results.json"));
   CHECK(results["spec"]["sha256"] == sha256_file((out / "sized_spec.yaml").string()));
   // The review documents are those of the same check: the sized spec's hash and its verdict.

@@ -58,8 +58,8 @@ TEST_CASE("the gantry demo spec reads into SI", "[spec][demo]") {
   CHECK(spec.links[0].kind == LinkKind::rope);
   CHECK(spec.links[0].pivot.friction->pin_radius == Approx(0.040));
   CHECK(spec.links[1].mass == Approx(8500));
-  CHECK(spec.links[1].pivot.damper->coefficient == Approx(4000));
-  CHECK(spec.links[1].pivot.damper->max_torque == Approx(20000));
+  CHECK(spec.links[1].pivot.dampers[0].coefficient == Approx(4000));
+  CHECK(spec.links[1].pivot.dampers[0].max_torque == Approx(20000));
   CHECK(spec.scenarios.at(0).initial_vx == Approx(1.2));
   CHECK(spec.limits.at(0).value == Approx(12 * std::numbers::pi / 180));
   // 25 grid + 200 random + 2^3 corners + 6 ladder starts, times 2 scenarios.

@@ -153,8 +153,8 @@ chaos: {threshold: 0.01}
                                    "bare.yaml");
   CHECK(spec.cases.initial[0].theta[0].lo == 0);
   CHECK(spec.cases.initial[1].theta[0].hi == Approx(0.1));
-  CHECK(spec.links[0].pivot.damper->coefficient == 0);
-  CHECK(spec.links[0].pivot.damper->max_torque == 50);
+  CHECK(spec.links[0].pivot.dampers[0].coefficient == 0);
+  CHECK(spec.links[0].pivot.dampers[0].max_torque == 50);
   CHECK(spec.dashpots[0].coefficient == 300);
   CHECK(spec.cases.output_rate == 20);
   CHECK(spec.limits[0].value == 0.05);

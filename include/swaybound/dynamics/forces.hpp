@@ -13,18 +13,25 @@ namespace swaybound {
 /// crawl through every reversal; below |w| = w0 (linear_below) it is replaced by the secant line
 /// tau = -C w0^(alpha - 1) w, which meets the power law at |w| = w0 (continuous torque, finite slope).
 /// alpha >= 1 uses the power law down to 0. Inputs: w [rad/s]; output [N m].
-inline double damper_torque(const PivotModel& p, double w) {
-  if (p.damper_c <= 0) return 0.0;
+inline double damper_torque(const DamperLaw& d, double w) {
+  if (d.c <= 0) return 0.0;
   const double aw = std::fabs(w);
   double magnitude;
-  if (p.damper_alpha == 1.0)
-    magnitude = p.damper_c * aw;
-  else if (p.damper_alpha < 1.0 && aw < p.damper_linear_below)
-    magnitude = p.damper_c * std::pow(p.damper_linear_below, p.damper_alpha - 1.0) * aw;
+  if (d.alpha == 1.0)
+    magnitude = d.c * aw;
+  else if (d.alpha < 1.0 && aw < d.linear_below)
+    magnitude = d.c * std::pow(d.linear_below, d.alpha - 1.0) * aw;
   else
-    magnitude = p.damper_c * std::pow(aw, p.damper_alpha);
-  magnitude = std::fmin(magnitude, p.damper_max);
+    magnitude = d.c * std::pow(aw, d.alpha);
+  magnitude = std::fmin(magnitude, d.max_torque);
   return w >= 0 ? -magnitude : magnitude;
+}
+
+/// The torque of every damper at a pivot: they act side by side, so their torques add [N m].
+inline double damper_torque(const PivotModel& p, double w) {
+  double tau = 0;
+  for (const DamperLaw& d : p.dampers) tau += damper_torque(d, w);
+  return tau;
 }
 
 /// Regularised Coulomb friction: tau = -(T0 + mu r |R|) tanh(w / w_t), with T0 the constant

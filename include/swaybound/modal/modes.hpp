@@ -61,6 +61,8 @@ struct ModalResult {
 /// (forces.hpp; it depends on w0, because the power law itself has infinite slope at rest); for
 /// exponent > 1 the slope at rest, 0.
 double small_signal_damper_coefficient(const PivotModel& pivot);
+/// The same for one damper law [N m s/rad].
+double small_signal_damper_coefficient(const DamperLaw& damper);
 
 /// Linearised damping matrix C [N m s/rad] about the rest position (pivot dampers and dashpots).
 Eigen::MatrixXd linear_damping_matrix(const Model& model);

@@ -18,17 +18,26 @@
 
 namespace swaybound {
 
+/// One power-law rotary damper, in SI (see forces.hpp).
+struct DamperLaw {
+  double c = 0;                 ///< coefficient [N m s/rad]
+  double alpha = 1;             ///< exponent [-]
+  double max_torque = 0;        ///< saturation torque [N m], infinity for none
+  double linear_below = 1e-3;   ///< [rad/s]
+};
+
 /// Per pivot (the upper end of each link): friction and damper laws, in SI.
 struct PivotModel {
   double coulomb_torque = 0;    ///< constant friction torque [N m]
   double pin_friction = 0;      ///< mu * pin radius [m]: torque = pin_friction * |reaction|
   double transition_rate = 0.01;///< friction regularisation rate [rad/s]
-  double damper_c = 0;          ///< power-law damper coefficient [N m s/rad]
-  double damper_alpha = 1;      ///< exponent [-]
-  double damper_max = 0;        ///< saturation torque [N m], infinity for none
-  double damper_linear_below = 1e-3;  ///< [rad/s]
+  std::vector<DamperLaw> dampers;  ///< side by side at the pivot: their torques add
   bool has_friction() const { return coulomb_torque > 0 || pin_friction > 0; }
-  bool has_damper() const { return damper_c > 0; }
+  bool has_damper() const {
+    for (const auto& d : dampers)
+      if (d.c > 0) return true;
+    return false;
+  }
 };
 
 /// A point of the chain: on link `link` at distance `at` from its upper pivot, or on the base

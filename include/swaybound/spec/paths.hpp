@@ -1,7 +1,8 @@
 #pragma once
 // Addresses of numeric values in a spec, as used by sizing variables:
 //   links[NAME].length | mass | com | inertia
-//   links[NAME].pivot.damper.coefficient | exponent | max_torque
+//   links[NAME].pivot.damper.coefficient | exponent | max_torque   (a pivot with one damper)
+//   links[NAME].pivot.dampers[K].coefficient | exponent | max_torque   (K from 0, any pivot)
 //   links[NAME].pivot.friction.torque | pin_radius | mu
 //   dashpots[NAME].coefficient
 #include <optional>
@@ -22,6 +23,7 @@ struct SpecPath {
   };
   Field field{};
   int index = 0;  ///< link or dashpot index
+  int damper = 0; ///< damper fields: which damper of the pivot
 };
 
 /// Parses `text` against `spec`; on failure returns nullopt and a sentence in `error`.

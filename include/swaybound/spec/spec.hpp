@@ -36,7 +36,7 @@ struct FrictionSpec {
 
 struct PivotSpec {
   std::optional<FrictionSpec> friction;
-  std::optional<DamperSpec> damper;
+  std::vector<DamperSpec> dampers;  ///< rotary dampers acting side by side at the pivot (torques add)
 };
 
 struct LinkSpec {
