@@ -189,8 +189,9 @@ Section scope_section(const Spec& spec, const CheckReport& r, const Document& d)
                         "gust. The top pivot moves with a prescribed piecewise-constant acceleration (the base "
                         "scenarios); it is driven, not coupled to the sway."}});
   model.push_back({Span{"Numerics. ", true},
-                   Span{fmt::format("{} with rtol = {:g}, atol = {:g}. Peaks are taken at the accepted steps; each "
-                                    "governing case is re-run at a 100x tighter tolerance (section 9).",
+                   Span{fmt::format("{} with rtol = {:g}, atol = {:g}. Peaks are located on the solver's dense output "
+                                    "between steps and on both sides of every jump of base acceleration or wind; "
+                                    "each governing case is re-run at a 100x tighter tolerance (section 9).",
                                     spec.solver.method == Stepper::dopri5 ? "Dormand-Prince 5(4) (dopri5)"
                                                                            : "Runge-Kutta-Fehlberg 7(8) (rkf78)",
                                     spec.solver.rtol, spec.solver.atol)}});
