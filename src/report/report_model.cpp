@@ -753,7 +753,7 @@ std::string link_scope(const Spec& spec, const LimitSpec& l) {
   return l.link >= 0 ? " (" + link_name(spec, l.link) + ")" : "";
 }
 
-/// The start of case `index`: its scenario, set, and the angles and rates of every link.
+/// The start of case `index` (its id names the set): its scenario and the angles and rates of every link.
 std::string start_text(const Spec& spec, const CaseSpace& space, long index) {
   if (index < 0 || index >= space.size()) return "-";
   const CaseDef def = space.at(index);
@@ -762,11 +762,10 @@ std::string start_text(const Spec& spec, const CaseSpace& space, long index) {
     theta.push_back(deg(i < def.initial.theta.size() ? def.initial.theta[i] : 0.0));
     omega.push_back(deg(i < def.initial.omega.size() ? def.initial.omega[i] : 0.0));
   }
-  const auto scenario = static_cast<std::size_t>(def.scenario), set = static_cast<std::size_t>(def.set);
-  return fmt::format("scenario '{}', set '{}' start {}: θ0 = ({}) deg, ω0 = ({}) deg/s",
-                     scenario < spec.scenarios.size() ? spec.scenarios[scenario].name : "-",
-                     set < spec.cases.initial.size() ? spec.cases.initial[set].name : "-", def.start + 1,
-                     fmt::join(theta, ", "), fmt::join(omega, ", "));
+  const auto scenario = static_cast<std::size_t>(def.scenario);
+  return fmt::format("scenario '{}', θ0 = ({}) deg, ω0 = ({}) deg/s",
+                     scenario < spec.scenarios.size() ? spec.scenarios[scenario].name : "-", fmt::join(theta, ", "),
+                     fmt::join(omega, ", "));
 }
 
 Section governing_section(const Spec& spec, const CheckReport& r) {

@@ -545,8 +545,8 @@ TEST_CASE("each governing case shows its start: scenario, angles and rates", "[r
     INFO(checks[i] << ": " << starts[i]);
     REQUIRE((c.governing == 0 || c.governing == 1));
     // The two starts as written in kHeavySpec (a link not listed starts at 0).
-    const std::string expected = c.governing == 0 ? "scenario 'stop', set 'single' start 1: θ0 = (3, -2) deg, ω0 = (1, 0) deg/s"
-                                                  : "start 1: θ0 = (-4, 1) deg, ω0 = (0, 0) deg/s";
+    const std::string expected = c.governing == 0 ? "scenario 'stop', θ0 = (3, -2) deg, ω0 = (1, 0) deg/s"
+                                                  : "scenario 'stop', θ0 = (-4, 1) deg, ω0 = (0, 0) deg/s";
     CHECK(starts[i].find(expected) != std::string::npos);
   }
   CHECK(p.text.find("Start: scenario 'stop'") != std::string::npos);  // under each plotted case's heading
