@@ -317,6 +317,8 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
       rc.tension.assign(static_cast<std::size_t>(n), {});
       const Observer on_sample = [&](const StepView& v) {
         rc.t.push_back(v.t);
+        rc.support_x.push_back(-v.ws->reaction_x[0]);
+        rc.support_y.push_back(-v.ws->reaction_y[0]);
         for (int i = 0; i < n; ++i) {
           const auto k = static_cast<std::size_t>(i);
           double top, bottom;

@@ -175,7 +175,7 @@ class HtmlWriter {
     o_ += "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n";
     o_ += "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n";
     o_ += "<meta name=\"generator\" content=\"" + esc("swaybound " + d_.tool_version) + "\"/>\n";
-    o_ += "<title>" + esc(d_.title + " - " + d_.mechanism) + "</title>\n<style>" + kCss;
+    o_ += "<title>" + esc(d_.title == d_.mechanism ? d_.title : d_.title + " - " + d_.mechanism) + "</title>\n<style>" + kCss;
     o_ += fmt::format("@page {{ size: {}; margin: 18mm 15mm 18mm 15mm;\n"
                       "  @top-left {{ content: {}; font-size: 8pt; color: #60636b; }}\n"
                       "  @top-right {{ content: {}; font-size: 8pt; color: #60636b; }}\n"

@@ -565,7 +565,7 @@ void write_report_pdf(const Spec& spec, const CheckReport& report, const std::st
   }
   cairo_pdf_surface_set_metadata(surface, CAIRO_PDF_METADATA_TITLE, d.title.c_str());
   cairo_pdf_surface_set_metadata(surface, CAIRO_PDF_METADATA_SUBJECT,
-                                 fmt::format("Design check of {}, revision {}", d.mechanism, d.revision).c_str());
+                                 (fmt::format("Design check of {}", d.mechanism) + (d.revision.empty() ? "" : ", revision " + d.revision)).c_str());
   if (!d.prepared_by.empty()) cairo_pdf_surface_set_metadata(surface, CAIRO_PDF_METADATA_AUTHOR, d.prepared_by.c_str());
   cairo_pdf_surface_set_metadata(surface, CAIRO_PDF_METADATA_CREATOR, fmt::format("swaybound {}", d.tool_version).c_str());
   // The date comes from the caller; an ISO date also becomes the document's creation date.

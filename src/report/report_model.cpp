@@ -10,7 +10,9 @@
 
 #include <fmt/format.h>
 
+#include "swaybound/cases/case_space.hpp"
 #include "swaybound/core/version.hpp"
+#include "swaybound/model/model.hpp"
 #include "swaybound/report/format.hpp"
 #include "swaybound/spec/loader.hpp"
 
@@ -37,6 +39,14 @@ std::string precise(double v, const std::string& unit) {
   if (!std::isfinite(v)) return engineering(v, unit);
   const std::string u = engineering_unit(unit);
   return fmt::format("{:.3g}", to_engineering(v, unit)) + (u.empty() ? "" : " " + u);
+}
+/// A quantity that can run to thousands (a mass, an inertia) in plain digits with thousands
+/// separators, never in exponent form: 12000 -> "12,000", 1234.5 -> "1,235", 0.25 -> "0.25".
+std::string amount(double v) {
+  if (!std::isfinite(v) || std::fabs(v) < 1000) return num(v);
+  std::string digits = fmt::format("{:.0f}", std::fabs(v));
+  for (int at = static_cast<int>(digits.size()) - 3; at > 0; at -= 3) digits.insert(static_cast<std::size_t>(at), ",");
+  return (v < 0 ? "-" : "") + digits;
 }
 std::string deg(double rad, int digits = 4) { return std::isfinite(rad) ? num(rad * kDeg, digits) : num(rad); }
 
@@ -271,8 +281,8 @@ Section design_section(const Spec& spec, const CheckReport& r) {
   for (std::size_t i = 0; i < spec.links.size(); ++i) {
     const auto& l = spec.links[i];
     links.rows.push_back({{std::to_string(i + 1), l.name, l.kind == LinkKind::rope ? "rope" : "rigid", num(l.length),
-                           num(l.mass), num(l.com) + (l.com_given ? "" : " (rod)"),
-                           num(l.inertia) + (l.inertia_given ? "" : " (rod)")}});
+                           amount(l.mass), num(l.com) + (l.com_given ? "" : " (rod)"),
+                           amount(l.inertia) + (l.inertia_given ? "" : " (rod)")}});
   }
   s.blocks.push_back(table_block(links));
 
@@ -401,7 +411,190 @@ std::string where_text(const Spec& spec, const CheckResult& c) {
   return parts.empty() ? "-" : fmt::format("{}", fmt::join(parts, ", "));
 }
 
-Section verdict_section(const Spec& spec, const CheckReport& r) {
+/// What each figure of the verdict table is, for the limit kinds the spec uses (and the pivot
+/// load, which the static-load table and the support force below use).
+std::vector<Rich> figure_definitions(const Spec& spec) {
+  std::set<LimitKind> kinds{LimitKind::pivot_load};
+  for (const auto& l : spec.limits) kinds.insert(l.kind);
+  std::vector<Rich> out;
+  const auto item = [&](const char* key, std::string text) { out.push_back({Span{key, true, false, true}, Span{": " + text}}); };
+  for (LimitKind k : kinds) switch (k) {
+      case LimitKind::peak_angle:
+        item("peak_angle", "the largest |θ| of the link over the run; θ is its absolute angle from the downward vertical.");
+        break;
+      case LimitKind::relative_angle:
+        item("relative_angle", "the largest |θ_i - θ_(i-1)| at the link's upper pivot over the run (the top link's "
+                               "is its own angle from the vertical).");
+        break;
+      case LimitKind::peak_rate: item("peak_rate", "the largest |ω| of the link over the run."); break;
+      case LimitKind::pivot_load:
+        item("pivot_load", "the largest magnitude |R| over the run of the reaction R at the link's upper pivot. "
+                           "Sign convention: R is the force of the upper body (the link above, or for the top link "
+                           "the trolley or boom tip) on the link; the force on the upper body is -R. It includes "
+                           "gravity, inertia of the swing and of the base motion, and the wind.");
+        break;
+      case LimitKind::dynamic_factor:
+        item("dynamic_factor", "peak pivot load ÷ static pivot load of the same pivot (g × the mass at and below it, "
+                               "the static-load table). The peak comes from the simulation of each case; the factor is "
+                               "not a design standard's dynamic coefficient nor computed by its formula.");
+        break;
+      case LimitKind::rope_tension_min:
+        item("rope_tension_min", "the least axial tension of a rope link over the run, at the end(s) the limit names "
+                                 "(the least of both ends by default); below zero the rope would go slack.");
+        break;
+      case LimitKind::residual_sway:
+        item("residual_sway", "the largest |θ| of the links after the limit's time (after:), i.e. the sway left once "
+                              "the base motion has stopped.");
+        break;
+      case LimitKind::ftle_max:
+        item("ftle_max", "the largest finite-time Lyapunov exponent of a case over the limit's horizon (section 7); "
+                         "above zero, nearby starts drift apart.");
+        break;
+      case LimitKind::modal_damping_min:
+        item("modal_damping_min", "the least damping ratio of the linear modes about the hanging rest position "
+                                  "(section 5); one value for the design, not per case.");
+        break;
+      case LimitKind::onset_margin:
+        item("onset_margin", "the start amplitude at which the FTLE first exceeds the chaos threshold ÷ the largest "
+                             "start amplitude of the case sets (section 7); one value for the design.");
+        break;
+    }
+  out.push_back({Span{"Source: ", true}, Span{"every figure is computed by this tool from the spec (simulation, "
+                                              "linearisation or FTLE); none is taken from a design standard."}});
+  return out;
+}
+
+/// Loads of the hanging equilibrium: base at rest, no wind, so every link hangs vertical. The
+/// pivot load of pivot i is g times the mass at and below link i (Model::mass_below), the rope
+/// tension at a rope link's top end the same, at its bottom end g times the mass below the link.
+struct StaticLoads {
+  std::vector<double> mass;                ///< per link: mass at and below it [kg]
+  std::vector<double> pivot, top, bottom;  ///< per link [N]; bottom NaN for the last link
+};
+
+StaticLoads static_loads(const Spec& spec) {
+  const Model model = build_model(spec);
+  StaticLoads s;
+  for (int i = 0; i < model.n; ++i) {
+    const auto k = static_cast<std::size_t>(i);
+    s.mass.push_back(model.mass_below[k]);
+    s.pivot.push_back(model.gravity * model.mass_below[k]);
+    s.top.push_back(s.pivot.back());
+    s.bottom.push_back(i + 1 < model.n ? model.gravity * model.mass_below[k + 1] : std::nan(""));
+  }
+  return s;
+}
+
+bool limit_applies(const LimitSpec& l, std::size_t link) { return l.link < 0 || static_cast<std::size_t>(l.link) == link; }
+
+/// The static-load table, the warnings for load limits the chain breaks at rest, and the force on
+/// the trolley or boom tip.
+void static_load_blocks(const Spec& spec, const CheckReport& r, std::string_view csv, std::vector<Block>& out) {
+  const StaticLoads st = static_loads(spec);
+  out.push_back(subheading("Static loads (hanging at rest)"));
+  out.push_back(paragraph(
+      std::string("The chain hanging at rest with the base at rest: every link vertical, each pivot carries g × the "
+                  "mass at and below its link. These are the static loads the dynamic factor divides by.") +
+      (spec.wind.empty() ? ""
+                         : " The steady wind of the spec is left out of this table (and of the dynamic factor): "
+                           "with it the chain hangs at an angle and the pivot loads are slightly larger.")));
+  Table t{"static-loads-table",
+          {col("pivot above link", 2, Align::left, "link"), col("mass at and below [kg]", 1.2, Align::right, "mass-below"),
+           col("static pivot load [kN]", 1.2, Align::right, "static-load"),
+           col("rope tension, top [kN]", 1.1, Align::right, "tension-top"),
+           col("rope tension, bottom [kN]", 1.1, Align::right, "tension-bottom"),
+           col("pivot_load limit [kN]", 1.1, Align::right, "limit")},
+          {},
+          "Rope tension at rest: at the top end of a rope link g × the mass at and below it, at the bottom end g × "
+          "the mass below it (a dash: a rigid link, or the free bottom end of the last link).",
+          7.6};
+  std::vector<Rich> warnings;
+  const auto kn = [](double v) { return std::isfinite(v) ? fmt::format("{:.2f}", v / 1000) : std::string("-"); };
+  for (std::size_t k = 0; k < spec.links.size(); ++k) {
+    const bool rope = spec.links[k].kind == LinkKind::rope;
+    double limit = INFINITY;
+    for (const auto& l : spec.limits)
+      if (l.kind == LimitKind::pivot_load && limit_applies(l, k)) limit = std::min(limit, l.value);
+    Row row{{spec.links[k].name, amount(st.mass[k]), kn(st.pivot[k]), rope ? kn(st.top[k]) : "-",
+             rope ? kn(st.bottom[k]) : "-", std::isfinite(limit) ? kn(limit) : "-"},
+            Tone::normal,
+            {}};
+    if (limit < st.pivot[k]) {
+      row.tone = Tone::warn;
+      warnings.push_back({Span{fmt::format("pivot_load limit below the static load at the pivot above '{}': ",
+                                           spec.links[k].name),
+                               true},
+                          Span{fmt::format("the limit {} kN is less than the {} kN the pivot carries hanging at rest, "
+                                           "so the check fails before any swing; check the limit's value and unit.",
+                                           kn(limit), kn(st.pivot[k]))}});
+    }
+    for (const auto& l : spec.limits) {
+      if (l.kind != LimitKind::rope_tension_min || !rope || !limit_applies(l, k)) continue;
+      const double at_rest = l.end == RopeEnd::top ? st.top[k]
+                             : l.end == RopeEnd::bottom ? st.bottom[k]
+                                                        : std::fmin(st.top[k], st.bottom[k]);
+      if (std::isfinite(at_rest) && l.value > at_rest) {
+        row.tone = Tone::warn;
+        warnings.push_back({Span{fmt::format("rope_tension_min limit above the static tension of '{}': ", spec.links[k].name),
+                                 true},
+                            Span{fmt::format("the limit {} kN is more than the {} kN the rope carries hanging at "
+                                             "rest, so the check fails before any swing.",
+                                             kn(l.value), kn(at_rest))}});
+      }
+    }
+    t.rows.push_back(row);
+  }
+  out.push_back(table_block(t));
+  for (const auto& w : warnings) out.push_back(callout(w, Tone::warn));
+
+  // The force on the support: what the designer of the trolley or boom tip needs.
+  out.push_back(subheading("Force on the trolley or boom tip"));
+  const std::string top = spec.links.empty() ? std::string() : spec.links.front().name;
+  std::string peak = "its peak over the cases needs cases.csv, which was not supplied to the report.";
+  if (!csv.empty()) {
+    try {
+      double best = std::nan("");
+      std::string where;
+      for (const auto& row : read_case_envelope(spec, csv))
+        if (row.ok && !row.peak_load.empty() && !(row.peak_load[0] <= best)) {
+          best = row.peak_load[0];
+          where = row.id;
+        }
+      peak = std::isfinite(best) ? fmt::format("its peak magnitude over the cases is {} kN, in case {} (the peak pivot "
+                                               "load of the top pivot; {} times the static {} kN).",
+                                               kn(best), where, num(best / st.pivot.front(), 3), kn(st.pivot.front()))
+                                 : "no case ran to its end, so it has no peak.";
+    } catch (const std::exception& e) {
+      peak = fmt::format("its peak could not be read from cases.csv ({}).", e.what());
+    }
+  }
+  out.push_back(paragraph(fmt::format(
+      "The chain pulls on its support with F = -R, the negative of the reaction R on the top link '{}'. Components: x "
+      "horizontal, positive in the +x direction of the base scenarios and the wind; y vertical, positive upwards. At "
+      "rest F = (0, -{}) kN, straight down; {}",
+      top, kn(st.pivot.empty() ? 0.0 : st.pivot.front()), peak)));
+  double fx = std::nan(""), fy_low = std::nan(""), fy_high = std::nan("");
+  std::string fx_case, fy_case;
+  for (const auto& rc : r.recorded)
+    for (std::size_t j = 0; j < rc.support_x.size() && j < rc.support_y.size(); ++j) {
+      if (!(std::fabs(rc.support_x[j]) <= fx)) {
+        fx = std::fabs(rc.support_x[j]);
+        fx_case = rc.id;
+      }
+      if (!(rc.support_y[j] >= fy_low)) {
+        fy_low = rc.support_y[j];
+        fy_case = rc.id;
+      }
+      if (!(rc.support_y[j] <= fy_high)) fy_high = rc.support_y[j];
+    }
+  if (std::isfinite(fx))
+    out.push_back(paragraph(fmt::format(
+        "Components over the recorded governing cases (sampled at {:g} /s, so a peak between samples can be missed; the "
+        "other cases are not recorded): largest |F_x| {} kN (case {}); F_y from {} to {} kN, most downward in case {}.",
+        spec.cases.output_rate, kn(fx), fx_case, kn(fy_low), kn(fy_high), fy_case)));
+}
+
+Section verdict_section(const Spec& spec, const CheckReport& r, std::string_view csv) {
   Section s{"verdict", "4", "Verdict", {}, true};
   long failing = 0;
   for (const auto& c : r.checks) failing += !c.pass;
@@ -481,6 +674,10 @@ Section verdict_section(const Spec& spec, const CheckReport& r) {
     for (const auto& f : r.failed) ft.rows.push_back({{f.id, f.status, f.reason}, Tone::fail, {}});
     s.blocks.push_back(table_block(ft));
   }
+
+  s.blocks.push_back(subheading("What each figure is"));
+  s.blocks.push_back(bullets(figure_definitions(spec)));
+  static_load_blocks(spec, r, csv, s.blocks);
   return s;
 }
 
@@ -503,6 +700,9 @@ Section modal_section(const Spec& spec, const CheckReport& r) {
            col("damped freq. [Hz]", 1, Align::right, "damped-frequency"), col("shape (per link)", 2, Align::left, "shape"),
            col("note", 1.1, Align::left, "note")},
           {},
+          "frequency: the undamped natural frequency f of the mode (dampers and friction left out); period: 1/f; "
+          "damped freq.: Im(λ)/2π of the damped mode λ matched to it, the frequency at which the swing actually "
+          "oscillates (a dash when that mode is overdamped and does not oscillate); damping ratio: -Re(λ)/|λ|. "
           "Shapes are scaled so the largest component is 1.",
           7.6};
   for (std::size_t k = 0; k < modes.size(); ++k) {
@@ -560,21 +760,40 @@ std::string link_scope(const Spec& spec, const LimitSpec& l) {
   return l.link >= 0 ? " (" + link_name(spec, l.link) + ")" : "";
 }
 
+/// The start of case `index` (its id names the set): its scenario and the angles and rates of every link.
+std::string start_text(const Spec& spec, const CaseSpace& space, long index) {
+  if (index < 0 || index >= space.size()) return "-";
+  const CaseDef def = space.at(index);
+  std::vector<std::string> theta, omega;
+  for (std::size_t i = 0; i < spec.links.size(); ++i) {
+    theta.push_back(deg(i < def.initial.theta.size() ? def.initial.theta[i] : 0.0));
+    omega.push_back(deg(i < def.initial.omega.size() ? def.initial.omega[i] : 0.0));
+  }
+  const auto scenario = static_cast<std::size_t>(def.scenario);
+  return fmt::format("scenario '{}', θ0 = ({}) deg, ω0 = ({}) deg/s",
+                     scenario < spec.scenarios.size() ? spec.scenarios[scenario].name : "-", fmt::join(theta, ", "),
+                     fmt::join(omega, ", "));
+}
+
 Section governing_section(const Spec& spec, const CheckReport& r) {
   Section s{"governing", "6", "Governing cases", {}, true};
+  const CaseSpace space(spec);
   // Which case governs which check.
   Table t{"governing-table",
           {col("check", 1.6, Align::left, "check"), col("governing case", 2.4, Align::left, "case"),
            col("where", 1.3, Align::left, "where"), col("worst", 1.1, Align::right, "worst"),
-           col("ratio", 0.7, Align::right, "ratio"), col("verdict", 0.75, Align::center, "verdict")},
+           col("ratio", 0.7, Align::right, "ratio"), col("verdict", 0.75, Align::center, "verdict"),
+           col("start", 3, Align::left, "start", true)},
           {},
-          "",
+          "start: the governing case's base scenario and initial conditions, link angles θ0 from the downward "
+          "vertical and rates ω0, top link first.",
           7.6};
   for (std::size_t i = 0; i < r.checks.size(); ++i) {
     const auto& c = r.checks[i];
     if (!c.per_case) continue;
     Row row{{fmt::format("{} {}", i + 1, c.key), c.governing_id.empty() ? "-" : c.governing_id, where_text(spec, c),
-             engineering(c.worst, c.unit), ratio_percent(c.margin_ratio), c.pass ? "pass" : "FAIL"},
+             engineering(c.worst, c.unit), ratio_percent(c.margin_ratio), c.pass ? "pass" : "FAIL",
+             start_text(spec, space, c.governing)},
             c.pass ? Tone::normal : Tone::fail,
             {}};
     t.rows.push_back(row);
@@ -625,6 +844,7 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
       }
     const std::string id = rc ? rc->id : std::to_string(index);
     s.blocks.push_back(subheading(fmt::format("Case {} (governs {})", id, fmt::join(governs, ", "))));
+    s.blocks.push_back(paragraph("Start: " + start_text(spec, space, index) + "."));
     if (!rc || rc->t.empty()) {
       s.blocks.push_back(paragraph("This case was not recorded."));
       continue;
@@ -696,6 +916,13 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
 Section chaos_section(const Spec& spec, const CheckReport& r) {
   Section s{"chaos", "7", "Chaotic onset", {}, true};
   const ChaosSummary& ch = r.chaos;
+  if (!ch.per_case_ftle && !ch.onset.computed && !ch.map.computed && ch.ladders.empty()) {
+    // Nothing was asked for: one line, not a page of "not computed".
+    s.new_page = false;
+    s.blocks.push_back(paragraph("No chaos indicator was asked for (no ftle_max or onset_margin limit, no chaos "
+                                 "section, no ladder set), so none was computed."));
+    return s;
+  }
   s.blocks.push_back(paragraph(fmt::format(
       "Indicator: the largest finite-time Lyapunov exponent (FTLE), by Benettin renormalisation of a nearby "
       "trajectory (initial separation {:g}, renormalised every {:g} s) over a horizon of {:g} s. A damped regular "
@@ -836,7 +1063,7 @@ Section chaos_section(const Spec& spec, const CheckReport& r) {
     s.blocks.push_back(figures({figure(
         plot::line_chart(fmt::format("Divergence of ladder '{}'", l.set), {"time", "s"}, y, series,
                          {{spec.chaos.tolerance * kDeg, fmt::format("tolerance {} deg", deg(spec.chaos.tolerance)), false}}),
-        fmt::format("Separation from the base start ({} deg perturbation steps on '{}', scenario '{}'), log scale.",
+        fmt::format("Separation from the base start ({} perturbation steps on '{}', scenario '{}'), log scale.",
                     l.delta.size(), link_name(spec, l.link), l.scenario),
         220)}));
   }
@@ -1038,7 +1265,7 @@ Document build_document(const Spec& spec, const CheckReport& r, const ReportMeta
   d.sections.push_back(title_section(d, spec, r));
   d.sections.push_back(scope_section(spec, r, d));
   d.sections.push_back(design_section(spec, r));
-  d.sections.push_back(verdict_section(spec, r));
+  d.sections.push_back(verdict_section(spec, r, cases_csv));
   d.sections.push_back(modal_section(spec, r));
   d.sections.push_back(governing_section(spec, r));
   d.sections.push_back(chaos_section(spec, r));

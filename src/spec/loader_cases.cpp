@@ -558,8 +558,19 @@ void read_sizing(const MapView& top, Spec& spec) {
         if (om.has("link")) s.metric_link = read_link_ref(ctx, om.get("link"), om.path("link"), spec);
         s.objective = Objective::min_metric;
       }
-    } else if (auto k = read_choice(ctx, o, "sizing.objective", {"min_cost", "max_margin"})) {
-      s.objective = *k == "min_cost" ? Objective::min_cost : Objective::max_margin;
+    } else if (auto k = read_string(ctx, o, "sizing.objective")) {
+      // Every form of the objective, so the fix names the map form too.
+      const std::vector<std::string_view> scalars{"min_cost", "max_margin"};
+      if (*k == "min_cost" || *k == "max_margin") {
+        s.objective = *k == "min_cost" ? Objective::min_cost : Objective::max_margin;
+      } else {
+        const std::string guess = nearest(*k, scalars);
+        ctx.error(o, "sizing.objective", fmt::format("'{}' is not an objective", *k),
+                  (guess.empty() ? std::string() : fmt::format("did you mean '{}'? ", guess)) +
+                      "the forms are: min_cost (least total cost of the variables), max_margin (largest margin to "
+                      "the limits), or {min: LIMIT_KIND} with an optional link: LINK (least worst value of that "
+                      "limit kind, e.g. {min: peak_angle, link: hook})");
+      }
     }
   }
   if (m.has("budget")) {

@@ -312,7 +312,7 @@ TEST_CASE("report pages render, and the packet says what was and was not compute
   bare.chaos = ChaosSummary{};
   const std::string plain = report_html(p.spec, bare, {"2025-02-03", "", ""}, "");
   CHECK(plain.find("cases.csv) was not supplied") != std::string::npos);
-  CHECK(plain.find("Not computed") != std::string::npos);
+  CHECK(plain.find("No chaos indicator was asked for") != std::string::npos);
 }
 
 TEST_CASE("cases.csv reads back: one row per case, peaks agree with the checks", "[report]") {
@@ -433,4 +433,161 @@ solver: {max_steps: 100}
   CHECK(run(fmt::format("pdftotext {} -", pdf.string()), out) == 0);
   CHECK(out.find("step_budget") != std::string::npos);
   CHECK_THROWS_AS(write_report_pdf(spec, report, (dir / "no-such-folder" / "report.pdf").string()), RunError);
+}
+
+namespace {
+
+/// A heavy two-link hook with no chaos indicator, no report title and no revision, and a pivot_load
+/// limit below the weight it carries; two single starts so each governing case is known by hand.
+const char* kHeavySpec = R"(
+swaybound: 1
+name: Heavy hook
+gravity: 9.81
+links:
+  - {name: hoist rope, kind: rope, length: 6 m, mass: 150 kg, com: 3 m, inertia: 0, pivot: {damper: {coefficient: 2000 N m s/rad}}}
+  - {name: hook block, length: 1 m, mass: 12000 kg, com: 0.5 m, inertia: 1000 kg m^2}
+base: {scenarios: [{name: stop, initial_velocity: {x: 1 m/s}, accel: [{for: 2 s, x: -0.5 m/s^2}]}]}
+cases:
+  duration: 4 s
+  initial:
+    - single: {theta: [3 deg, -2 deg], rate: [1 deg/s]}
+    - single: {theta: [-4 deg, 1 deg]}
+limits:
+  - {pivot_load: 100 kN, link: hoist rope}
+  - {dynamic_factor: 1.5}
+  - {peak_angle: 30 deg}
+  - {rope_tension_min: 0 N}
+)";
+
+struct HeavyPacket {
+  Spec spec;
+  CheckReport report;
+  std::string csv, html, pdf_text, pdf_info;
+  std::string text;  ///< the HTML with its character references undone, to search for sentences
+  Json tables;
+};
+
+/// `html` with the references report.html writes for & < > " ' turned back into the characters.
+std::string unescaped(std::string html) {
+  for (const auto& [ref, c] : std::vector<std::pair<std::string, std::string>>{
+           {"&#39;", "'"}, {"&quot;", "\""}, {"&lt;", "<"}, {"&gt;", ">"}, {"&amp;", "&"}})
+    for (std::size_t at = html.find(ref); at != std::string::npos; at = html.find(ref, at + c.size()))
+      html.replace(at, ref.size(), c);
+  return html;
+}
+
+const HeavyPacket& heavy_packet() {
+  static const HeavyPacket p = [] {
+    HeavyPacket k;
+    const fs::path dir = temp_dir() / "heavy";
+    fs::create_directories(dir);
+    std::ofstream(dir / "spec.yaml") << kHeavySpec;
+    k.spec = load_spec((dir / "spec.yaml").string());
+    std::ostringstream csv;
+    csv << cases_csv_header(k.spec);
+    CheckOptions options;
+    options.audit = false;
+    options.on_case = [&](const CaseMetrics& m) { csv << cases_csv_row(k.spec, m); };
+    k.report = run_check(k.spec, options);
+    k.csv = csv.str();
+    const ReportMeta meta{"2025-02-03", "", ""};
+    write_report_pdf(k.spec, k.report, (dir / "report.pdf").string(), meta, k.csv);
+    k.html = report_html(k.spec, k.report, meta, k.csv);
+    k.text = unescaped(k.html);
+    std::ofstream(dir / "report.html", std::ios::binary) << k.html;
+    std::string out;
+    REQUIRE(run(fmt::format("{} {} html {}", SWAYBOUND_PYTHON, checker(), (dir / "report.html").string()), out) == 0);
+    k.tables = Json::parse(out)["tables"];
+    REQUIRE(run(fmt::format("pdftotext -layout {} -", (dir / "report.pdf").string()), k.pdf_text) == 0);
+    REQUIRE(run(fmt::format("pdfinfo {}", (dir / "report.pdf").string()), k.pdf_info) == 0);
+    return k;
+  }();
+  return p;
+}
+
+/// The column `name` of an HTML table as the markup checker read it.
+std::vector<std::string> table_column(const Json& table, const std::string& name) {
+  const std::vector<std::string> headers = table["headers"];
+  const auto it = std::find(headers.begin(), headers.end(), name);
+  REQUIRE(it != headers.end());
+  std::vector<std::string> out;
+  for (const auto& row : table["rows"]) out.push_back(row[static_cast<std::size_t>(it - headers.begin())]);
+  return out;
+}
+
+}  // namespace
+
+TEST_CASE("static loads: g times the mass at and below each pivot, and a warning for a limit below it", "[report]") {
+  const HeavyPacket& p = heavy_packet();
+  REQUIRE(p.tables.contains("static-loads-table"));
+  const Json& t = p.tables["static-loads-table"];
+  // Hand calculation: 9.81 m/s^2 x (150 + 12000) kg = 119.19 kN; 9.81 x 12000 kg = 117.72 kN.
+  CHECK(table_column(t, "static pivot load [kN]") == std::vector<std::string>{"119.19", "117.72"});
+  CHECK(table_column(t, "rope tension, top [kN]") == std::vector<std::string>{"119.19", "-"});
+  CHECK(table_column(t, "rope tension, bottom [kN]") == std::vector<std::string>{"117.72", "-"});
+  CHECK(table_column(t, "pivot_load limit [kN]") == std::vector<std::string>{"100.00", "-"});
+  CHECK(p.text.find("pivot_load limit below the static load at the pivot above 'hoist rope'") != std::string::npos);
+  // The dynamic factor divides by these loads: its definition says so, and that it is simulated.
+  CHECK(p.text.find("peak pivot load ÷ static pivot load") != std::string::npos);
+  CHECK(p.text.find("not a design standard's dynamic coefficient") != std::string::npos);
+  CHECK(p.pdf_text.find("Static loads (hanging at rest)") != std::string::npos);
+  // The shared packet has a steady wind: its table says the wind is left out.
+  CHECK(read(packet().dir / "report.html").find("steady wind of the spec is left out") != std::string::npos);
+}
+
+TEST_CASE("each governing case shows its start: scenario, angles and rates", "[report]") {
+  const HeavyPacket& p = heavy_packet();
+  const std::vector<std::string> starts = table_column(p.tables["governing-table"], "start");
+  const std::vector<std::string> checks = table_column(p.tables["governing-table"], "check");
+  REQUIRE(starts.size() == p.report.checks.size());  // every check of this spec is per case
+  for (std::size_t i = 0; i < starts.size(); ++i) {
+    const CheckResult& c = p.report.checks[i];
+    INFO(checks[i] << ": " << starts[i]);
+    REQUIRE((c.governing == 0 || c.governing == 1));
+    // The two starts as written in kHeavySpec (a link not listed starts at 0).
+    const std::string expected = c.governing == 0 ? "scenario 'stop', θ0 = (3, -2) deg, ω0 = (1, 0) deg/s"
+                                                  : "scenario 'stop', θ0 = (-4, 1) deg, ω0 = (0, 0) deg/s";
+    CHECK(starts[i].find(expected) != std::string::npos);
+  }
+  CHECK(p.text.find("Start: scenario 'stop'") != std::string::npos);  // under each plotted case's heading
+}
+
+TEST_CASE("the force on the trolley: the reaction's sign convention, its peak and components", "[report]") {
+  const HeavyPacket& p = heavy_packet();
+  CHECK(p.text.find("R is the force of the upper body") != std::string::npos);
+  // Its peak magnitude is the peak pivot load of the top pivot, which the pivot_load check found.
+  const CheckResult& top_load = p.report.checks[0];
+  REQUIRE(top_load.key == "pivot_load");
+  CHECK(p.text.find(fmt::format("its peak magnitude over the cases is {:.2f} kN", top_load.worst / 1000)) !=
+        std::string::npos);
+  CHECK(p.text.find("At rest F = (0, -119.19) kN, straight down") != std::string::npos);
+  CHECK(p.text.find("largest |F_x|") != std::string::npos);
+  // The recorded force on the support is minus the reaction on the top link: same magnitude.
+  REQUIRE_FALSE(p.report.recorded.empty());
+  for (const RecordedCase& rc : p.report.recorded) {
+    REQUIRE(rc.support_x.size() == rc.t.size());
+    for (std::size_t j = 0; j < rc.t.size(); ++j)
+      CHECK(std::hypot(rc.support_x[j], rc.support_y[j]) == Approx(rc.load[0][j]).epsilon(1e-12));
+    CHECK(rc.support_y.front() < 0);  // hanging: the chain pulls the trolley down
+  }
+}
+
+TEST_CASE("small things: masses in plain digits, one title, no empty revision, one line for no chaos", "[report]") {
+  const HeavyPacket& p = heavy_packet();
+  CHECK(table_column(p.tables["links-table"], "mass [kg]") == std::vector<std::string>{"150", "12,000"});
+  CHECK(p.text.find("1.2e+04") == std::string::npos);
+  CHECK(p.html.find("<title>Heavy hook</title>") != std::string::npos);
+  std::smatch subject;
+  REQUIRE(std::regex_search(p.pdf_info, subject, std::regex(R"(Subject:\s+(.*))")));
+  CHECK(subject[1].str() == "Design check of Heavy hook");
+  CHECK(p.text.find("No chaos indicator was asked for") != std::string::npos);
+  CHECK(p.text.find("Not computed") == std::string::npos);
+
+  // The shared packet: the modes table explains its frequency columns, and the ladder caption
+  // counts the steps without calling them degrees.
+  const std::string html = read(packet().dir / "report.html");
+  for (const char* note : {"frequency: the undamped natural frequency", "period: 1/f", "damped freq.: Im(λ)/2π"})
+    CHECK(html.find(note) != std::string::npos);
+  CHECK(html.find("(2 perturbation steps on") != std::string::npos);
+  CHECK(html.find("deg perturbation steps") == std::string::npos);
 }

@@ -322,3 +322,26 @@ TEST_CASE("a dashpot whose ends meet at rest is refused", "[spec][bad]") {
   // 1 mm apart at rest is a dashpot.
   CHECK(dashpot("{link: lower, at: 0.5 m}", "{base: [0.001 m, -2.5 m]}").empty());
 }
+
+TEST_CASE("a wrong sizing objective: the fix lists every form, the map form too", "[spec][bad][sizing]") {
+  const std::string text = R"(swaybound: 1
+name: objective forms
+links:
+  - {name: hook, length: 2 m, mass: 20 kg, pivot: {damper: {coefficient: 10 N m s/rad}}}
+cases: {duration: 5 s, initial: [{single: {theta: [5 deg]}}]}
+limits: [{peak_angle: 10 deg}]
+sizing:
+  variables: [{path: "links[hook].pivot.damper.coefficient", range: [1 N m s/rad, 100 N m s/rad]}]
+  objective: min_costs
+)";
+  const auto all = problems(text);
+  const Diagnostic* d = find_path(all, "sizing.objective");
+  REQUIRE(d != nullptr);
+  CHECK(d->mark.line == 9);
+  CHECK(d->message.find("min_costs") != std::string::npos);
+  for (const char* form : {"min_cost", "max_margin", "{min: LIMIT_KIND}", "link: LINK"}) {
+    INFO(form << " in: " << d->fix);
+    CHECK(d->fix.find(form) != std::string::npos);
+  }
+  CHECK(d->fix.find("did you mean 'min_cost'") != std::string::npos);
+}

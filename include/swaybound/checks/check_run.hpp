@@ -64,6 +64,8 @@ struct RecordedCase {
   std::vector<std::vector<double>> theta;   ///< per link [rad]
   std::vector<std::vector<double>> load;    ///< pivot load per link [N]
   std::vector<std::vector<double>> tension; ///< least axial tension per link (either end) [N]
+  /// Force of the chain on the trolley or boom tip, -(reaction on link 0): x horizontal, y up [N].
+  std::vector<double> support_x, support_y;
 };
 
 struct CheckOptions {
