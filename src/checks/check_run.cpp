@@ -11,6 +11,7 @@
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/chaos/ftle.hpp"
 #include "swaybound/core/hash.hpp"
+#include "swaybound/dynamics/forces.hpp"
 #include "swaybound/spec/loader.hpp"
 
 namespace swaybound {
@@ -315,10 +316,23 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
       rc.theta.assign(static_cast<std::size_t>(n), {});
       rc.load.assign(static_cast<std::size_t>(n), {});
       rc.tension.assign(static_cast<std::size_t>(n), {});
+      rc.wind_x.assign(model.wind.size(), {});
       const Observer on_sample = [&](const StepView& v) {
         rc.t.push_back(v.t);
         rc.support_x.push_back(-v.ws->reaction_x[0]);
         rc.support_y.push_back(-v.ws->reaction_y[0]);
+        rc.base_vx.push_back(v.ws->base_vx);
+        rc.base_vy.push_back(v.ws->base_vy);
+        rc.base_ax.push_back(v.ws->base_ax);
+        rc.base_ay.push_back(v.ws->base_ay);
+        const Phase& phase =
+            model.scenarios[static_cast<std::size_t>(v.ws->scenario)].phases[static_cast<std::size_t>(v.ws->phase)];
+        for (std::size_t w = 0; w < model.wind.size(); ++w) {
+          double px, py, vx, vy, fx, fy;
+          point_state(model, *v.ws, model.wind[w].point, px, py, vx, vy);
+          drag_force(model.wind[w].drag_factor, phase.wind_speed[w], vx, vy, fx, fy);
+          rc.wind_x[w].push_back(fx);
+        }
         for (int i = 0; i < n; ++i) {
           const auto k = static_cast<std::size_t>(i);
           double top, bottom;
@@ -328,7 +342,14 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
           rc.tension[k].push_back(i + 1 < n ? std::min(top, bottom) : top);
         }
       };
-      simulate_case(model, ws, def.scenario, def.initial, recording, {}, on_sample);
+      CaseExtremes extremes(model, spec);
+      const Observer on_step = [&](const StepView& v) { extremes.observe(v); };
+      simulate_case(model, ws, def.scenario, def.initial, recording, on_step, on_sample);
+      CaseMetrics located;
+      extremes.write(located);
+      rc.peak_angle = located.peak_angle;
+      rc.peak_load = located.peak_load;
+      rc.min_tension = located.min_tension;
       report.recorded.push_back(std::move(rc));
     }
   }

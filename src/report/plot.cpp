@@ -519,6 +519,26 @@ void data_range(const Plot& p, bool for_x, double& lo, double& hi) {
       lo = std::min(lo, r.value);
       hi = std::max(hi, r.value);
     }
+  for (const auto& m : p.marks) {
+    const double v = for_x ? m.x : m.y;
+    if (!finite_for(a, v)) continue;
+    lo = std::min(lo, v);
+    hi = std::max(hi, v);
+  }
+}
+
+/// Labelled points: a ring in the series' colour and the label beside it, kept inside the frame.
+void draw_marks(cairo_t* cr, const Frame& f, const Plot& p) {
+  for (const auto& m : p.marks) {
+    if (!finite_for(p.x, m.x) || !finite_for(p.y, m.y)) continue;
+    const double x = f.sx.map(m.x), y = f.sy.map(m.y);
+    draw_marker(cr, Marker::circle, x, y, 4.2, series_colour(m.style));
+    if (m.label.empty()) continue;
+    Text t = make_text(cr, report_text::escape(m.label), kRefFont);
+    const bool right = x + 6 + t.w <= f.x1 - 2;
+    const bool below = y - 4 - t.h < f.y0 + 1;
+    put_halo(cr, t, right ? x + 6 : x - 6, below ? y + 4 : y - 4, right ? 0 : 1, below ? 0 : 1, kInk);
+  }
 }
 
 bool has_data(const Plot& p) {
@@ -769,6 +789,7 @@ void draw_xy(cairo_t* cr, const Plot& p, double W, double H) {
   if (has_data(p)) {
     draw_series(cr, f, p);
     draw_refs(cr, f, p.refs, p.x, p.y);
+    draw_marks(cr, f, p);
   } else {
     draw_empty(cr, f, p.empty_text);
   }

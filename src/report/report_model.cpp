@@ -756,6 +756,55 @@ void add_ref(std::vector<plot::RefLine>& refs, plot::RefLine r) {
   refs.push_back(std::move(r));
 }
 
+/// The recorded value of `y` at the sample nearest to time t (0 when there are no samples).
+double sample_at(const std::vector<double>& t, const std::vector<double>& y, double time) {
+  if (t.empty() || y.empty()) return 0;
+  const auto it = std::lower_bound(t.begin(), t.end(), time);
+  std::size_t k = static_cast<std::size_t>(it - t.begin());
+  if (k >= t.size() || (k > 0 && time - t[k - 1] < t[k] - time)) k = k > 0 ? k - 1 : 0;
+  return y[std::min(k, y.size() - 1)];
+}
+
+/// The inputs of a recorded case beside its sway: base acceleration and speed, and the wind force
+/// of each wind load when the spec has wind.
+std::vector<Figure> input_figures(const Spec& spec, const RecordedCase& rc, const std::string& id) {
+  const auto moves = [](const std::vector<double>& v) {
+    return std::any_of(v.begin(), v.end(), [](double x) { return x != 0; });
+  };
+  std::vector<plot::Series> base;
+  if (moves(rc.base_ax) || moves(rc.base_vx)) {
+    base.push_back({"acceleration x [m/s²]", rc.t, rc.base_ax, true, false, 0});
+    base.push_back({"speed x [m/s]", rc.t, rc.base_vx, true, false, 1});
+  }
+  if (moves(rc.base_ay) || moves(rc.base_vy)) {
+    base.push_back({"acceleration y [m/s²]", rc.t, rc.base_ay, true, false, 2});
+    base.push_back({"speed y [m/s]", rc.t, rc.base_vy, true, false, 3});
+  }
+  plot::Axis by{"acceleration, speed", "m/s², m/s"};
+  by.include_zero = true;
+  plot::Plot pb = plot::line_chart("Base (top pivot) motion", {"time", "s"}, by, base);
+  pb.empty_text = "the base does not move in this scenario";
+  std::vector<Figure> out;
+  const double share = spec.wind.empty() ? 1.0 : 0.5;
+  out.push_back(figure(std::move(pb),
+                       fmt::format("Acceleration and speed of the trolley or boom tip in case {} (x horizontal, y up), "
+                                   "as the scenario prescribes.",
+                                   id),
+                       200, share));
+  if (!spec.wind.empty()) {
+    std::vector<plot::Series> wind;
+    for (std::size_t w = 0; w < rc.wind_x.size(); ++w)
+      wind.push_back({fmt::format("wind[{}] on {}", w, spec.links[static_cast<std::size_t>(spec.wind[w].link)].name),
+                      rc.t, scaled(rc.wind_x[w], 1e-3), true, false, -1});
+    plot::Axis wy{"horizontal wind force", "kN"};
+    wy.include_zero = true;
+    out.push_back(figure(plot::line_chart("Wind force", {"time", "s"}, wy, wind),
+                         fmt::format("Horizontal drag force of each wind load in case {}, gusts included.", id), 200,
+                         share));
+  }
+  return out;
+}
+
 std::string link_scope(const Spec& spec, const LimitSpec& l) {
   return l.link >= 0 ? " (" + link_name(spec, l.link) + ")" : "";
 }
@@ -814,8 +863,8 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
     const double rb = std::isfinite(b->margin_ratio) ? b->margin_ratio : INFINITY;
     return ra < rb;
   });
-  const bool two_links = spec.links.size() >= 2;
-  const int per_case = two_links ? 3 : 2;
+  // Figures per case: angles, loads, inputs, and the angle-angle plots two to a row.
+  const int per_case = 3 + static_cast<int>(spec.links.size()) / 2;
   const std::size_t max_cases = static_cast<std::size_t>(std::max(1, kMaxGoverningPlots / per_case));
   std::vector<long> chosen;
   for (const CheckResult* c : order) {
@@ -864,8 +913,20 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
         add_ref(arefs, {-l.value * kDeg, "", false, l.after});
       }
     }
-    Figure fa = figure(plot::line_chart("Link angles", {"time", "s"}, {"angle θ from vertical", "deg"}, angles, arefs),
-                       fmt::format("Link angles of case {}.", id), 210);
+    plot::Plot pa = plot::line_chart("Link angles", {"time", "s"}, {"angle θ from vertical", "deg"}, angles, arefs);
+    // Each link's peak |theta| where the run located it (between samples), on the side it swung to.
+    for (std::size_t i = 0; i < rc->peak_angle.size() && i < rc->theta.size(); ++i) {
+      const Extreme& e = rc->peak_angle[i];
+      const double side = sample_at(rc->t, rc->theta[i], e.time) < 0 ? -1.0 : 1.0;
+      pa.marks.push_back({e.time, side * e.value * kDeg,
+                          fmt::format("{} {:.2f} deg at {:.2f} s", spec.links[i].name, side * e.value * kDeg, e.time),
+                          static_cast<int>(i)});
+    }
+    Figure fa = figure(std::move(pa),
+                       fmt::format("Link angles of case {}; circles mark each link's largest |θ| and when it "
+                                   "happened, located between the samples.",
+                                   id),
+                       210);
     // Loads (and rope tension when the case governs it).
     std::vector<plot::Series> loads;
     for (std::size_t i = 0; i < rc->load.size(); ++i)
@@ -887,24 +948,44 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
     }
     plot::Axis ly{"force", "kN"};
     ly.include_zero = true;
-    const double load_share = two_links ? 0.58 : 1.0;
-    Figure fl = figure(plot::line_chart(with_tension ? "Pivot loads and rope tension" : "Pivot loads", {"time", "s"}, ly,
-                                        loads, lrefs),
-                       fmt::format("Reaction force at the upper pivot of each link{} in case {}.",
-                                   with_tension ? ", and the least axial tension of each rope link," : "", id),
-                       240, load_share);
+    plot::Plot pl = plot::line_chart(with_tension ? "Pivot loads and rope tension" : "Pivot loads", {"time", "s"}, ly,
+                                     loads, lrefs);
+    for (std::size_t i = 0; i < rc->peak_load.size(); ++i)
+      pl.marks.push_back({rc->peak_load[i].time, rc->peak_load[i].value / 1000,
+                          fmt::format("peak {:.2f} kN at {:.2f} s", rc->peak_load[i].value / 1000, rc->peak_load[i].time),
+                          static_cast<int>(i)});
+    if (with_tension)
+      for (std::size_t i = 0; i < rc->min_tension.size(); ++i)
+        if (std::isfinite(rc->min_tension[i].value))
+          pl.marks.push_back({rc->min_tension[i].time, rc->min_tension[i].value / 1000,
+                              fmt::format("least {:.2f} kN at {:.2f} s", rc->min_tension[i].value / 1000,
+                                          rc->min_tension[i].time),
+                              static_cast<int>(rc->load.size() + i)});
+    Figure fl = figure(std::move(pl),
+                       fmt::format("Reaction force at the upper pivot of each link{} in case {}; circles mark each "
+                                   "peak{} with its value and time, located between the samples.",
+                                   with_tension ? ", and the least axial tension of each rope link," : "", id,
+                                   with_tension ? " and least tension" : ""),
+                       240);
     s.blocks.push_back(figures({fa}));
-    if (two_links) {
-      Figure fp = figure(plot::phase_portrait("Phase portrait, first two links",
-                                              {fmt::format("θ {}", spec.links[0].name), "deg"},
-                                              {fmt::format("θ {}", spec.links[1].name), "deg"}, scaled(rc->theta[0], kDeg),
-                                              scaled(rc->theta[1], kDeg)),
-                         "Link 2 against link 1 over the run: a regular motion traces a tidy figure, a chaotic one "
-                         "fills an area.",
-                         240, 1 - load_share);
-      s.blocks.push_back(figures({fl, fp}));
-    } else {
-      s.blocks.push_back(figures({fl}));
+    s.blocks.push_back(figures({fl}));
+    s.blocks.push_back(figures(input_figures(spec, *rc, id)));
+    // Angle against angle for every pair of adjacent links (configuration space, not a phase
+    // portrait: no rates), two to a row.
+    std::vector<Figure> pairs;
+    for (std::size_t i = 0; i + 1 < rc->theta.size(); ++i) {
+      pairs.push_back(figure(plot::phase_portrait(fmt::format("Angle-angle plot, links {} and {}", i + 1, i + 2),
+                                                  {fmt::format("θ {}", spec.links[i].name), "deg"},
+                                                  {fmt::format("θ {}", spec.links[i + 1].name), "deg"},
+                                                  scaled(rc->theta[i], kDeg), scaled(rc->theta[i + 1], kDeg)),
+                             fmt::format("θ of link {} against θ of link {} over the run: a regular motion traces a "
+                                         "tidy figure, a chaotic one fills an area.",
+                                         i + 2, i + 1),
+                             240, 0.5));
+      if (pairs.size() == 2 || i + 2 == rc->theta.size()) {
+        s.blocks.push_back(figures(pairs));
+        pairs.clear();
+      }
     }
   }
   return s;

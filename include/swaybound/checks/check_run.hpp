@@ -66,6 +66,12 @@ struct RecordedCase {
   std::vector<std::vector<double>> tension; ///< least axial tension per link (either end) [N]
   /// Force of the chain on the trolley or boom tip, -(reaction on link 0): x horizontal, y up [N].
   std::vector<double> support_x, support_y;
+  std::vector<double> base_vx, base_vy;     ///< base (top pivot) velocity [m/s]
+  std::vector<double> base_ax, base_ay;     ///< base acceleration [m/s^2]
+  std::vector<std::vector<double>> wind_x;  ///< horizontal force of each wind load [N]
+  /// Extremes of the run located between samples and steps (as the checks find them): per link
+  /// max |theta|, max pivot load and the least rope tension (NaN for rigid links).
+  std::vector<Extreme> peak_angle, peak_load, min_tension;
 };
 
 struct CheckOptions {

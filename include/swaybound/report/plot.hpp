@@ -72,6 +72,13 @@ struct Point {
   double x = 0, y = 0;
 };
 
+/// A labelled point on an xy plot: a peak with its value and time. The axes always include it.
+struct PointMark {
+  double x = 0, y = 0;
+  std::string label;  ///< e.g. "peak 99.7 kN at 12.31 s"
+  int style = 0;      ///< colour index of the series it belongs to
+};
+
 struct HeatMap {
   std::vector<double> x, y;   ///< cell centres, ascending
   std::vector<double> z;      ///< row-major, y outer: z[j * x.size() + i]; NaN: no value
@@ -98,6 +105,7 @@ struct Plot {
   Axis x, y;
   std::vector<Series> series;
   std::vector<RefLine> refs;
+  std::vector<PointMark> marks;  ///< xy: labelled points (drawn above the series)
   HeatMap heat;
   ChainSketch chain;
   bool mark_ends = false;   ///< xy: mark the first point (circle) and last point (square) of series 0
