@@ -356,6 +356,57 @@ double sizing_upper_bound(const Spec& spec, const SpecPath& path) {
   if (path.field == SpecPath::Field::com) return spec.links[static_cast<std::size_t>(path.index)].length;
   return std::numeric_limits<double>::infinity();
 }
+
+/// A design variable that `size` could not use although its path names a value of the spec: the
+/// same value as an earlier variable, or a damper's saturation torque the spec does not give (sizing
+/// it would add a saturation the design does not have). Reported at the variable's path.
+void check_sizing_target(Context& ctx, const Spec& spec, const SpecPath& target, const YAML::Node& node,
+                         const std::string& path, const std::vector<std::pair<SpecPath, std::string>>& earlier) {
+  for (const auto& [other, other_path] : earlier)
+    if (other.field == target.field && other.index == target.index) {
+      ctx.error(node, path, fmt::format("this addresses the same value as the earlier variable '{}'", other_path),
+                "give each spec value at most one design variable: remove or merge this one");
+      return;
+    }
+  if (target.field == SpecPath::Field::damper_max_torque) {
+    const LinkSpec& link = spec.links[static_cast<std::size_t>(target.index)];
+    if (link.pivot.damper && !std::isfinite(link.pivot.damper->max_torque))
+      ctx.error(node, path,
+                fmt::format("link '{}' has a damper without max_torque, so sizing it would add a saturation the "
+                            "design does not have",
+                            link.name),
+                fmt::format("give links[{}].pivot.damper.max_torque (the design's saturation torque) to size it, or "
+                            "remove this variable",
+                            link.name));
+  }
+}
+
+/// The objective {min: KIND[, link]} must be computable by `size`: a whole-chain kind takes no link,
+/// and residual_sway, ftle_max and onset_margin need their limit (with the same link) in the spec,
+/// which sets the time after which sway counts or switches the computation on.
+void check_objective_limit(Context& ctx, const MapView& objective, const Spec& spec, const SizingSpec& s) {
+  const LimitInfo* info = nullptr;
+  for (const auto& k : kLimits)
+    if (k.key == s.metric) info = &k;
+  if (!info) return;
+  if (objective.has("link") && !info->link_allowed) {
+    ctx.error(objective.key_mark("link"), objective.path("link"),
+              fmt::format("'{}' applies to the whole chain", info->key), "remove 'link' from the objective");
+    return;
+  }
+  const bool needs_limit = info->kind == LimitKind::residual_sway || info->kind == LimitKind::ftle_max ||
+                           info->kind == LimitKind::onset_margin;
+  if (!needs_limit) return;
+  for (const auto& l : spec.limits)
+    if (l.kind == info->kind && l.link == s.metric_link) return;
+  ctx.error(objective.get("min"), objective.path("min"),
+            fmt::format("the objective {{min: {}}} needs a {} limit{} in 'limits'", info->key, info->key,
+                        s.metric_link >= 0 ? " for the same link" : ""),
+            info->kind == LimitKind::residual_sway
+                ? fmt::format("add a limit {{residual_sway: VALUE, after: TIME{}}}: it gives the time after which "
+                              "sway counts", s.metric_link >= 0 ? ", link: NAME" : "")
+                : fmt::format("add a limit {{{}: VALUE}}: it switches its computation on", info->key));
+}
 }  // namespace
 
 void read_chaos(const MapView& top, Spec& spec) {
@@ -440,6 +491,7 @@ void read_sizing(const MapView& top, Spec& spec) {
   if (!m.ok()) return;
   SizingSpec s;
   s.mark = m.mark();
+  std::vector<std::pair<SpecPath, std::string>> targets;  // of the variables read so far
   if (m.require("variables", "a list of design variables {path, range, cost}") &&
       expect_sequence(ctx, m.get("variables"), "sizing.variables", "design variables")) {
     const YAML::Node list = m.get("variables");
@@ -459,6 +511,10 @@ void read_sizing(const MapView& top, Spec& spec) {
           if (!target)
             ctx.error(v.get("path"), v.path("path"), fmt::format("'{}' does not name a value of this spec: {}", *p, why),
                       "see specs/README.md, 'sizing', for the paths that can be varied");
+          else {
+            check_sizing_target(ctx, spec, *target, v.get("path"), v.path("path"), targets);
+            targets.emplace_back(*target, *p);
+          }
         }
       const u::Dim dim = target ? spec_path_dim(*target) : u::dimensionless;
       if (v.has("range") == v.has("catalogue")) {
@@ -519,6 +575,7 @@ void read_sizing(const MapView& top, Spec& spec) {
         if (auto k = read_choice(ctx, om.get("min"), om.path("min"), names)) s.metric = *k;
         if (om.has("link")) s.metric_link = read_link_ref(ctx, om.get("link"), om.path("link"), spec);
         s.objective = Objective::min_metric;
+        check_objective_limit(ctx, om, spec, s);
       }
     } else if (auto k = read_choice(ctx, o, "sizing.objective", {"min_cost", "max_margin"})) {
       s.objective = *k == "min_cost" ? Objective::min_cost : Objective::max_margin;
