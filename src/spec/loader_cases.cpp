@@ -2,6 +2,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <numbers>
 
 #include <fmt/format.h>
 
@@ -116,8 +117,11 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
   }
   const std::string kind(kKinds[static_cast<int>(set.kind)]);
   set.name = kind;
-  if (m.has("name"))
+  if (m.has("name")) {
     if (auto s = read_string(ctx, m.get("name"), m.path("name"))) set.name = *s;
+  } else {
+    ctx.defaults_filled.push_back(m.path("name"));
+  }
   const std::size_t n = spec.links.size();
   const std::string kp = m.path(kind);
   switch (set.kind) {
@@ -409,6 +413,25 @@ void check_objective_limit(Context& ctx, const MapView& objective, const Spec& s
 }
 }  // namespace
 
+namespace {
+/// chaos.onset.max: the largest start amplitude searched, above 0 and below 180 deg (a start at
+/// 180 deg is the inverted rest position).
+void read_onset_max(const MapView& onset, ChaosSpec& c) {
+  if (!onset.has("max")) {
+    onset.ctx().defaults_filled.push_back(onset.path("max"));
+    return;
+  }
+  const auto v = read_quantity(onset.ctx(), onset.get("max"), onset.path("max"), u::angle);
+  if (!v) return;
+  if (!(*v > 0 && *v < std::numbers::pi))
+    onset.ctx().error(onset.get("max"), onset.path("max"),
+                      fmt::format("{} is out of range", u::format_si(*v, u::angle)),
+                      "give an amplitude above 0 and below 180 deg (pi rad), e.g. 170 deg");
+  else
+    c.onset_max = *v;
+}
+}  // namespace
+
 void read_chaos(const MapView& top, Spec& spec) {
   Context& ctx = top.ctx();
   ChaosSpec& c = spec.chaos;
@@ -417,6 +440,9 @@ void read_chaos(const MapView& top, Spec& spec) {
   if (!top.has("chaos")) {
     if (c.horizon == 0) c.horizon = spec.cases.duration;
     c.onset_direction.assign(spec.links.size(), 1.0);
+    for (const char* key : {"separation", "renormalise", "horizon", "uncertainty", "tolerance", "threshold",
+                            "onset.direction", "onset.max", "onset.resolution"})
+      ctx.defaults_filled.push_back(std::string("chaos.") + key);
     return;
   }
   MapView m(ctx, top.get("chaos"), "chaos",
@@ -428,8 +454,8 @@ void read_chaos(const MapView& top, Spec& spec) {
   read_optional(m, "renormalise", c.renormalise, u::duration, Bounds::positive());
   if (m.has("horizon")) {
     if (auto v = read_quantity(ctx, m.get("horizon"), "chaos.horizon", u::duration, Bounds::positive())) c.horizon = *v;
-  } else if (c.horizon == 0) {
-    c.horizon = spec.cases.duration;
+  } else {
+    if (c.horizon == 0) c.horizon = spec.cases.duration;  // else an ftle_max limit's horizon
     ctx.defaults_filled.push_back("chaos.horizon");
   }
   read_optional(m, "uncertainty", c.uncertainty, u::angle, Bounds::positive());
@@ -456,7 +482,7 @@ void read_chaos(const MapView& top, Spec& spec) {
           ctx.error(d, "chaos.onset.direction", "the largest weight must be 1 (or -1)",
                     "scale the direction so its largest component is 1; amplitudes are that link's angle");
       }
-      read_optional(o, "max", c.onset_max, u::angle, Bounds{0, 3.14159265358979, true, false});
+      read_onset_max(o, c);
       read_optional(o, "resolution", c.onset_resolution, u::angle, Bounds::positive());
     }
   }
@@ -475,7 +501,13 @@ void read_chaos(const MapView& top, Spec& spec) {
       }
     }
   }
-  if (c.onset_direction.empty()) c.onset_direction.assign(spec.links.size(), 1.0);
+  if (!m.has("onset"))
+    for (const char* key : {"chaos.onset.direction", "chaos.onset.max", "chaos.onset.resolution"})
+      ctx.defaults_filled.push_back(key);
+  if (c.onset_direction.empty()) {
+    c.onset_direction.assign(spec.links.size(), 1.0);
+    if (m.has("onset")) ctx.defaults_filled.push_back("chaos.onset.direction");
+  }
   for (std::size_t i = 0; i < spec.limits.size(); ++i)
     if (spec.limits[i].kind == LimitKind::ftle_max && spec.limits[i].horizon != c.horizon && m.has("horizon"))
       ctx.error(m.get("horizon"), "chaos.horizon",
@@ -483,6 +515,22 @@ void read_chaos(const MapView& top, Spec& spec) {
                             i, u::format_si(spec.limits[i].horizon, u::duration)),
                 "the FTLE is computed once per case: give one horizon (or leave chaos.horizon out)");
 }
+
+namespace {
+/// Records the sizing keys left out (the variables' costs and budget.seconds are recorded where
+/// they are read).
+void note_sizing_defaults(const MapView& m) {
+  auto& filled = m.ctx().defaults_filled;
+  for (const char* key : {"objective", "seed", "mode"})
+    if (!m.has(key)) filled.push_back(m.path(key));
+  const YAML::Node budget = m.get("budget");
+  bool evaluations = false;
+  if (budget.IsDefined() && budget.IsMap())
+    for (auto it = budget.begin(); it != budget.end(); ++it) evaluations |= it->first.Scalar() == "evaluations";
+  if (!evaluations) filled.push_back("sizing.budget.evaluations");
+  if (!m.has("budget")) filled.push_back("sizing.budget.seconds");
+}
+}  // namespace
 
 void read_sizing(const MapView& top, Spec& spec) {
   Context& ctx = top.ctx();
@@ -595,6 +643,7 @@ void read_sizing(const MapView& top, Spec& spec) {
   if (m.has("mode"))
     if (auto k = read_choice(ctx, m.get("mode"), "sizing.mode", {"local", "global"}))
       s.mode = *k == "local" ? SearchMode::local : SearchMode::global;
+  note_sizing_defaults(m);
   spec.sizing = std::move(s);
 }
 
@@ -624,6 +673,26 @@ void refuse_rkf78_on_rough_forces(Context& ctx, const YAML::Node& node, const Sp
                         "dampers; the pivot of {} has them",
                         list),
             "use `method: dopri5` (the default), whose error estimate follows these force laws");
+}
+}  // namespace
+
+namespace {
+/// The report's title defaults to the spec's name (also when given empty); every report key left out
+/// is recorded.
+void note_report_defaults(Context& ctx, const MapView& top, Spec& spec) {
+  const YAML::Node report = top.get("report");
+  const auto given = [&](const char* key) {
+    if (!report.IsDefined() || !report.IsMap()) return false;
+    for (auto it = report.begin(); it != report.end(); ++it)
+      if (it->first.Scalar() == key) return true;
+    return false;
+  };
+  if (spec.report.title.empty()) {
+    spec.report.title = spec.name;
+    ctx.defaults_filled.push_back("report.title");
+  }
+  for (const char* key : {"project", "revision", "prepared_by", "paper"})
+    if (!given(key)) ctx.defaults_filled.push_back(std::string("report.") + key);
 }
 }  // namespace
 
@@ -666,7 +735,7 @@ void read_solver_and_report(const MapView& top, Spec& spec) {
           spec.report.paper = *k == "a4" ? Paper::a4 : Paper::letter;
     }
   }
-  if (spec.report.title.empty()) spec.report.title = spec.name;
+  note_report_defaults(ctx, top, spec);
 }
 
 }  // namespace spec_detail
