@@ -42,8 +42,26 @@ long case_count(const Spec& spec) {
   return starts * static_cast<long>(spec.scenarios.size());
 }
 
+long samples_per_case(double duration, double output_rate) {
+  const double samples = std::floor(duration * output_rate) + 1;
+  return samples < 1e18 ? static_cast<long>(samples) : 1'000'000'000'000'000'000L;
+}
+
 namespace spec_detail {
 namespace {
+
+/// cases.duration x cases.output_rate against the cap on samples kept per case (LoadOptions).
+void check_sample_cap(const MapView& cases, const Spec& spec, const LoadOptions& options) {
+  const long samples = samples_per_case(spec.cases.duration, spec.cases.output_rate);
+  if (samples <= options.max_samples) return;
+  const std::string key = cases.has("output_rate") ? "output_rate" : "duration";
+  cases.ctx().error(cases.get(key), cases.path(key),
+                    fmt::format("{:g} s at {:g} samples/s gives {} samples per case, more than the cap of {}",
+                                spec.cases.duration, spec.cases.output_rate, samples, options.max_samples),
+                    fmt::format("lower cases.output_rate (at most {:g} /s for this duration) or cases.duration, or "
+                                "raise the cap with --max-samples N",
+                                std::floor(static_cast<double>(options.max_samples - 1) / spec.cases.duration)));
+}
 
 constexpr std::string_view kKinds[] = {"single", "grid", "random", "corners", "ladder"};
 
@@ -218,6 +236,7 @@ void read_cases(const MapView& top, Spec& spec, const LoadOptions& options) {
       spec.cases.duration = *v;
   read_optional(m, "output_rate", spec.cases.output_rate, u::rate, Bounds{0, 1e5, true, false});
   read_optional(m, "settling_band", spec.cases.settling_band, u::angle, Bounds{0, 3.2, true, false});
+  check_sample_cap(m, spec, options);
   if (!m.require("initial", "a list of initial-condition sets (single, grid, random, corners, ladder)")) return;
   const YAML::Node list = m.get("initial");
   if (!expect_sequence(ctx, list, "cases.initial", "initial-condition sets")) return;

@@ -14,10 +14,22 @@ namespace swaybound {
 inline constexpr long kDefaultMaxCases = 20'000;       ///< per check run; lifted with --max-cases
 inline constexpr std::size_t kMaxSpecBytes = 4u << 20; ///< 4 MiB: a design spec is a few kB
 inline constexpr int kMaxLinks = 100;
+/// Characters (Unicode code points) in a name (any key `name`) and in any other text value
+/// (report title, project, ...): the report lays them out on a page.
+inline constexpr std::size_t kMaxNameChars = 200;
+inline constexpr std::size_t kMaxTextChars = 500;
+/// Output samples per case (cases.duration x cases.output_rate, plus the one at t = 0); a chaos
+/// ladder keeps every sample of each of its starts. Lifted with --max-samples.
+inline constexpr long kDefaultMaxSamples = 10'000'000;
 
 struct LoadOptions {
-  long max_cases = kDefaultMaxCases;  ///< the case cap; a larger case set is an error
+  long max_cases = kDefaultMaxCases;      ///< the case cap; a larger case set is an error
+  long max_samples = kDefaultMaxSamples;  ///< the cap on output samples per case
 };
+
+/// Output samples of a case of `duration` [s] at `output_rate` [1/s], the one at t = 0 included
+/// (saturates at 1e18).
+long samples_per_case(double duration, double output_rate);
 
 /// Reads and validates the spec at `path`. Throws SpecError: with line 0 when the file as a whole
 /// is unusable (missing, a folder, unreadable, too large, empty), with the position otherwise
