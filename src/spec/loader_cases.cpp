@@ -715,6 +715,34 @@ void note_report_defaults(Context& ctx, const MapView& top, Spec& spec) {
 }
 }  // namespace
 
+namespace {
+/// The same refusal for force laws that sizing would make rough: a design variable on a damper
+/// exponent, or on a friction value whose range reaches above zero. Every design `size` tries is
+/// re-loaded, and the loader would refuse it with rkf78 half-way through the search.
+void refuse_rkf78_on_sized_rough_forces(Context& ctx, const YAML::Node& node, const Spec& spec) {
+  if (!spec.sizing) return;
+  std::vector<std::string> rough;
+  for (const auto& v : spec.sizing->variables) {
+    std::string why;
+    const auto target = parse_spec_path(spec, v.path, why);
+    if (!target) continue;
+    const auto f = target->field;
+    const bool exponent = f == SpecPath::Field::damper_exponent && (v.lo != 1 || v.hi != 1);
+    const bool friction = (f == SpecPath::Field::friction_torque || f == SpecPath::Field::friction_mu ||
+                           f == SpecPath::Field::friction_pin_radius) && v.hi > 0;
+    if (exponent || friction) rough.push_back("'" + v.path + "'");
+  }
+  if (rough.empty()) return;
+  std::string list;
+  for (const auto& r : rough) list += (list.empty() ? "" : ", ") + r;
+  ctx.error(node, "solver.method",
+            fmt::format("rkf78 does not converge reliably with regularised friction or power-law dampers, and sizing "
+                        "{} would give the designs them",
+                        list),
+            "use `method: dopri5` (the default), or size other values");
+}
+}  // namespace
+
 void read_solver_and_report(const MapView& top, Spec& spec) {
   Context& ctx = top.ctx();
   if (top.has("solver")) {
@@ -724,6 +752,7 @@ void read_solver_and_report(const MapView& top, Spec& spec) {
         if (auto k = read_choice(ctx, m.get("method"), "solver.method", {"dopri5", "rkf78"}))
           spec.solver.method = *k == "dopri5" ? Stepper::dopri5 : Stepper::rkf78;
         if (spec.solver.method == Stepper::rkf78) refuse_rkf78_on_rough_forces(ctx, m.get("method"), spec);
+        if (spec.solver.method == Stepper::rkf78) refuse_rkf78_on_sized_rough_forces(ctx, m.get("method"), spec);
       } else {
         ctx.defaults_filled.push_back("solver.method");
       }
