@@ -78,7 +78,8 @@ Action add_modes(CLI::App& app) {
   auto max_samples = std::make_shared<long>(kDefaultMaxSamples);
   cmd->add_option("SPEC", *spec_path, "YAML design spec")->required();
   cmd->add_flag("--json", *json, "Print JSON (units in the key names) instead of a table");
-  cmd->add_option("--max-samples", *max_samples, "Cap on the output samples per case (cases.duration x cases.output_rate)")
+  cmd->add_option("--max-samples", *max_samples,
+                  "Cap on the output samples per case (cases.duration x cases.output_rate)")
       ->default_val(kDefaultMaxSamples)
       ->check(CLI::PositiveNumber);
   return [cmd, spec_path, json, max_samples]() {

@@ -1,11 +1,11 @@
 // swaybound simulate: one case as a time series (CSV), with a short summary on stderr.
+#include <unistd.h>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <iostream>
 #include <sstream>
-#include <unistd.h>
 
 #include <fmt/format.h>
 
@@ -48,11 +48,10 @@ double parse_one(const std::string& option, const std::string& text, const units
 class PartialFile {
  public:
   explicit PartialFile(std::filesystem::path target)
-      : target_(std::move(target)),
-        temp_(target_.string() + fmt::format(".partial-{}", ::getpid())) {
+      : target_(std::move(target)), temp_(target_.string() + fmt::format(".partial-{}", ::getpid())) {
     if (std::filesystem::exists(temp_))
-      throw RunError(fmt::format("{} exists and was not written by this run; remove it or choose another output",
-                                 temp_.string()));
+      throw RunError(fmt::format(
+          "{} exists and was not written by this run; remove it or choose another output", temp_.string()));
     stream_.open(temp_, std::ios::binary);
     if (!stream_) throw RunError(fmt::format("cannot write {}", temp_.string()));
   }
@@ -69,7 +68,8 @@ class PartialFile {
   /// Flushes, checks every write succeeded and renames the file onto its target.
   void commit() {
     stream_.close();
-    if (!stream_) throw RunError(fmt::format("writing {} failed (disk full or not writable?)", temp_.string()));
+    if (!stream_)
+      throw RunError(fmt::format("writing {} failed (disk full or not writable?)", temp_.string()));
     std::filesystem::rename(temp_, target_);
     committed_ = true;
   }
@@ -114,10 +114,12 @@ Action add_simulate(CLI::App& app) {
     if (!o->output_rate.empty()) settings.output_rate = parse_one("--output-rate", o->output_rate, units::rate);
     if (!(settings.duration > 0) || !(settings.output_rate > 0))
       throw ArgumentError("--duration and --output-rate must be > 0");
-    if (const long samples = samples_per_case(settings.duration, settings.output_rate); samples > o->max_samples)
-      throw ArgumentError(fmt::format("--duration/--output-rate: {:g} s at {:g} samples/s gives {} samples, more than "
-                                      "the cap of {}; lower them or raise the cap with --max-samples N",
-                                      settings.duration, settings.output_rate, samples, o->max_samples));
+    if (const long samples = samples_per_case(settings.duration, settings.output_rate);
+        samples > o->max_samples)
+      throw ArgumentError(
+          fmt::format("--duration/--output-rate: {:g} s at {:g} samples/s gives {} samples, more than "
+                      "the cap of {}; lower them or raise the cap with --max-samples N",
+                      settings.duration, settings.output_rate, samples, o->max_samples));
     int scenario = 0;
     if (!o->scenario.empty()) {
       scenario = -1;
@@ -138,7 +140,8 @@ Action add_simulate(CLI::App& app) {
     // Samples stream to a file beside the output (or in the temporary folder for standard output),
     // so memory does not grow with duration x output rate; it becomes the output only when complete.
     const std::filesystem::path target =
-        o->out.empty() ? std::filesystem::temp_directory_path() / "swaybound_simulate.csv" : std::filesystem::path(o->out);
+        o->out.empty() ? std::filesystem::temp_directory_path() / "swaybound_simulate.csv"
+                       : std::filesystem::path(o->out);
     PartialFile partial(target);
     std::ofstream& csv = partial.stream();
     csv.precision(10);

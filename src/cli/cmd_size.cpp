@@ -36,7 +36,8 @@ Action add_size(CLI::App& app) {
   cmd->add_option("--out", o->out, "Output folder (written whole, replaced only when complete)")->capture_default_str();
   cmd->add_option("--jobs", o->jobs, "Threads (default: every core)")->check(CLI::NonNegativeNumber);
   cmd->add_option("--max-cases", o->max_cases, "Cap on the number of cases")->check(CLI::PositiveNumber)->capture_default_str();
-  cmd->add_option("--max-samples", o->max_samples, "Cap on the output samples per case (cases.duration x cases.output_rate)")
+  cmd->add_option("--max-samples", o->max_samples,
+                  "Cap on the output samples per case (cases.duration x cases.output_rate)")
       ->check(CLI::PositiveNumber)
       ->capture_default_str();
   cmd->add_option("--screen", o->screening, "About this many every-k-th cases screen designs during the search "

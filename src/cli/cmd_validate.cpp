@@ -14,7 +14,8 @@ Action add_validate(CLI::App& app) {
   cmd->add_option("--max-cases", *max_cases, "Cap on the number of cases a spec may define")
       ->default_val(kDefaultMaxCases)
       ->check(CLI::PositiveNumber);
-  cmd->add_option("--max-samples", *max_samples, "Cap on the output samples per case (cases.duration x cases.output_rate)")
+  cmd->add_option("--max-samples", *max_samples,
+                  "Cap on the output samples per case (cases.duration x cases.output_rate)")
       ->default_val(kDefaultMaxSamples)
       ->check(CLI::PositiveNumber);
   return [cmd, spec_path, max_cases, max_samples]() {

@@ -5,9 +5,9 @@
 #include <fmt/format.h>
 
 #include "report_model.hpp"
-#include "text.hpp"
 #include "swaybound/core/cancel.hpp"
 #include "swaybound/report/document.hpp"
+#include "text.hpp"
 
 namespace swaybound {
 

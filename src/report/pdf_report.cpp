@@ -12,8 +12,8 @@
 #include <fmt/format.h>
 
 #include "report_model.hpp"
-#include "swaybound/core/error.hpp"
 #include "swaybound/core/cancel.hpp"
+#include "swaybound/core/error.hpp"
 #include "swaybound/report/document.hpp"
 #include "text.hpp"
 

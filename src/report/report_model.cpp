@@ -459,7 +459,8 @@ Section verdict_section(const Spec& spec, const CheckReport& r) {
   }
 
   s.blocks.push_back(subheading("Failed integrations"));
-  if (r.time_budget_total > 0) s.blocks.push_back(paragraph("This check is " + time_budget_note(spec, r.time_budget_total) + "."));
+  if (r.time_budget_total > 0)
+    s.blocks.push_back(paragraph("This check is " + time_budget_note(spec, r.time_budget_total) + "."));
   if (r.failed_total == 0) {
     s.blocks.push_back(paragraph(fmt::format("None: every one of the {} cases ran to its end.", r.case_count)));
   } else {

@@ -35,11 +35,12 @@ std::string csv_number(double v) { return std::isfinite(v) ? fmt::format("{:.10g
 }  // namespace
 
 std::string time_budget_note(const Spec& spec, long count) {
-  return fmt::format("not reproducible: {} run(s) stopped on the wall-clock budget solver.max_seconds = {:g} s "
-                     "(status time_budget), which depends on the machine and its load; the same spec can give other "
-                     "results elsewhere. Raise solver.max_seconds and bound the work with solver.max_steps, which "
-                     "gives the same result on every machine",
-                     count, spec.solver.max_seconds);
+  return fmt::format(
+      "not reproducible: {} run(s) stopped on the wall-clock budget solver.max_seconds = {:g} s "
+      "(status time_budget), which depends on the machine and its load; the same spec can give other "
+      "results elsewhere. Raise solver.max_seconds and bound the work with solver.max_steps, which "
+      "gives the same result on every machine",
+      count, spec.solver.max_seconds);
 }
 
 std::string results_json(const Spec& spec, const CheckReport& r) {

@@ -55,12 +55,13 @@ void check_sample_cap(const MapView& cases, const Spec& spec, const LoadOptions&
   const long samples = samples_per_case(spec.cases.duration, spec.cases.output_rate);
   if (samples <= options.max_samples) return;
   const std::string key = cases.has("output_rate") ? "output_rate" : "duration";
-  cases.ctx().error(cases.get(key), cases.path(key),
-                    fmt::format("{:g} s at {:g} samples/s gives {} samples per case, more than the cap of {}",
-                                spec.cases.duration, spec.cases.output_rate, samples, options.max_samples),
-                    fmt::format("lower cases.output_rate (at most {:g} /s for this duration) or cases.duration, or "
-                                "raise the cap with --max-samples N",
-                                std::floor(static_cast<double>(options.max_samples - 1) / spec.cases.duration)));
+  cases.ctx().error(
+      cases.get(key), cases.path(key),
+      fmt::format("{:g} s at {:g} samples/s gives {} samples per case, more than the cap of {}",
+                  spec.cases.duration, spec.cases.output_rate, samples, options.max_samples),
+      fmt::format("lower cases.output_rate (at most {:g} /s for this duration) or cases.duration, or "
+                  "raise the cap with --max-samples N",
+                  std::floor(static_cast<double>(options.max_samples - 1) / spec.cases.duration)));
 }
 
 constexpr std::string_view kKinds[] = {"single", "grid", "random", "corners", "ladder"};
@@ -384,23 +385,27 @@ double sizing_upper_bound(const Spec& spec, const SpecPath& path) {
 /// same value as an earlier variable, or a damper's saturation torque the spec does not give (sizing
 /// it would add a saturation the design does not have). Reported at the variable's path.
 void check_sizing_target(Context& ctx, const Spec& spec, const SpecPath& target, const YAML::Node& node,
-                         const std::string& path, const std::vector<std::pair<SpecPath, std::string>>& earlier) {
+                         const std::string& path,
+                         const std::vector<std::pair<SpecPath, std::string>>& earlier) {
   for (const auto& [other, other_path] : earlier)
     if (other.field == target.field && other.index == target.index) {
-      ctx.error(node, path, fmt::format("this addresses the same value as the earlier variable '{}'", other_path),
+      ctx.error(node, path,
+                fmt::format("this addresses the same value as the earlier variable '{}'", other_path),
                 "give each spec value at most one design variable: remove or merge this one");
       return;
     }
   if (target.field == SpecPath::Field::damper_max_torque) {
     const LinkSpec& link = spec.links[static_cast<std::size_t>(target.index)];
     if (link.pivot.damper && !std::isfinite(link.pivot.damper->max_torque))
-      ctx.error(node, path,
-                fmt::format("link '{}' has a damper without max_torque, so sizing it would add a saturation the "
-                            "design does not have",
-                            link.name),
-                fmt::format("give links[{}].pivot.damper.max_torque (the design's saturation torque) to size it, or "
-                            "remove this variable",
-                            link.name));
+      ctx.error(
+          node, path,
+          fmt::format("link '{}' has a damper without max_torque, so sizing it would add a saturation the "
+                      "design does not have",
+                      link.name),
+          fmt::format(
+              "give links[{}].pivot.damper.max_torque (the design's saturation torque) to size it, or "
+              "remove this variable",
+              link.name));
   }
 }
 
@@ -422,13 +427,15 @@ void check_objective_limit(Context& ctx, const MapView& objective, const Spec& s
   if (!needs_limit) return;
   for (const auto& l : spec.limits)
     if (l.kind == info->kind && l.link == s.metric_link) return;
-  ctx.error(objective.get("min"), objective.path("min"),
-            fmt::format("the objective {{min: {}}} needs a {} limit{} in 'limits'", info->key, info->key,
-                        s.metric_link >= 0 ? " for the same link" : ""),
-            info->kind == LimitKind::residual_sway
-                ? fmt::format("add a limit {{residual_sway: VALUE, after: TIME{}}}: it gives the time after which "
-                              "sway counts", s.metric_link >= 0 ? ", link: NAME" : "")
-                : fmt::format("add a limit {{{}: VALUE}}: it switches its computation on", info->key));
+  ctx.error(
+      objective.get("min"), objective.path("min"),
+      fmt::format("the objective {{min: {}}} needs a {} limit{} in 'limits'", info->key, info->key,
+                  s.metric_link >= 0 ? " for the same link" : ""),
+      info->kind == LimitKind::residual_sway
+          ? fmt::format("add a limit {{residual_sway: VALUE, after: TIME{}}}: it gives the time after which "
+                        "sway counts",
+                        s.metric_link >= 0 ? ", link: NAME" : "")
+          : fmt::format("add a limit {{{}: VALUE}}: it switches its computation on", info->key));
 }
 }  // namespace
 
@@ -545,7 +552,8 @@ void note_sizing_defaults(const MapView& m) {
   const YAML::Node budget = m.get("budget");
   bool evaluations = false;
   if (budget.IsDefined() && budget.IsMap())
-    for (auto it = budget.begin(); it != budget.end(); ++it) evaluations |= it->first.Scalar() == "evaluations";
+    for (auto it = budget.begin(); it != budget.end(); ++it)
+      evaluations |= it->first.Scalar() == "evaluations";
   if (!evaluations) filled.push_back("sizing.budget.evaluations");
   if (!m.has("budget")) filled.push_back("sizing.budget.seconds");
 }
@@ -729,16 +737,18 @@ void refuse_rkf78_on_sized_rough_forces(Context& ctx, const YAML::Node& node, co
     const auto f = target->field;
     const bool exponent = f == SpecPath::Field::damper_exponent && (v.lo != 1 || v.hi != 1);
     const bool friction = (f == SpecPath::Field::friction_torque || f == SpecPath::Field::friction_mu ||
-                           f == SpecPath::Field::friction_pin_radius) && v.hi > 0;
+                           f == SpecPath::Field::friction_pin_radius) &&
+                          v.hi > 0;
     if (exponent || friction) rough.push_back("'" + v.path + "'");
   }
   if (rough.empty()) return;
   std::string list;
   for (const auto& r : rough) list += (list.empty() ? "" : ", ") + r;
   ctx.error(node, "solver.method",
-            fmt::format("rkf78 does not converge reliably with regularised friction or power-law dampers, and sizing "
-                        "{} would give the designs them",
-                        list),
+            fmt::format(
+                "rkf78 does not converge reliably with regularised friction or power-law dampers, and sizing "
+                "{} would give the designs them",
+                list),
             "use `method: dopri5` (the default), or size other values");
 }
 }  // namespace
@@ -752,7 +762,8 @@ void read_solver_and_report(const MapView& top, Spec& spec) {
         if (auto k = read_choice(ctx, m.get("method"), "solver.method", {"dopri5", "rkf78"}))
           spec.solver.method = *k == "dopri5" ? Stepper::dopri5 : Stepper::rkf78;
         if (spec.solver.method == Stepper::rkf78) refuse_rkf78_on_rough_forces(ctx, m.get("method"), spec);
-        if (spec.solver.method == Stepper::rkf78) refuse_rkf78_on_sized_rough_forces(ctx, m.get("method"), spec);
+        if (spec.solver.method == Stepper::rkf78)
+          refuse_rkf78_on_sized_rough_forces(ctx, m.get("method"), spec);
       } else {
         ctx.defaults_filled.push_back("solver.method");
       }

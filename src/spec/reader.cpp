@@ -228,8 +228,9 @@ bool text_within_cap(Context& ctx, const YAML::Node& node, const std::string& pa
   std::size_t chars = 0;
   for (char c : text) chars += (static_cast<unsigned char>(c) & 0xC0) != 0x80;
   if (chars <= cap) return true;
-  ctx.error(node, path, fmt::format("{} characters is longer than the {} allowed for {}", chars, cap,
-                                    name ? "a name" : "this text"),
+  ctx.error(node, path,
+            fmt::format("{} characters is longer than the {} allowed for {}", chars, cap,
+                        name ? "a name" : "this text"),
             fmt::format("shorten it to at most {} characters{}", cap,
                         name ? "; put a longer description in report.title (up to 500)" : ""));
   return false;

@@ -1,25 +1,25 @@
 // Bounded memory and time: the cap on samples per case, `simulate` streaming its samples, the
 // decimated recordings of governing cases, the note on a binding wall-clock budget, the caps on
 // text fields and report rendering that stays linear and stops on a signal.
+#include <sys/resource.h>
+#include <sys/wait.h>
+#include <unistd.h>
 #include <catch2/catch.hpp>
 #include <chrono>
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
-#include <sys/resource.h>
-#include <sys/wait.h>
-#include <unistd.h>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
+#include "../support/process.hpp"
 #include "swaybound/checks/check_run.hpp"
 #include "swaybound/core/cancel.hpp"
 #include "swaybound/report/document.hpp"
 #include "swaybound/report/results.hpp"
 #include "swaybound/spec.hpp"
-#include "../support/process.hpp"
 
 using namespace swaybound;
 namespace fs = std::filesystem;
@@ -28,7 +28,8 @@ namespace {
 
 std::string one_link_spec(const std::string& cases, const std::string& extra = "") {
   return "swaybound: 1\nname: one link\nlinks:\n  - {name: arm, length: 2 m, mass: 10 kg}\n"
-         "cases: {" + cases + ", initial: [{single: {theta: [10 deg]}}]}\nlimits:\n  - {peak_angle: 30 deg}\n" + extra;
+         "cases: {" +
+         cases + ", initial: [{single: {theta: [10 deg]}}]}\nlimits:\n  - {peak_angle: 30 deg}\n" + extra;
 }
 
 /// A folder in the temporary folder, removed with its contents at the end of the scope.
@@ -81,7 +82,8 @@ std::size_t count_lines(const fs::path& file) {
 
 }  // namespace
 
-TEST_CASE("a spec whose samples per case exceed the cap is refused unless the cap is lifted", "[reliability][spec]") {
+TEST_CASE("a spec whose samples per case exceed the cap is refused unless the cap is lifted",
+          "[reliability][spec]") {
   // 20,000 s at 1e5 samples/s: 2e9 samples per case (it grew to 2.6 GB and died with bad_alloc).
   const std::string text = one_link_spec("duration: 20000 s, output_rate: 100000 /s");
   try {
@@ -95,18 +97,21 @@ TEST_CASE("a spec whose samples per case exceed the cap is refused unless the ca
   }
   // Exactly at the cap: 10,000,000 samples (the one at t = 0 included) load; one more does not.
   CHECK_NOTHROW(load_spec_text(one_link_spec("duration: 99999.99 s, output_rate: 100 /s"), "inline.yaml"));
-  CHECK_THROWS_AS(load_spec_text(one_link_spec("duration: 100000 s, output_rate: 100 /s"), "inline.yaml"), SpecError);
+  CHECK_THROWS_AS(load_spec_text(one_link_spec("duration: 100000 s, output_rate: 100 /s"), "inline.yaml"),
+                  SpecError);
   LoadOptions lifted;
   lifted.max_samples = 3'000'000'000L;
   CHECK(load_spec_text(text, "inline.yaml", lifted).cases.output_rate == 100000);
   // The CLI: exit 2 without the option, 0 with it.
   TempDir dir("cap");
   std::ofstream(dir.path / "spec.yaml") << text;
-  const auto refused = testing::run_command(fmt::format("{} validate '{}' 2>/dev/null", SWAYBOUND_CLI, (dir.path / "spec.yaml").string()));
+  const auto refused = testing::run_command(
+      fmt::format("{} validate '{}' 2>/dev/null", SWAYBOUND_CLI, (dir.path / "spec.yaml").string()));
   CHECK(refused.status == 2);
   CHECK(refused.out.empty());
-  const auto accepted = testing::run_command(
-      fmt::format("{} validate '{}' --max-samples 3000000000 2>/dev/null", SWAYBOUND_CLI, (dir.path / "spec.yaml").string()));
+  const auto accepted =
+      testing::run_command(fmt::format("{} validate '{}' --max-samples 3000000000 2>/dev/null", SWAYBOUND_CLI,
+                                       (dir.path / "spec.yaml").string()));
   CHECK(accepted.status == 0);
 }
 
@@ -116,8 +121,9 @@ TEST_CASE("simulate streams its samples to a file beside the output", "[reliabil
   const std::string spec = std::string(SWAYBOUND_SOURCE_DIR) + "/specs/gantry_hook_block.yaml";
   // 400 s at 500 samples/s: 200,001 rows, about 49 MB of CSV. Kept in memory (twice: the stream and
   // its copy) the process grew to 134 MB; streamed it stays near its size without the samples.
-  const auto [status, peak_kb] = run_measured(fmt::format("{} simulate '{}' --duration '400 s' --output-rate 500 -o '{}' 2>/dev/null",
-                                                           SWAYBOUND_CLI, spec, csv.string()));
+  const auto [status, peak_kb] =
+      run_measured(fmt::format("{} simulate '{}' --duration '400 s' --output-rate 500 -o '{}' 2>/dev/null",
+                               SWAYBOUND_CLI, spec, csv.string()));
   REQUIRE(status == 0);
   REQUIRE(fs::exists(csv));
   const auto bytes = fs::file_size(csv);
@@ -131,26 +137,30 @@ TEST_CASE("simulate streams its samples to a file beside the output", "[reliabil
   const fs::path failing = dir.path / "failing.yaml";
   std::ofstream(failing) << one_link_spec("duration: 5000 s", "solver: {max_steps: 100}\n");
   const fs::path none = dir.path / "none.csv";
-  const auto failed = testing::run_command(
-      fmt::format("{} simulate '{}' --theta '10 deg' -o '{}' 2>/dev/null", SWAYBOUND_CLI, failing.string(), none.string()));
+  const auto failed =
+      testing::run_command(fmt::format("{} simulate '{}' --theta '10 deg' -o '{}' 2>/dev/null", SWAYBOUND_CLI,
+                                       failing.string(), none.string()));
   CHECK(failed.status == 2);
   CHECK_FALSE(fs::exists(none));
-  CHECK(std::distance(fs::directory_iterator(dir.path), fs::directory_iterator()) == 2);  // series.csv, failing.yaml
+  CHECK(std::distance(fs::directory_iterator(dir.path), fs::directory_iterator()) ==
+        2);  // series.csv, failing.yaml
 
   // Standard output gets the same bytes.
-  const auto out = testing::run_command(
-      fmt::format("{} simulate '{}' --duration '2 s' 2>/dev/null", SWAYBOUND_CLI, spec));
+  const auto out =
+      testing::run_command(fmt::format("{} simulate '{}' --duration '2 s' 2>/dev/null", SWAYBOUND_CLI, spec));
   CHECK(out.status == 0);
   CHECK(std::count(out.out.begin(), out.out.end(), '\n') == 2 + 100);  // header and 0..2 s at 50 /s
 
   // --duration and --output-rate are held to the same cap as the spec.
-  const auto capped = testing::run_command(fmt::format("{} simulate '{}' --duration '20000 s' --output-rate 100000 -o '{}' 2>/dev/null",
-                                                       SWAYBOUND_CLI, spec, none.string()));
+  const auto capped = testing::run_command(
+      fmt::format("{} simulate '{}' --duration '20000 s' --output-rate 100000 -o '{}' 2>/dev/null",
+                  SWAYBOUND_CLI, spec, none.string()));
   CHECK(capped.status == 2);
   CHECK_FALSE(fs::exists(none));
 }
 
-TEST_CASE("recordings of governing cases keep at most kMaxRecordedPoints per series", "[reliability][checks]") {
+TEST_CASE("recordings of governing cases keep at most kMaxRecordedPoints per series",
+          "[reliability][checks]") {
   // 100 s at 100 samples/s: 10,001 samples, kept every 3rd (3,334 points).
   const Spec spec = load_spec_text(one_link_spec("duration: 100 s, output_rate: 100 /s"), "inline.yaml");
   CheckOptions options;
@@ -173,13 +183,15 @@ TEST_CASE("recordings of governing cases keep at most kMaxRecordedPoints per ser
   CHECK(short_report.recorded.front().t.size() == 101);
 }
 
-TEST_CASE("a binding wall-clock budget marks the results as not reproducible", "[reliability][checks][report]") {
+TEST_CASE("a binding wall-clock budget marks the results as not reproducible",
+          "[reliability][checks][report]") {
   CheckOptions options;
   options.audit = false;
   options.record = false;
   // 1 ns per case: the case stops on the wall-clock budget at its first look at the clock (every
   // 256 steps; 500 s of swinging takes thousands).
-  const Spec spec = load_spec_text(one_link_spec("duration: 500 s", "solver: {max_seconds: 1e-9 s}\n"), "inline.yaml");
+  const Spec spec =
+      load_spec_text(one_link_spec("duration: 500 s", "solver: {max_seconds: 1e-9 s}\n"), "inline.yaml");
   const CheckReport report = run_check(spec, options);
   REQUIRE(report.failed_total == 1);
   CHECK(report.failed.front().status == "time_budget");
@@ -200,14 +212,17 @@ TEST_CASE("a binding wall-clock budget marks the results as not reproducible", "
   CHECK(report_html(normal, normal_report).find("not reproducible") == std::string::npos);
 }
 
-TEST_CASE("names and titles at their caps load; the report renders long text in linear time and stops on a signal",
-          "[reliability][report][spec]") {
+TEST_CASE(
+    "names and titles at their caps load; the report renders long text in linear time and stops on a signal",
+    "[reliability][report][spec]") {
   const std::string name(kMaxNameChars, 'n');
   const std::string title(kMaxTextChars, 't');
-  Spec spec = load_spec_text("swaybound: 1\nname: " + name + "\nlinks:\n  - {name: " + name +
-                                 ", length: 2 m, mass: 10 kg}\ncases: {duration: 1 s, initial: [{single: {theta: [10 deg]}}]}\n"
-                                 "limits:\n  - {peak_angle: 30 deg}\nreport: {title: " + title + "}\n",
-                             "inline.yaml");
+  Spec spec = load_spec_text(
+      "swaybound: 1\nname: " + name + "\nlinks:\n  - {name: " + name +
+          ", length: 2 m, mass: 10 kg}\ncases: {duration: 1 s, initial: [{single: {theta: [10 deg]}}]}\n"
+          "limits:\n  - {peak_angle: 30 deg}\nreport: {title: " +
+          title + "}\n",
+      "inline.yaml");
   CHECK(spec.name == name);
   CHECK(spec.report.title == title);
   CheckOptions options;

@@ -94,7 +94,8 @@ TEST_CASE("every demo spec passes every command's preparation", "[spec][truth]")
   CHECK(count >= 2);
 }
 
-TEST_CASE("every fuzz-corpus spec the loader accepts passes every command's preparation", "[spec][truth][fuzz]") {
+TEST_CASE("every fuzz-corpus spec the loader accepts passes every command's preparation",
+          "[spec][truth][fuzz]") {
   int accepted_count = 0, total = 0;
   for (const auto& entry : fs::directory_iterator(fs::path(SWAYBOUND_SOURCE_DIR) / "tests/fuzz/corpus")) {
     if (!entry.is_regular_file()) continue;
@@ -129,10 +130,14 @@ limits:
 TEST_CASE("inline specs with sizing sections the loader accepts pass every command's preparation",
           "[spec][truth][sizing]") {
   const char* sizings[] = {
-      "sizing:\n  variables:\n    - {path: 'links[upper].pivot.damper.coefficient', range: [50 N m s/rad, 500 N m s/rad]}\n",
-      "sizing:\n  variables:\n    - {path: 'links[upper].pivot.damper.max_torque', range: [1 kN m, 9 kN m]}\n",
-      "sizing:\n  variables:\n    - {path: 'links[hook].length', range: [2 m, 4 m]}\n  objective: {min: peak_angle}\n",
-      "sizing:\n  variables:\n    - {path: 'links[hook].pivot.damper.coefficient', catalogue: [50 N m s/rad, 80 N m s/rad]}\n"
+      "sizing:\n  variables:\n    - {path: 'links[upper].pivot.damper.coefficient', range: [50 N m s/rad, "
+      "500 N m s/rad]}\n",
+      "sizing:\n  variables:\n    - {path: 'links[upper].pivot.damper.max_torque', range: [1 kN m, 9 kN "
+      "m]}\n",
+      "sizing:\n  variables:\n    - {path: 'links[hook].length', range: [2 m, 4 m]}\n  objective: {min: "
+      "peak_angle}\n",
+      "sizing:\n  variables:\n    - {path: 'links[hook].pivot.damper.coefficient', catalogue: [50 N m s/rad, "
+      "80 N m s/rad]}\n"
       "  objective: {min: peak_angle, link: hook}\n",
   };
   for (const char* sizing : sizings) {
@@ -186,14 +191,16 @@ std::vector<std::string> unmarked_defaults(const std::string& normalised, const 
     const std::string key = rest.substr(0, colon);
     const auto hash = rest.find("  #");
     const std::string comment = hash == std::string::npos ? "" : rest.substr(hash);
-    const std::string value = rest.substr(colon + 1, (hash == std::string::npos ? rest.size() : hash) - colon - 1);
+    const std::string value =
+        rest.substr(colon + 1, (hash == std::string::npos ? rest.size() : hash) - colon - 1);
     while (stack.back().indent >= indent) stack.pop_back();
     const Frame& parent = stack.back();
     const std::optional<YAML::Node> given = child(parent.source, key);
     const bool absent = !given;
     const bool marked = comment.find("default") != std::string::npos;
     const bool blank = value.find_first_not_of(' ') == std::string::npos;
-    if (!parent.defaulted && absent && !marked && !blank) out.push_back(fmt::format("line {}: {}", number, line));
+    if (!parent.defaulted && absent && !marked && !blank)
+      out.push_back(fmt::format("line {}: {}", number, line));
     if (blank) stack.push_back({indent, given, parent.defaulted || marked});
   }
   return out;
@@ -211,7 +218,8 @@ TEST_CASE("validate marks every value it filled in as a default", "[spec][truth]
       "cases:\n  duration: 2 s\n  initial:\n    - single: {theta: [5 deg, 0 deg]}\n"
       "limits:\n  - {peak_angle: 30 deg}\n"
       "chaos:\n  separation: 1e-9\n  onset: {resolution: 1 deg}\n"
-      "sizing:\n  variables:\n    - {path: 'links[hook].pivot.damper.coefficient', range: [50 N m s/rad, 500 N m s/rad]}\n"
+      "sizing:\n  variables:\n    - {path: 'links[hook].pivot.damper.coefficient', range: [50 N m s/rad, 500 "
+      "N m s/rad]}\n"
       "solver: {rtol: 1e-7}\n"
       "report: {project: P-1}\n",
   };
@@ -224,10 +232,12 @@ TEST_CASE("validate marks every value it filled in as a default", "[spec][truth]
 }
 
 TEST_CASE("the chaos.onset.max fix states the range the loader allows", "[spec][bad]") {
-  const std::string base = "swaybound: 1\nname: onset\nlinks:\n  - {name: arm, length: 2 m, mass: 10 kg}\n"
-                           "cases: {duration: 5 s, initial: [{single: {theta: [10 deg]}}]}\nchaos:\n  onset: {max: ";
+  const std::string base =
+      "swaybound: 1\nname: onset\nlinks:\n  - {name: arm, length: 2 m, mass: 10 kg}\n"
+      "cases: {duration: 5 s, initial: [{single: {theta: [10 deg]}}]}\nchaos:\n  onset: {max: ";
   // Just inside the range the fix states is accepted; the ends are refused with that fix.
-  CHECK(load_spec_text(base + "179.999 deg}\n", "inline.yaml").chaos.onset_max == Approx(179.999 * std::numbers::pi / 180));
+  CHECK(load_spec_text(base + "179.999 deg}\n", "inline.yaml").chaos.onset_max ==
+        Approx(179.999 * std::numbers::pi / 180));
   CHECK(load_spec_text(base + "0.001 deg}\n", "inline.yaml").chaos.onset_max > 0);
   for (const char* bad : {"180 deg}\n", "0 deg}\n", "3.1416 rad}\n"}) {
     INFO(bad);
