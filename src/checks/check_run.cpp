@@ -69,6 +69,12 @@ bool fit_line(const std::vector<double>& x, const std::vector<double>& y, double
   return true;
 }
 
+/// Every how many output samples a recording keeps one (kMaxRecordedPoints).
+long record_stride(const RunSettings& run) {
+  const long samples = samples_per_case(run.duration, run.output_rate);
+  return std::max(1L, (samples + kMaxRecordedPoints - 1) / kMaxRecordedPoints);
+}
+
 LadderResult ladder(const Model& model, const Spec& spec, const CaseSpace& space, const RunSettings& run, int set_index) {
   const InitialSetSpec& set = spec.cases.initial[static_cast<std::size_t>(set_index)];
   LadderResult r;
@@ -223,6 +229,7 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
       [&](CaseMetrics&& m) {
         checks.offer(m);
         report.total_steps += m.steps;
+        if (m.status == RunStatus::time_budget) ++report.time_budget_total;
         if (!m.ok()) {
           if (report.failed.size() < kFailedListed)
             report.failed.push_back({m.id, std::string(status_name(m.status)), m.reason});
@@ -284,7 +291,10 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
         [&](long k, Workspace& ws) {
           return run_case(model, spec, ws, space.at(governing[static_cast<std::size_t>(k)]), tight, case_options);
         },
-        [&](CaseMetrics&& m) { rerun.emplace(m.index, std::move(m)); });
+        [&](CaseMetrics&& m) {
+          if (m.status == RunStatus::time_budget) ++report.time_budget_total;
+          rerun.emplace(m.index, std::move(m));
+        });
     for (auto& c : checks.results()) {
       if (!c.per_case || c.governing < 0) continue;
       const CaseMetrics& m = rerun.at(c.governing);
@@ -317,7 +327,10 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
       rc.load.assign(static_cast<std::size_t>(n), {});
       rc.tension.assign(static_cast<std::size_t>(n), {});
       rc.wind_x.assign(model.wind.size(), {});
+      rc.stride = record_stride(recording);
+      long sample = 0;
       const Observer on_sample = [&](const StepView& v) {
+        if (sample++ % rc.stride != 0) return;
         rc.t.push_back(v.t);
         rc.support_x.push_back(-v.ws->reaction_x[0]);
         rc.support_y.push_back(-v.ws->reaction_y[0]);

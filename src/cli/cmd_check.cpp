@@ -75,6 +75,7 @@ Action add_check(CLI::App& app) {
     std::string spec, out = "reports/check";
     int jobs = 0;
     long max_cases = kDefaultMaxCases;
+    long max_samples = kDefaultMaxSamples;
     bool no_audit = false, quiet = false, force = false;
   };
   auto o = std::make_shared<Options>();
@@ -82,6 +83,10 @@ Action add_check(CLI::App& app) {
   cmd->add_option("--out", o->out, "Packet folder (written whole, replaced only when complete)")->capture_default_str();
   cmd->add_option("--jobs", o->jobs, "Threads (default: every core)")->check(CLI::NonNegativeNumber);
   cmd->add_option("--max-cases", o->max_cases, "Cap on the number of cases")->check(CLI::PositiveNumber)->capture_default_str();
+  cmd->add_option("--max-samples", o->max_samples,
+                  "Cap on the output samples per case (cases.duration x cases.output_rate)")
+      ->check(CLI::PositiveNumber)
+      ->capture_default_str();
   cmd->add_flag("--no-audit", o->no_audit, "Skip re-running governing cases at a tighter tolerance");
   cmd->add_flag("--force", o->force,
                 "Replace the packet of another design (a spec with another name); never deletes files "
@@ -89,7 +94,7 @@ Action add_check(CLI::App& app) {
   cmd->add_flag("--quiet", o->quiet, "No progress on stderr");
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
-    const Spec spec = load_spec(o->spec, LoadOptions{o->max_cases});
+    const Spec spec = load_spec(o->spec, LoadOptions{o->max_cases, o->max_samples});
     const std::string spec_sha = sha256_file(o->spec);
     // Every output problem (the overwrite rule, a folder that cannot be written, another run
     // writing it) is reported here, before any work is done.

@@ -75,11 +75,16 @@ Action add_modes(CLI::App& app) {
   auto* cmd = app.add_subcommand("modes", "Natural frequencies, damping ratios and mode shapes about the rest position");
   auto spec_path = std::make_shared<std::string>();
   auto json = std::make_shared<bool>(false);
+  auto max_samples = std::make_shared<long>(kDefaultMaxSamples);
   cmd->add_option("SPEC", *spec_path, "YAML design spec")->required();
   cmd->add_flag("--json", *json, "Print JSON (units in the key names) instead of a table");
-  return [cmd, spec_path, json]() {
+  cmd->add_option("--max-samples", *max_samples,
+                  "Cap on the output samples per case (cases.duration x cases.output_rate)")
+      ->default_val(kDefaultMaxSamples)
+      ->check(CLI::PositiveNumber);
+  return [cmd, spec_path, json, max_samples]() {
     if (!cmd->parsed()) return -1;
-    const Spec spec = load_spec(*spec_path);
+    const Spec spec = load_spec(*spec_path, LoadOptions{kDefaultMaxCases, *max_samples});
     const Model model = build_model(spec);
     const ModalResult result = modal_analysis(model);
     if (*json)

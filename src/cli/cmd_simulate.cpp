@@ -1,4 +1,5 @@
 // swaybound simulate: one case as a time series (CSV), with a short summary on stderr.
+#include <unistd.h>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -48,6 +49,43 @@ double parse_one(const std::string& option, const std::string& text, const units
   return values[0];
 }
 
+/// A file written beside its target and renamed onto it when complete; removed when not committed
+/// (a failed run, an exception, an interrupt), so the target is complete or untouched.
+class PartialFile {
+ public:
+  explicit PartialFile(std::filesystem::path target)
+      : target_(std::move(target)), temp_(target_.string() + fmt::format(".partial-{}", ::getpid())) {
+    if (std::filesystem::exists(temp_))
+      throw RunError(fmt::format(
+          "{} exists and was not written by this run; remove it or choose another output", temp_.string()));
+    stream_.open(temp_, std::ios::binary);
+    if (!stream_) throw RunError(fmt::format("cannot write {}", temp_.string()));
+  }
+  PartialFile(const PartialFile&) = delete;
+  PartialFile& operator=(const PartialFile&) = delete;
+  ~PartialFile() {
+    if (committed_) return;
+    stream_.close();
+    std::error_code ignored;
+    std::filesystem::remove(temp_, ignored);
+  }
+  std::ofstream& stream() { return stream_; }
+  const std::filesystem::path& temp() const { return temp_; }
+  /// Flushes, checks every write succeeded and renames the file onto its target.
+  void commit() {
+    stream_.close();
+    if (!stream_)
+      throw RunError(fmt::format("writing {} failed (disk full or not writable?)", temp_.string()));
+    std::filesystem::rename(temp_, target_);
+    committed_ = true;
+  }
+
+ private:
+  std::filesystem::path target_, temp_;
+  std::ofstream stream_;
+  bool committed_ = false;
+};
+
 std::string csv_quote(const std::string& s) {
   std::string out = "\"";
   for (char c : s) out += c == '"' ? std::string("\"\"") : std::string(1, c);
@@ -86,6 +124,7 @@ Action add_simulate(CLI::App& app) {
   struct Options {
     std::string spec, case_id, scenario, theta, rate, duration, output_rate, out;
     bool ftle = false;
+    long max_samples = kDefaultMaxSamples;
   };
   auto o = std::make_shared<Options>();
   cmd->add_option("SPEC", o->spec, "YAML design spec")->required();
@@ -102,15 +141,24 @@ Action add_simulate(CLI::App& app) {
   cmd->add_flag("--ftle", o->ftle,
                 "Also compute the finite-time Lyapunov exponent of this start (chaos settings of the spec; horizon: "
                 "chaos.horizon, else the ftle_max limit's, else cases.duration)");
+  cmd->add_option("--max-samples", o->max_samples, "Cap on the output samples (duration x output rate)")
+      ->check(CLI::PositiveNumber)
+      ->capture_default_str();
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
-    const Spec spec = load_spec(o->spec);
+    const Spec spec = load_spec(o->spec, LoadOptions{kDefaultMaxCases, o->max_samples});
     const Model model = build_model(spec);
     RunSettings settings = RunSettings::from_spec(spec);
     if (!o->duration.empty()) settings.duration = parse_one("--duration", o->duration, units::duration);
     if (!o->output_rate.empty()) settings.output_rate = parse_one("--output-rate", o->output_rate, units::rate);
     if (!(settings.duration > 0) || !(settings.output_rate > 0))
       throw ArgumentError("--duration and --output-rate must be > 0");
+    if (const long samples = samples_per_case(settings.duration, settings.output_rate);
+        samples > o->max_samples)
+      throw ArgumentError(
+          fmt::format("--duration/--output-rate: {:g} s at {:g} samples/s gives {} samples, more than "
+                      "the cap of {}; lower them or raise the cap with --max-samples N",
+                      settings.duration, settings.output_rate, samples, o->max_samples));
     int scenario = 0;
     if (!o->scenario.empty()) {
       scenario = -1;
@@ -145,7 +193,13 @@ Action add_simulate(CLI::App& app) {
                              model.scenarios[static_cast<std::size_t>(scenario)].name, describe_start(model, start));
 
     const int n = model.n;
-    std::ostringstream csv;
+    // Samples stream to a file beside the output (or in the temporary folder for standard output),
+    // so memory does not grow with duration x output rate; it becomes the output only when complete.
+    const std::filesystem::path target =
+        o->out.empty() ? std::filesystem::temp_directory_path() / "swaybound_simulate.csv"
+                       : std::filesystem::path(o->out);
+    PartialFile partial(target);
+    std::ofstream& csv = partial.stream();
     csv.precision(10);
     csv << csv_quote("t [s]");
     for (const char* name : {"base_x [m]", "base_y [m]", "base_vx [m/s]", "base_vy [m/s]", "base_ax [m/s^2]",
@@ -246,16 +300,12 @@ Action add_simulate(CLI::App& app) {
       return kExitError;
     }
     if (o->out.empty()) {
-      std::cout << csv.str();
+      csv.close();
+      if (!csv) throw RunError(fmt::format("writing {} failed (disk full?)", partial.temp().string()));
+      std::ifstream in(partial.temp(), std::ios::binary);
+      std::cout << in.rdbuf();  // the temporary file is removed when `partial` goes
     } else {
-      const std::filesystem::path target(o->out);
-      const std::filesystem::path temp = target.string() + ".partial";
-      {
-        std::ofstream file(temp, std::ios::binary);
-        file << csv.str();
-        if (!file.good()) throw RunError(fmt::format("cannot write {}", temp.string()));
-      }
-      std::filesystem::rename(temp, target);
+      partial.commit();
     }
     return kExitPass;
   };

@@ -27,6 +27,7 @@ Action add_size(CLI::App& app) {
     std::string spec, out = "reports/size";
     int jobs = 0;
     long max_cases = kDefaultMaxCases;
+    long max_samples = kDefaultMaxSamples;
     long screening = 64;
     bool no_audit = false, quiet = false, force = false;
   };
@@ -35,6 +36,10 @@ Action add_size(CLI::App& app) {
   cmd->add_option("--out", o->out, "Output folder (written whole, replaced only when complete)")->capture_default_str();
   cmd->add_option("--jobs", o->jobs, "Threads (default: every core)")->check(CLI::NonNegativeNumber);
   cmd->add_option("--max-cases", o->max_cases, "Cap on the number of cases")->check(CLI::PositiveNumber)->capture_default_str();
+  cmd->add_option("--max-samples", o->max_samples,
+                  "Cap on the output samples per case (cases.duration x cases.output_rate)")
+      ->check(CLI::PositiveNumber)
+      ->capture_default_str();
   cmd->add_option("--screen", o->screening, "About this many every-k-th cases screen designs during the search "
                                             "(plus the governing cases); 0: every case")
       ->check(CLI::NonNegativeNumber)
@@ -46,7 +51,7 @@ Action add_size(CLI::App& app) {
   cmd->add_flag("--quiet", o->quiet, "No progress on stderr");
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
-    const Spec spec = load_spec(o->spec, LoadOptions{o->max_cases});
+    const Spec spec = load_spec(o->spec, LoadOptions{o->max_cases, o->max_samples});
     // Input errors (no sizing section, an objective that cannot be computed) before anything is written.
     design_variables(spec);
     objective_metric(spec);
@@ -69,7 +74,7 @@ Action add_size(CLI::App& app) {
     options.jobs = o->jobs;
     options.screening_cases = o->screening;
     options.audit = !o->no_audit;
-    options.load = LoadOptions{o->max_cases};
+    options.load = LoadOptions{o->max_cases, o->max_samples};
     bool header_written = false;
     options.on_final_case = [&](const CaseMetrics& m) {
       if (!header_written) csv << cases_csv_header(spec);

@@ -5,8 +5,9 @@
 #include <fmt/format.h>
 
 #include "report_model.hpp"
-#include "text.hpp"
+#include "swaybound/core/cancel.hpp"
 #include "swaybound/report/document.hpp"
+#include "text.hpp"
 
 namespace swaybound {
 
@@ -192,7 +193,10 @@ class HtmlWriter {
     for (const auto& s : d_.sections)
       o_ += fmt::format("<li><a href=\"#{}\">{}</a></li>\n", esc(s.id), esc(s.title));
     o_ += "</ol>\n</nav>\n";
-    for (const auto& s : d_.sections) section(s);
+    for (const auto& s : d_.sections) {
+      throw_if_cancelled();  // a long report stops promptly on SIGINT/SIGTERM
+      section(s);
+    }
     o_ += "</main>\n<footer class=\"running\"><span>" + esc(footer_left) + "</span><span>" +
           esc(d_.pass ? "verdict: pass" : "verdict: FAIL") + "</span></footer>\n</div>\n</body>\n</html>\n";
     return o_;

@@ -12,6 +12,7 @@
 #include <fmt/format.h>
 
 #include "report_model.hpp"
+#include "swaybound/core/cancel.hpp"
 #include "swaybound/core/error.hpp"
 #include "swaybound/report/document.hpp"
 #include "text.hpp"
@@ -235,6 +236,7 @@ class Composer {
     if (s.new_page && y_ > top_ + 1) new_page();
     heading(s);
     for (std::size_t i = 0; i < s.blocks.size(); ++i) {
+      throw_if_cancelled();  // a long report stops promptly on SIGINT/SIGTERM
       const Block& b = s.blocks[i];
       // A subheading stays with what follows it.
       if (b.kind == Block::Kind::subheading && i + 1 < s.blocks.size()) need(22 + first_height(s.blocks[i + 1]));
@@ -428,6 +430,7 @@ class Composer {
     std::vector<RowLayout> rows;
     const double note_x = main.size() > 1 ? x[1] : x[0];
     for (const auto& row : t.rows) {
+      throw_if_cancelled();
       RowLayout rl;
       double h = 0;
       for (std::size_t k = 0; k < main.size(); ++k) {

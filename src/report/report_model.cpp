@@ -14,6 +14,7 @@
 #include "swaybound/core/version.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/report/format.hpp"
+#include "swaybound/report/results.hpp"
 #include "swaybound/spec/loader.hpp"
 
 namespace swaybound::report_doc {
@@ -658,6 +659,8 @@ Section verdict_section(const Spec& spec, const CheckReport& r, std::string_view
   }
 
   s.blocks.push_back(subheading("Failed integrations"));
+  if (r.time_budget_total > 0)
+    s.blocks.push_back(paragraph("This check is " + time_budget_note(spec, r.time_budget_total) + "."));
   if (r.failed_total == 0) {
     s.blocks.push_back(paragraph(fmt::format("None: every one of the {} cases ran to its end.", r.case_count)));
   } else {

@@ -34,6 +34,15 @@ std::string csv_number(double v) { return std::isfinite(v) ? fmt::format("{:.10g
 
 }  // namespace
 
+std::string time_budget_note(const Spec& spec, long count) {
+  return fmt::format(
+      "not reproducible: {} run(s) stopped on the wall-clock budget solver.max_seconds = {:g} s "
+      "(status time_budget), which depends on the machine and its load; the same spec can give other "
+      "results elsewhere. Raise solver.max_seconds and bound the work with solver.max_steps, which "
+      "gives the same result on every machine",
+      count, spec.solver.max_seconds);
+}
+
 std::string results_json(const Spec& spec, const CheckReport& r) {
   Json j;
   j["schema"] = kResultsSchema;
@@ -53,6 +62,11 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
   Json failed = Json::array();
   for (const auto& f : r.failed) failed.push_back({{"case", f.id}, {"status", f.status}, {"reason", f.reason}});
   j["failed_cases"] = failed;
+  // A wall-clock budget that binds makes the outcome depend on the machine and its load.
+  j["reproducible"] = r.time_budget_total == 0;
+  Json notes = Json::array();
+  if (r.time_budget_total > 0) notes.push_back(time_budget_note(spec, r.time_budget_total));
+  j["notes"] = notes;
 
   Json checks = Json::array();
   for (const auto& c : r.checks) {

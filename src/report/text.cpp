@@ -11,7 +11,15 @@ void GObjectDeleter::operator()(void* p) const {
 std::string escape(const std::string& text) {
   std::string out;
   out.reserve(text.size());
+  std::size_t run = 0;  // code points since the last space
   for (char c : text) {
+    const bool lead = (static_cast<unsigned char>(c) & 0xC0) != 0x80;
+    if (c == ' ' || c == '\n' || c == '\t') {
+      run = 0;
+    } else if (lead && ++run > kSoftBreakEvery) {
+      out += "\u200B";  // zero-width space: Pango may break here instead of splitting the run itself
+      run = 1;
+    }
     switch (c) {
       case '&': out += "&amp;"; break;
       case '<': out += "&lt;"; break;

@@ -3,6 +3,7 @@
 #include <cairo.h>
 #include <pango/pangocairo.h>
 
+#include <cstddef>
 #include <memory>
 #include <string>
 
@@ -20,7 +21,13 @@ struct Font {
   bool mono = false;
 };
 
-/// Escapes text for Pango markup.
+/// Longest run of characters without a space that escape() leaves without a break opportunity.
+/// Pango breaks an unbreakable run that does not fit by re-measuring what is left of it on every
+/// line, which is quadratic in its length (a 20,000-character name took 3 s, 200,000 took minutes).
+inline constexpr std::size_t kSoftBreakEvery = 80;
+
+/// Escapes text for Pango markup, with an invisible break opportunity (U+200B) in every run of
+/// more than kSoftBreakEvery characters without a space, so wrapping stays linear in the length.
 std::string escape(const std::string& text);
 
 /// A layout of `markup` (Pango markup; use escape() for plain text) in `font`, wrapped at `width`

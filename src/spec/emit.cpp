@@ -54,6 +54,11 @@ class Writer {
   }
   /// Sets the key path that `is_default` compares against, e.g. "links[0]".
   void at(std::string path) { path_ = {std::move(path)}; }
+  /// A "default" comment when `key` (under the current path) was filled in by the loader, for values
+  /// written directly to `out`.
+  void mark_default(const std::string& key) {
+    if (is_default(key)) out << YAML::Comment("default");
+  }
 
  private:
   bool is_default(const std::string& key) const {
@@ -217,8 +222,11 @@ std::string normalised_yaml(const Spec& spec) {
   w.value("output_rate", spec.cases.output_rate, u::rate);
   w.value("settling_band", spec.cases.settling_band, u::angle);
   out << YAML::Key << "initial" << YAML::Value << YAML::BeginSeq;
-  for (const auto& set : spec.cases.initial) {
-    out << YAML::BeginMap << YAML::Key << "name" << YAML::Value << set.name;
+  for (std::size_t i = 0; i < spec.cases.initial.size(); ++i) {
+    const auto& set = spec.cases.initial[i];
+    w.at(fmt::format("cases.initial[{}]", i));
+    out << YAML::BeginMap;
+    w.text("name", set.name);
     out << YAML::Key << kind_name(set.kind) << YAML::Value << YAML::BeginMap;
     if (set.kind == InitialKind::ladder) out << YAML::Key << "from" << YAML::Value << YAML::BeginMap;
     const bool ranged = set.kind == InitialKind::grid || set.kind == InitialKind::random ||
@@ -227,6 +235,7 @@ std::string normalised_yaml(const Spec& spec) {
       out << YAML::Key << "count" << YAML::Value << set.count << YAML::Key << "seed" << YAML::Value << set.seed
           << YAML::Key << "method" << YAML::Value
           << (set.method == SamplingMethod::uniform ? "uniform" : "latin_hypercube");
+    if (set.kind == InitialKind::random) w.mark_default("random.method");
     if (ranged) {
       emit_ranges(out, "theta", set.theta, set.kind == InitialKind::grid, u::angle);
       emit_ranges(out, "rate", set.rate, set.kind == InitialKind::grid, u::angular_rate);
@@ -243,10 +252,12 @@ std::string normalised_yaml(const Spec& spec) {
       for (double s : set.steps) out << (set.relative ? fmt::format("{:.6g}", s) : fmt::format("{:.6g} rad", s));
       out << YAML::EndSeq;
       out << YAML::Key << "link" << YAML::Value << spec.links[static_cast<std::size_t>(set.perturb_link)].name;
+      w.mark_default("ladder.link");
     }
     out << YAML::EndMap << YAML::EndMap << YAML::Comment(fmt::format("{} starts", initial_set_size(set)));
   }
   out << YAML::EndSeq;
+  w.at("");
   w.end();
   out << YAML::Comment(fmt::format("{} cases in all (starts x {} scenarios)", case_count(spec), spec.scenarios.size()));
 
@@ -288,11 +299,14 @@ std::string normalised_yaml(const Spec& spec) {
     w.value("uncertainty", c.uncertainty, u::angle);
     w.value("tolerance", c.tolerance, u::angle);
     w.value("threshold", c.threshold, u::rate);
-    out << YAML::Key << "onset" << YAML::Value << YAML::BeginMap << YAML::Key << "direction" << YAML::Value
-        << YAML::Flow << YAML::BeginSeq;
+    w.begin("onset");
+    out << YAML::Key << "direction" << YAML::Value << YAML::Flow << YAML::BeginSeq;
     for (double d : c.onset_direction) out << fmt::format("{:.12g}", d);
-    out << YAML::EndSeq << YAML::Key << "max" << YAML::Value << number(c.onset_max, u::angle)
-        << YAML::Key << "resolution" << YAML::Value << number(c.onset_resolution, u::angle) << YAML::EndMap;
+    out << YAML::EndSeq;
+    w.mark_default("direction");
+    w.value("max", c.onset_max, u::angle);
+    w.value("resolution", c.onset_resolution, u::angle);
+    w.end();
     if (c.map) {
       out << YAML::Key << "map" << YAML::Value << YAML::BeginMap;
       emit_ranges(out, "theta", {c.map_x, c.map_y}, true, u::angle);
@@ -304,7 +318,9 @@ std::string normalised_yaml(const Spec& spec) {
     const auto& s = *spec.sizing;
     w.begin("sizing");
     out << YAML::Key << "variables" << YAML::Value << YAML::BeginSeq;
-    for (const auto& v : s.variables) {
+    for (std::size_t i = 0; i < s.variables.size(); ++i) {
+      const auto& v = s.variables[i];
+      w.at(fmt::format("sizing.variables[{}]", i));
       std::string why;
       const auto target = parse_spec_path(spec, v.path, why);
       const u::Dim dim = target ? spec_path_dim(*target) : u::dimensionless;
@@ -318,9 +334,11 @@ std::string normalised_yaml(const Spec& spec) {
         out << YAML::EndSeq;
       }
       if (target && !u::angle_unit_required(dim)) out << YAML::Comment(u::si_unit(dim));
-      out << YAML::Key << "cost" << YAML::Value << fmt::format("{:.12g}", v.cost) << YAML::EndMap;
+      w.value("cost", v.cost, u::dimensionless);
+      out << YAML::EndMap;
     }
     out << YAML::EndSeq;
+    w.at("sizing");
     out << YAML::Key << "objective" << YAML::Value;
     if (s.objective == Objective::min_metric) {
       out << YAML::Flow << YAML::BeginMap << YAML::Key << "min" << YAML::Value << s.metric;
@@ -329,10 +347,13 @@ std::string normalised_yaml(const Spec& spec) {
     } else {
       out << (s.objective == Objective::min_cost ? "min_cost" : "max_margin");
     }
-    out << YAML::Key << "budget" << YAML::Value << YAML::Flow << YAML::BeginMap << YAML::Key << "evaluations"
-        << YAML::Value << s.max_evaluations << YAML::Key << "seconds" << YAML::Value << s.max_seconds << YAML::EndMap;
-    out << YAML::Key << "seed" << YAML::Value << s.seed;
-    out << YAML::Key << "mode" << YAML::Value << (s.mode == SearchMode::local ? "local" : "global");
+    w.mark_default("objective");
+    w.begin("budget");
+    w.value("evaluations", static_cast<double>(s.max_evaluations), u::dimensionless);  // a count
+    w.value("seconds", s.max_seconds, u::duration);
+    w.end();
+    w.text("seed", std::to_string(s.seed));
+    w.text("mode", s.mode == SearchMode::local ? "local" : "global");
     w.end();
   }
   w.begin("solver");

@@ -2,6 +2,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <numbers>
 
 #include <fmt/format.h>
 
@@ -41,8 +42,27 @@ long case_count(const Spec& spec) {
   return starts * static_cast<long>(spec.scenarios.size());
 }
 
+long samples_per_case(double duration, double output_rate) {
+  const double samples = std::floor(duration * output_rate) + 1;
+  return samples < 1e18 ? static_cast<long>(samples) : 1'000'000'000'000'000'000L;
+}
+
 namespace spec_detail {
 namespace {
+
+/// cases.duration x cases.output_rate against the cap on samples kept per case (LoadOptions).
+void check_sample_cap(const MapView& cases, const Spec& spec, const LoadOptions& options) {
+  const long samples = samples_per_case(spec.cases.duration, spec.cases.output_rate);
+  if (samples <= options.max_samples) return;
+  const std::string key = cases.has("output_rate") ? "output_rate" : "duration";
+  cases.ctx().error(
+      cases.get(key), cases.path(key),
+      fmt::format("{:g} s at {:g} samples/s gives {} samples per case, more than the cap of {}",
+                  spec.cases.duration, spec.cases.output_rate, samples, options.max_samples),
+      fmt::format("lower cases.output_rate (at most {:g} /s for this duration) or cases.duration, or "
+                  "raise the cap with --max-samples N",
+                  std::floor(static_cast<double>(options.max_samples - 1) / spec.cases.duration)));
+}
 
 constexpr std::string_view kKinds[] = {"single", "grid", "random", "corners", "ladder"};
 
@@ -116,8 +136,11 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
   }
   const std::string kind(kKinds[static_cast<int>(set.kind)]);
   set.name = kind;
-  if (m.has("name"))
+  if (m.has("name")) {
     if (auto s = read_string(ctx, m.get("name"), m.path("name"))) set.name = *s;
+  } else {
+    ctx.defaults_filled.push_back(m.path("name"));
+  }
   const std::size_t n = spec.links.size();
   const std::string kp = m.path(kind);
   switch (set.kind) {
@@ -214,6 +237,7 @@ void read_cases(const MapView& top, Spec& spec, const LoadOptions& options) {
       spec.cases.duration = *v;
   read_optional(m, "output_rate", spec.cases.output_rate, u::rate, Bounds{0, 1e5, true, false});
   read_optional(m, "settling_band", spec.cases.settling_band, u::angle, Bounds{0, 3.2, true, false});
+  check_sample_cap(m, spec, options);
   if (!m.require("initial", "a list of initial-condition sets (single, grid, random, corners, ladder)")) return;
   const YAML::Node list = m.get("initial");
   if (!expect_sequence(ctx, list, "cases.initial", "initial-condition sets")) return;
@@ -358,6 +382,82 @@ double sizing_upper_bound(const Spec& spec, const SpecPath& path) {
   if (path.field == SpecPath::Field::mass) return kMaxLinkMass;
   return std::numeric_limits<double>::infinity();
 }
+
+/// A design variable that `size` could not use although its path names a value of the spec: the
+/// same value as an earlier variable, or a damper's saturation torque the spec does not give (sizing
+/// it would add a saturation the design does not have). Reported at the variable's path.
+void check_sizing_target(Context& ctx, const Spec& spec, const SpecPath& target, const YAML::Node& node,
+                         const std::string& path,
+                         const std::vector<std::pair<SpecPath, std::string>>& earlier) {
+  for (const auto& [other, other_path] : earlier)
+    if (other.field == target.field && other.index == target.index) {
+      ctx.error(node, path,
+                fmt::format("this addresses the same value as the earlier variable '{}'", other_path),
+                "give each spec value at most one design variable: remove or merge this one");
+      return;
+    }
+  if (target.field == SpecPath::Field::damper_max_torque) {
+    const LinkSpec& link = spec.links[static_cast<std::size_t>(target.index)];
+    if (link.pivot.damper && !std::isfinite(link.pivot.damper->max_torque))
+      ctx.error(
+          node, path,
+          fmt::format("link '{}' has a damper without max_torque, so sizing it would add a saturation the "
+                      "design does not have",
+                      link.name),
+          fmt::format(
+              "give links[{}].pivot.damper.max_torque (the design's saturation torque) to size it, or "
+              "remove this variable",
+              link.name));
+  }
+}
+
+/// The objective {min: KIND[, link]} must be computable by `size`: a whole-chain kind takes no link,
+/// and residual_sway, ftle_max and onset_margin need their limit (with the same link) in the spec,
+/// which sets the time after which sway counts or switches the computation on.
+void check_objective_limit(Context& ctx, const MapView& objective, const Spec& spec, const SizingSpec& s) {
+  const LimitInfo* info = nullptr;
+  for (const auto& k : kLimits)
+    if (k.key == s.metric) info = &k;
+  if (!info) return;
+  if (objective.has("link") && !info->link_allowed) {
+    ctx.error(objective.key_mark("link"), objective.path("link"),
+              fmt::format("'{}' applies to the whole chain", info->key), "remove 'link' from the objective");
+    return;
+  }
+  const bool needs_limit = info->kind == LimitKind::residual_sway || info->kind == LimitKind::ftle_max ||
+                           info->kind == LimitKind::onset_margin;
+  if (!needs_limit) return;
+  for (const auto& l : spec.limits)
+    if (l.kind == info->kind && l.link == s.metric_link) return;
+  ctx.error(
+      objective.get("min"), objective.path("min"),
+      fmt::format("the objective {{min: {}}} needs a {} limit{} in 'limits'", info->key, info->key,
+                  s.metric_link >= 0 ? " for the same link" : ""),
+      info->kind == LimitKind::residual_sway
+          ? fmt::format("add a limit {{residual_sway: VALUE, after: TIME{}}}: it gives the time after which "
+                        "sway counts",
+                        s.metric_link >= 0 ? ", link: NAME" : "")
+          : fmt::format("add a limit {{{}: VALUE}}: it switches its computation on", info->key));
+}
+}  // namespace
+
+namespace {
+/// chaos.onset.max: the largest start amplitude searched, above 0 and below 180 deg (a start at
+/// 180 deg is the inverted rest position).
+void read_onset_max(const MapView& onset, ChaosSpec& c) {
+  if (!onset.has("max")) {
+    onset.ctx().defaults_filled.push_back(onset.path("max"));
+    return;
+  }
+  const auto v = read_quantity(onset.ctx(), onset.get("max"), onset.path("max"), u::angle);
+  if (!v) return;
+  if (!(*v > 0 && *v < std::numbers::pi))
+    onset.ctx().error(onset.get("max"), onset.path("max"),
+                      fmt::format("{} is out of range", u::format_si(*v, u::angle)),
+                      "give an amplitude above 0 and below 180 deg (pi rad), e.g. 170 deg");
+  else
+    c.onset_max = *v;
+}
 }  // namespace
 
 namespace {
@@ -402,6 +502,9 @@ void read_chaos(const MapView& top, Spec& spec) {
   if (!top.has("chaos")) {
     if (c.horizon == 0) c.horizon = spec.cases.duration;
     c.onset_direction.assign(spec.links.size(), 1.0);
+    for (const char* key : {"separation", "renormalise", "horizon", "uncertainty", "tolerance", "threshold",
+                            "onset.direction", "onset.max", "onset.resolution"})
+      ctx.defaults_filled.push_back(std::string("chaos.") + key);
     return;
   }
   MapView m(ctx, top.get("chaos"), "chaos",
@@ -414,8 +517,8 @@ void read_chaos(const MapView& top, Spec& spec) {
   read_optional(m, "renormalise", c.renormalise, u::duration, Bounds::positive());
   if (m.has("horizon")) {
     if (auto v = read_quantity(ctx, m.get("horizon"), "chaos.horizon", u::duration, Bounds::positive())) c.horizon = *v;
-  } else if (c.horizon == 0) {
-    c.horizon = spec.cases.duration;
+  } else {
+    if (c.horizon == 0) c.horizon = spec.cases.duration;  // else an ftle_max limit's horizon
     ctx.defaults_filled.push_back("chaos.horizon");
   }
   read_ftle_norm(m, spec);
@@ -443,7 +546,7 @@ void read_chaos(const MapView& top, Spec& spec) {
           ctx.error(d, "chaos.onset.direction", "the largest weight must be 1 (or -1)",
                     "scale the direction so its largest component is 1; amplitudes are that link's angle");
       }
-      read_optional(o, "max", c.onset_max, u::angle, Bounds{0, 3.14159265358979, true, false});
+      read_onset_max(o, c);
       read_optional(o, "resolution", c.onset_resolution, u::angle, Bounds::positive());
     }
   }
@@ -462,7 +565,13 @@ void read_chaos(const MapView& top, Spec& spec) {
       }
     }
   }
-  if (c.onset_direction.empty()) c.onset_direction.assign(spec.links.size(), 1.0);
+  if (!m.has("onset"))
+    for (const char* key : {"chaos.onset.direction", "chaos.onset.max", "chaos.onset.resolution"})
+      ctx.defaults_filled.push_back(key);
+  if (c.onset_direction.empty()) {
+    c.onset_direction.assign(spec.links.size(), 1.0);
+    if (m.has("onset")) ctx.defaults_filled.push_back("chaos.onset.direction");
+  }
   for (std::size_t i = 0; i < spec.limits.size(); ++i)
     if (spec.limits[i].kind == LimitKind::ftle_max && spec.limits[i].horizon != c.horizon && m.has("horizon"))
       ctx.error(m.get("horizon"), "chaos.horizon",
@@ -471,6 +580,23 @@ void read_chaos(const MapView& top, Spec& spec) {
                 "the FTLE is computed once per case: give one horizon (or leave chaos.horizon out)");
 }
 
+namespace {
+/// Records the sizing keys left out (the variables' costs and budget.seconds are recorded where
+/// they are read).
+void note_sizing_defaults(const MapView& m) {
+  auto& filled = m.ctx().defaults_filled;
+  for (const char* key : {"objective", "seed", "mode"})
+    if (!m.has(key)) filled.push_back(m.path(key));
+  const YAML::Node budget = m.get("budget");
+  bool evaluations = false;
+  if (budget.IsDefined() && budget.IsMap())
+    for (auto it = budget.begin(); it != budget.end(); ++it)
+      evaluations |= it->first.Scalar() == "evaluations";
+  if (!evaluations) filled.push_back("sizing.budget.evaluations");
+  if (!m.has("budget")) filled.push_back("sizing.budget.seconds");
+}
+}  // namespace
+
 void read_sizing(const MapView& top, Spec& spec) {
   Context& ctx = top.ctx();
   if (!top.has("sizing")) return;
@@ -478,6 +604,7 @@ void read_sizing(const MapView& top, Spec& spec) {
   if (!m.ok()) return;
   SizingSpec s;
   s.mark = m.mark();
+  std::vector<std::pair<SpecPath, std::string>> targets;  // of the variables read so far
   if (m.require("variables", "a list of design variables {path, range, cost}") &&
       expect_sequence(ctx, m.get("variables"), "sizing.variables", "design variables")) {
     const YAML::Node list = m.get("variables");
@@ -497,6 +624,10 @@ void read_sizing(const MapView& top, Spec& spec) {
           if (!target)
             ctx.error(v.get("path"), v.path("path"), fmt::format("'{}' does not name a value of this spec: {}", *p, why),
                       "see specs/README.md, 'sizing', for the paths that can be varied");
+          else {
+            check_sizing_target(ctx, spec, *target, v.get("path"), v.path("path"), targets);
+            targets.emplace_back(*target, *p);
+          }
         }
       const u::Dim dim = target ? spec_path_dim(*target) : u::dimensionless;
       if (v.has("range") == v.has("catalogue")) {
@@ -557,6 +688,7 @@ void read_sizing(const MapView& top, Spec& spec) {
         if (auto k = read_choice(ctx, om.get("min"), om.path("min"), names)) s.metric = *k;
         if (om.has("link")) s.metric_link = read_link_ref(ctx, om.get("link"), om.path("link"), spec);
         s.objective = Objective::min_metric;
+        check_objective_limit(ctx, om, spec, s);
       }
     } else if (auto k = read_string(ctx, o, "sizing.objective")) {
       // Every form of the objective, so the fix names the map form too.
@@ -587,6 +719,7 @@ void read_sizing(const MapView& top, Spec& spec) {
   if (m.has("mode"))
     if (auto k = read_choice(ctx, m.get("mode"), "sizing.mode", {"local", "global"}))
       s.mode = *k == "local" ? SearchMode::local : SearchMode::global;
+  note_sizing_defaults(m);
   spec.sizing = std::move(s);
 }
 
@@ -620,6 +753,56 @@ void refuse_rkf78_on_rough_forces(Context& ctx, const YAML::Node& node, const Sp
 }
 }  // namespace
 
+namespace {
+/// The report's title defaults to the spec's name (also when given empty); every report key left out
+/// is recorded.
+void note_report_defaults(Context& ctx, const MapView& top, Spec& spec) {
+  const YAML::Node report = top.get("report");
+  const auto given = [&](const char* key) {
+    if (!report.IsDefined() || !report.IsMap()) return false;
+    for (auto it = report.begin(); it != report.end(); ++it)
+      if (it->first.Scalar() == key) return true;
+    return false;
+  };
+  if (spec.report.title.empty()) {
+    spec.report.title = spec.name;
+    ctx.defaults_filled.push_back("report.title");
+  }
+  for (const char* key : {"project", "revision", "prepared_by", "paper"})
+    if (!given(key)) ctx.defaults_filled.push_back(std::string("report.") + key);
+}
+}  // namespace
+
+namespace {
+/// The same refusal for force laws that sizing would make rough: a design variable on a damper
+/// exponent, or on a friction value whose range reaches above zero. Every design `size` tries is
+/// re-loaded, and the loader would refuse it with rkf78 half-way through the search.
+void refuse_rkf78_on_sized_rough_forces(Context& ctx, const YAML::Node& node, const Spec& spec) {
+  if (!spec.sizing) return;
+  std::vector<std::string> rough;
+  for (const auto& v : spec.sizing->variables) {
+    std::string why;
+    const auto target = parse_spec_path(spec, v.path, why);
+    if (!target) continue;
+    const auto f = target->field;
+    const bool exponent = f == SpecPath::Field::damper_exponent && (v.lo != 1 || v.hi != 1);
+    const bool friction = (f == SpecPath::Field::friction_torque || f == SpecPath::Field::friction_mu ||
+                           f == SpecPath::Field::friction_pin_radius) &&
+                          v.hi > 0;
+    if (exponent || friction) rough.push_back("'" + v.path + "'");
+  }
+  if (rough.empty()) return;
+  std::string list;
+  for (const auto& r : rough) list += (list.empty() ? "" : ", ") + r;
+  ctx.error(node, "solver.method",
+            fmt::format(
+                "rkf78 does not converge reliably with regularised friction or power-law dampers, and sizing "
+                "{} would give the designs them",
+                list),
+            "use `method: dopri5` (the default), or size other values");
+}
+}  // namespace
+
 void read_solver_and_report(const MapView& top, Spec& spec) {
   Context& ctx = top.ctx();
   if (top.has("solver")) {
@@ -629,6 +812,8 @@ void read_solver_and_report(const MapView& top, Spec& spec) {
         if (auto k = read_choice(ctx, m.get("method"), "solver.method", {"dopri5", "rkf78"}))
           spec.solver.method = *k == "dopri5" ? Stepper::dopri5 : Stepper::rkf78;
         if (spec.solver.method == Stepper::rkf78) refuse_rkf78_on_rough_forces(ctx, m.get("method"), spec);
+        if (spec.solver.method == Stepper::rkf78)
+          refuse_rkf78_on_sized_rough_forces(ctx, m.get("method"), spec);
       } else {
         ctx.defaults_filled.push_back("solver.method");
       }
@@ -659,7 +844,7 @@ void read_solver_and_report(const MapView& top, Spec& spec) {
           spec.report.paper = *k == "a4" ? Paper::a4 : Paper::letter;
     }
   }
-  if (spec.report.title.empty()) spec.report.title = spec.name;
+  note_report_defaults(ctx, top, spec);
 }
 
 }  // namespace spec_detail

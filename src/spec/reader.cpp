@@ -1,5 +1,7 @@
 #include "reader.hpp"
 
+#include "swaybound/spec/loader.hpp"
+
 #include <algorithm>
 #include <cmath>
 
@@ -255,12 +257,32 @@ std::optional<double> read_quantity(Context& ctx, const YAML::Node& node, const 
   return v;
 }
 
+namespace {
+/// A name (a key path ending in "name") holds at most kMaxNameChars characters, other text at most
+/// kMaxTextChars; false (and a diagnostic) when `text` is longer.
+bool text_within_cap(Context& ctx, const YAML::Node& node, const std::string& path, const std::string& text) {
+  const bool name = path == "name" || (path.size() > 5 && path.compare(path.size() - 5, 5, ".name") == 0);
+  const std::size_t cap = name ? kMaxNameChars : kMaxTextChars;
+  if (text.size() <= cap) return true;  // bytes >= characters
+  std::size_t chars = 0;
+  for (char c : text) chars += (static_cast<unsigned char>(c) & 0xC0) != 0x80;
+  if (chars <= cap) return true;
+  ctx.error(node, path,
+            fmt::format("{} characters is longer than the {} allowed for {}", chars, cap,
+                        name ? "a name" : "this text"),
+            fmt::format("shorten it to at most {} characters{}", cap,
+                        name ? "; put a longer description in report.title (up to 500)" : ""));
+  return false;
+}
+}  // namespace
+
 std::optional<std::string> read_string(Context& ctx, const YAML::Node& node, const std::string& path) {
   if (!check_no_tag(ctx, node, path)) return std::nullopt;
   if (!node.IsScalar()) {
     ctx.error(node, path, fmt::format("expected text, got {}", node_kind(node)), "write a single line of text");
     return std::nullopt;
   }
+  if (!text_within_cap(ctx, node, path, node.Scalar())) return std::nullopt;
   return node.Scalar();
 }
 

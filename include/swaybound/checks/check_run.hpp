@@ -56,11 +56,17 @@ struct ChaosSummary {
   ChaosMap map;
 };
 
+/// Most points kept per recorded time series (per plot line): a longer run is decimated to every
+/// k-th output sample, k = ceil(samples / kMaxRecordedPoints), so a recording costs at most
+/// (1 + 3 x links) x kMaxRecordedPoints doubles whatever duration x output_rate is.
+inline constexpr long kMaxRecordedPoints = 4000;
+
 /// A governing case re-run at the spec's tolerance with its time series recorded (for plots).
 struct RecordedCase {
   long index = -1;
   std::string id;
-  std::vector<double> t;                    ///< [s] at cases.output_rate
+  long stride = 1;                          ///< every stride-th output sample is kept
+  std::vector<double> t;                    ///< [s] at cases.output_rate / stride
   std::vector<std::vector<double>> theta;   ///< per link [rad]
   std::vector<std::vector<double>> load;    ///< pivot load per link [N]
   std::vector<std::vector<double>> tension; ///< least axial tension per link (either end) [N]
@@ -91,6 +97,9 @@ struct CheckReport {
   std::vector<RecordedCase> recorded;  ///< every governing case, recorded, in case order
   std::vector<FailedCase> failed;  ///< the first 100 failed cases
   long failed_total = 0;
+  /// Cases and audit re-runs stopped by the wall-clock budget (solver.max_seconds, status
+  /// time_budget): when > 0 the results depend on the machine and its load, and are not reproducible.
+  long time_budget_total = 0;
   double max_audit_relative = 0;   ///< largest energy-audit residual / energy scale over the cases
   std::string max_audit_case;
   long total_steps = 0;

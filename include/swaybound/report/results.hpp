@@ -11,6 +11,10 @@ namespace swaybound {
 
 inline constexpr const char* kResultsSchema = "swaybound.results/1";
 
+/// The note results.json and the report carry when `count` runs stopped on the wall-clock budget
+/// (solver.max_seconds): the results are not reproducible.
+std::string time_budget_note(const Spec& spec, long count);
+
 /// results.json text.
 std::string results_json(const Spec& spec, const CheckReport& report);
 

@@ -23,10 +23,22 @@ inline constexpr double kMaxLinkMass = 1e8;                    ///< kg (100 000 
 inline constexpr double kMinPendulumPeriod = 1e-3, kMaxPendulumPeriod = 86400;  ///< s
 /// A dashpot shorter than this at the hanging rest position has no usable direction.
 inline constexpr double kMinDashpotLength = 1e-3;  ///< m
+/// Characters (Unicode code points) in a name (any key `name`) and in any other text value
+/// (report title, project, ...): the report lays them out on a page.
+inline constexpr std::size_t kMaxNameChars = 200;
+inline constexpr std::size_t kMaxTextChars = 500;
+/// Output samples per case (cases.duration x cases.output_rate, plus the one at t = 0); a chaos
+/// ladder keeps every sample of each of its starts. Lifted with --max-samples.
+inline constexpr long kDefaultMaxSamples = 10'000'000;
 
 struct LoadOptions {
-  long max_cases = kDefaultMaxCases;  ///< the case cap; a larger case set is an error
+  long max_cases = kDefaultMaxCases;      ///< the case cap; a larger case set is an error
+  long max_samples = kDefaultMaxSamples;  ///< the cap on output samples per case
 };
+
+/// Output samples of a case of `duration` [s] at `output_rate` [1/s], the one at t = 0 included
+/// (saturates at 1e18).
+long samples_per_case(double duration, double output_rate);
 
 /// Reads and validates the spec at `path`. Throws SpecError: with line 0 when the file as a whole
 /// is unusable (missing, a folder, unreadable, too large, empty), with the position otherwise
