@@ -390,7 +390,7 @@ void check_sizing_target(Context& ctx, const Spec& spec, const SpecPath& target,
                          const std::string& path,
                          const std::vector<std::pair<SpecPath, std::string>>& earlier) {
   for (const auto& [other, other_path] : earlier)
-    if (other.field == target.field && other.index == target.index) {
+    if (other.field == target.field && other.index == target.index && other.damper == target.damper) {
       ctx.error(node, path,
                 fmt::format("this addresses the same value as the earlier variable '{}'", other_path),
                 "give each spec value at most one design variable: remove or merge this one");
@@ -398,12 +398,13 @@ void check_sizing_target(Context& ctx, const Spec& spec, const SpecPath& target,
     }
   if (target.field == SpecPath::Field::damper_max_torque) {
     const LinkSpec& link = spec.links[static_cast<std::size_t>(target.index)];
-    if (link.pivot.damper && !std::isfinite(link.pivot.damper->max_torque))
+    const auto d = static_cast<std::size_t>(target.damper);
+    if (d < link.pivot.dampers.size() && !std::isfinite(link.pivot.dampers[d].max_torque))
       ctx.error(
           node, path,
-          fmt::format("link '{}' has a damper without max_torque, so sizing it would add a saturation the "
+          fmt::format("link '{}' has a damper without max_torque{}, so sizing it would add a saturation the "
                       "design does not have",
-                      link.name),
+                      link.name, link.pivot.dampers.size() > 1 ? fmt::format(" (dampers[{}])", d) : ""),
           fmt::format(
               "give links[{}].pivot.damper.max_torque (the design's saturation torque) to size it, or "
               "remove this variable",
