@@ -305,7 +305,9 @@ std::string normalised_yaml(const Spec& spec) {
         out << YAML::EndSeq;
       }
       if (target && !u::angle_unit_required(dim)) out << YAML::Comment(u::si_unit(dim));
-      out << YAML::Key << "cost" << YAML::Value << fmt::format("{:.12g}", v.cost) << YAML::EndMap;
+      out << YAML::Key << "cost" << YAML::Value << fmt::format("{:.12g}", v.cost);
+      if (v.step > 0) out << YAML::Key << "step" << YAML::Value << number(v.step, dim);
+      out << YAML::EndMap;
     }
     out << YAML::EndSeq;
     out << YAML::Key << "objective" << YAML::Value;
@@ -320,6 +322,7 @@ std::string normalised_yaml(const Spec& spec) {
         << YAML::Value << s.max_evaluations << YAML::Key << "seconds" << YAML::Value << s.max_seconds << YAML::EndMap;
     out << YAML::Key << "seed" << YAML::Value << s.seed;
     out << YAML::Key << "mode" << YAML::Value << (s.mode == SearchMode::local ? "local" : "global");
+    out << YAML::Key << "required_margin" << YAML::Value << fmt::format("{:.12g}", s.required_margin);
     w.end();
   }
   w.begin("solver");
