@@ -541,3 +541,41 @@ TEST_CASE("sizing margin and step: bad input names the line and the fix", "[sizi
     - {path: "links[arm].pivot.damper.coefficient", range: [1 N m s/rad, 2 N m s/rad], step: 0 N m s/rad}
 )").find("step") != std::string::npos);
 }
+
+TEST_CASE("swaybound size --margin: the packet's report shows the sizing and names the sized spec where it lies",
+          "[sizing][cli]") {
+  const fs::path spec = fs::temp_directory_path() / fmt::format("swaybound-test-size-margin-{}.yaml", ::getpid());
+  std::ofstream(spec) << pendulum(kOneDamper);
+  const fs::path out = fs::temp_directory_path() / fmt::format("swaybound-test-size-margin-out-{}", ::getpid());
+  fs::remove_all(out);
+  REQUIRE(run_cli(fmt::format("size {} --out {} --jobs 2 --margin 5%", spec.string(), out.string())) == 0);
+  const auto summary = nlohmann::json::parse(read_text(out / "sizing.json"));
+  CHECK(summary["search"]["required_margin"] == 0.05);
+  CHECK(load_spec((out / "sized_spec.yaml").string()).sizing->required_margin == 0.05);
+  const std::string final_path = (out / "sized_spec.yaml").string();
+  // The report names the file the user gets, not the temporary folder it was written in.
+  const std::string html = read_text(out / "report.html");
+  CHECK(html.find(final_path) != std::string::npos);
+  CHECK(html.find(".partial") == std::string::npos);
+  // The sizing section: the summary and the before/after tables, in the HTML and the PDF.
+  CHECK(html.find("Sizing: the design as given and as sized") != std::string::npos);
+  CHECK(html.find("Required margin: 5%") != std::string::npos);
+  CHECK(html.find("sizing-variables") != std::string::npos);
+  CHECK(html.find("sizing-checks") != std::string::npos);
+  const fs::path text = out.string() + ".txt";
+  REQUIRE(std::system(fmt::format("pdftotext -layout {} {}", (out / "report.pdf").string(), text.string()).c_str()) == 0);
+  const std::string pdf = read_text(text);
+  fs::remove(text);
+  CHECK(pdf.find("Sizing: the design as given and as sized") != std::string::npos);
+  CHECK(pdf.find("Required margin: 5%") != std::string::npos);
+  CHECK(pdf.find("worst before") != std::string::npos);
+  CHECK(pdf.find(".partial") == std::string::npos);
+  // A margin out of range is refused before anything is written.
+  const fs::path bad = out.string() + "-bad";
+  fs::remove_all(bad);
+  CHECK(run_cli(fmt::format("size {} --out {} --margin 50%", spec.string(), bad.string())) == 2);
+  CHECK(run_cli(fmt::format("size {} --out {} --margin five", spec.string(), bad.string())) == 2);
+  CHECK_FALSE(fs::exists(bad));
+  fs::remove_all(out);
+  fs::remove(spec);
+}
