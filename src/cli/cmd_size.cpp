@@ -5,19 +5,19 @@
 #include <cmath>
 #include <cstdlib>
 #include <filesystem>
-#include <optional>
 #include <fstream>
 #include <iostream>
+#include <optional>
 
 #include <fmt/format.h>
 
 #include "commands.hpp"
-#include "swaybound/report/plot.hpp"
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/core/cancel.hpp"
 #include "swaybound/core/hash.hpp"
 #include "swaybound/report/document.hpp"
 #include "swaybound/report/packet.hpp"
+#include "swaybound/report/plot.hpp"
 #include "swaybound/report/results.hpp"
 #include "swaybound/sizing/sizing.hpp"
 #include "swaybound/spec.hpp"
@@ -68,8 +68,10 @@ Action add_size(CLI::App& app) {
                   "sizing.required_margin; 0 to 50%, 50% excluded)")
       ->check(CLI::Validator(
           [](std::string& text) {
-            return parse_margin(text) ? std::string() : std::string("expected a share such as 5% or 0.05, at "
-                                                                    "least 0 and below 50%");
+            return parse_margin(text) ? std::string()
+                                      : std::string(
+                                            "expected a share such as 5% or 0.05, at "
+                                            "least 0 and below 50%");
           },
           "SHARE"));
   cmd->add_flag("--no-audit", o->no_audit, "Final check without re-running governing cases at a tighter tolerance");
@@ -92,11 +94,12 @@ Action add_size(CLI::App& app) {
     print_notices(packet);
     const CaseSpace space(spec);
     const SizingSpec& s = *spec.sizing;
-    std::cerr << fmt::format("{}: {} design variable(s), {} cases ({} starts x {} scenarios), {:g} s each; budget "
-                             "{} evaluations, {:g} s; {} search, seed {}; required margin {:g}%\n",
-                             o->spec, s.variables.size(), space.size(), space.starts(), spec.scenarios.size(),
-                             spec.cases.duration, s.max_evaluations, s.max_seconds,
-                             s.mode == SearchMode::local ? "local" : "global", s.seed, 100 * s.required_margin);
+    std::cerr << fmt::format(
+        "{}: {} design variable(s), {} cases ({} starts x {} scenarios), {:g} s each; budget "
+        "{} evaluations, {:g} s; {} search, seed {}; required margin {:g}%\n",
+        o->spec, s.variables.size(), space.size(), space.starts(), spec.scenarios.size(), spec.cases.duration,
+        s.max_evaluations, s.max_seconds, s.mode == SearchMode::local ? "local" : "global", s.seed,
+        100 * s.required_margin);
     install_cancel_handlers();
 
     std::ofstream csv(packet.path("cases.csv"), std::ios::binary);
@@ -172,13 +175,14 @@ Action add_size(CLI::App& app) {
     info.spec_name = spec.name;
     info.spec_sha256 = spec_sha;
     info.date_utc = date;
-    info.settings.push_back(fmt::format("sizing: objective={} mode={} seed={} budget={} evaluations, {:g} s; "
-                                        "screening={} cases; required_margin={:g}",
-                                        s.objective == Objective::min_cost     ? "min_cost"
-                                        : s.objective == Objective::max_margin ? "max_margin"
-                                                                               : "min_metric",
-                                        s.mode == SearchMode::local ? "local" : "global", s.seed, s.max_evaluations,
-                                        s.max_seconds, result.screening_size, s.required_margin));
+    info.settings.push_back(
+        fmt::format("sizing: objective={} mode={} seed={} budget={} evaluations, {:g} s; "
+                    "screening={} cases; required_margin={:g}",
+                    s.objective == Objective::min_cost     ? "min_cost"
+                    : s.objective == Objective::max_margin ? "max_margin"
+                                                           : "min_metric",
+                    s.mode == SearchMode::local ? "local" : "global", s.seed, s.max_evaluations,
+                    s.max_seconds, result.screening_size, s.required_margin));
     info.settings.push_back(fmt::format("sized spec: sized_spec.yaml sha256={} (results.json is its check)",
                                         result.after.spec_sha256));
     info.settings.push_back(fmt::format("accuracy_audit: {}", o->no_audit ? "off" : "governing cases at rtol/100, atol/100"));

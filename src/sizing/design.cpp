@@ -40,12 +40,16 @@ int DesignVariable::at_bound(double value) const {
 std::vector<double> DesignVariable::step_neighbours(double value) const {
   if (!(step > 0) || discrete()) return {value};
   // Multiples as the YAML writes them (12 significant digits), so 3 x 0.1 is 0.3.
-  const auto multiple = [&](double k) { return std::strtod(fmt::format("{:.12g}", k * step).c_str(), nullptr); };
+  const auto multiple = [&](double k) {
+    return std::strtod(fmt::format("{:.12g}", k * step).c_str(), nullptr);
+  };
   const double q = value / step;
   const double nearest = std::round(q);
   std::vector<double> ks;
-  if (std::fabs(q - nearest) <= 1e-9 * std::max(1.0, std::fabs(q))) ks = {nearest};
-  else ks = {std::floor(q), std::ceil(q)};
+  if (std::fabs(q - nearest) <= 1e-9 * std::max(1.0, std::fabs(q)))
+    ks = {nearest};
+  else
+    ks = {std::floor(q), std::ceil(q)};
   std::vector<double> out;
   for (double k : ks) {
     const double m = multiple(k);

@@ -590,7 +590,8 @@ class Sizer {
     for (int i : stepped) {
       std::vector<std::vector<double>> next;
       for (const auto& c : combos)
-        for (double x : vars_[static_cast<std::size_t>(i)].step_neighbours(values[static_cast<std::size_t>(i)])) {
+        for (double x :
+             vars_[static_cast<std::size_t>(i)].step_neighbours(values[static_cast<std::size_t>(i)])) {
           auto d = c;
           d[static_cast<std::size_t>(i)] = x;
           next.push_back(std::move(d));
@@ -601,7 +602,8 @@ class Sizer {
       double d = 0;
       for (int i : stepped) {
         const DesignVariable& v = vars_[static_cast<std::size_t>(i)];
-        d += std::fabs(v.scaled(c[static_cast<std::size_t>(i)]) - v.scaled(values[static_cast<std::size_t>(i)]));
+        d += std::fabs(v.scaled(c[static_cast<std::size_t>(i)]) -
+                       v.scaled(values[static_cast<std::size_t>(i)]));
       }
       return d;
     };
@@ -615,18 +617,22 @@ class Sizer {
     least_violation_.reset();
     long verified = 0;
     for (const auto& c : combos) {
-      if (sizing_.objective == Objective::min_cost && best_verified_) break;  // sorted by cost: the first that passes
+      if (sizing_.objective == Objective::min_cost && best_verified_)
+        break;  // sorted by cost: the first that passes
       bool added = false;
       const Point p = verify(c, added);
       ++verified;
       if (!least_violation_ || p.least > least_violation_->least) least_violation_ = p;
     }
-    if (best_verified_) values = best_verified_->values;
-    else if (least_violation_) values = least_violation_->values;
-    return fmt::format("{} rounded to its step: {} of the {} combinations of the multiples next to the values found "
-                       "checked on every case{}",
-                       stepped.size() == 1 ? "1 variable" : fmt::format("{} variables", stepped.size()), verified,
-                       combos.size(), best_verified_ ? "" : "; none passes");
+    if (best_verified_)
+      values = best_verified_->values;
+    else if (least_violation_)
+      values = least_violation_->values;
+    return fmt::format(
+        "{} rounded to its step: {} of the {} combinations of the multiples next to the values found "
+        "checked on every case{}",
+        stepped.size() == 1 ? "1 variable" : fmt::format("{} variables", stepped.size()), verified,
+        combos.size(), best_verified_ ? "" : "; none passes");
   }
 
   void build_result(SizingResult& r) const;

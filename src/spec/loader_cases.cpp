@@ -474,7 +474,8 @@ void read_chaos(const MapView& top, Spec& spec) {
 void read_sizing(const MapView& top, Spec& spec) {
   Context& ctx = top.ctx();
   if (!top.has("sizing")) return;
-  MapView m(ctx, top.get("sizing"), "sizing", {"variables", "objective", "budget", "seed", "mode", "required_margin"});
+  MapView m(ctx, top.get("sizing"), "sizing",
+            {"variables", "objective", "budget", "seed", "mode", "required_margin"});
   if (!m.ok()) return;
   SizingSpec s;
   s.mark = m.mark();
@@ -552,9 +553,10 @@ void read_sizing(const MapView& top, Spec& spec) {
           var.step = *st;
           // The rounded value must stay in the range: at least one multiple of the step in it.
           if (var.hi > var.lo && !(std::ceil(var.lo / var.step - 1e-9) * var.step <= var.hi * (1 + 1e-12)))
-            ctx.error(v.get("step"), v.path("step"),
-                      fmt::format("no multiple of the step {} lies in the range", u::format_si(var.step, dim)),
-                      "give a smaller step or a wider range");
+            ctx.error(
+                v.get("step"), v.path("step"),
+                fmt::format("no multiple of the step {} lies in the range", u::format_si(var.step, dim)),
+                "give a smaller step or a wider range");
         }
       }
       s.variables.push_back(var);

@@ -18,14 +18,14 @@
 // The least damping then has the closed form
 //   10 pi zeta / sqrt(1 - zeta^2) = ln(theta0 / r)  =>  zeta* = a / sqrt(1 + a^2),
 //   a = ln(theta0 / r) / (10 pi),  c* = 2 m L^2 w_n zeta*.
+#include <sys/wait.h>
+#include <unistd.h>
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
 #include <numbers>
 #include <sstream>
-#include <sys/wait.h>
-#include <unistd.h>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
@@ -407,8 +407,9 @@ TEST_CASE("other objectives and the time budget", "[sizing]") {
   }
 }
 
-TEST_CASE("a required margin moves the least damper to where the residual sway is that share inside the limit",
-          "[sizing][margin]") {
+TEST_CASE(
+    "a required margin moves the least damper to where the residual sway is that share inside the limit",
+    "[sizing][margin]") {
   // With margin m the residual sway must stay below r (1 - m): the closed form of the file comment
   // with r replaced by r (1 - m), and a bisection on the full simulation with the limit so reduced.
   constexpr double margin = 0.05;
@@ -468,7 +469,8 @@ TEST_CASE("a margin that cannot be met is reported, with the limit that holds bu
   CHECK(r.limits[0].binding);
 }
 
-TEST_CASE("a step rounds the damper to a multiple of it and the rounded design is verified", "[sizing][step]") {
+TEST_CASE("a step rounds the damper to a multiple of it and the rounded design is verified",
+          "[sizing][step]") {
   // c* ~ 2.76 N m s/rad: rounding down to 2.5 fails (below the least damper), 3.0 passes.
   const char* stepped = R"(  variables:
     - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1, step: 0.5 N m s/rad}
@@ -539,14 +541,18 @@ TEST_CASE("sizing margin and step: bad input names the line and the fix", "[sizi
   CHECK(none.find("no multiple of the step") != std::string::npos);
   CHECK(error_of("step-zero", R"(  variables:
     - {path: "links[arm].pivot.damper.coefficient", range: [1 N m s/rad, 2 N m s/rad], step: 0 N m s/rad}
-)").find("step") != std::string::npos);
+)")
+            .find("step") != std::string::npos);
 }
 
-TEST_CASE("swaybound size --margin: the packet's report shows the sizing and names the sized spec where it lies",
-          "[sizing][cli]") {
-  const fs::path spec = fs::temp_directory_path() / fmt::format("swaybound-test-size-margin-{}.yaml", ::getpid());
+TEST_CASE(
+    "swaybound size --margin: the packet's report shows the sizing and names the sized spec where it lies",
+    "[sizing][cli]") {
+  const fs::path spec =
+      fs::temp_directory_path() / fmt::format("swaybound-test-size-margin-{}.yaml", ::getpid());
   std::ofstream(spec) << pendulum(kOneDamper);
-  const fs::path out = fs::temp_directory_path() / fmt::format("swaybound-test-size-margin-out-{}", ::getpid());
+  const fs::path out =
+      fs::temp_directory_path() / fmt::format("swaybound-test-size-margin-out-{}", ::getpid());
   fs::remove_all(out);
   REQUIRE(run_cli(fmt::format("size {} --out {} --jobs 2 --margin 5%", spec.string(), out.string())) == 0);
   const auto summary = nlohmann::json::parse(read_text(out / "sizing.json"));
@@ -563,7 +569,9 @@ TEST_CASE("swaybound size --margin: the packet's report shows the sizing and nam
   CHECK(html.find("sizing-variables") != std::string::npos);
   CHECK(html.find("sizing-checks") != std::string::npos);
   const fs::path text = out.string() + ".txt";
-  REQUIRE(std::system(fmt::format("pdftotext -layout {} {}", (out / "report.pdf").string(), text.string()).c_str()) == 0);
+  REQUIRE(std::system(
+              fmt::format("pdftotext -layout {} {}", (out / "report.pdf").string(), text.string()).c_str()) ==
+          0);
   const std::string pdf = read_text(text);
   fs::remove(text);
   CHECK(pdf.find("Sizing: the design as given and as sized") != std::string::npos);

@@ -107,7 +107,7 @@ struct LimitOutcome {
   double worst_before = std::nan(""), worst_after = std::nan("");
   double ratio_before = std::nan(""), ratio_after = std::nan("");  ///< constraint values
   bool pass_before = false, pass_after = false;
-  bool binding = false;          ///< after: margin ratio below 1% (active), or failing
+  bool binding = false;          ///< after: margin ratio within 1% of the required margin (active), or failing
   double shortfall = 0;          ///< after, when failing: how much the worst value is past the limit [SI]
   std::string governing_after;
 };

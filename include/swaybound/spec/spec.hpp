@@ -186,7 +186,7 @@ struct SizingVariableSpec {
   double lo = 0, hi = 0;  ///< SI
   double cost = 1;        ///< weight per SI unit of the variable
   std::vector<double> catalogue;  ///< allowed values (SI); empty = continuous
-  double step = 0;        ///< continuous: the final value is a multiple of this (SI); 0 = not rounded
+  double step = 0;                ///< continuous: the final value is a multiple of this (SI); 0 = not rounded
   Mark mark;
 };
 
