@@ -469,6 +469,44 @@ TEST_CASE("a margin that cannot be met is reported, with the limit that holds bu
   CHECK(r.limits[0].binding);
 }
 
+TEST_CASE("a required margin on a limit of 0 (rope_tension_min: 0 N) is measured against the chain's weight",
+          "[sizing][margin]") {
+  // A point mass on a rope released at rest from 70 deg: the tension at the top is
+  // m (g cos theta + L theta'^2), least at the release, m g cos 70 deg = 0.342 m g, and it only
+  // grows as the damper takes energy out. With the chain's weight m g as the scale, the margin
+  // ratio is cos 70 deg: a required margin of 30% holds, 40% does not (though the limit does).
+  const auto sized = [](const std::string& name, double margin) {
+    const std::string text = fmt::format(R"(
+swaybound: 1
+name: rope pendulum
+gravity: {g}
+links:
+  - {{name: rope, kind: rope, length: 1, mass: 10, com: 1, inertia: 0, pivot: {{damper: {{coefficient: 8 N m s/rad}}}}}}
+cases: {{duration: 3 s, initial: [{{single: {{theta: [70 deg]}}}}]}}
+limits:
+  - {{rope_tension_min: 0 N}}
+sizing:
+  variables:
+    - {{path: "links[rope].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}}
+  budget: {{evaluations: 20}}
+  required_margin: {margin}
+solver: {{rtol: 1e-10, atol: 1e-12}}
+)",
+                                         fmt::arg("g", kG), fmt::arg("margin", margin));
+    return run_sizing(spec_file(name, text), quiet());
+  };
+  const double ratio = std::cos(deg(70));
+  const SizingResult holds = sized("rope-margin-30", 0.3);
+  REQUIRE(holds.limits.size() == 1);
+  CHECK(holds.limits[0].ratio_after == Approx(ratio).margin(1e-3));
+  CHECK(holds.limits[0].worst_after == Approx(ratio * 10 * kG).epsilon(1e-3));
+  CHECK(holds.feasible);
+  const SizingResult short_of = sized("rope-margin-40", 0.4);
+  CHECK(short_of.after.pass);
+  CHECK(short_of.limits[0].pass_after);
+  CHECK_FALSE(short_of.feasible);
+}
+
 TEST_CASE("a step rounds the damper to a multiple of it and the rounded design is verified",
           "[sizing][step]") {
   // c* ~ 2.76 N m s/rad: rounding down to 2.5 fails (below the least damper), 3.0 passes.
