@@ -3,22 +3,45 @@
 #include <unistd.h>
 
 #include <cmath>
+#include <cstdlib>
+#include <filesystem>
 #include <fstream>
 #include <iostream>
+#include <optional>
 
 #include <fmt/format.h>
 
 #include "commands.hpp"
-#include "swaybound/report/plot.hpp"
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/core/cancel.hpp"
 #include "swaybound/core/hash.hpp"
+#include "swaybound/report/document.hpp"
 #include "swaybound/report/packet.hpp"
+#include "swaybound/report/plot.hpp"
 #include "swaybound/report/results.hpp"
 #include "swaybound/sizing/sizing.hpp"
 #include "swaybound/spec.hpp"
 
 namespace swaybound::cli {
+
+namespace {
+/// A share written "5%" or "0.05", in [0, 0.5); nullopt otherwise.
+std::optional<double> parse_margin(const std::string& text) {
+  std::string t = text;
+  double scale = 1;
+  if (!t.empty() && t.back() == '%') {
+    t.pop_back();
+    scale = 0.01;
+  }
+  if (t.empty()) return std::nullopt;
+  char* end = nullptr;
+  const double v = std::strtod(t.c_str(), &end);
+  if (end != t.c_str() + t.size() || !std::isfinite(v)) return std::nullopt;
+  const double share = v * scale;
+  if (!(share >= 0 && share < 0.5)) return std::nullopt;
+  return share;
+}
+}  // namespace
 
 Action add_size(CLI::App& app) {
   auto* cmd = app.add_subcommand("size", "Search the spec's design variables for the least cost (or the objective "
@@ -30,6 +53,7 @@ Action add_size(CLI::App& app) {
     long max_samples = kDefaultMaxSamples;
     long screening = 64;
     bool no_audit = false, quiet = false, force = false;
+    std::string margin;  ///< "5%" or "0.05"; empty: the spec's sizing.required_margin
   };
   auto o = std::make_shared<Options>();
   cmd->add_option("SPEC", o->spec, "YAML design spec with a sizing section")->required();
@@ -44,6 +68,17 @@ Action add_size(CLI::App& app) {
                                             "(plus the governing cases); 0: every case")
       ->check(CLI::NonNegativeNumber)
       ->capture_default_str();
+  cmd->add_option("--margin", o->margin,
+                  "Every limit must hold with this share to spare, e.g. 5% or 0.05 (overrides "
+                  "sizing.required_margin; 0 to 50%, 50% excluded)")
+      ->check(CLI::Validator(
+          [](std::string& text) {
+            return parse_margin(text) ? std::string()
+                                      : std::string(
+                                            "expected a share such as 5% or 0.05, at "
+                                            "least 0 and below 50%");
+          },
+          "SHARE"));
   cmd->add_flag("--no-audit", o->no_audit, "Final check without re-running governing cases at a tighter tolerance");
   cmd->add_flag("--force", o->force,
                 "Replace the packet of another design (a spec with another name); never deletes files "
@@ -51,9 +86,11 @@ Action add_size(CLI::App& app) {
   cmd->add_flag("--quiet", o->quiet, "No progress on stderr");
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
-    const Spec spec = load_spec(o->spec, LoadOptions{o->max_cases, o->max_samples});
+    Spec spec = load_spec(o->spec, LoadOptions{o->max_cases, o->max_samples});
     // Input errors (no sizing section, an objective that cannot be computed) before anything is written.
     design_variables(spec);
+    // The sized spec records the margin used (its sizing section), so its check can be repeated.
+    if (!o->margin.empty()) spec.sizing->required_margin = *parse_margin(o->margin);
     objective_metric(spec);
     const std::string spec_sha = sha256_file(o->spec);
     // Every output problem (the overwrite rule, a folder that cannot be written, another run
@@ -62,11 +99,12 @@ Action add_size(CLI::App& app) {
     print_notices(packet);
     const CaseSpace space(spec);
     const SizingSpec& s = *spec.sizing;
-    std::cerr << fmt::format("{}: {} design variable(s), {} cases ({} starts x {} scenarios), {:g} s each; budget "
-                             "{} evaluations, {:g} s; {} search, seed {}\n",
-                             o->spec, s.variables.size(), space.size(), space.starts(), spec.scenarios.size(),
-                             spec.cases.duration, s.max_evaluations, s.max_seconds,
-                             s.mode == SearchMode::local ? "local" : "global", s.seed);
+    std::cerr << fmt::format(
+        "{}: {} design variable(s), {} cases ({} starts x {} scenarios), {:g} s each; budget "
+        "{} evaluations, {:g} s; {} search, seed {}; required margin {:g}%\n",
+        o->spec, s.variables.size(), space.size(), space.starts(), spec.scenarios.size(), spec.cases.duration,
+        s.max_evaluations, s.max_seconds, s.mode == SearchMode::local ? "local" : "global", s.seed,
+        100 * s.required_margin);
     install_cancel_handlers();
 
     std::ofstream csv(packet.path("cases.csv"), std::ios::binary);
@@ -128,20 +166,28 @@ Action add_size(CLI::App& app) {
     packet.write("input_spec.yaml", read_file_text(o->spec));
     // The review documents of the sized design's full check, as `check` writes them for a spec.
     const std::string date = now_utc_iso8601();
-    write_review_documents(packet, result.sized, result.after, date);
+    // The report names the sized spec where the user finds it (the packet is written in a
+    // temporary folder and renamed when complete), and shows the sizing (before/after, summary).
+    Spec shown = result.sized;
+    shown.source_file = (std::filesystem::path(packet.target()) / "sized_spec.yaml").string();
+    ReportMeta meta;
+    meta.sizing = &result;
+    meta.sizing_input = &spec;
+    write_review_documents(packet, shown, result.after, date, meta);
     throw_if_cancelled();
     ManifestInfo info;
     info.spec_file = "input_spec.yaml";
     info.spec_name = spec.name;
     info.spec_sha256 = spec_sha;
     info.date_utc = date;
-    info.settings.push_back(fmt::format("sizing: objective={} mode={} seed={} budget={} evaluations, {:g} s; "
-                                        "screening={} cases",
-                                        s.objective == Objective::min_cost     ? "min_cost"
-                                        : s.objective == Objective::max_margin ? "max_margin"
-                                                                               : "min_metric",
-                                        s.mode == SearchMode::local ? "local" : "global", s.seed, s.max_evaluations,
-                                        s.max_seconds, result.screening_size));
+    info.settings.push_back(
+        fmt::format("sizing: objective={} mode={} seed={} budget={} evaluations, {:g} s; "
+                    "screening={} cases; required_margin={:g}",
+                    s.objective == Objective::min_cost     ? "min_cost"
+                    : s.objective == Objective::max_margin ? "max_margin"
+                                                           : "min_metric",
+                    s.mode == SearchMode::local ? "local" : "global", s.seed, s.max_evaluations,
+                    s.max_seconds, result.screening_size, s.required_margin));
     info.settings.push_back(fmt::format("sized spec: sized_spec.yaml sha256={} (results.json is its check)",
                                         result.after.spec_sha256));
     info.settings.push_back(fmt::format("accuracy_audit: {}", o->no_audit ? "off" : "governing cases at rtol/100, atol/100"));

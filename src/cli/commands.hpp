@@ -6,6 +6,8 @@
 
 #include <CLI/CLI.hpp>
 
+#include "swaybound/report/document.hpp"
+
 namespace swaybound {
 class PacketWriter;
 struct CheckReport;
@@ -38,6 +40,6 @@ void print_notices(PacketWriter& packet);
 /// report.pdf and report.html of `report` into the packet, dated `date_utc` (ISO 8601); the
 /// packet's cases.csv must be complete (the envelope plots read it).
 void write_review_documents(PacketWriter& packet, const Spec& spec, const CheckReport& report,
-                            const std::string& date_utc);
+                            const std::string& date_utc, ReportMeta meta = {});
 
 }  // namespace swaybound::cli

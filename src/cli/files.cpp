@@ -24,8 +24,7 @@ void print_notices(PacketWriter& packet) {
 }
 
 void write_review_documents(PacketWriter& packet, const Spec& spec, const CheckReport& report,
-                            const std::string& date_utc) {
-  ReportMeta meta;
+                            const std::string& date_utc, ReportMeta meta) {
   meta.date = date_utc.substr(0, 10);
   const std::string cases_text = read_file_text(packet.path("cases.csv"));
   write_report_pdf(spec, report, packet.path("report.pdf"), meta, cases_text);

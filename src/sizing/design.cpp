@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdlib>
 #include <limits>
 
 #include <fmt/format.h>
@@ -36,6 +37,32 @@ int DesignVariable::at_bound(double value) const {
   return 0;
 }
 
+std::vector<double> DesignVariable::step_neighbours(double value) const {
+  if (!(step > 0) || discrete()) return {value};
+  // Multiples as the YAML writes them (12 significant digits), so 3 x 0.1 is 0.3.
+  const auto multiple = [&](double k) {
+    return std::strtod(fmt::format("{:.12g}", k * step).c_str(), nullptr);
+  };
+  const double q = value / step;
+  const double nearest = std::round(q);
+  std::vector<double> ks;
+  if (std::fabs(q - nearest) <= 1e-9 * std::max(1.0, std::fabs(q)))
+    ks = {nearest};
+  else
+    ks = {std::floor(q), std::ceil(q)};
+  std::vector<double> out;
+  for (double k : ks) {
+    const double m = multiple(k);
+    if (m >= lo * (1 - 1e-12) - 1e-300 && m <= hi * (1 + 1e-12) + 1e-300) out.push_back(m);
+  }
+  if (out.empty()) {
+    // value lies outside every multiple in range: take the multiple in range nearest to it.
+    const double first = multiple(std::ceil(lo / step - 1e-9)), last = multiple(std::floor(hi / step + 1e-9));
+    out.push_back(value < first ? first : last);
+  }
+  return out;
+}
+
 std::vector<DesignVariable> design_variables(const Spec& spec) {
   const std::string file = spec.source_file.empty() ? std::string("spec") : spec.source_file;
   if (!spec.sizing)
@@ -61,6 +88,7 @@ std::vector<DesignVariable> design_variables(const Spec& spec) {
     d.hi = v.hi;
     d.cost = v.cost;
     d.catalogue = v.catalogue;
+    d.step = v.step;
     std::sort(d.catalogue.begin(), d.catalogue.end());
     d.catalogue.erase(std::unique(d.catalogue.begin(), d.catalogue.end()), d.catalogue.end());
     if (!d.catalogue.empty()) {

@@ -152,6 +152,7 @@ DesignEvaluator::DesignEvaluator(const Spec& base, std::vector<DesignVariable> v
   case_count_ = space.size();
   envelope_ = space.envelope_amplitude();
   metric_ = objective_metric(base_);
+  required_ = base_.sizing ? base_.sizing->required_margin : 0.0;
 }
 
 Spec DesignEvaluator::design(const std::vector<double>& values) const {
@@ -227,6 +228,7 @@ DesignOutcome DesignEvaluator::screen(const std::vector<double>& values, const s
   DesignOutcome out = outcome_from(spec, checks.results());
   out.cases = run_count;
   out.failed_cases = failed;
+  out.required = required_;
   out.geometry = varies_geometry(variables_) ? geometry_margin(spec) : INFINITY;
   if (metric_.active) {
     if (metric_.check >= 0)
@@ -250,6 +252,7 @@ DesignOutcome DesignEvaluator::check(const Spec& design, CheckOptions options, C
   DesignOutcome out = outcome_from(design, report.checks);
   out.cases = report.case_count;
   out.failed_cases = report.failed_total;
+  out.required = required_;
   out.geometry = varies_geometry(variables_) ? geometry_margin(design) : INFINITY;
   if (metric_.active) {
     if (metric_.check >= 0)

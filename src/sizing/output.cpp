@@ -96,12 +96,25 @@ std::string sizing_table_markdown(const Spec& spec, const SizingResult& r) {
                      s.max_seconds);
   if (!r.catalogue_method.empty()) out << fmt::format("Catalogue variables: {}.\n", r.catalogue_method);
   out << fmt::format(
+      "Required margin {:g}% (`sizing.required_margin`): every check's margin / scale must reach it.\n",
+      100 * r.required_margin);
+  {
+    std::string steps;
+    for (const auto& v : r.variable_outcomes)
+      if (v.step > 0)
+        steps += fmt::format("{}`{}` to multiples of {:.6g} {}", steps.empty() ? "" : ", ", v.path, v.step,
+                             v.unit);
+    out << (steps.empty() ? std::string("Steps: none.\n")
+                          : fmt::format("Steps: {}; {}.\n", steps, r.rounding));
+  }
+  out << fmt::format(
       "{} evaluations ({} on {} screening cases, {} full checks of {} cases incl. the design as given and the final "
       "check); the search ended by: {}.\n\n",
       r.evaluations, r.screening_evaluations, r.screening_size, r.full_checks, r.case_count, r.stop_reason);
 
-  out << "## Design variables\n\n| variable | range or catalogue | cost weight | before | after | at a bound |\n"
-         "|---|---|---|---|---|---|\n";
+  out << "## Design variables\n\n| variable | range or catalogue | cost weight | step | before | found | "
+         "after | at "
+         "a bound |\n|---|---|---|---|---|---|---|---|\n";
   for (const auto& v : r.variable_outcomes) {
     std::string range;
     if (v.discrete) {
@@ -112,8 +125,9 @@ std::string sizing_table_markdown(const Spec& spec, const SizingResult& r) {
     } else {
       range = fmt::format("{:.6g} to {:.6g} {}", v.lo, v.hi, v.unit);
     }
-    out << fmt::format("| `{}` | {} | {:g} | {:.6g} {} | {:.6g} {} | {} |\n", v.path, range, v.cost, v.before, v.unit,
-                       v.after, v.unit, bound_name(v.at_bound));
+    out << fmt::format("| `{}` | {} | {:g} | {} | {:.6g} {} | {:.6g} {} | {:.6g} {} | {} |\n", v.path, range,
+                       v.cost, v.step > 0 ? fmt::format("{:.6g} {}", v.step, v.unit) : std::string("-"),
+                       v.before, v.unit, v.unrounded, v.unit, v.after, v.unit, bound_name(v.at_bound));
   }
   out << fmt::format("\n## Objective\n\n| {} | before | after |\n|---|---|---|\n| value | {} | {} |\n", r.objective_label,
                      engineering(r.objective_before, r.objective_unit), engineering(r.objective_after, r.objective_unit));
@@ -123,24 +137,39 @@ std::string sizing_table_markdown(const Spec& spec, const SizingResult& r) {
          "|---|---|---|---|---|---|---|---|\n";
   for (const auto& l : r.limits)
     out << fmt::format("| {} ({}) | {} | {} | {} | {} | {} | {} | {} |\n", l.key, l.subject,
-                       engineering(l.limit_value, l.unit), engineering(l.worst_before, l.unit), percent(l.ratio_before),
-                       engineering(l.worst_after, l.unit), percent(l.ratio_after), l.pass_after ? "pass" : "FAIL",
+                       engineering(l.limit_value, l.unit), engineering(l.worst_before, l.unit),
+                       percent(l.ratio_before), engineering(l.worst_after, l.unit), percent(l.ratio_after),
+                       !l.pass_after                        ? "FAIL"
+                       : l.ratio_after >= r.required_margin ? "pass"
+                                                            : "short of margin",
                        l.binding ? "yes" : "");
   if (std::isfinite(r.outcome_after.geometry))
     out << fmt::format("| geometry (points on their links) | on the link | | | | {} | {} | |\n",
                        percent(r.outcome_after.geometry), r.outcome_after.geometry >= 0 ? "pass" : "FAIL");
-  out << "\nMargins are margin / |limit| (a limit of 0: margin / the chain's weight for forces, x horizon for "
-         "ftle_max); binding: below 1% or failing.\n";
+  out << "\nMargins are margin / |limit| (a limit of 0: margin / the chain's weight for forces, x horizon "
+         "for "
+         "ftle_max); binding: within 1% of the required margin, or failing; short of margin: within the "
+         "limit but "
+         "not by the required margin.\n";
 
   out << "\n## Verdict\n\n";
   if (r.feasible) {
     out << "The sized design passes every check on every case (the final check of the sized spec file, "
-           "results.json).\n";
+           "results.json)";
+    out << (r.required_margin > 0
+                ? fmt::format(", each with the required {:g}% to spare.\n", 100 * r.required_margin)
+                : std::string(".\n"));
   } else {
-    out << "**No design within the ranges and the budget passes every check.** The design reported is the best "
-           "found; it fails:\n\n";
+    out << "**No design within the ranges and the budget passes every check";
+    if (r.required_margin > 0)
+      out << fmt::format(" with the required {:g}% to spare", 100 * r.required_margin);
+    out << ".** The design reported is the best found; it fails:\n\n";
     for (const auto& l : r.limits)
-      if (!l.pass_after)
+      if (l.pass_after && l.ratio_after < r.required_margin)
+        out << fmt::format("- {} ({}): worst {} against {} holds, by {} of the required {:g}%\n", l.key,
+                           l.subject, engineering(l.worst_after, l.unit), engineering(l.limit_value, l.unit),
+                           percent(l.ratio_after), 100 * r.required_margin);
+      else if (!l.pass_after)
         out << fmt::format("- {} ({}): worst {} against {}, short by {} ({}), governing case {}\n", l.key, l.subject,
                            engineering(l.worst_after, l.unit), engineering(l.limit_value, l.unit),
                            engineering(l.shortfall, l.unit), percent(l.ratio_after), l.governing_after);
@@ -177,6 +206,8 @@ std::string sizing_summary_json(const Spec& spec, const SizingResult& r) {
                  {"seed", s.seed},
                  {"budget_evaluations", s.max_evaluations},
                  {"budget_seconds", s.max_seconds},
+                 {"required_margin", r.required_margin},
+                 {"rounding", r.rounding},
                  {"stopped_by", r.stop_reason},
                  {"evaluations", r.evaluations},
                  {"screening_evaluations", r.screening_evaluations},
@@ -190,6 +221,10 @@ std::string sizing_summary_json(const Spec& spec, const SizingResult& r) {
     json o = {{"path", v.path}, {"unit", v.unit}, {"low", v.lo}, {"high", v.hi}, {"cost", v.cost},
               {"before", v.before}, {"after", v.after}, {"at_bound", bound_name(v.at_bound)}};
     if (v.discrete) o["catalogue"] = r.variables[i].catalogue;
+    if (v.step > 0) {
+      o["step"] = v.step;
+      o["found"] = v.unrounded;
+    }
     vars.push_back(o);
   }
   j["variables"] = vars;

@@ -301,7 +301,7 @@ class Sizer {
     const Point& p = pr->eval(x);
     unsigned j = 0;
     if (pr->goal == Goal::objective && pr->self->sizing_.objective != Objective::max_margin)
-      for (double r : p.outcome.ratio) result[j++] = -r;
+      for (double r : p.outcome.ratio) result[j++] = p.outcome.required - r;
     if (pr->self->geometry_) result[j++] = -std::clamp(p.outcome.geometry, -1e6, 1e6);
     for (; j < m; ++j) result[j] = 0;
   }
@@ -577,6 +577,64 @@ class Sizer {
     }
   }
 
+  /// Rounds every continuous variable with a step to a multiple of it: the combinations of the
+  /// multiples next to the values found (the others keep their values) are verified on every case,
+  /// cheapest first for min_cost (else nearest first), as catalogue combinations are; the best
+  /// that passes replaces `values`, else the one nearest to holding. Returns what was done.
+  std::string round_to_steps(std::vector<double>& values) {
+    std::vector<int> stepped;
+    for (std::size_t i = 0; i < vars_.size(); ++i)
+      if (!vars_[i].discrete() && vars_[i].step > 0) stepped.push_back(static_cast<int>(i));
+    if (stepped.empty()) return {};
+    std::vector<std::vector<double>> combos{values};
+    for (int i : stepped) {
+      std::vector<std::vector<double>> next;
+      for (const auto& c : combos)
+        for (double x :
+             vars_[static_cast<std::size_t>(i)].step_neighbours(values[static_cast<std::size_t>(i)])) {
+          auto d = c;
+          d[static_cast<std::size_t>(i)] = x;
+          next.push_back(std::move(d));
+        }
+      combos = std::move(next);
+    }
+    const auto distance = [&](const std::vector<double>& c) {
+      double d = 0;
+      for (int i : stepped) {
+        const DesignVariable& v = vars_[static_cast<std::size_t>(i)];
+        d += std::fabs(v.scaled(c[static_cast<std::size_t>(i)]) -
+                       v.scaled(values[static_cast<std::size_t>(i)]));
+      }
+      return d;
+    };
+    std::stable_sort(combos.begin(), combos.end(), [&](const auto& a, const auto& b) {
+      if (sizing_.objective == Objective::min_cost) return design_cost(vars_, a) < design_cost(vars_, b);
+      return distance(a) < distance(b);
+    });
+    if (combos.size() > static_cast<std::size_t>(kMaxCombinations)) combos.resize(kMaxCombinations);
+    // Only rounded designs compete from here on.
+    best_verified_.reset();
+    least_violation_.reset();
+    long verified = 0;
+    for (const auto& c : combos) {
+      if (sizing_.objective == Objective::min_cost && best_verified_)
+        break;  // sorted by cost: the first that passes
+      bool added = false;
+      const Point p = verify(c, added);
+      ++verified;
+      if (!least_violation_ || p.least > least_violation_->least) least_violation_ = p;
+    }
+    if (best_verified_)
+      values = best_verified_->values;
+    else if (least_violation_)
+      values = least_violation_->values;
+    return fmt::format(
+        "{} rounded to its step: {} of the {} combinations of the multiples next to the values found "
+        "checked on every case{}",
+        stepped.size() == 1 ? "1 variable" : fmt::format("{} variables", stepped.size()), verified,
+        combos.size(), best_verified_ ? "" : "; none passes");
+  }
+
   void build_result(SizingResult& r) const;
 
   const Spec& spec_;
@@ -604,6 +662,7 @@ SizingResult Sizer::run() {
   SizingResult r;
   start_ = Clock::now();
   r.variables = vars_;
+  r.required_margin = evaluator_.required_margin();
   r.case_count = evaluator_.case_count();
   r.source_file = spec_.source_file;
   geometry_ = varies_geometry(vars_);
@@ -673,6 +732,9 @@ SizingResult Sizer::run() {
   else if (least_violation_)
     final_values = least_violation_->values;
   final_values = round12(final_values);
+  r.unrounded_values = final_values;
+  // 4a. Variables with a step: the multiples next to the values found, each verified on every case.
+  r.rounding = round_to_steps(final_values);
   r.values = final_values;
 
   // 5. Through its YAML, then every case with the audit.
@@ -752,6 +814,8 @@ void Sizer::build_result(SizingResult& r) const {
     o.before = r.initial_values[i];
     o.after = r.values[i];
     o.at_bound = v.at_bound(o.after);
+    o.step = v.step;
+    o.unrounded = i < r.unrounded_values.size() ? r.unrounded_values[i] : o.after;
     r.variable_outcomes.push_back(o);
   }
   for (std::size_t i = 0; i < r.after.checks.size(); ++i) {
@@ -770,7 +834,7 @@ void Sizer::build_result(SizingResult& r) const {
     l.worst_after = a.worst;
     l.ratio_after = r.outcome_after.ratio[i];
     l.pass_after = a.pass;
-    l.binding = !a.pass || l.ratio_after < kBindingRatio;
+    l.binding = !a.pass || l.ratio_after < r.required_margin + kBindingRatio;
     l.shortfall = a.pass ? 0.0 : (std::isnan(a.margin) ? std::nan("") : -a.margin);
     l.governing_after = a.governing_id;
     r.limits.push_back(l);
@@ -795,6 +859,13 @@ std::string sized_spec_header(const SizingResult& r) {
   for (std::size_t i = 0; i < r.variables.size(); ++i)
     h += fmt::format("#   {} = {:.12g} {} (was {:.12g})\n", r.variables[i].path, r.values[i], r.variables[i].unit,
                      r.initial_values[i]);
+  if (r.required_margin > 0)
+    h += fmt::format("# Every limit was required to hold with {:g}% to spare (sizing.required_margin).\n",
+                     100 * r.required_margin);
+  for (std::size_t i = 0; i < r.variables.size(); ++i)
+    if (r.variables[i].step > 0 && !r.variables[i].discrete() && i < r.unrounded_values.size())
+      h += fmt::format("#   {} rounded to a multiple of {:.12g} {} from {:.12g}\n", r.variables[i].path,
+                       r.variables[i].step, r.variables[i].unit, r.unrounded_values[i]);
   h += "# The check of exactly this file on every case is in results.json beside it; the verdict there\n";
   h += "# decides. CAUTION: a sized design is a proposal, not a certification. It still needs the review\n";
   h += "# and sign-off of a licensed professional engineer against the applicable codes and standards.\n";

@@ -335,6 +335,7 @@ std::string normalised_yaml(const Spec& spec) {
       }
       if (target && !u::angle_unit_required(dim)) out << YAML::Comment(u::si_unit(dim));
       w.value("cost", v.cost, u::dimensionless);
+      if (v.step > 0) out << YAML::Key << "step" << YAML::Value << number(v.step, dim);
       out << YAML::EndMap;
     }
     out << YAML::EndSeq;
@@ -354,6 +355,7 @@ std::string normalised_yaml(const Spec& spec) {
     w.end();
     w.text("seed", std::to_string(s.seed));
     w.text("mode", s.mode == SearchMode::local ? "local" : "global");
+    w.value("required_margin", s.required_margin, u::dimensionless);
     w.end();
   }
   w.begin("solver");

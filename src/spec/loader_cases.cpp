@@ -601,7 +601,8 @@ void note_sizing_defaults(const MapView& m) {
 void read_sizing(const MapView& top, Spec& spec) {
   Context& ctx = top.ctx();
   if (!top.has("sizing")) return;
-  MapView m(ctx, top.get("sizing"), "sizing", {"variables", "objective", "budget", "seed", "mode"});
+  MapView m(ctx, top.get("sizing"), "sizing",
+            {"variables", "objective", "budget", "seed", "mode", "required_margin"});
   if (!m.ok()) return;
   SizingSpec s;
   s.mark = m.mark();
@@ -612,7 +613,7 @@ void read_sizing(const MapView& top, Spec& spec) {
     if (list.size() == 0) ctx.error(list, "sizing.variables", "no design variables given", "give at least one");
     for (std::size_t i = 0; i < list.size(); ++i) {
       const std::string path = fmt::format("sizing.variables[{}]", i);
-      MapView v(ctx, list[i], path, {"path", "range", "cost", "catalogue"});
+      MapView v(ctx, list[i], path, {"path", "range", "cost", "catalogue", "step"});
       if (!v.ok()) continue;
       SizingVariableSpec var;
       var.mark = v.mark();
@@ -676,6 +677,20 @@ void read_sizing(const MapView& top, Spec& spec) {
         }
       }
       read_optional(v, "cost", var.cost, u::dimensionless, Bounds::non_negative());
+      if (v.has("step") && target) {
+        if (v.has("catalogue")) {
+          ctx.error(v.get("step"), v.path("step"), "a catalogue variable takes its values from the catalogue",
+                    "drop 'step', or give a range instead of the catalogue");
+        } else if (auto st = read_quantity(ctx, v.get("step"), v.path("step"), dim, Bounds::positive())) {
+          var.step = *st;
+          // The rounded value must stay in the range: at least one multiple of the step in it.
+          if (var.hi > var.lo && !(std::ceil(var.lo / var.step - 1e-9) * var.step <= var.hi * (1 + 1e-12)))
+            ctx.error(
+                v.get("step"), v.path("step"),
+                fmt::format("no multiple of the step {} lies in the range", u::format_si(var.step, dim)),
+                "give a smaller step or a wider range");
+        }
+      }
       s.variables.push_back(var);
     }
   }
@@ -720,6 +735,8 @@ void read_sizing(const MapView& top, Spec& spec) {
   if (m.has("mode"))
     if (auto k = read_choice(ctx, m.get("mode"), "sizing.mode", {"local", "global"}))
       s.mode = *k == "local" ? SearchMode::local : SearchMode::global;
+  read_optional(m, "required_margin", s.required_margin, u::dimensionless,
+                Bounds{0, 0.5, false, true, "a share of each limit, e.g. 0.05 for 5%"});
   note_sizing_defaults(m);
   spec.sizing = std::move(s);
 }

@@ -18,13 +18,14 @@
 // The least damping then has the closed form
 //   10 pi zeta / sqrt(1 - zeta^2) = ln(theta0 / r)  =>  zeta* = a / sqrt(1 + a^2),
 //   a = ln(theta0 / r) / (10 pi),  c* = 2 m L^2 w_n zeta*.
+#include <sys/wait.h>
+#include <unistd.h>
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
 #include <numbers>
 #include <sstream>
-#include <sys/wait.h>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
@@ -404,4 +405,223 @@ TEST_CASE("other objectives and the time budget", "[sizing]") {
     CHECK(verified_before);
     CHECK(r.screening_evaluations <= 5);
   }
+}
+
+TEST_CASE(
+    "a required margin moves the least damper to where the residual sway is that share inside the limit",
+    "[sizing][margin]") {
+  // With margin m the residual sway must stay below r (1 - m): the closed form of the file comment
+  // with r replaced by r (1 - m), and a bisection on the full simulation with the limit so reduced.
+  constexpr double margin = 0.05;
+  const double a = std::log(kTheta0Deg / (kLimitDeg * (1 - margin))) / (10 * pi);
+  const double exact = coefficient_of(a / std::sqrt(1 + a * a));
+  const std::string sizing = std::string(kOneDamper) + "  required_margin: 0.05\n";
+  const Spec spec = spec_file("margin", pendulum(sizing));
+  REQUIRE(spec.sizing->required_margin == margin);
+  Spec tighter = spec;
+  tighter.limits[0].value *= 1 - margin;
+  const double bisected = bisect_least_damping(tighter, 0.5, 10);
+  CHECK(bisected == Approx(exact).epsilon(2e-3));
+  // Without the margin the least damper is clearly less (the margin is not lost in the tolerances).
+  CHECK(closed_form_least_damping() < 0.98 * exact);
+
+  const SizingResult r = run_sizing(spec, quiet());
+  INFO("optimiser " << r.values[0] << ", bisection with the margin " << bisected);
+  CHECK(r.required_margin == margin);
+  CHECK(r.feasible);
+  CHECK(r.values[0] >= bisected * (1 - 1e-9));
+  CHECK(r.values[0] <= bisected * 1.01);
+  REQUIRE(r.limits.size() == 1);
+  // The governing figure is (at least) 5% inside the limit, and only just: the margin binds.
+  CHECK(r.limits[0].worst_after <= deg(kLimitDeg) * (1 - margin));
+  CHECK(r.limits[0].worst_after >= deg(kLimitDeg) * (1 - margin) * 0.99);
+  CHECK(r.limits[0].ratio_after >= margin);
+  CHECK(r.limits[0].binding);
+  // The sized spec records the margin it was sized with; the table and the header say so.
+  CHECK(r.sized.sizing->required_margin == margin);
+  const std::string table = sizing_table_markdown(spec, r);
+  CHECK(table.find("Required margin 5%") != std::string::npos);
+  CHECK(sized_spec_header(r).find("with 5% to spare") != std::string::npos);
+}
+
+TEST_CASE("a margin that cannot be met is reported, with the limit that holds but not by the margin",
+          "[sizing][margin]") {
+  // The most damping the range allows, 3 N m s/rad (zeta = 3 / (2 m L^2 w_n) = 0.0479), leaves
+  // |theta(t_10)| = theta0 exp(-10 pi zeta / sqrt(1 - zeta^2)) = 0.222 theta0 = 0.444 deg: inside
+  // the 0.5 deg limit by 11%, not by the 20% required.
+  const std::string sizing = R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 3 N m s/rad], cost: 1}
+  budget: {evaluations: 30}
+  required_margin: 0.2
+)";
+  const SizingResult r = run_sizing(spec_file("margin-too-big", pendulum(sizing)), quiet());
+  const double z = zeta_of(3);
+  const double expected = 1 - kTheta0Deg * std::exp(-10 * pi * z / std::sqrt(1 - z * z)) / kLimitDeg;
+  CHECK_FALSE(r.feasible);
+  CHECK(r.after.pass);  // the check itself passes: only the margin is missed
+  REQUIRE(r.limits.size() == 1);
+  CHECK(r.limits[0].pass_after);
+  CHECK(r.values[0] == 3.0);
+  CHECK(r.limits[0].ratio_after == Approx(expected).margin(0.01));
+  const std::string table = sizing_table_markdown(r.sized, r);
+  CHECK(table.find("short of margin") != std::string::npos);
+  CHECK(table.find("holds, by") != std::string::npos);
+  CHECK(r.limits[0].binding);
+}
+
+TEST_CASE("a required margin on a limit of 0 (rope_tension_min: 0 N) is measured against the chain's weight",
+          "[sizing][margin]") {
+  // A point mass on a rope released at rest from 70 deg: the tension at the top is
+  // m (g cos theta + L theta'^2), least at the release, m g cos 70 deg = 0.342 m g, and it only
+  // grows as the damper takes energy out. With the chain's weight m g as the scale, the margin
+  // ratio is cos 70 deg: a required margin of 30% holds, 40% does not (though the limit does).
+  const auto sized = [](const std::string& name, double margin) {
+    const std::string text = fmt::format(R"(
+swaybound: 1
+name: rope pendulum
+gravity: {g}
+links:
+  - {{name: rope, kind: rope, length: 1, mass: 10, com: 1, inertia: 0, pivot: {{damper: {{coefficient: 8 N m s/rad}}}}}}
+cases: {{duration: 3 s, initial: [{{single: {{theta: [70 deg]}}}}]}}
+limits:
+  - {{rope_tension_min: 0 N}}
+sizing:
+  variables:
+    - {{path: "links[rope].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}}
+  budget: {{evaluations: 20}}
+  required_margin: {margin}
+solver: {{rtol: 1e-10, atol: 1e-12}}
+)",
+                                         fmt::arg("g", kG), fmt::arg("margin", margin));
+    return run_sizing(spec_file(name, text), quiet());
+  };
+  const double ratio = std::cos(deg(70));
+  const SizingResult holds = sized("rope-margin-30", 0.3);
+  REQUIRE(holds.limits.size() == 1);
+  CHECK(holds.limits[0].ratio_after == Approx(ratio).margin(1e-3));
+  CHECK(holds.limits[0].worst_after == Approx(ratio * 10 * kG).epsilon(1e-3));
+  CHECK(holds.feasible);
+  const SizingResult short_of = sized("rope-margin-40", 0.4);
+  CHECK(short_of.after.pass);
+  CHECK(short_of.limits[0].pass_after);
+  CHECK_FALSE(short_of.feasible);
+}
+
+TEST_CASE("a step rounds the damper to a multiple of it and the rounded design is verified",
+          "[sizing][step]") {
+  // c* ~ 2.76 N m s/rad: rounding down to 2.5 fails (below the least damper), 3.0 passes.
+  const char* stepped = R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1, step: 0.5 N m s/rad}
+  budget: {evaluations: 60}
+)";
+  const Spec spec = spec_file("step", pendulum(stepped));
+  REQUIRE(spec.sizing->variables[0].step == 0.5);
+  const double least = closed_form_least_damping();
+  REQUIRE(least > 2.5);
+  REQUIRE(least < 3.0);
+  const SizingResult r = run_sizing(spec, quiet());
+  REQUIRE(r.values.size() == 1);
+  INFO("found " << r.unrounded_values[0] << ", rounded " << r.values[0]);
+  CHECK(r.values[0] == 3.0);
+  CHECK(std::fabs(r.values[0] / 0.5 - std::round(r.values[0] / 0.5)) < 1e-12);
+  CHECK(r.unrounded_values[0] == Approx(least).epsilon(0.012));
+  CHECK(r.feasible);
+  CHECK(r.after.pass);
+  CHECK(r.variable_outcomes[0].step == 0.5);
+  CHECK(r.variable_outcomes[0].unrounded == r.unrounded_values[0]);
+  // The cheaper multiple was tried on every case first and failed.
+  bool lower_failed = false;
+  for (const auto& e : r.history)
+    lower_failed |= e.kind == EvaluationKind::verification && e.values[0] == 2.5 && !e.pass;
+  CHECK(lower_failed);
+  // The sized spec holds the rounded value and keeps the step.
+  std::string why;
+  CHECK(get_spec_value(r.sized, *parse_spec_path(r.sized, r.variables[0].path, why)) == 3.0);
+  CHECK(r.sized.sizing->variables[0].step == 0.5);
+  CHECK(sizing_table_markdown(spec, r).find("to multiples of 0.5 N m s/rad") != std::string::npos);
+}
+
+TEST_CASE("a step rounds down when the multiple above lies beyond the range", "[sizing][step]") {
+  // {min: peak_rate}: the peak rate falls with damping, so the search ends at the high end, 10;
+  // with a step of 3 the multiples next to it are 9 and 12, and 12 lies beyond the range.
+  const char* stepped = R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1, step: 3 N m s/rad}
+  budget: {evaluations: 30}
+  objective: {min: peak_rate}
+)";
+  const SizingResult r = run_sizing(spec_file("step-high-end", pendulum(stepped)), quiet());
+  CHECK(r.unrounded_values[0] == 10.0);
+  CHECK(r.values[0] == 9.0);
+  CHECK(r.feasible);
+}
+
+TEST_CASE("sizing margin and step: bad input names the line and the fix", "[sizing][spec]") {
+  const auto error_of = [](const std::string& name, const std::string& sizing) {
+    try {
+      spec_file(name, pendulum(sizing));
+    } catch (const SpecError& e) {
+      std::string all;
+      for (const auto& d : e.diagnostics()) all += SpecError::format(e.file(), d) + "\n";
+      return all;
+    }
+    return std::string("no error");
+  };
+  const std::string half = error_of("margin-half", std::string(kOneDamper) + "  required_margin: 0.5\n");
+  CHECK(half.find("sizing.required_margin") != std::string::npos);
+  CHECK(half.find("swaybound-test-sizing-margin-half.yaml:") != std::string::npos);  // file:line:col
+  const std::string catalogue = error_of("step-catalogue", R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", catalogue: [1 N m s/rad, 2 N m s/rad], step: 1 N m s/rad}
+)");
+  CHECK(catalogue.find("catalogue variable takes its values from the catalogue") != std::string::npos);
+  const std::string none = error_of("step-none", R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [1.1 N m s/rad, 1.9 N m s/rad], step: 1 N m s/rad}
+)");
+  CHECK(none.find("no multiple of the step") != std::string::npos);
+  CHECK(error_of("step-zero", R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [1 N m s/rad, 2 N m s/rad], step: 0 N m s/rad}
+)")
+            .find("step") != std::string::npos);
+}
+
+TEST_CASE(
+    "swaybound size --margin: the packet's report shows the sizing and names the sized spec where it lies",
+    "[sizing][cli]") {
+  const fs::path spec =
+      fs::temp_directory_path() / fmt::format("swaybound-test-size-margin-{}.yaml", ::getpid());
+  std::ofstream(spec) << pendulum(kOneDamper);
+  const fs::path out =
+      fs::temp_directory_path() / fmt::format("swaybound-test-size-margin-out-{}", ::getpid());
+  fs::remove_all(out);
+  REQUIRE(run_cli(fmt::format("size {} --out {} --jobs 2 --margin 5%", spec.string(), out.string())) == 0);
+  const auto summary = nlohmann::json::parse(read_text(out / "sizing.json"));
+  CHECK(summary["search"]["required_margin"] == 0.05);
+  CHECK(load_spec((out / "sized_spec.yaml").string()).sizing->required_margin == 0.05);
+  const std::string final_path = (out / "sized_spec.yaml").string();
+  // The report names the file the user gets, not the temporary folder it was written in.
+  const std::string html = read_text(out / "report.html");
+  CHECK(html.find(final_path) != std::string::npos);
+  CHECK(html.find(".partial") == std::string::npos);
+  // The sizing section: the summary and the before/after tables, in the HTML and the PDF.
+  CHECK(html.find("Sizing: the design as given and as sized") != std::string::npos);
+  CHECK(html.find("Required margin: 5%") != std::string::npos);
+  CHECK(html.find("sizing-variables") != std::string::npos);
+  CHECK(html.find("sizing-checks") != std::string::npos);
+  const fs::path text = out.string() + ".txt";
+  REQUIRE(std::system(
+              fmt::format("pdftotext -layout {} {}", (out / "report.pdf").string(), text.string()).c_str()) ==
+          0);
+  const std::string pdf = read_text(text);
+  fs::remove(text);
+  CHECK(pdf.find("Sizing: the design as given and as sized") != std::string::npos);
+  CHECK(pdf.find("Required margin: 5%") != std::string::npos);
+  CHECK(pdf.find("worst before") != std::string::npos);
+  CHECK(pdf.find(".partial") == std::string::npos);
+  // A margin out of range is refused before anything is written.
+  const fs::path bad = out.string() + "-bad";
+  fs::remove_all(bad);
+  CHECK(run_cli(fmt::format("size {} --out {} --margin 50%", spec.string(), bad.string())) == 2);
+  CHECK(run_cli(fmt::format("size {} --out {} --margin five", spec.string(), bad.string())) == 2);
+  CHECK_FALSE(fs::exists(bad));
+  fs::remove_all(out);
+  fs::remove(spec);
 }

@@ -20,11 +20,19 @@
 
 namespace swaybound {
 
+struct SizingResult;  // sizing/sizing.hpp
+
 /// What the report shows that the check itself does not know.
 struct ReportMeta {
   std::string date;          ///< date of the report as it should be printed, e.g. "2024-05-01"
   std::string tool_version;  ///< empty: the build's tool_version()
   std::string commit;        ///< empty: the build's git_commit()
+  /// A sized design's packet (`swaybound size`): the sizing run and the spec as given. The report
+  /// then has a section "Sizing" after the title block: the search's summary (objective, budget,
+  /// required margin, steps), the design variables before and after, and every check before and
+  /// after. Both or neither.
+  const SizingResult* sizing = nullptr;
+  const Spec* sizing_input = nullptr;
 };
 
 /// One row of cases.csv, reduced to what the envelope plots need.

@@ -20,6 +20,7 @@ struct DesignVariable {
   double cost = 1;              ///< weight per SI unit
   std::vector<double> catalogue;///< ascending; empty: continuous
   double initial = 0;           ///< the value in the spec as given (may lie outside [lo, hi])
+  double step = 0;              ///< continuous: the final value is a multiple of it (SI); 0: not rounded
 
   bool discrete() const { return !catalogue.empty(); }
   /// SI value at scaled coordinate x in [0, 1] (clamped); lo when the range is a single value.
@@ -30,6 +31,9 @@ struct DesignVariable {
   double nearest(double value) const;
   /// -1 at the low end (within 0.1% of the range), +1 at the high end, 0 inside.
   int at_bound(double value) const;
+  /// The multiples of `step` next to `value` that lie in [lo, hi] (one when `value` is a
+  /// multiple, or only one neighbour is in range), lower first; {value} without a step.
+  std::vector<double> step_neighbours(double value) const;
 };
 
 /// The spec's design variables. Throws SpecError when the spec has no sizing section (an input

@@ -3,10 +3,12 @@
 // a screening subset of the cases (fast, during the search) or on every case (run_check: the
 // verification, whose result is what a sizing run reports).
 //
-// Each limit becomes a dimensionless constraint r >= 0: the check's margin divided by |limit|
+// Each limit becomes a dimensionless constraint r >= m: the check's margin divided by |limit|
 // (its margin_ratio), or, for a limit of 0, by a fixed scale of its dimension
-// (constraint_scale). A limit with a failed case has r <= -1: a failed run cannot show the design
-// holds.
+// (constraint_scale); m is the sizing's required margin (0 by default), so with m = 0.05 an upper
+// limit holds when worst <= limit - 0.05 |limit|, and rope_tension_min: 0 N when the least
+// tension is at least 5% of the chain's static weight. A limit with a failed case has r <= -1: a
+// failed run cannot show the design holds.
 #include <limits>
 #include <string>
 #include <vector>
@@ -47,10 +49,11 @@ struct DesignOutcome {
   double metric = std::nan("");  ///< ObjectiveMetric value [SI]
   long cases = 0;                ///< cases run
   long failed_cases = 0;         ///< of which failed
+  double required = 0;           ///< the sizing's required margin: each ratio must reach it
   /// Least constraint value over the limits; +inf with no limits.
   double least() const;
-  /// Every limit holds and every point lies on its link.
-  bool pass() const { return least() >= 0 && geometry >= 0; }
+  /// Every limit holds with the required margin and every point lies on its link.
+  bool pass() const { return least() >= required && geometry >= 0; }
 };
 
 class DesignEvaluator {
@@ -71,6 +74,9 @@ class DesignEvaluator {
   DesignOutcome check(const Spec& design, CheckOptions options, CheckReport& report) const;
   long case_count() const { return case_count_; }
   const ObjectiveMetric& metric() const { return metric_; }
+  /// The required margin (the spec's sizing.required_margin): a design passes when every
+  /// constraint value reaches it.
+  double required_margin() const { return required_; }
 
  private:
   Spec base_;
@@ -78,6 +84,7 @@ class DesignEvaluator {
   int jobs_;
   long case_count_ = 0;
   double envelope_ = 0;
+  double required_ = 0;
   ObjectiveMetric metric_;
 };
 

@@ -1,7 +1,9 @@
 #pragma once
 // Sizing: NLopt searches the design variables of a spec's `sizing` section (dampers, pivots,
 // links) for the least weighted cost, the least value of a named metric, or the greatest smallest
-// margin, with every limit of the spec, as its worst margin over the whole case set, a constraint.
+// margin, with every limit of the spec, as its worst margin over the whole case set, a constraint:
+// margin / scale >= sizing.required_margin (scale: |limit|, or for a limit of 0 the fixed scale of
+// its dimension, constraint_scale).
 //
 // How the search goes (specs/README.md, "sizing", has the user's version):
 //   1. The design as given is checked on every case ("before"). Its governing cases, plus every
@@ -23,6 +25,9 @@
 //      continuous variables (if any) can still get a search each; otherwise the search runs with
 //      the catalogue variables relaxed to their range, and the combinations of the catalogue
 //      values next to the relaxed optimum (up to 64) are then searched as above.
+//   4a. Continuous variables with a `step`: the combinations of the multiples next to the value
+//      found are each checked on every case (cheapest first for min_cost, else nearest first), as
+//      catalogue combinations are; the best that passes is the final design.
 //   5. The final design goes through its YAML (normalised_yaml, re-loaded) and is checked on
 //      every case with the accuracy audit; that check is what is reported. No design passes
 //      that this final check did not pass.
@@ -91,6 +96,8 @@ struct VariableOutcome {
   bool discrete = false;
   double before = 0, after = 0;  ///< SI
   int at_bound = 0;              ///< of `after`: -1 low end, +1 high end, 0 inside
+  double step = 0;               ///< the variable's step (SI); 0: not rounded
+  double unrounded = 0;          ///< the value the search found, before rounding to the step
 };
 
 struct LimitOutcome {
@@ -100,7 +107,7 @@ struct LimitOutcome {
   double worst_before = std::nan(""), worst_after = std::nan("");
   double ratio_before = std::nan(""), ratio_after = std::nan("");  ///< constraint values
   bool pass_before = false, pass_after = false;
-  bool binding = false;          ///< after: margin ratio below 1% (active), or failing
+  bool binding = false;          ///< after: margin ratio within 1% of the required margin (active), or failing
   double shortfall = 0;          ///< after, when failing: how much the worst value is past the limit [SI]
   std::string governing_after;
 };
@@ -111,6 +118,9 @@ struct SizingResult {
   std::vector<VariableOutcome> variable_outcomes;
   std::vector<LimitOutcome> limits;
   std::vector<double> initial_values, values;  ///< SI per variable
+  std::vector<double> unrounded_values;        ///< SI per variable: the search's, before rounding to steps
+  double required_margin = 0;    ///< every constraint value had to reach it (sizing.required_margin)
+  std::string rounding;          ///< empty (no steps), else what rounding to the steps did
   bool initial_in_range = false; ///< the design as given lies in the ranges and catalogues
   Spec sized;                    ///< the final design as re-loaded from `sized_yaml`
   std::string sized_yaml;        ///< header comment + normalised YAML

@@ -186,6 +186,7 @@ struct SizingVariableSpec {
   double lo = 0, hi = 0;  ///< SI
   double cost = 1;        ///< weight per SI unit of the variable
   std::vector<double> catalogue;  ///< allowed values (SI); empty = continuous
+  double step = 0;                ///< continuous: the final value is a multiple of this (SI); 0 = not rounded
   Mark mark;
 };
 
@@ -198,6 +199,9 @@ struct SizingSpec {
   double max_seconds = 600;
   std::uint64_t seed = 1;
   SearchMode mode = SearchMode::local;
+  /// Every limit must hold with this share to spare: margin >= required_margin x the limit's
+  /// constraint scale (|limit|, or for a limit of 0 the scale of its dimension), in [0, 0.5).
+  double required_margin = 0;
   Mark mark;
 };
 
