@@ -20,9 +20,11 @@
 
 #include "swaybound/core/hash.hpp"
 #include "swaybound/report/packet.hpp"
+#include "../support/packet_files.hpp"
 
 using namespace swaybound;
 namespace fs = std::filesystem;
+using swaybound::testing::leftovers;
 
 namespace {
 
@@ -110,15 +112,6 @@ Run check(const fs::path& spec, const fs::path& out, std::vector<std::string> ex
   return cli(args, env);
 }
 
-/// Names beside `out` that belong to swaybound runs on it (.NAME.swaybound-...).
-std::vector<std::string> leftovers(const fs::path& out) {
-  std::vector<std::string> found;
-  const std::string prefix = fmt::format(".{}.swaybound-", out.filename().string());
-  for (const auto& entry : fs::directory_iterator(out.parent_path()))
-    if (entry.path().filename().string().rfind(prefix, 0) == 0)
-      found.push_back(entry.path().filename().string());
-  return found;
-}
 
 /// `out` holds exactly the whole packet of the spec with SHA-256 `sha`: every MANIFEST hash
 /// verifies and nothing else is in the folder.

@@ -13,9 +13,11 @@
 #include "swaybound/core/error.hpp"
 #include "swaybound/report/diff.hpp"
 #include "swaybound/report/packet.hpp"
+#include "../support/packet_files.hpp"
 
 using namespace swaybound;
 namespace fs = std::filesystem;
+using swaybound::testing::leftovers;
 
 namespace {
 
@@ -38,15 +40,6 @@ limits:
                      name, damper, duration, count);
 }
 
-/// This process's temporaries and lock file beside `out` (.NAME.swaybound-...), by file name.
-std::vector<std::string> leftovers(const fs::path& out) {
-  std::vector<std::string> found;
-  const std::string prefix = fmt::format(".{}.swaybound-", out.filename().string());
-  for (const auto& entry : fs::directory_iterator(out.parent_path()))
-    if (entry.path().filename().string().rfind(prefix, 0) == 0)
-      found.push_back(entry.path().filename().string());
-  return found;
-}
 
 fs::path write_spec(const std::string& name, const std::string& text) {
   const fs::path p = temp(name + ".yaml");
