@@ -297,9 +297,9 @@ TEST_CASE("verify applies each limit kind's sign convention (lower bounds: worst
     const VerifyResult r = verify_packet(dir.string());
     INFO(verify_report(r));
     CHECK(count_findings(r, "results.json",
-                         "(rope_tension_min, link 'hoist rope'): margin 0.50 kN, but recomputed -0.50 kN") ==
+                         "(rope_tension_min, link 'hoist rope', either end): margin 0.50 kN, but recomputed -0.50 kN") ==
           1);
-    CHECK(count_findings(r, "results.json", "(rope_tension_min, link 'hoist rope'): verdict 'pass'") == 1);
+    CHECK(count_findings(r, "results.json", "(rope_tension_min, link 'hoist rope', either end): verdict 'pass'") == 1);
   }
   SECTION("an upper limit relabelled lower, its margin made to agree") {
     auto& c = j["checks"][check_index(j, "peak_angle")];
