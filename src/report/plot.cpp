@@ -527,8 +527,19 @@ void data_range(const Plot& p, bool for_x, double& lo, double& hi) {
   }
 }
 
-/// Labelled points: a ring in the series' colour and the label beside it, kept inside the frame.
+/// Labelled points: a marker in the series' colour and the label beside it, kept inside the frame;
+/// a label that would overlap one already placed moves down (or up) a line at a time, with a thin
+/// leader to its point.
 void draw_marks(cairo_t* cr, const Frame& f, const Plot& p) {
+  struct Box {
+    double x0, y0, x1, y1;
+  };
+  std::vector<Box> placed;
+  const auto overlaps = [&](const Box& b) {
+    for (const Box& o : placed)
+      if (b.x0 < o.x1 && o.x0 < b.x1 && b.y0 < o.y1 && o.y0 < b.y1) return true;
+    return false;
+  };
   for (const auto& m : p.marks) {
     if (!finite_for(p.x, m.x) || !finite_for(p.y, m.y)) continue;
     const double x = f.sx.map(m.x), y = f.sy.map(m.y);
@@ -536,8 +547,29 @@ void draw_marks(cairo_t* cr, const Frame& f, const Plot& p) {
     if (m.label.empty()) continue;
     Text t = make_text(cr, report_text::escape(m.label), kRefFont);
     const bool right = x + 6 + t.w <= f.x1 - 2;
-    const bool below = y - 4 - t.h < f.y0 + 1;
-    put_halo(cr, t, right ? x + 6 : x - 6, below ? y + 4 : y - 4, right ? 0 : 1, below ? 0 : 1, kInk);
+    const double left_x = right ? x + 6 : x - 6 - t.w;
+    double top = y - 4 - t.h < f.y0 + 1 ? y + 4 : y - 4 - t.h;
+    Box box{left_x, top, left_x + t.w, top + t.h};
+    for (int k = 1; k <= 8 && overlaps(box); ++k) {
+      const double shift = (k % 2 ? 1 : -1) * ((k + 1) / 2) * (t.h + 1);
+      const double candidate = std::clamp(top + shift, f.y0 + 1, f.y1 - t.h - 1);
+      Box moved{left_x, candidate, left_x + t.w, candidate + t.h};
+      if (!overlaps(moved)) {
+        box = moved;
+        break;
+      }
+    }
+    placed.push_back(box);
+    if (std::fabs(box.y0 - top) > 0.5) {  // moved: a leader from the label to its point
+      cairo_save(cr);
+      set_colour(cr, kSoftInk);
+      cairo_set_line_width(cr, 0.5);
+      cairo_move_to(cr, x, y);
+      cairo_line_to(cr, right ? box.x0 - 1 : box.x1 + 1, box.y0 + 0.5 * t.h);
+      cairo_stroke(cr);
+      cairo_restore(cr);
+    }
+    put_halo(cr, t, box.x0, box.y0, 0, 0, kInk);
   }
 }
 

@@ -26,7 +26,7 @@ namespace {
 
 constexpr double kDeg = 180 / std::numbers::pi;
 constexpr double kTextWidth = 487;  // PDF text width of A4 with the packet's margins [pt]
-constexpr int kMaxGoverningPlots = 6;
+constexpr int kMaxGoverningPlots = 9;  // figures on the governing-case pages (at least one case)
 constexpr int kMaxLadderPlots = 2;
 constexpr int kMaxModesSketched = 6;
 constexpr std::size_t kEnvelopeDirect = 3000;  // points per series drawn as they are

@@ -591,3 +591,69 @@ TEST_CASE("small things: masses in plain digits, one title, no empty revision, o
   CHECK(html.find("(2 perturbation steps on") != std::string::npos);
   CHECK(html.find("deg perturbation steps") == std::string::npos);
 }
+
+TEST_CASE("governing pages: peaks marked where located, inputs beside the sway, angle-angle plots of every pair",
+          "[report][plots]") {
+  // Three links, a braking base and a wind with a gust: every governing page must show the base
+  // motion and the wind force, an angle-angle plot for links 1-2 and 2-3, and each pivot's peak
+  // load marked with the value and time the run located (the check's own figure for the governing
+  // link of the pivot_load check).
+  const Spec spec = load_spec_text(R"(
+swaybound: 1
+name: three links with wind (invented data)
+gravity: 9.81
+links:
+  - {name: hanger, length: 1.5 m, mass: 60 kg}
+  - {name: swivel, length: 0.5 m, mass: 20 kg}
+  - {name: basket, length: 1.2 m, mass: 300 kg, pivot: {damper: {coefficient: 400 N m s/rad}}}
+wind: [{speed: 8 m/s, link: basket, drag_area: 2 m^2, drag_coefficient: 1.1, gust: {start: 2 s, for: 1 s, speed: 6 m/s}}]
+base: {scenarios: [{name: brake, initial_velocity: {x: 1 m/s}, accel: [{for: 1 s, x: -1 m/s^2}]}]}
+cases: {duration: 5 s, initial: [{grid: {theta: [[-3 deg, 3 deg, 2], [0 deg, 0 deg, 1], [-3 deg, 3 deg, 2]]}}]}
+limits:
+  - {pivot_load: 10 kN}
+  - {peak_angle: 20 deg}
+)",
+                                   "plots.yaml");
+  CheckOptions options;
+  options.audit = false;
+  const CheckReport r = run_check(spec, options);
+  const std::string html = report_html(spec, r, {"2025-02-03", "", ""}, "");
+  for (const char* needle : {"Angle-angle plot, links 1 and 2", "Angle-angle plot, links 2 and 3",
+                             "Base (top pivot) motion", "Wind force"})
+    CHECK(html.find(needle) != std::string::npos);
+  // Text inside the plots is text in the PDF (pdftotext reads it); in the HTML it is drawn.
+  const fs::path pdf = temp_dir() / "plots.pdf";
+  write_report_pdf(spec, r, pdf.string(), {"2025-02-03", "", ""}, "");
+  std::string text;
+  REQUIRE(run(fmt::format("pdftotext {} -", pdf.string()), text) == 0);
+  CHECK(text.find("wind[0] on basket") != std::string::npos);
+  CHECK(html.find("Phase portrait") == std::string::npos);  // angle against angle is not a phase portrait
+  REQUIRE(!r.recorded.empty());
+  const CheckResult& load = r.checks[0];
+  REQUIRE(load.key == "pivot_load");
+  const RecordedCase* rc = nullptr;
+  for (const auto& c : r.recorded)
+    if (c.index == load.governing) rc = &c;
+  REQUIRE(rc != nullptr);
+  // The recording run locates the same peak as the check (same case, same tolerance), and the
+  // samples alone stay below it.
+  const Extreme& peak = rc->peak_load[static_cast<std::size_t>(load.governing_link)];
+  CHECK(peak.value == Approx(load.worst).epsilon(1e-9));
+  const auto& samples = rc->load[static_cast<std::size_t>(load.governing_link)];
+  CHECK(*std::max_element(samples.begin(), samples.end()) <= peak.value * (1 + 1e-12));
+  // Every pivot's located peak of each plotted case is marked with its value and time.
+  int plotted = 0;
+  for (const auto& c : r.recorded) {
+    if (html.find("Case " + c.id + " (governs") == std::string::npos) continue;
+    ++plotted;
+    for (const Extreme& e : c.peak_load) {
+      const std::string mark = fmt::format("peak {:.2f} kN at {:.2f} s", e.value / 1000, e.time);
+      INFO(mark);
+      CHECK(text.find(mark) != std::string::npos);
+    }
+  }
+  CHECK(plotted >= 1);
+  // The recorded inputs are the scenario's: -1 m/s^2 during the first second, then 0.
+  REQUIRE(rc->t.size() == rc->base_ax.size());
+  for (std::size_t k = 0; k < rc->t.size(); ++k) CHECK(rc->base_ax[k] == (rc->t[k] < 1 - 1e-9 ? -1.0 : 0.0));
+}
