@@ -1,5 +1,6 @@
 // report.html: the packet's document (report_model.hpp) as one self-contained HTML file: inline
 // CSS (screen and print), inline SVG plots, no scripts, no network.
+#include <map>
 #include <string>
 
 #include <fmt/format.h>
@@ -284,8 +285,59 @@ class HtmlWriter {
 
 }  // namespace
 
+std::string share_svg_glyphs(const std::string& html) {
+  // Pass 1: every <symbol ... id="ID">BODY</symbol> is cut out; equal bodies get one shared id.
+  std::map<std::string, std::string> id_of_body, shared_id;  // body -> new id; old id -> new id
+  std::string defs, out;
+  out.reserve(html.size());
+  std::size_t at = 0;
+  for (;;) {
+    const std::size_t open = html.find("<symbol", at);
+    const std::size_t close = open == std::string::npos ? open : html.find("</symbol>", open);
+    const std::size_t id_at = open == std::string::npos ? open : html.find(" id=\"", open);
+    const std::size_t tag_end = open == std::string::npos ? open : html.find('>', open);
+    if (open == std::string::npos || close == std::string::npos || id_at == std::string::npos || id_at > tag_end) {
+      out.append(html, at, std::string::npos);
+      break;
+    }
+    const std::size_t id_end = html.find('"', id_at + 5);
+    const std::string id = html.substr(id_at + 5, id_end - id_at - 5);
+    const std::string body = html.substr(tag_end + 1, close - tag_end - 1);
+    auto [it, fresh] = id_of_body.emplace(body, fmt::format("sg{}", id_of_body.size() + 1));
+    if (fresh) defs += fmt::format("<symbol overflow=\"visible\" id=\"{}\">{}</symbol>\n", it->second, body);
+    shared_id[id] = it->second;
+    out.append(html, at, open - at);
+    at = close + 9;
+    while (at < html.size() && html[at] == '\n') ++at;
+  }
+  if (shared_id.empty()) return html;
+  // Pass 2: references to a cut symbol point at its shared copy.
+  std::string linked;
+  linked.reserve(out.size());
+  at = 0;
+  for (;;) {
+    const std::size_t ref = out.find("href=\"#", at);
+    if (ref == std::string::npos) {
+      linked.append(out, at, std::string::npos);
+      break;
+    }
+    const std::size_t start = ref + 7, end = out.find('"', start);
+    const auto hit = shared_id.find(out.substr(start, end - start));
+    linked.append(out, at, start - at);
+    linked += hit == shared_id.end() ? out.substr(start, end - start) : hit->second;
+    at = end;
+  }
+  // The shared glyphs sit once in a hidden SVG at the top of the body.
+  const std::size_t body = linked.find("<body>");
+  if (body == std::string::npos) return html;
+  linked.insert(body + 6, "\n<svg xmlns=\"http://www.w3.org/2000/svg\" xmlns:xlink=\"http://www.w3.org/1999/xlink\" "
+                          "width=\"0\" height=\"0\" style=\"position:absolute\" aria-hidden=\"true\"><defs>\n" +
+                              defs + "</defs></svg>");
+  return linked;
+}
+
 std::string report_html(const Spec& spec, const CheckReport& report, const ReportMeta& meta, std::string_view cases_csv) {
-  return HtmlWriter(build_document(spec, report, meta, cases_csv)).run();
+  return share_svg_glyphs(HtmlWriter(build_document(spec, report, meta, cases_csv)).run());
 }
 
 }  // namespace swaybound

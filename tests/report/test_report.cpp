@@ -8,6 +8,7 @@
 #include <fstream>
 #include <numbers>
 #include <regex>
+#include <set>
 #include <sstream>
 #include <sys/wait.h>
 #include <unistd.h>
@@ -656,4 +657,40 @@ limits:
   // The recorded inputs are the scenario's: -1 m/s^2 during the first second, then 0.
   REQUIRE(rc->t.size() == rc->base_ax.size());
   for (std::size_t k = 0; k < rc->t.size(); ++k) CHECK(rc->base_ax[k] == (rc->t[k] < 1 - 1e-9 ? -1.0 : 0.0));
+}
+
+TEST_CASE("report.html keeps each glyph outline once and every reference resolves", "[report][html]") {
+  const auto count = [](const std::string& s, const std::string& what) {
+    std::size_t n = 0;
+    for (std::size_t at = s.find(what); at != std::string::npos; at = s.find(what, at + 1)) ++n;
+    return n;
+  };
+  // Every href="#ID" names an element of the page.
+  const auto refs_resolve = [](const std::string& s) {
+    for (std::size_t at = s.find("href=\"#"); at != std::string::npos; at = s.find("href=\"#", at + 1)) {
+      const std::size_t start = at + 7, end = s.find('"', start);
+      if (s.find("id=\"" + s.substr(start, end - start) + "\"") == std::string::npos) return false;
+    }
+    return true;
+  };
+  // The same plot twice on one page: cairo writes its glyphs twice; shared, they stand once.
+  const plot::Plot p = plot::line_chart("Glyph test", {"time", "s"}, {"angle", "deg"}, {{"θ", {0, 1, 2}, {0, 1, 0}}});
+  const std::string a = plot::to_svg(p, "a"), b = plot::to_svg(p, "b");
+  const std::string page = "<html><body>\n" + a.substr(a.find("<svg")) + b.substr(b.find("<svg")) + "</body></html>";
+  const std::string shared = share_svg_glyphs(page);
+  REQUIRE(count(page, "<symbol") > 0);
+  CHECK(count(shared, "<symbol") * 2 <= count(page, "<symbol"));  // (equal outlines within one SVG merge too)
+  CHECK(count(shared, "<use") == count(page, "<use"));
+  CHECK(refs_resolve(page));
+  CHECK(refs_resolve(shared));
+  CHECK(shared.size() < page.size());
+
+  // The packet's page: every glyph once, every reference resolves.
+  const std::string html = read(packet().dir / "report.html");
+  CHECK(refs_resolve(html));
+  std::set<std::string> bodies;
+  for (std::size_t at = html.find("<symbol"); at != std::string::npos; at = html.find("<symbol", at + 1)) {
+    const std::size_t open = html.find('>', at) + 1, close = html.find("</symbol>", open);
+    CHECK(bodies.insert(html.substr(open, close - open)).second);
+  }
 }

@@ -56,6 +56,11 @@ std::vector<CaseEnvelopeRow> read_case_envelope(const Spec& spec, std::string_vi
 void write_report_pdf(const Spec& spec, const CheckReport& report, const std::string& path,
                       const ReportMeta& meta = {}, std::string_view cases_csv = {});
 
+/// The glyph outlines of every inline SVG of an HTML page (cairo writes each text glyph as a
+/// <symbol> per SVG) moved into one hidden SVG at the top of the body, equal outlines kept once,
+/// and every reference pointed at the shared copy. The page renders the same, smaller.
+std::string share_svg_glyphs(const std::string& html);
+
 /// report.html text, the same content as the PDF.
 std::string report_html(const Spec& spec, const CheckReport& report, const ReportMeta& meta = {},
                         std::string_view cases_csv = {});
