@@ -331,7 +331,7 @@ std::string share_svg_glyphs(const std::string& html) {
   const std::size_t body = linked.find("<body>");
   if (body == std::string::npos) return html;
   linked.insert(body + 6, "\n<svg xmlns=\"http://www.w3.org/2000/svg\" xmlns:xlink=\"http://www.w3.org/1999/xlink\" "
-                          "width=\"0\" height=\"0\" style=\"position:absolute\" aria-hidden=\"true\"><defs>\n" +
+                          "viewBox=\"0 0 1 1\" width=\"0\" height=\"0\" style=\"position:absolute\" aria-hidden=\"true\"><defs>\n" +
                               defs + "</defs></svg>");
   return linked;
 }
