@@ -1,3 +1,4 @@
+// Long for a reason: page composition, pagination and every block kind of the document model.
 // report.pdf: the packet's document (report_model.hpp) set on pages with cairo and Pango.
 //
 // Pages are composed twice with the same code: the first pass only counts the pages (its output

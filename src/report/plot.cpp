@@ -1,3 +1,5 @@
+// Long for a reason: the whole small plotting library (layout, ticks, legend, xy, heat map, chain
+// sketch, SVG/PNG output) in one file over cairo; it splits per plot kind in the planned renovation.
 #include "swaybound/report/plot.hpp"
 
 #include <cairo-svg.h>

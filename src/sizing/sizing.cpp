@@ -1,3 +1,6 @@
+// Sizing search: NLopt problem, screening, round-and-verify, steps and the stopping report.
+// Long for a reason: one search pipeline whose stages share state; it splits along those stages
+// when the check pipeline becomes a staged, public one (planned renovation).
 #include "swaybound/sizing/sizing.hpp"
 
 #include <algorithm>
