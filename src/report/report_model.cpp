@@ -1,3 +1,5 @@
+// Long for a reason: every section of the review packet is built here from one set of private
+// helpers; it splits per section (verdict, loads, governing cases, chaos, sizing) in the planned renovation.
 // What the review packet says, section by section (see document.hpp for the order).
 #include "report_model.hpp"
 

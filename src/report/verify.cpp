@@ -1,3 +1,5 @@
+// Long for a reason: MANIFEST, spec copies and every consistency rule of results.json are checked
+// here in one pass, each rule with its own finding text.
 #include "swaybound/report/verify.hpp"
 
 #include <algorithm>
