@@ -131,7 +131,7 @@ TEST_CASE("swaybound check: exit status, files, and nothing written for a bad sp
   CHECK_FALSE(fs::exists(untouched));
 }
 
-TEST_CASE("rope_tension_min reads the end it names: top, bottom or either", "[check][rope]") {
+TEST_CASE("rope_tension_min reads the end it names: top, bottom or either", "[checks][rope]") {
   // A rope (30 kg, uniform) carrying a 2,000 kg block, hanging at rest: by statics the top end
   // carries both weights, (30 + 2000) g, the bottom end the block's, 2000 g; either end's least is
   // the bottom's. The limits sit between the two so that top passes and bottom fails.
