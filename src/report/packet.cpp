@@ -28,7 +28,6 @@ using packet_detail::kill_point;
 
 namespace {
 constexpr const char* kManifest = "MANIFEST";
-constexpr const char* kManifestHeader = "swaybound packet manifest 1";
 
 std::string read_text(const fs::path& p) {
   std::ifstream in(p, std::ios::binary);
@@ -37,34 +36,17 @@ std::string read_text(const fs::path& p) {
   return s.str();
 }
 
-/// A MANIFEST read back: its "key: value" lines before "files:" and its file lines.
-struct Manifest {
-  bool packet = false;  ///< the header line is a packet manifest's
-  bool has_files = false;
-  std::map<std::string, std::string> keys;
-  std::vector<std::pair<std::string, std::string>> files;  ///< (SHA-256, name)
-};
+bool is_sha256_hex(const std::string& s) {
+  return s.size() == 64 && std::all_of(s.begin(), s.end(), [](char c) {
+           return (c >= '0' && c <= '9') || (c >= 'a' && c <= 'f');
+         });
+}
 
-Manifest read_manifest(const fs::path& dir) {
-  Manifest m;
+/// DIR/MANIFEST read back; empty (not a packet) when there is none.
+PacketManifest read_manifest(const fs::path& dir) {
   std::error_code ec;
-  if (!fs::is_regular_file(dir / kManifest, ec)) return m;
-  std::istringstream in(read_text(dir / kManifest));
-  std::string line;
-  if (!std::getline(in, line)) return m;
-  m.packet = line == kManifestHeader;
-  while (std::getline(in, line)) {
-    if (line == "files:") {
-      m.has_files = true;
-      continue;
-    }
-    if (m.has_files) {
-      if (line.size() >= 67) m.files.emplace_back(line.substr(0, 64), line.substr(66));
-    } else if (const auto colon = line.find(": "); colon != std::string::npos) {
-      m.keys.emplace(line.substr(0, colon), line.substr(colon + 2));
-    }
-  }
-  return m;
+  if (!fs::is_regular_file(dir / kManifest, ec)) return {};
+  return parse_packet_manifest(read_text(dir / kManifest));
 }
 
 /// The spec name as one MANIFEST line holds it (line breaks become spaces).
@@ -97,6 +79,31 @@ bool is_mount_point(const fs::path& folder) {
 
 }  // namespace
 
+PacketManifest parse_packet_manifest(const std::string& text) {
+  PacketManifest m;
+  std::istringstream in(text);
+  std::string line;
+  bool first = true;
+  while (std::getline(in, line)) {
+    if (!line.empty() && line.back() == '\r') line.pop_back();
+    if (first) {
+      m.header = line;
+      first = false;
+    } else if (!m.has_files) {
+      if (line == "files:")
+        m.has_files = true;
+      else if (const auto colon = line.find(": "); colon != std::string::npos)
+        m.keys.emplace(line.substr(0, colon), line.substr(colon + 2));
+    } else if (!line.empty()) {
+      if (line.size() > 66 && is_sha256_hex(line.substr(0, 64)) && line.compare(64, 2, "  ") == 0)
+        m.files.emplace_back(line.substr(0, 64), line.substr(66));
+      else
+        m.malformed.push_back(line);
+    }
+  }
+  return m;
+}
+
 std::string now_utc_iso8601() {
   const std::time_t t = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
   std::tm tm{};
@@ -107,33 +114,33 @@ std::string now_utc_iso8601() {
 }
 
 std::string packet_spec_sha256(const std::string& dir) {
-  const Manifest m = read_manifest(dir);
+  const PacketManifest m = read_manifest(dir);
   const auto it = m.keys.find("spec_sha256");
-  return m.packet && it != m.keys.end() ? it->second : "";
+  return m.is_packet() && it != m.keys.end() ? it->second : "";
 }
 
 std::string packet_spec_name(const std::string& dir) {
-  const Manifest m = read_manifest(dir);
+  const PacketManifest m = read_manifest(dir);
   const auto it = m.keys.find("spec_name");
-  return m.packet && it != m.keys.end() ? it->second : "";
+  return m.is_packet() && it != m.keys.end() ? it->second : "";
 }
 
 std::vector<std::string> verify_manifest(const std::string& dir) {
   std::vector<std::string> bad;
-  const Manifest m = read_manifest(dir);
+  const PacketManifest m = read_manifest(dir);
   for (const auto& [hash, name] : m.files) {
     std::error_code ec;
     const fs::path file = fs::path(dir) / name;
     if (!fs::is_regular_file(file, ec) || sha256_file(file.string()) != hash) bad.push_back(name);
   }
-  if (!m.has_files) bad.push_back(kManifest);
+  if (!m.has_files || !m.malformed.empty()) bad.push_back(kManifest);  // a file line it cannot read
   return bad;
 }
 
 std::vector<std::string> foreign_files(const std::string& dir) {
-  const Manifest m = read_manifest(dir);
+  const PacketManifest m = read_manifest(dir);
   std::set<std::string> own;
-  if (m.packet && m.has_files) {
+  if (m.is_packet() && m.has_files) {
     own.insert(kManifest);
     for (const auto& file : m.files) own.insert(fs::path(file.second).lexically_normal().generic_string());
   }
@@ -231,9 +238,9 @@ std::string PacketWriter::check_overwrite() const {
                     "does not change that): choose another --out",
                     dir_));
   if (fs::is_empty(target, ec)) return "";  // nothing to lose
-  const Manifest m = read_manifest(target);
+  const PacketManifest m = read_manifest(target);
   const std::vector<std::string> foreign = foreign_files(target_path_);
-  if (!m.packet || !m.has_files)
+  if (!m.is_packet() || !m.has_files)
     throw RunError(
         fmt::format("{} is not empty and is not a swaybound packet (no MANIFEST): {}. swaybound never "
                     "deletes files it did not write (--force does not change that): choose another --out, "
@@ -324,7 +331,7 @@ void PacketWriter::commit(const ManifestInfo& info) {
     if (entry.is_regular_file() && entry.path().filename() != kManifest)
       names.push_back(entry.path().filename().string());
   std::sort(names.begin(), names.end());
-  std::string m = std::string(kManifestHeader) + "\n";
+  std::string m = std::string(kPacketManifestHeader) + "\n";
   m += fmt::format("tool: swaybound {} (commit {})\n", tool_version(), git_commit());
   m += fmt::format("compiler: {}\n", compiler_id());
   m += fmt::format("date: {}\n", info.date_utc);

@@ -17,6 +17,7 @@
 #include "swaybound/core/error.hpp"
 #include "swaybound/core/hash.hpp"
 #include "swaybound/report/format.hpp"
+#include "swaybound/report/packet.hpp"
 #include "swaybound/report/results.hpp"
 
 namespace swaybound {
@@ -26,7 +27,6 @@ using Json = nlohmann::json;
 
 namespace {
 
-constexpr const char* kManifestHeader = "swaybound packet manifest 1";
 constexpr std::size_t kFailedListed = 100;  ///< results.json lists the first 100 failed cases (check_run.cpp)
 
 /// results.json prints every double in its shortest form that reads back to the same bits, so a
@@ -46,45 +46,6 @@ bool is_sha256_hex(std::string_view s) {
   return s.size() == 64 && std::all_of(s.begin(), s.end(), [](char c) {
            return (c >= '0' && c <= '9') || (c >= 'a' && c <= 'f');
          });
-}
-
-/// MANIFEST as written by PacketWriter::commit: the header line, "key: value" lines (any number,
-/// any keys), "files:", then one "SHA-256  name" line per file.
-struct Manifest {
-  std::string header;
-  std::map<std::string, std::string> keys;
-  bool has_files = false;
-  std::vector<std::pair<std::string, std::string>> files;  ///< (hash, name) in file order
-  std::vector<std::string> malformed;                      ///< file lines that are not "hash  name"
-};
-
-Manifest parse_manifest(const std::string& text) {
-  Manifest m;
-  std::istringstream in(text);
-  std::string line;
-  bool first = true;
-  while (std::getline(in, line)) {
-    if (!line.empty() && line.back() == '\r') line.pop_back();
-    if (first) {
-      m.header = line;
-      first = false;
-      continue;
-    }
-    if (!m.has_files) {
-      if (line == "files:") {
-        m.has_files = true;
-      } else if (const auto colon = line.find(": "); colon != std::string::npos) {
-        m.keys.emplace(line.substr(0, colon), line.substr(colon + 2));
-      }
-      continue;
-    }
-    if (line.empty()) continue;
-    if (line.size() > 66 && is_sha256_hex(line.substr(0, 64)) && line.compare(64, 2, "  ") == 0)
-      m.files.emplace_back(line.substr(0, 64), line.substr(66));
-    else
-      m.malformed.push_back(line);
-  }
-  return m;
 }
 
 /// A MANIFEST name that stays inside the folder (no separators, not "." or "..").
@@ -173,10 +134,10 @@ class Verifier {
   }
 
   /// Every MANIFEST line against the folder; returns the parsed MANIFEST.
-  Manifest manifest(const fs::path& dir) {
-    const Manifest m = parse_manifest(read_bytes(dir / "MANIFEST"));
-    if (m.header != kManifestHeader)
-      add("MANIFEST", fmt::format("first line is '{}', not '{}'", m.header, kManifestHeader),
+  PacketManifest manifest(const fs::path& dir) {
+    const PacketManifest m = parse_packet_manifest(read_bytes(dir / "MANIFEST"));
+    if (m.header != kPacketManifestHeader)
+      add("MANIFEST", fmt::format("first line is '{}', not '{}'", m.header, kPacketManifestHeader),
           "MANIFEST header line read");
     if (!m.has_files)
       add("MANIFEST", "no 'files:' line: no file of the packet can be verified",
@@ -470,7 +431,7 @@ VerifyResult verify_packet(const std::string& path) {
   std::string results_spec;
   if (packet) {
     r.kind = "check packet";
-    const Manifest m = v.manifest(dir);
+    const PacketManifest m = v.manifest(dir);
     const auto spec = m.keys.find("spec");
     const auto spec_sha = m.keys.find("spec_sha256");
     if (spec == m.keys.end() || spec_sha == m.keys.end() || !plain_name(spec->second))

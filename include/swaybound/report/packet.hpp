@@ -11,6 +11,7 @@
 // before any work, listing what is in the way, and `force` does not change that. A packet of the
 // same design (the same spec `name:`) is replaced without `force` (a new revision); a packet of
 // another design needs `force`.
+#include <map>
 #include <memory>
 #include <string>
 #include <vector>
@@ -69,6 +70,23 @@ class PacketWriter {
   std::vector<std::string> notices_;
   bool committed_ = false;
 };
+
+inline constexpr const char* kPacketManifestHeader = "swaybound packet manifest 1";
+
+/// MANIFEST as PacketWriter::commit writes it: the header line, "key: value" lines (any number,
+/// any keys), "files:", then one "SHA-256  name" line per file. One reader for the writer's own
+/// overwrite rules and for `verify`.
+struct PacketManifest {
+  std::string header;                                      ///< first line
+  std::map<std::string, std::string> keys;                 ///< lines before "files:"
+  bool has_files = false;                                  ///< a "files:" line was found
+  std::vector<std::pair<std::string, std::string>> files;  ///< (SHA-256, name) in file order
+  std::vector<std::string> malformed;                      ///< file lines that are not "SHA-256  name"
+  bool is_packet() const { return header == kPacketManifestHeader; }
+};
+
+/// Parses MANIFEST text (CR-LF tolerated).
+PacketManifest parse_packet_manifest(const std::string& text);
 
 /// The spec SHA-256 recorded in a packet's MANIFEST, or "" when `dir` holds no packet.
 std::string packet_spec_sha256(const std::string& dir);
