@@ -11,7 +11,6 @@
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/chaos/ftle.hpp"
 #include "swaybound/core/hash.hpp"
-#include "swaybound/dynamics/forces.hpp"
 #include "swaybound/spec/loader.hpp"
 
 namespace swaybound {
@@ -338,12 +337,9 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
         rc.base_vy.push_back(v.ws->base_vy);
         rc.base_ax.push_back(v.ws->base_ax);
         rc.base_ay.push_back(v.ws->base_ay);
-        const Phase& phase =
-            model.scenarios[static_cast<std::size_t>(v.ws->scenario)].phases[static_cast<std::size_t>(v.ws->phase)];
         for (std::size_t w = 0; w < model.wind.size(); ++w) {
-          double px, py, vx, vy, fx, fy;
-          point_state(model, *v.ws, model.wind[w].point, px, py, vx, vy);
-          drag_force(model.wind[w].drag_factor, phase.wind_speed[w], vx, vy, fx, fy);
+          double fx, fy, vx, vy;
+          wind_load_force(model, *v.ws, w, fx, fy, vx, vy);
           rc.wind_x[w].push_back(fx);
         }
         for (int i = 0; i < n; ++i) {

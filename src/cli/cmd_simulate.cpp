@@ -12,7 +12,6 @@
 #include "commands.hpp"
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/checks/metrics.hpp"
-#include "swaybound/dynamics/forces.hpp"
 #include "swaybound/core/units.hpp"
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/model/model.hpp"
@@ -241,11 +240,9 @@ Action add_simulate(CLI::App& app) {
         csv << ',' << v.ws->reaction_x[i] << ',' << v.ws->reaction_y[i] << ',' << v.ws->reaction[i] << ',' << top << ','
             << bottom + 0.0;
       }
-      const Phase& phase = model.scenarios[static_cast<std::size_t>(w.scenario)].phases[static_cast<std::size_t>(w.phase)];
       for (std::size_t k = 0; k < model.wind.size(); ++k) {
-        double px, py, vx, vy, fx, fy;
-        point_state(model, w, model.wind[k].point, px, py, vx, vy);
-        drag_force(model.wind[k].drag_factor, phase.wind_speed[k], vx, vy, fx, fy);
+        double fx, fy, vx, vy;
+        wind_load_force(model, w, k, fx, fy, vx, vy);
         csv << ',' << fx + 0.0 << ',' << fy + 0.0;  // + 0.0: no "-0"
       }
       csv << ',' << v.energy << ',' << v.x[2 * n] << ',' << v.x[2 * n + 1] << ',' << v.audit_residual << '\n';

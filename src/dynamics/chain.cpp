@@ -85,14 +85,20 @@ void apply_point_force(const Model& model, Workspace& ws, int k, double s, doubl
 
 }  // namespace
 
+void wind_load_force(const Model& model, const Workspace& ws, std::size_t w, double& fx, double& fy, double& vx,
+                     double& vy) {
+  const Phase& phase = model.scenarios[static_cast<std::size_t>(ws.scenario)].phases[static_cast<std::size_t>(ws.phase)];
+  double px, py;
+  point_state(model, ws, model.wind[w].point, px, py, vx, vy);
+  drag_force(model.wind[w].drag_factor, phase.wind_speed[w], vx, vy, fx, fy);
+}
+
 void external_forces(const Model& model, Workspace& ws, double* q) {
   for (int k = 0; k < model.n; ++k) ws.force_x[k] = ws.force_y[k] = 0.0;
-  const Phase& phase = model.scenarios[static_cast<std::size_t>(ws.scenario)].phases[static_cast<std::size_t>(ws.phase)];
   for (std::size_t w = 0; w < model.wind.size(); ++w) {
     const WindModel& wind = model.wind[w];
-    double px, py, vx, vy, fx, fy;
-    point_state(model, ws, wind.point, px, py, vx, vy);
-    drag_force(wind.drag_factor, phase.wind_speed[w], vx, vy, fx, fy);
+    double vx, vy, fx, fy;
+    wind_load_force(model, ws, w, fx, fy, vx, vy);
     apply_point_force(model, ws, wind.point.link, wind.point.at, fx, fy, q);
     ws.input_power += fx * vx + fy * vy;
   }

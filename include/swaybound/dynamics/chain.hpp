@@ -85,6 +85,11 @@ void kinematics(const Model& model, Workspace& ws, const double* x, double t);
 void point_state(const Model& model, const Workspace& ws, const PointRef& p, double& px, double& py,
                  double& vx, double& vy);
 
+/// Drag force of wind load w [N] (x horizontal, y up) at the state of the last `kinematics`, with
+/// the wind speed of the current phase; also its point's velocity (vx, vy) [m/s].
+void wind_load_force(const Model& model, const Workspace& ws, std::size_t w, double& fx, double& fy, double& vx,
+                     double& vy);
+
 /// Stage 3a: wind and dashpot forces into ws.force_x/y and the generalised force Q (added to q),
 /// and their dissipated and input power into ws.
 void external_forces(const Model& model, Workspace& ws, double* q);
