@@ -10,7 +10,6 @@
 
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/chaos/ftle.hpp"
-#include "swaybound/core/hash.hpp"
 #include "swaybound/spec/loader.hpp"
 
 namespace swaybound {
@@ -193,11 +192,6 @@ ChaosMap chaos_map(const Model& model, const Spec& spec, const RunSettings& run,
 CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   CheckReport report;
   report.spec_file = spec.source_file;
-  // The spec's own bytes when it came from a file; its normalised form otherwise (a sized spec).
-  std::error_code exists_error;
-  report.spec_sha256 = !spec.source_file.empty() && std::filesystem::is_regular_file(spec.source_file, exists_error)
-                           ? sha256_file(spec.source_file)
-                           : sha256_hex(normalised_yaml(spec));
   const Model model = build_model(spec);
   const CaseSpace space(spec);
   report.case_count = space.size();

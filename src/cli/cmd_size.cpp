@@ -189,7 +189,7 @@ Action add_size(CLI::App& app) {
                     s.mode == SearchMode::local ? "local" : "global", s.seed, s.max_evaluations,
                     s.max_seconds, result.screening_size, s.required_margin));
     info.settings.push_back(fmt::format("sized spec: sized_spec.yaml sha256={} (results.json is its check)",
-                                        result.after.spec_sha256));
+                                        spec_sha256(result.sized)));
     info.settings.push_back(fmt::format("accuracy_audit: {}", o->no_audit ? "off" : "governing cases at rtol/100, atol/100"));
     packet.commit(info);
     print_notices(packet);

@@ -7,6 +7,7 @@
 #include <openssl/evp.h>
 
 #include "swaybound/core/error.hpp"
+#include "swaybound/spec/loader.hpp"
 
 namespace swaybound {
 
@@ -26,6 +27,10 @@ std::string sha256_file(const std::string& path) {
   std::ostringstream buffer;
   buffer << in.rdbuf();
   return sha256_hex(buffer.str());
+}
+
+std::string spec_sha256(const Spec& spec) {
+  return sha256_hex(spec.source_text.empty() ? normalised_yaml(spec) : std::string_view(spec.source_text));
 }
 
 }  // namespace swaybound

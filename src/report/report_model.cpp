@@ -12,6 +12,7 @@
 
 #include <fmt/format.h>
 
+#include "swaybound/core/hash.hpp"
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/core/version.hpp"
 #include "swaybound/model/model.hpp"
@@ -1471,8 +1472,8 @@ Document build_document(const Spec& spec, const CheckReport& r, const ReportMeta
   d.date = meta.date;
   d.tool_version = meta.tool_version.empty() ? std::string(tool_version()) : meta.tool_version;
   d.commit = meta.commit.empty() ? std::string(git_commit()) : meta.commit;
-  d.sha256 = r.spec_sha256;
-  d.sha_prefix = r.spec_sha256.substr(0, 12);
+  d.sha256 = spec_sha256(spec);
+  d.sha_prefix = d.sha256.substr(0, 12);
   d.pass = r.pass;
   d.paper = spec.report.paper;
   d.sections.push_back(title_section(d, spec, r));

@@ -6,6 +6,7 @@
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
+#include "swaybound/core/hash.hpp"
 #include "swaybound/core/version.hpp"
 
 namespace swaybound {
@@ -47,7 +48,7 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
   Json j;
   j["schema"] = kResultsSchema;
   j["tool"] = {{"name", "swaybound"}, {"version", std::string(tool_version())}, {"commit", std::string(git_commit())}};
-  j["spec"] = {{"name", spec.name}, {"sha256", r.spec_sha256}, {"format_version", spec.version}};
+  j["spec"] = {{"name", spec.name}, {"sha256", spec_sha256(spec)}, {"format_version", spec.version}};
   j["units"] = "SI: m, kg, s, N, rad; margins in the unit of their check";
   j["solver"] = {{"method", stepper_name(spec.solver.method)}, {"rtol", spec.solver.rtol}, {"atol", spec.solver.atol},
                  {"max_steps", spec.solver.max_steps}, {"min_step_s", spec.solver.min_step},

@@ -210,6 +210,7 @@ class Sizer {
     } catch (const SpecError&) {
       Spec s = design;
       s.source_file.clear();
+      s.source_text.clear();
       return s;
     }
   }
@@ -747,15 +748,7 @@ SizingResult Sizer::run() {
   r.evaluations = evaluations_;
   r.screening_evaluations = screening_evaluations_;
   r.full_checks = full_checks_ + 1;
-  if (!spec_.source_file.empty()) {
-    try {
-      r.source_sha256 = sha256_file(spec_.source_file);
-    } catch (const Error&) {
-      r.source_sha256 = sha256_hex(normalised_yaml(spec_));
-    }
-  } else {
-    r.source_sha256 = sha256_hex(normalised_yaml(spec_));
-  }
+  r.source_sha256 = spec_sha256(spec_);
   const Spec design = evaluator_.design(final_values);
   r.sized_yaml = sized_spec_header(r) + normalised_yaml(design);
   if (options_.write_sized_spec) r.sized_path = options_.write_sized_spec(r.sized_yaml);
@@ -766,6 +759,7 @@ SizingResult Sizer::run() {
     // Only a design with a point beyond the end of its link (infeasible) fails to re-load.
     r.sized = design;
     r.sized.source_file.clear();
+    r.sized.source_text.clear();
   }
   for (std::size_t i = 0; i < vars_.size(); ++i) {
     const double written = get_spec_value(r.sized, vars_[i].target);

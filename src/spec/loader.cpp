@@ -588,6 +588,7 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   ctx.file = file_label;
   Spec spec;
   spec.source_file = file_label;
+  spec.source_text = std::string(text);
   MapView top(ctx, root, "",
               {"swaybound", "name", "gravity", "links", "dashpots", "wind", "base", "cases", "limits",
                "chaos", "sizing", "solver", "report"});

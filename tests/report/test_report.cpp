@@ -17,6 +17,7 @@
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
+#include "swaybound/core/hash.hpp"
 #include "swaybound/checks/check_run.hpp"
 #include "swaybound/report/document.hpp"
 #include "swaybound/report/plot.hpp"
@@ -243,7 +244,7 @@ TEST_CASE("report.pdf: page count, paper, footer, and its verdict table equals r
   std::string text;
   REQUIRE(run(fmt::format("pdftotext -layout {} -", pdf.string()), text) == 0);
   for (int page = 1; page <= pages; ++page) CHECK(text.find(fmt::format("page {} of {}", page, pages)) != std::string::npos);
-  CHECK(text.find(p.report.spec_sha256.substr(0, 12)) != std::string::npos);
+  CHECK(text.find(spec_sha256(p.spec).substr(0, 12)) != std::string::npos);
   CHECK(text.find("2025-02-03") != std::string::npos);
 
   std::vector<std::string> lines;

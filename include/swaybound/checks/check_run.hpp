@@ -89,7 +89,7 @@ struct CheckOptions {
 };
 
 struct CheckReport {
-  std::string spec_file, spec_sha256;
+  std::string spec_file;
   long case_count = 0;
   std::vector<CheckResult> checks;
   ModalResult modes;

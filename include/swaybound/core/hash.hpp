@@ -10,4 +10,9 @@ std::string sha256_hex(std::string_view data);
 /// Throws RunError when the file cannot be read.
 std::string sha256_file(const std::string& path);
 
+struct Spec;
+/// The fingerprint of a spec: SHA-256 of the bytes it was loaded from, or of its normalised YAML
+/// when it was built or changed in memory (a design during sizing clears source_text).
+std::string spec_sha256(const Spec& spec);
+
 }  // namespace swaybound

@@ -226,6 +226,7 @@ struct Spec {
   int version = kSpecFormatVersion;
   std::string name;
   std::string source_file;   ///< the path the spec was read from
+  std::string source_text;   ///< the bytes the loader parsed (empty for a spec built in memory)
   double gravity = 9.80665;  ///< [m/s^2] standard gravity (CGPM 1901), default
   std::vector<LinkSpec> links;
   std::vector<DashpotSpec> dashpots;
