@@ -138,6 +138,27 @@ Section sizing_section(const Spec& input, const SizingResult& r) {
     ct.rows.push_back(row);
   }
   s.blocks.push_back(table_block(ct));
+  if (!r.stages.empty()) {
+    s.blocks.push_back(subheading("Why each search stage stopped"));
+    Table st{"sizing-stages",
+             {col("algorithm", 0.8, Align::left, "algorithm"), col("goal", 0.9, Align::left, "goal"),
+              col("stopped by", 1.2, Align::left, "reason"), col("meaning", 3.2, Align::left, "meaning"),
+              col("stages", 0.6, Align::right, "stages"), col("evaluations", 0.8, Align::right, "evaluations")},
+             {},
+             "Why each NLopt stage of the search stopped (sizing.json lists every stage in order).",
+             7.6};
+    for (const auto& g : group_search_stages(r.stages)) {
+      Row row;
+      row.cells = {g.algorithm,
+                   g.goal,
+                   std::string(stop_reason_name(g.reason)),
+                   std::string(stop_reason_meaning(g.reason)),
+                   std::to_string(g.stages),
+                   std::to_string(g.evaluations)};
+      st.rows.push_back(row);
+    }
+    s.blocks.push_back(table_block(st));
+  }
   return s;
 }
 

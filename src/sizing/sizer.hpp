@@ -74,6 +74,10 @@ class Sizer {
   bool out_of_time() const { return search_elapsed() >= sizing_.max_seconds; }
   bool budget_left() const { return evaluations_ < sizing_.max_evaluations && !out_of_time(); }
   void note_budget_stop();
+  /// The run's budget that is spent: time when out of time, else evaluations.
+  StopReason run_budget_reason() const {
+    return out_of_time() ? StopReason::time_budget : StopReason::evaluation_budget;
+  }
   Point make_point(const std::vector<double>& values, DesignOutcome outcome) const;
   void record(const Point& p, EvaluationKind kind);
   void report_progress(const std::string& phase) const;
@@ -150,6 +154,7 @@ class Sizer {
   std::vector<SizingEvaluation> history_;
   std::optional<Point> best_verified_, best_screen_, least_violation_;
   std::string stop_reason_ = "converged";
+  std::vector<SearchStage> stages_;  ///< every NLopt run, with why it stopped
   std::string catalogue_method_;
 };
 

@@ -116,6 +116,7 @@ SizingResult Sizer::run() {
   r.algorithm = sizing_.mode == SearchMode::global ? "ISRES, then COBYLA polish" : "COBYLA";
   r.catalogue_method = catalogue_method_;
   r.stop_reason = stop_reason_;
+  r.stages = stages_;
   r.evaluations = evaluations_;
   r.screening_evaluations = screening_evaluations_;
   r.full_checks = full_checks_ + 1;
