@@ -142,8 +142,8 @@ Section sizing_section(const Spec& input, const SizingResult& r) {
     s.blocks.push_back(subheading("Why each search stage stopped"));
     Table st{"sizing-stages",
              {col("algorithm", 0.8, Align::left, "algorithm"), col("goal", 0.9, Align::left, "goal"),
-              col("stopped by", 1.2, Align::left, "reason"), col("meaning", 3.2, Align::left, "meaning"),
-              col("stages", 0.6, Align::right, "stages"), col("evaluations", 0.8, Align::right, "evaluations")},
+              col("stopped by", 1.1, Align::left, "reason"), col("meaning", 3.0, Align::left, "meaning"),
+              col("stages", 0.6, Align::right, "stages"), col("evaluations", 1.0, Align::right, "evaluations")},
              {},
              "Why each NLopt stage of the search stopped (sizing.json lists every stage in order).",
              7.6};
