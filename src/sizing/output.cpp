@@ -1,4 +1,5 @@
 // Files of a sizing run: the history CSV, the before/after table and the summary JSON.
+#include <algorithm>
 #include <cmath>
 #include <sstream>
 
@@ -63,6 +64,22 @@ std::string bound_name(int at_bound) { return at_bound < 0 ? "low end" : at_boun
 
 }  // namespace
 
+std::vector<SearchStageGroup> group_search_stages(const std::vector<SearchStage>& stages) {
+  std::vector<SearchStageGroup> groups;
+  for (const auto& st : stages) {
+    auto g = std::find_if(groups.begin(), groups.end(), [&](const SearchStageGroup& x) {
+      return x.algorithm == st.algorithm && x.goal == st.goal && x.reason == st.reason;
+    });
+    if (g == groups.end()) {
+      groups.push_back({st.algorithm, st.goal, st.reason, 0, 0});
+      g = groups.end() - 1;
+    }
+    ++g->stages;
+    g->evaluations += st.evaluations;
+  }
+  return groups;
+}
+
 std::string sizing_history_csv(const Spec& spec, const SizingResult& r) {
   std::ostringstream out;
   out << "evaluation,kind,cases";
@@ -111,6 +128,14 @@ std::string sizing_table_markdown(const Spec& spec, const SizingResult& r) {
       "{} evaluations ({} on {} screening cases, {} full checks of {} cases incl. the design as given and the final "
       "check); the search ended by: {}.\n\n",
       r.evaluations, r.screening_evaluations, r.screening_size, r.full_checks, r.case_count, r.stop_reason);
+  if (!r.stages.empty()) {
+    out << "## Why each search stage stopped\n\n| algorithm | goal | stopped by | meaning | stages | evaluations |\n"
+           "|---|---|---|---|---|---|\n";
+    for (const auto& g : group_search_stages(r.stages))
+      out << fmt::format("| {} | {} | `{}` | {} | {} | {} |\n", g.algorithm, g.goal, stop_reason_name(g.reason),
+                         stop_reason_meaning(g.reason), g.stages, g.evaluations);
+    out << "\n";
+  }
 
   out << "## Design variables\n\n| variable | range or catalogue | cost weight | step | before | found | "
          "after | at "
@@ -214,6 +239,16 @@ std::string sizing_summary_json(const Spec& spec, const SizingResult& r) {
                  {"full_checks", r.full_checks},
                  {"screening_cases", r.screening_size},
                  {"cases", r.case_count}};
+  json stages = json::array();
+  for (const auto& st : r.stages)
+    stages.push_back({{"algorithm", st.algorithm},
+                      {"goal", st.goal},
+                      {"first_evaluation", st.first_evaluation},
+                      {"evaluations", st.evaluations},
+                      {"budget", st.budget},
+                      {"stopped_by", std::string(stop_reason_name(st.reason))},
+                      {"meaning", std::string(stop_reason_meaning(st.reason))}});
+  j["search"]["stages"] = stages;
   j["feasible"] = r.feasible;
   json vars = json::array();
   for (std::size_t i = 0; i < r.variable_outcomes.size(); ++i) {

@@ -24,13 +24,18 @@
 #include <cmath>
 #include <filesystem>
 #include <fstream>
+#include <new>
 #include <numbers>
+#include <set>
 #include <sstream>
+#include <stdexcept>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
+#include <nlopt.hpp>
 
 #include "swaybound/core/hash.hpp"
+#include "swaybound/report/document.hpp"
 #include "swaybound/report/packet.hpp"
 #include "swaybound/sizing/sizing.hpp"
 #include "swaybound/spec.hpp"
@@ -624,4 +629,105 @@ TEST_CASE(
   CHECK_FALSE(fs::exists(bad));
   fs::remove_all(out);
   fs::remove(spec);
+}
+
+TEST_CASE("every NLopt result and exception maps to its named stop reason", "[sizing][stop]") {
+  struct ResultRow {
+    nlopt::result code;
+    StopReason reason;
+    std::string_view name;
+  };
+  const ResultRow results[] = {
+      {nlopt::SUCCESS, StopReason::success, "success"},
+      {nlopt::STOPVAL_REACHED, StopReason::stopval_reached, "stopval_reached"},
+      {nlopt::FTOL_REACHED, StopReason::ftol_reached, "ftol_reached"},
+      {nlopt::XTOL_REACHED, StopReason::xtol_reached, "xtol_reached"},
+      {nlopt::MAXEVAL_REACHED, StopReason::maxeval_reached, "maxeval_reached"},
+      {nlopt::MAXTIME_REACHED, StopReason::maxtime_reached, "maxtime_reached"},
+      {nlopt::FAILURE, StopReason::failure, "failure"},
+      {nlopt::INVALID_ARGS, StopReason::invalid_args, "invalid_args"},
+      {nlopt::OUT_OF_MEMORY, StopReason::out_of_memory, "out_of_memory"},
+      {nlopt::ROUNDOFF_LIMITED, StopReason::roundoff_limited, "roundoff_limited"},
+      {nlopt::FORCED_STOP, StopReason::forced_stop, "forced_stop"},
+  };
+  std::set<std::string_view> names, meanings;
+  for (const auto& row : results) {
+    INFO(row.name);
+    CHECK(stop_reason_of_nlopt_result(row.code) == row.reason);
+    CHECK(stop_reason_name(row.reason) == row.name);
+    CHECK_FALSE(stop_reason_meaning(row.reason).empty());
+    names.insert(stop_reason_name(row.reason));
+    meanings.insert(stop_reason_meaning(row.reason));
+  }
+  // The stops the search forces when a budget is spent have their own names.
+  for (StopReason r : {StopReason::evaluation_budget, StopReason::time_budget, StopReason::stage_budget}) {
+    names.insert(stop_reason_name(r));
+    meanings.insert(stop_reason_meaning(r));
+  }
+  CHECK(names.size() == 14);
+  CHECK(meanings.size() == 14);
+  // A value NLopt does not define as a result is a failure, not a success.
+  CHECK(stop_reason_of_nlopt_result(0) == StopReason::failure);
+  CHECK(stop_reason_of_nlopt_result(-6) == StopReason::failure);
+
+  struct ExceptionRow {
+    std::exception_ptr error;
+    StopReason reason;
+  };
+  const ExceptionRow exceptions[] = {
+      {std::make_exception_ptr(nlopt::roundoff_limited()), StopReason::roundoff_limited},
+      {std::make_exception_ptr(nlopt::forced_stop()), StopReason::forced_stop},
+      {std::make_exception_ptr(std::runtime_error("nlopt failure")), StopReason::failure},
+      {std::make_exception_ptr(std::invalid_argument("nlopt invalid argument")), StopReason::invalid_args},
+      {std::make_exception_ptr(std::bad_alloc()), StopReason::out_of_memory},
+  };
+  for (const auto& row : exceptions) {
+    INFO(stop_reason_name(row.reason));
+    CHECK(stop_reason_of_nlopt_exception(row.error) == row.reason);
+  }
+}
+
+TEST_CASE("each search stage records why NLopt stopped: a spent budget, or convergence", "[sizing][stop]") {
+  SECTION("an evaluation budget too small for the search ends it, and the last stage says so") {
+    const std::string sizing = R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}
+  budget: {evaluations: 3}
+)";
+    const Spec spec = spec_file("stop-budget", pendulum(sizing));
+    const SizingResult r = run_sizing(spec, quiet());
+    CHECK(r.stop_reason == "evaluation budget");
+    REQUIRE_FALSE(r.stages.empty());
+    CHECK(r.stages.front().algorithm == "COBYLA");
+    CHECK(r.stages.back().reason == StopReason::evaluation_budget);
+    long stage_evaluations = 0;
+    for (const auto& st : r.stages) stage_evaluations += st.evaluations;
+    CHECK(stage_evaluations <= r.evaluations);
+    // sizing.json lists every stage with its reason and meaning; sizing.md and the report show them.
+    const auto j = nlohmann::json::parse(sizing_summary_json(spec, r));
+    REQUIRE(j["search"]["stages"].size() == r.stages.size());
+    CHECK(j["search"]["stages"].back()["stopped_by"] == "evaluation_budget");
+    CHECK(j["search"]["stages"].back()["meaning"] ==
+          std::string(stop_reason_meaning(StopReason::evaluation_budget)));
+    CHECK(sizing_table_markdown(spec, r).find("`evaluation_budget`") != std::string::npos);
+    ReportMeta meta;
+    meta.sizing = &r;
+    meta.sizing_input = &spec;
+    const std::string html = report_html(r.sized, r.after, meta);
+    CHECK(html.find("sizing-stages") != std::string::npos);
+    CHECK(html.find("evaluation_budget") != std::string::npos);
+  }
+  SECTION("a search with room to converge ends on a tolerance") {
+    const std::string sizing = R"(  variables:
+    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}
+  budget: {evaluations: 200}
+)";
+    const SizingResult r = run_sizing(spec_file("stop-converged", pendulum(sizing)), quiet());
+    CHECK(r.stop_reason == "converged");
+    REQUIRE_FALSE(r.stages.empty());
+    const SearchStage& first = r.stages.front();
+    CHECK(first.algorithm == "COBYLA");
+    CHECK(first.goal == "objective");
+    CHECK((first.reason == StopReason::xtol_reached || first.reason == StopReason::ftol_reached));
+    CHECK(first.evaluations < first.budget);
+  }
 }

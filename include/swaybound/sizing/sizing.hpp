@@ -34,8 +34,10 @@
 // Worst-case margins are non-smooth (the governing case switches as the design moves): COBYLA's
 // linear models tolerate kinks, the screening set keeps the cases that govern, and the
 // verification round catches a case that starts to govern outside it.
+#include <exception>
 #include <functional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "swaybound/checks/check_run.hpp"
@@ -67,6 +69,55 @@ struct SizingEvaluation {
   bool pass = false;               ///< every constraint holds on the cases run
   double seconds = 0;              ///< since the sizing run started
 };
+
+/// Why one NLopt stage of the search ended: each of NLopt's results (nlopt::result, the values of
+/// nlopt_result) and exceptions, and the stops the search itself forces when a budget is spent.
+enum class StopReason {
+  success,            ///< NLOPT_SUCCESS
+  stopval_reached,    ///< NLOPT_STOPVAL_REACHED
+  ftol_reached,       ///< NLOPT_FTOL_REACHED: converged in the objective
+  xtol_reached,       ///< NLOPT_XTOL_REACHED: converged in the variables
+  maxeval_reached,    ///< NLOPT_MAXEVAL_REACHED: NLopt's own call cap for the stage
+  maxtime_reached,    ///< NLOPT_MAXTIME_REACHED
+  failure,            ///< NLOPT_FAILURE, std::runtime_error
+  invalid_args,       ///< NLOPT_INVALID_ARGS, std::invalid_argument
+  out_of_memory,      ///< NLOPT_OUT_OF_MEMORY, std::bad_alloc
+  roundoff_limited,   ///< NLOPT_ROUNDOFF_LIMITED, nlopt::roundoff_limited
+  forced_stop,        ///< NLOPT_FORCED_STOP, nlopt::forced_stop (for no reason the search records)
+  evaluation_budget,  ///< forced stop: sizing.budget.evaluations spent
+  time_budget,        ///< forced stop: sizing.budget.seconds spent
+  stage_budget,       ///< forced stop: the share of the budget this stage was given is spent
+};
+
+/// The reason's name as sizing.json writes it ("xtol_reached", "evaluation_budget", ...).
+std::string_view stop_reason_name(StopReason reason);
+/// One line saying what the reason means for the search.
+std::string_view stop_reason_meaning(StopReason reason);
+/// The reason of an NLopt result code (an nlopt::result / nlopt_result value); failure for a
+/// value NLopt does not define.
+StopReason stop_reason_of_nlopt_result(int code);
+/// The reason of an exception nlopt::opt::optimize threw: roundoff_limited, forced_stop,
+/// invalid_args (std::invalid_argument), out_of_memory (std::bad_alloc), failure (anything else,
+/// std::runtime_error among them).
+StopReason stop_reason_of_nlopt_exception(const std::exception_ptr& error);
+
+/// One NLopt run of the search (an ISRES or COBYLA stage) and why it ended.
+struct SearchStage {
+  std::string algorithm;       ///< "ISRES" or "COBYLA"
+  std::string goal;            ///< "objective" or "least margin" (looking for any design that holds)
+  long first_evaluation = 0;   ///< evaluations counted before the stage began
+  long evaluations = 0;        ///< new evaluations the stage made (counted against the budget)
+  long budget = 0;             ///< evaluations the stage was given
+  StopReason reason = StopReason::success;
+};
+
+/// Stages with the same algorithm, goal and reason, in order of first appearance (for the tables).
+struct SearchStageGroup {
+  std::string algorithm, goal;
+  StopReason reason = StopReason::success;
+  long stages = 0, evaluations = 0;
+};
+std::vector<SearchStageGroup> group_search_stages(const std::vector<SearchStage>& stages);
 
 struct SizingProgress {
   long evaluations = 0, max_evaluations = 0;  ///< counted against the budget
@@ -137,6 +188,7 @@ struct SizingResult {
   std::string algorithm;         ///< "COBYLA", "ISRES + COBYLA"
   std::string catalogue_method;  ///< empty, "enumeration of N combinations", "relaxed, rounded: N combinations"
   std::string stop_reason;       ///< "converged", "evaluation budget", "time budget"
+  std::vector<SearchStage> stages;  ///< every NLopt stage, in order, with why it ended
   std::string source_file, source_sha256;
 };
 

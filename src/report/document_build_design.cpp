@@ -1,0 +1,193 @@
+// Section 3, design summary: links, pivots, dampers, wind, scenarios and the case set.
+#include "document_build.hpp"
+
+#include <cmath>
+
+#include <fmt/format.h>
+
+#include "swaybound/spec/loader.hpp"
+
+namespace swaybound::report_doc::build {
+
+namespace {
+
+// ---------------------------------------------------------------------------------------------
+// 3 Design summary
+
+std::string range_text(const std::vector<Range>& ranges, InitialKind kind, double factor, const std::string& unit) {
+  if (ranges.empty()) return "0";
+  std::vector<std::string> parts;
+  for (const auto& r : ranges) {
+    if (kind == InitialKind::single || kind == InitialKind::ladder || r.lo == r.hi)
+      parts.push_back(num(r.lo * factor));
+    else if (kind == InitialKind::grid)
+      parts.push_back(fmt::format("{} to {} ({})", num(r.lo * factor), num(r.hi * factor), r.count));
+    else
+      parts.push_back(fmt::format("{} to {}", num(r.lo * factor), num(r.hi * factor)));
+  }
+  return fmt::format("[{}] {}", fmt::join(parts, "; "), unit);
+}
+
+const char* kind_name(InitialKind k) {
+  switch (k) {
+    case InitialKind::single: return "single";
+    case InitialKind::grid: return "grid";
+    case InitialKind::random: return "random";
+    case InitialKind::corners: return "corners";
+    case InitialKind::ladder: return "ladder";
+  }
+  return "";
+}
+
+std::string attachment_text(const Spec& spec, const AttachmentSpec& a) {
+  if (a.link < 0) return fmt::format("base at ({}, {}) m", num(a.base_x), num(a.base_y));
+  return fmt::format("'{}' at {} m", link_name(spec, a.link), num(a.at));
+}
+
+}  // namespace
+
+Section design_section(const Spec& spec, const CheckReport& r) {
+  Section s{"design", "3", "Design summary", {}, false};
+  Block f;
+  f.kind = Block::Kind::fields;
+  f.field_list = {{"Gravity", fmt::format("{} m/s²", num(spec.gravity, 6))},
+                  {"Links", std::to_string(spec.links.size())},
+                  {"Cases", fmt::format("{} = {} start(s) x {} scenario(s)", r.case_count,
+                                        spec.scenarios.empty() ? 0 : r.case_count / static_cast<long>(spec.scenarios.size()),
+                                        spec.scenarios.size())},
+                  {"Run length", fmt::format("{:g} s per case, recorded at {:g} /s", spec.cases.duration, spec.cases.output_rate)}};
+  s.blocks.push_back(f);
+
+  s.blocks.push_back(subheading("Links (top to bottom)"));
+  Table links{"links-table",
+              {col("#", 0.35, Align::right, "index"), col("link", 2.2, Align::left, "name"),
+               col("kind", 0.8, Align::left, "kind"), col("length [m]", 1, Align::right, "length"),
+               col("mass [kg]", 1.1, Align::right, "mass"), col("com [m]", 1.2, Align::right, "com"),
+               col("inertia about com [kg m²]", 1.5, Align::right, "inertia")},
+              {},
+              "com: centre of mass from the link's upper pivot; (rod): the uniform-rod default.",
+              7.6};
+  for (std::size_t i = 0; i < spec.links.size(); ++i) {
+    const auto& l = spec.links[i];
+    links.rows.push_back({{std::to_string(i + 1), l.name, l.kind == LinkKind::rope ? "rope" : "rigid", num(l.length),
+                           amount(l.mass), num(l.com) + (l.com_given ? "" : " (rod)"),
+                           amount(l.inertia) + (l.inertia_given ? "" : " (rod)")}});
+  }
+  s.blocks.push_back(table_block(links));
+
+  s.blocks.push_back(subheading("Pivots: friction and dampers"));
+  Table piv{"pivots-table",
+            {col("pivot of", 2.0, Align::left, "link"), col("Coulomb [N m]", 1, Align::right, "friction-torque"),
+             col("pin r [mm]", 0.9, Align::right, "pin-radius"), col("mu", 0.6, Align::right, "mu"),
+             col("w_t [deg/s]", 0.9, Align::right, "transition"), col("C [kN m s/rad]", 1.2, Align::right, "damper-c"),
+             col("alpha", 0.6, Align::right, "exponent"), col("max torque [kN m]", 1.0, Align::right, "max-torque"),
+             col("linear below [deg/s]", 1.1, Align::right, "linear-below")},
+            {},
+            "Friction torque T0 + mu r |R|, regularised by tanh(w / w_t); damper tau = C w_ref (|w|/w_ref)^alpha, "
+            "w_ref = 1 rad/s, capped at max, linear below linear_below when alpha < 1. A dash: none.",
+            7.4};
+  for (const auto& l : spec.links) {
+    Row row;
+    row.cells.push_back(l.name);
+    if (l.pivot.friction) {
+      const auto& fr = *l.pivot.friction;
+      row.cells.insert(row.cells.end(), {num(fr.torque), num(fr.pin_radius * 1000), num(fr.mu), deg(fr.transition_rate)});
+    } else {
+      row.cells.insert(row.cells.end(), {"-", "-", "-", "-"});
+    }
+    if (!l.pivot.dampers.empty()) {
+      // Several dampers side by side: one value per damper in each column, in spec order.
+      std::string c, a, m, w;
+      for (const auto& dm : l.pivot.dampers) {
+        const std::string sep = c.empty() ? "" : " + ";
+        c += sep + num(dm.coefficient / 1000);
+        a += (a.empty() ? "" : ", ") + num(dm.exponent);
+        m += (m.empty() ? "" : ", ") + (std::isfinite(dm.max_torque) ? num(dm.max_torque / 1000) : std::string("none"));
+        w += (w.empty() ? "" : ", ") + (dm.exponent < 1 ? deg(dm.linear_below) : std::string("-"));
+      }
+      row.cells.insert(row.cells.end(), {c, a, m, w});
+    } else {
+      row.cells.insert(row.cells.end(), {"-", "-", "-", "-"});
+    }
+    piv.rows.push_back(row);
+  }
+  s.blocks.push_back(table_block(piv));
+
+  s.blocks.push_back(subheading("Dashpots"));
+  if (spec.dashpots.empty()) {
+    s.blocks.push_back(paragraph("None."));
+  } else {
+    Table t{"dashpots-table",
+            {col("dashpot", 1.5, Align::left, "name"), col("from", 2, Align::left, "from"), col("to", 2, Align::left, "to"),
+             col("c [kN s/m]", 1, Align::right, "coefficient")},
+            {},
+            "",
+            7.6};
+    for (const auto& dp : spec.dashpots)
+      t.rows.push_back({{dp.name, attachment_text(spec, dp.from), attachment_text(spec, dp.to), num(dp.coefficient / 1000)}});
+    s.blocks.push_back(table_block(t));
+  }
+
+  s.blocks.push_back(subheading("Wind"));
+  if (spec.wind.empty()) {
+    s.blocks.push_back(paragraph("None."));
+  } else {
+    Table t{"wind-table",
+            {col("on link", 1.6, Align::left, "link"), col("at [m]", 0.7, Align::right, "at"),
+             col("speed [m/s]", 0.9, Align::right, "speed"), col("A [m²]", 0.7, Align::right, "area"),
+             col("Cd", 0.6, Align::right, "cd"), col("rho [kg/m³]", 0.9, Align::right, "rho"),
+             col("gust", 2.2, Align::left, "gust")},
+            {},
+            "Drag F = 1/2 rho Cd A |u - v| (u - v) at the point; positive speed blows towards +x.",
+            7.6};
+    for (const auto& w : spec.wind)
+      t.rows.push_back({{link_name(spec, w.link), num(w.at), num(w.speed), num(w.drag_area), num(w.drag_coefficient),
+                         num(w.air_density),
+                         w.gust ? fmt::format("+{} m/s from {:g} s for {:g} s", num(w.gust->speed), w.gust->start,
+                                              w.gust->duration)
+                                : "none"}});
+    s.blocks.push_back(table_block(t));
+  }
+
+  s.blocks.push_back(subheading("Base-motion scenarios"));
+  Table sc{"scenarios-table",
+           {col("scenario", 1.6, Align::left, "name"), col("initial velocity [m/s]", 1.1, Align::right, "velocity"),
+            col("acceleration segments: duration [s] at (x, y) [m/s²]", 3.2, Align::left, "accel")},
+           {},
+           "After the last segment the base keeps its velocity.",
+           7.6};
+  for (const auto& scn : spec.scenarios) {
+    std::vector<std::string> seg;
+    for (const auto& a : scn.accel) seg.push_back(fmt::format("{:g} s at ({}, {})", a.duration, num(a.ax), num(a.ay)));
+    sc.rows.push_back({{scn.name, fmt::format("({}, {})", num(scn.initial_vx), num(scn.initial_vy)),
+                        seg.empty() ? "none (constant velocity)" : fmt::format("{}", fmt::join(seg, "; "))}});
+  }
+  s.blocks.push_back(table_block(sc));
+
+  s.blocks.push_back(subheading("Initial-condition sets"));
+  Table is{"initial-sets-table",
+           {col("set", 1.1, Align::left, "name"), col("kind", 0.7, Align::left, "kind"),
+            col("starts", 0.6, Align::right, "starts"), col("link angles", 2.4, Align::left, "theta"),
+            col("link rates", 1.6, Align::left, "rate"), col("notes", 1.6, Align::left, "notes")},
+           {},
+           "Angles per link, top link first; a link not listed starts at 0. Grids show the count per range.",
+           7.4};
+  for (const auto& set : spec.cases.initial) {
+    std::string notes;
+    if (set.kind == InitialKind::random)
+      notes = fmt::format("seed {}, {}", set.seed, set.method == SamplingMethod::uniform ? "uniform" : "Latin hypercube");
+    if (set.kind == InitialKind::ladder) {
+      std::vector<std::string> st;
+      for (double v : set.steps) st.push_back(fmt::format("{:g}", set.relative ? v : v * kDeg));
+      notes = fmt::format("perturbs '{}' by {} [{}]", link_name(spec, set.perturb_link), fmt::join(st, ", "),
+                          set.relative ? "relative" : "deg");
+    }
+    is.rows.push_back({{set.name, kind_name(set.kind), std::to_string(initial_set_size(set)),
+                        range_text(set.theta, set.kind, kDeg, "deg"), range_text(set.rate, set.kind, kDeg, "deg/s"),
+                        notes.empty() ? "-" : notes}});
+  }
+  s.blocks.push_back(table_block(is));
+  return s;
+}
+
+}  // namespace swaybound::report_doc::build

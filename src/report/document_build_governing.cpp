@@ -1,0 +1,279 @@
+// Section 6, governing cases: for each limit, the case that governs it, its recorded sway and
+// the inputs beside it.
+#include "document_build.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include <fmt/format.h>
+
+#include "swaybound/cases/case_space.hpp"
+#include "swaybound/report/format.hpp"
+
+namespace swaybound::report_doc::build {
+
+namespace {
+
+constexpr int kMaxGoverningPlots = 9;  // figures on the governing-case pages (at least one case)
+
+}  // namespace
+
+// ---------------------------------------------------------------------------------------------
+// 6 Governing cases
+
+std::vector<double> scaled(const std::vector<double>& v, double factor) {
+  std::vector<double> out(v.size());
+  for (std::size_t i = 0; i < v.size(); ++i) out[i] = v[i] * factor;
+  return out;
+}
+
+void add_ref(std::vector<plot::RefLine>& refs, plot::RefLine r) {
+  for (const auto& e : refs)
+    if (e.vertical == r.vertical && e.value == r.value && e.from == r.from) return;
+  refs.push_back(std::move(r));
+}
+
+namespace {
+
+/// The recorded value of `y` at the sample nearest to time t (0 when there are no samples).
+double sample_at(const std::vector<double>& t, const std::vector<double>& y, double time) {
+  if (t.empty() || y.empty()) return 0;
+  const auto it = std::lower_bound(t.begin(), t.end(), time);
+  std::size_t k = static_cast<std::size_t>(it - t.begin());
+  if (k >= t.size() || (k > 0 && time - t[k - 1] < t[k] - time)) k = k > 0 ? k - 1 : 0;
+  return y[std::min(k, y.size() - 1)];
+}
+
+/// The inputs of a recorded case beside its sway: base acceleration and speed, and the wind force
+/// of each wind load when the spec has wind.
+std::vector<Figure> input_figures(const Spec& spec, const RecordedCase& rc, const std::string& id) {
+  const auto moves = [](const std::vector<double>& v) {
+    return std::any_of(v.begin(), v.end(), [](double x) { return x != 0; });
+  };
+  std::vector<plot::Series> base;
+  if (moves(rc.base_ax) || moves(rc.base_vx)) {
+    base.push_back({"acceleration x [m/s²]", rc.t, rc.base_ax, true, false, 0});
+    base.push_back({"speed x [m/s]", rc.t, rc.base_vx, true, false, 1});
+  }
+  if (moves(rc.base_ay) || moves(rc.base_vy)) {
+    base.push_back({"acceleration y [m/s²]", rc.t, rc.base_ay, true, false, 2});
+    base.push_back({"speed y [m/s]", rc.t, rc.base_vy, true, false, 3});
+  }
+  plot::Axis by{"acceleration, speed", "m/s², m/s"};
+  by.include_zero = true;
+  plot::Plot pb = plot::line_chart("Base (top pivot) motion", {"time", "s"}, by, base);
+  pb.empty_text = "the base does not move in this scenario";
+  std::vector<Figure> out;
+  const double share = spec.wind.empty() ? 1.0 : 0.5;
+  out.push_back(figure(std::move(pb),
+                       fmt::format("Acceleration and speed of the trolley or boom tip in case {} (x horizontal, y up), "
+                                   "as the scenario prescribes.",
+                                   id),
+                       200, share));
+  if (!spec.wind.empty()) {
+    std::vector<plot::Series> wind;
+    for (std::size_t w = 0; w < rc.wind_x.size(); ++w)
+      wind.push_back({fmt::format("wind[{}] on {}", w, spec.links[static_cast<std::size_t>(spec.wind[w].link)].name),
+                      rc.t, scaled(rc.wind_x[w], 1e-3), true, false, -1});
+    plot::Axis wy{"horizontal wind force", "kN"};
+    wy.include_zero = true;
+    out.push_back(figure(plot::line_chart("Wind force", {"time", "s"}, wy, wind),
+                         fmt::format("Horizontal drag force of each wind load in case {}, gusts included.", id), 200,
+                         share));
+  }
+  return out;
+}
+
+}  // namespace
+
+std::string link_scope(const Spec& spec, const LimitSpec& l) {
+  return l.link >= 0 ? " (" + link_name(spec, l.link) + ")" : "";
+}
+
+namespace {
+
+/// The start of case `index` (its id names the set): its scenario and the angles and rates of every link.
+std::string start_text(const Spec& spec, const CaseSpace& space, long index) {
+  if (index < 0 || index >= space.size()) return "-";
+  const CaseDef def = space.at(index);
+  std::vector<std::string> theta, omega;
+  for (std::size_t i = 0; i < spec.links.size(); ++i) {
+    theta.push_back(deg(i < def.initial.theta.size() ? def.initial.theta[i] : 0.0));
+    omega.push_back(deg(i < def.initial.omega.size() ? def.initial.omega[i] : 0.0));
+  }
+  const auto scenario = static_cast<std::size_t>(def.scenario);
+  return fmt::format("scenario '{}', θ0 = ({}) deg, ω0 = ({}) deg/s",
+                     scenario < spec.scenarios.size() ? spec.scenarios[scenario].name : "-", fmt::join(theta, ", "),
+                     fmt::join(omega, ", "));
+}
+
+}  // namespace
+
+Section governing_section(const Spec& spec, const CheckReport& r) {
+  Section s{"governing", "6", "Governing cases", {}, true};
+  const CaseSpace space(spec);
+  // Which case governs which check.
+  Table t{"governing-table",
+          {col("check", 1.6, Align::left, "check"), col("governing case", 2.4, Align::left, "case"),
+           col("where", 1.3, Align::left, "where"), col("worst", 1.1, Align::right, "worst"),
+           col("ratio", 0.7, Align::right, "ratio"), col("verdict", 0.75, Align::center, "verdict"),
+           col("start", 3, Align::left, "start", true)},
+          {},
+          "start: the governing case's base scenario and initial conditions, link angles θ0 from the downward "
+          "vertical and rates ω0, top link first.",
+          7.6};
+  for (std::size_t i = 0; i < r.checks.size(); ++i) {
+    const auto& c = r.checks[i];
+    if (!c.per_case) continue;
+    Row row{{fmt::format("{} {}", i + 1, c.key), c.governing_id.empty() ? "-" : c.governing_id, where_text(spec, c),
+             engineering(c.worst, c.unit), ratio_percent(c.margin_ratio), c.pass ? "pass" : "FAIL",
+             start_text(spec, space, c.governing)},
+            c.pass ? Tone::normal : Tone::fail,
+            {}};
+    t.rows.push_back(row);
+  }
+  if (t.rows.empty()) {
+    s.blocks.push_back(paragraph("No per-case check: no governing case to show."));
+    return s;
+  }
+  s.blocks.push_back(table_block(t));
+
+  // Pick the cases to plot: failing checks first, then the tightest margin ratios.
+  std::vector<const CheckResult*> order;
+  for (const auto& c : r.checks)
+    if (c.per_case && c.governing >= 0) order.push_back(&c);
+  std::stable_sort(order.begin(), order.end(), [](const CheckResult* a, const CheckResult* b) {
+    if (a->pass != b->pass) return !a->pass;
+    const double ra = std::isfinite(a->margin_ratio) ? a->margin_ratio : INFINITY;
+    const double rb = std::isfinite(b->margin_ratio) ? b->margin_ratio : INFINITY;
+    return ra < rb;
+  });
+  // Figures per case: angles, loads, inputs, and the angle-angle plots two to a row.
+  const int per_case = 3 + static_cast<int>(spec.links.size()) / 2;
+  const std::size_t max_cases = static_cast<std::size_t>(std::max(1, kMaxGoverningPlots / per_case));
+  std::vector<long> chosen;
+  for (const CheckResult* c : order) {
+    if (chosen.size() >= max_cases) break;
+    if (std::find(chosen.begin(), chosen.end(), c->governing) == chosen.end()) chosen.push_back(c->governing);
+  }
+  if (r.recorded.empty()) {
+    s.blocks.push_back(paragraph("The governing cases were not recorded in this run: no time histories are shown."));
+    return s;
+  }
+  s.blocks.push_back(paragraph(fmt::format(
+      "Time histories of the {} governing case(s) of the failing checks, or else of the checks with the smallest "
+      "margin ratio, re-run with recording at {:g} samples/s. Limits are drawn as dashed lines.",
+      chosen.size(), spec.cases.output_rate)));
+
+  for (long index : chosen) {
+    const RecordedCase* rc = nullptr;
+    for (const auto& rec : r.recorded)
+      if (rec.index == index) rc = &rec;
+    std::vector<std::string> governs;
+    bool governs_tension = false;
+    for (const auto& c : r.checks)
+      if (c.governing == index) {
+        governs.push_back(c.key);
+        governs_tension |= c.key == "rope_tension_min";
+      }
+    const std::string id = rc ? rc->id : std::to_string(index);
+    s.blocks.push_back(subheading(fmt::format("Case {} (governs {})", id, fmt::join(governs, ", "))));
+    s.blocks.push_back(paragraph("Start: " + start_text(spec, space, index) + "."));
+    if (!rc || rc->t.empty()) {
+      s.blocks.push_back(paragraph("This case was not recorded."));
+      continue;
+    }
+    // Angles.
+    std::vector<plot::Series> angles;
+    for (std::size_t i = 0; i < rc->theta.size(); ++i)
+      angles.push_back({fmt::format("θ {}", spec.links[i].name), rc->t, scaled(rc->theta[i], kDeg), true, false, -1});
+    std::vector<plot::RefLine> arefs;
+    for (const auto& l : spec.limits) {
+      if (l.kind == LimitKind::peak_angle) {
+        add_ref(arefs, {l.value * kDeg, fmt::format("peak_angle +{} deg{}", num(l.value * kDeg), link_scope(spec, l)), false});
+        add_ref(arefs, {-l.value * kDeg, fmt::format("-{} deg", num(l.value * kDeg)), false});
+      }
+      if (l.kind == LimitKind::residual_sway) {
+        add_ref(arefs, {l.value * kDeg, fmt::format("residual_sway after {:g} s", l.after), false, l.after});
+        add_ref(arefs, {-l.value * kDeg, "", false, l.after});
+      }
+    }
+    plot::Plot pa = plot::line_chart("Link angles", {"time", "s"}, {"angle θ from vertical", "deg"}, angles, arefs);
+    // Each link's peak |theta| where the run located it (between samples), on the side it swung to.
+    for (std::size_t i = 0; i < rc->peak_angle.size() && i < rc->theta.size(); ++i) {
+      const Extreme& e = rc->peak_angle[i];
+      const double side = sample_at(rc->t, rc->theta[i], e.time) < 0 ? -1.0 : 1.0;
+      pa.marks.push_back({e.time, side * e.value * kDeg,
+                          fmt::format("{} {:.2f} deg at {:.2f} s", spec.links[i].name, side * e.value * kDeg, e.time),
+                          static_cast<int>(i)});
+    }
+    Figure fa = figure(std::move(pa),
+                       fmt::format("Link angles of case {}; circles mark each link's largest |θ| and when it "
+                                   "happened, located between the samples.",
+                                   id),
+                       210);
+    // Loads (and rope tension when the case governs it).
+    std::vector<plot::Series> loads;
+    for (std::size_t i = 0; i < rc->load.size(); ++i)
+      loads.push_back({fmt::format("pivot load above {}", spec.links[i].name), rc->t, scaled(rc->load[i], 1e-3), true,
+                       false, -1});
+    std::vector<plot::RefLine> lrefs;
+    for (const auto& l : spec.limits)
+      if (l.kind == LimitKind::pivot_load)
+        add_ref(lrefs, {l.value / 1000, fmt::format("pivot_load limit {} kN{}", num(l.value / 1000), link_scope(spec, l)), false});
+    bool with_tension = governs_tension;
+    if (with_tension) {
+      for (std::size_t i = 0; i < rc->tension.size(); ++i)
+        if (spec.links[i].kind == LinkKind::rope)
+          loads.push_back({fmt::format("tension of rope {}", spec.links[i].name), rc->t, scaled(rc->tension[i], 1e-3), true,
+                           false, static_cast<int>(rc->load.size() + i)});
+      for (const auto& l : spec.limits)
+        if (l.kind == LimitKind::rope_tension_min)
+          add_ref(lrefs, {l.value / 1000, fmt::format("rope_tension_min {} kN{}", num(l.value / 1000), link_scope(spec, l)), false});
+    }
+    plot::Axis ly{"force", "kN"};
+    ly.include_zero = true;
+    plot::Plot pl = plot::line_chart(with_tension ? "Pivot loads and rope tension" : "Pivot loads", {"time", "s"}, ly,
+                                     loads, lrefs);
+    for (std::size_t i = 0; i < rc->peak_load.size(); ++i)
+      pl.marks.push_back({rc->peak_load[i].time, rc->peak_load[i].value / 1000,
+                          fmt::format("peak {:.2f} kN at {:.2f} s", rc->peak_load[i].value / 1000, rc->peak_load[i].time),
+                          static_cast<int>(i)});
+    if (with_tension)
+      for (std::size_t i = 0; i < rc->min_tension.size(); ++i)
+        if (std::isfinite(rc->min_tension[i].value))
+          pl.marks.push_back({rc->min_tension[i].time, rc->min_tension[i].value / 1000,
+                              fmt::format("least {:.2f} kN at {:.2f} s", rc->min_tension[i].value / 1000,
+                                          rc->min_tension[i].time),
+                              static_cast<int>(rc->load.size() + i)});
+    Figure fl = figure(std::move(pl),
+                       fmt::format("Reaction force at the upper pivot of each link{} in case {}; circles mark each "
+                                   "peak{} with its value and time, located between the samples.",
+                                   with_tension ? ", and the least axial tension of each rope link," : "", id,
+                                   with_tension ? " and least tension" : ""),
+                       240);
+    s.blocks.push_back(figures({fa}));
+    s.blocks.push_back(figures({fl}));
+    s.blocks.push_back(figures(input_figures(spec, *rc, id)));
+    // Angle against angle for every pair of adjacent links (configuration space, not a phase
+    // portrait: no rates), two to a row.
+    std::vector<Figure> pairs;
+    for (std::size_t i = 0; i + 1 < rc->theta.size(); ++i) {
+      pairs.push_back(figure(plot::phase_portrait(fmt::format("Angle-angle plot, links {} and {}", i + 1, i + 2),
+                                                  {fmt::format("θ {}", spec.links[i].name), "deg"},
+                                                  {fmt::format("θ {}", spec.links[i + 1].name), "deg"},
+                                                  scaled(rc->theta[i], kDeg), scaled(rc->theta[i + 1], kDeg)),
+                             fmt::format("θ of link {} against θ of link {} over the run: a regular motion traces a "
+                                         "tidy figure, a chaotic one fills an area.",
+                                         i + 2, i + 1),
+                             240, 0.5));
+      if (pairs.size() == 2 || i + 2 == rc->theta.size()) {
+        s.blocks.push_back(figures(pairs));
+        pairs.clear();
+      }
+    }
+  }
+  return s;
+}
+
+}  // namespace swaybound::report_doc::build
