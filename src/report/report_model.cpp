@@ -619,7 +619,7 @@ bool limit_applies(const LimitSpec& l, std::size_t link) { return l.link < 0 || 
 
 /// The static-load table, the warnings for load limits the chain breaks at rest, and the force on
 /// the trolley or boom tip.
-void static_load_blocks(const Spec& spec, const CheckReport& r, std::string_view csv, std::vector<Block>& out) {
+void static_load_blocks(const Spec& spec, const CheckReport& r, const std::vector<CaseEnvelopeRow>* cases, std::vector<Block>& out) {
   const StaticLoads st = static_loads(spec);
   out.push_back(subheading("Static loads (hanging at rest)"));
   out.push_back(paragraph(
@@ -681,22 +681,18 @@ void static_load_blocks(const Spec& spec, const CheckReport& r, std::string_view
   out.push_back(subheading("Force on the trolley or boom tip"));
   const std::string top = spec.links.empty() ? std::string() : spec.links.front().name;
   std::string peak = "its peak over the cases needs cases.csv, which was not supplied to the report.";
-  if (!csv.empty()) {
-    try {
-      double best = std::nan("");
-      std::string where;
-      for (const auto& row : read_case_envelope(spec, csv))
-        if (row.ok && !row.peak_load.empty() && !(row.peak_load[0] <= best)) {
-          best = row.peak_load[0];
-          where = row.id;
-        }
-      peak = std::isfinite(best) ? fmt::format("its peak magnitude over the cases is {} kN, in case {} (the peak pivot "
-                                               "load of the top pivot; {} times the static {} kN).",
-                                               kn(best), where, num(best / st.pivot.front(), 3), kn(st.pivot.front()))
-                                 : "no case ran to its end, so it has no peak.";
-    } catch (const std::exception& e) {
-      peak = fmt::format("its peak could not be read from cases.csv ({}).", e.what());
-    }
+  if (cases) {
+    double best = std::nan("");
+    std::string where;
+    for (const auto& row : *cases)
+      if (row.ok && !row.peak_load.empty() && !(row.peak_load[0] <= best)) {
+        best = row.peak_load[0];
+        where = row.id;
+      }
+    peak = std::isfinite(best) ? fmt::format("its peak magnitude over the cases is {} kN, in case {} (the peak pivot "
+                                             "load of the top pivot; {} times the static {} kN).",
+                                             kn(best), where, num(best / st.pivot.front(), 3), kn(st.pivot.front()))
+                               : "no case ran to its end, so it has no peak.";
   }
   out.push_back(paragraph(fmt::format(
       "The chain pulls on its support with F = -R, the negative of the reaction R on the top link '{}'. Components: x "
@@ -724,7 +720,7 @@ void static_load_blocks(const Spec& spec, const CheckReport& r, std::string_view
         spec.cases.output_rate, kn(fx), fx_case, kn(fy_low), kn(fy_high), fy_case)));
 }
 
-Section verdict_section(const Spec& spec, const CheckReport& r, std::string_view csv) {
+Section verdict_section(const Spec& spec, const CheckReport& r, const std::vector<CaseEnvelopeRow>* cases) {
   Section s{"verdict", "4", "Verdict", {}, true};
   long failing = 0;
   for (const auto& c : r.checks) failing += !c.pass;
@@ -809,7 +805,7 @@ Section verdict_section(const Spec& spec, const CheckReport& r, std::string_view
 
   s.blocks.push_back(subheading("What each figure is"));
   s.blocks.push_back(bullets(figure_definitions(spec)));
-  static_load_blocks(spec, r, csv, s.blocks);
+  static_load_blocks(spec, r, cases, s.blocks);
   return s;
 }
 
@@ -1311,19 +1307,13 @@ void thin(std::vector<double>& x, std::vector<double>& y) {
   y = std::move(ny);
 }
 
-Section envelope_section(const Spec& spec, const CheckReport& r, std::string_view csv) {
+Section envelope_section(const Spec& spec, const CheckReport& r, const std::vector<CaseEnvelopeRow>* cases) {
   Section s{"envelope", "8", "Envelope over the case set", {}, true};
-  if (csv.empty()) {
+  if (!cases) {
     s.blocks.push_back(paragraph("Not drawn: the per-case table (cases.csv) was not supplied to the report."));
     return s;
   }
-  std::vector<CaseEnvelopeRow> rows;
-  try {
-    rows = read_case_envelope(spec, csv);
-  } catch (const std::exception& e) {
-    s.blocks.push_back(paragraph(fmt::format("Not drawn: cases.csv could not be read ({}).", e.what())));
-    return s;
-  }
+  const std::vector<CaseEnvelopeRow>& rows = *cases;
   long ok = 0;
   for (const auto& row : rows) ok += row.ok;
   s.blocks.push_back(paragraph(fmt::format(
@@ -1461,7 +1451,7 @@ Section caution_section() {
 
 }  // namespace
 
-Document build_document(const Spec& spec, const CheckReport& r, const ReportMeta& meta, std::string_view cases_csv) {
+Document build_document(const Spec& spec, const CheckReport& r, const ReportMeta& meta, const std::vector<CaseEnvelopeRow>* cases) {
   Document d;
   d.title = spec.report.title.empty() ? spec.name : spec.report.title;
   d.mechanism = spec.name;
@@ -1480,11 +1470,11 @@ Document build_document(const Spec& spec, const CheckReport& r, const ReportMeta
     d.sections.push_back(sizing_section(*meta.sizing_input, *meta.sizing));
   d.sections.push_back(scope_section(spec, r, d));
   d.sections.push_back(design_section(spec, r));
-  d.sections.push_back(verdict_section(spec, r, cases_csv));
+  d.sections.push_back(verdict_section(spec, r, cases));
   d.sections.push_back(modal_section(spec, r));
   d.sections.push_back(governing_section(spec, r));
   d.sections.push_back(chaos_section(spec, r));
-  d.sections.push_back(envelope_section(spec, r, cases_csv));
+  d.sections.push_back(envelope_section(spec, r, cases));
   d.sections.push_back(trust_section(spec, r));
   d.sections.push_back(caution_section());
   return d;
