@@ -74,7 +74,11 @@ SizingPacket::SizingPacket(const Spec& spec, std::string spec_text, PacketOption
 SizingPacket::~SizingPacket() = default;
 
 void SizingPacket::attach(SizingOptions& options) {
-  options.on_final_case = [this](const CaseMetrics& m) { on_final_case(m); };
+  auto previous = std::move(options.on_final_case);
+  options.on_final_case = [this, previous = std::move(previous)](const CaseMetrics& m) {
+    if (previous) previous(m);
+    on_final_case(m);
+  };
   options.write_sized_spec = [this](const std::string& text) { return write_sized_spec(text); };
 }
 

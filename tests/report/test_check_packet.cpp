@@ -216,9 +216,12 @@ TEST_CASE("the library writes a sizing packet that verifies, without the command
   const Spec spec = load_spec(spec_path.string());
   SizingPacket packet(spec, read(spec_path), at(out));
   SizingOptions options;
+  long seen = 0;  // a caller's own hook stays: the packet's comes after it
+  options.on_final_case = [&](const CaseMetrics&) { ++seen; };
   packet.attach(options);
   const SizingResult result = run_sizing(spec, options);
   packet.finish(result);
+  CHECK(seen == result.after.case_count);
   const VerifyResult v = verify_packet(out.string());
   INFO(verify_report(v));
   CHECK(v.intact());

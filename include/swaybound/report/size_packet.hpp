@@ -33,7 +33,8 @@ class SizingPacket {
   SizingPacket(const SizingPacket&) = delete;
   SizingPacket& operator=(const SizingPacket&) = delete;
 
-  /// Sets options.on_final_case and options.write_sized_spec to this packet's.
+  /// Sets options.on_final_case to on_final_case() (after any on_final_case already set there) and
+  /// options.write_sized_spec to write_sized_spec().
   void attach(SizingOptions& options);
   /// One case of the final design's check, in case order: its cases.csv row and envelope row.
   void on_final_case(const CaseMetrics& metrics);
