@@ -11,6 +11,7 @@
 
 #include <fmt/format.h>
 
+#include "swaybound/core/cancel.hpp"
 #include "swaybound/report/check_packet.hpp"
 #include "swaybound/report/document.hpp"
 #include "swaybound/report/packet.hpp"
@@ -205,6 +206,34 @@ TEST_CASE("a check packet not finished leaves the previous packet as it was and 
     run_check(spec, again);
   }
   CHECK(read(out / "results.json") == results);
+  CHECK(read(out / "MANIFEST") == manifest);
+  CHECK(verify_packet(out.string()).intact());
+  CHECK(swaybound::testing::leftovers(out).empty());
+}
+
+TEST_CASE("a stop requested while the packet is finished leaves the previous packet and no half packet",
+          "[packet][library][interrupt]") {
+  const fs::path spec_path = write(temp("stopped.yaml"), kSpec), out = temp("stopped-packet");
+  fs::remove_all(out);
+  const Spec spec = load_spec(spec_path.string());
+  CheckOptions options;
+  options.audit = false;
+  {
+    CheckPacket first(spec, read(spec_path), at(out));
+    first.attach(options);
+    first.finish(run_check(spec, options));
+  }
+  const std::string manifest = read(out / "MANIFEST");
+  {
+    CheckPacket second(spec, read(spec_path), at(out));
+    CheckOptions again;
+    again.audit = false;
+    second.attach(again);
+    const CheckReport report = run_check(spec, again);
+    request_cancel(2);  // SIGINT arrives as the documents are written
+    CHECK_THROWS_AS(second.finish(report), Interrupted);
+    clear_cancel();
+  }
   CHECK(read(out / "MANIFEST") == manifest);
   CHECK(verify_packet(out.string()).intact());
   CHECK(swaybound::testing::leftovers(out).empty());
