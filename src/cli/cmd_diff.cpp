@@ -25,6 +25,8 @@ Action add_diff(CLI::App& app) {
                 "Exit 1 also when NEW fails any check, even with no regression against OLD");
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
+    require_input_path("OLD", o->old_path);
+    require_input_path("NEW", o->new_path);
     const DiffResult d = diff_results(o->old_path, o->new_path, o->tolerance);
     std::cout << diff_report(d, o->markdown);
     return d.regression() || (o->require_pass && d.new_fails()) ? kExitFail : kExitPass;

@@ -84,6 +84,7 @@ Action add_modes(CLI::App& app) {
       ->check(CLI::PositiveNumber);
   return [cmd, spec_path, json, max_samples]() {
     if (!cmd->parsed()) return -1;
+    require_input_file("SPEC", *spec_path);
     const Spec spec = load_spec(*spec_path, LoadOptions{kDefaultMaxCases, *max_samples});
     const Model model = build_model(spec);
     const ModalResult result = modal_analysis(model);

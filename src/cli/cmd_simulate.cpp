@@ -30,13 +30,15 @@ std::vector<double> parse_list(const std::string& option, const std::string& tex
   while (std::getline(in, item, ',')) {
     std::string why;
     const auto q = units::parse_quantity(item, why);
-    if (!q) throw ArgumentError(fmt::format("{}: cannot read '{}': {}", option, item, why));
+    if (!q) throw UsageError(option, fmt::format("cannot read '{}': {}", item, why));
     if (q->has_unit && !(q->dim == dim))
-      throw ArgumentError(fmt::format("{}: '{}' is {}, expected {}", option, item, units::a_dim_name(q->dim),
-                                      units::a_dim_name(dim)));
+      throw UsageError(option, fmt::format("'{}' is {}, expected {}", item, units::a_dim_name(q->dim),
+                                           units::a_dim_name(dim)));
     if (!q->has_unit && q->value != 0 && units::angle_unit_required(dim))
-      throw ArgumentError(fmt::format("{}: '{}' has no unit, and {} must say whether it is in deg or rad; {}", option,
-                                      item, units::a_dim_name(dim), units::bare_angle_fix(q->value, dim)));
+      throw UsageError(option,
+                       fmt::format("'{}' has no unit, and {} must say whether it is in deg or rad", item,
+                                   units::a_dim_name(dim)),
+                       units::bare_angle_fix(q->value, dim));
     out.push_back(q->value);
   }
   return out;
@@ -44,7 +46,7 @@ std::vector<double> parse_list(const std::string& option, const std::string& tex
 
 double parse_one(const std::string& option, const std::string& text, const units::Dim& dim) {
   const auto values = parse_list(option, text, dim);
-  if (values.size() != 1) throw ArgumentError(fmt::format("{}: expected one value, got '{}'", option, text));
+  if (values.size() != 1) throw UsageError(option, fmt::format("expected one value, got '{}'", text));
   return values[0];
 }
 
@@ -99,10 +101,11 @@ CaseDef pick_case(const CaseSpace& space, const std::string& id, int scenario) {
     if (id.empty() ? scenario < 0 || def.scenario == scenario : def.id == id) return def;
     if (k < 5) some += (some.empty() ? "" : ", ") + def.id;
   }
-  if (id.empty()) throw ArgumentError("--scenario: the case set has no case of this scenario");
-  throw ArgumentError(fmt::format("--case: no case '{}' in the spec's case set ({} cases: {}{}); case ids are listed in "
-                                  "cases.csv of a check packet",
-                                  id, space.size(), some, space.size() > 5 ? ", ..." : ""));
+  if (id.empty()) throw UsageError("--scenario", "the case set has no case of this scenario");
+  throw UsageError("--case",
+                   fmt::format("no case '{}' in the spec's case set ({} cases: {}{})", id, space.size(), some,
+                               space.size() > 5 ? ", ..." : ""),
+                   "case ids are listed in cases.csv of a check packet");
 }
 
 /// "theta = [10 deg, 5 deg], omega = [0 deg/s, 0 deg/s]" for every link (missing values are 0).
@@ -145,19 +148,21 @@ Action add_simulate(CLI::App& app) {
       ->capture_default_str();
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
+    require_input_file("SPEC", o->spec);
     const Spec spec = load_spec(o->spec, LoadOptions{kDefaultMaxCases, o->max_samples});
     const Model model = build_model(spec);
     RunSettings settings = RunSettings::from_spec(spec);
     if (!o->duration.empty()) settings.duration = parse_one("--duration", o->duration, units::duration);
     if (!o->output_rate.empty()) settings.output_rate = parse_one("--output-rate", o->output_rate, units::rate);
     if (!(settings.duration > 0) || !(settings.output_rate > 0))
-      throw ArgumentError("--duration and --output-rate must be > 0");
+      throw UsageError(o->duration.empty() || !(settings.duration > 0) ? "--duration" : "--output-rate",
+                       "must be > 0");
     if (const long samples = samples_per_case(settings.duration, settings.output_rate);
         samples > o->max_samples)
-      throw ArgumentError(
-          fmt::format("--duration/--output-rate: {:g} s at {:g} samples/s gives {} samples, more than "
-                      "the cap of {}; lower them or raise the cap with --max-samples N",
-                      settings.duration, settings.output_rate, samples, o->max_samples));
+      throw UsageError("--duration/--output-rate",
+                       fmt::format("{:g} s at {:g} samples/s gives {} samples, more than the cap of {}",
+                                   settings.duration, settings.output_rate, samples, o->max_samples),
+                       "lower them or raise the cap with --max-samples N");
     int scenario = 0;
     if (!o->scenario.empty()) {
       scenario = -1;
@@ -166,19 +171,20 @@ Action add_simulate(CLI::App& app) {
         if (model.scenarios[k].name == o->scenario) scenario = static_cast<int>(k);
         names += (names.empty() ? "'" : ", '") + model.scenarios[k].name + "'";
       }
-      if (scenario < 0) throw ArgumentError(fmt::format("--scenario: no scenario '{}' (have {})", o->scenario, names));
+      if (scenario < 0) throw UsageError("--scenario", fmt::format("no scenario '{}' (have {})", o->scenario, names));
     }
     InitialState start;
     const bool own_start = !o->theta.empty() || !o->rate.empty();
     if (!o->case_id.empty() && (own_start || !o->scenario.empty()))
-      throw ArgumentError("--case names both the start and the scenario: leave out --theta, --rate and --scenario, "
-                          "or leave out --case");
+      throw UsageError("--case", "names both the start and the scenario, so it conflicts with --theta, --rate and --scenario",
+                       "leave out --theta, --rate and --scenario, or leave out --case");
     std::string start_label;
     if (own_start) {
       if (!o->theta.empty()) start.theta = parse_list("--theta", o->theta, units::angle);
       if (!o->rate.empty()) start.omega = parse_list("--rate", o->rate, units::angular_rate);
       if (start.theta.size() > static_cast<std::size_t>(model.n) || start.omega.size() > static_cast<std::size_t>(model.n))
-        throw ArgumentError(fmt::format("--theta/--rate: at most {} values (one per link)", model.n));
+        throw UsageError(start.theta.size() > static_cast<std::size_t>(model.n) ? "--theta" : "--rate",
+                         fmt::format("at most {} values (one per link)", model.n));
       start_label = "your start (--theta/--rate)";
     } else {
       const CaseDef def = pick_case(CaseSpace(spec), o->case_id, o->scenario.empty() ? -1 : scenario);

@@ -1,11 +1,9 @@
 // swaybound size: NLopt searches the spec's design variables; the sized spec, the full check of
-// the final design, the sizing history and the before/after table in DIR.
+// the final design, the sizing history and the before/after table in DIR (report/size_packet.hpp).
 #include <unistd.h>
 
 #include <cmath>
 #include <cstdlib>
-#include <filesystem>
-#include <fstream>
 #include <iostream>
 #include <optional>
 
@@ -13,12 +11,7 @@
 
 #include "commands.hpp"
 #include "swaybound/cases/case_space.hpp"
-#include "swaybound/core/cancel.hpp"
-#include "swaybound/core/hash.hpp"
-#include "swaybound/report/document.hpp"
-#include "swaybound/report/packet.hpp"
-#include "swaybound/report/plot.hpp"
-#include "swaybound/report/results.hpp"
+#include "swaybound/report/size_packet.hpp"
 #include "swaybound/sizing/sizing.hpp"
 #include "swaybound/spec.hpp"
 
@@ -86,17 +79,17 @@ Action add_size(CLI::App& app) {
   cmd->add_flag("--quiet", o->quiet, "No progress on stderr");
   return [cmd, o]() {
     if (!cmd->parsed()) return -1;
+    std::string spec_text = read_input_file("SPEC", o->spec);
     Spec spec = load_spec(o->spec, LoadOptions{o->max_cases, o->max_samples});
     // Input errors (no sizing section, an objective that cannot be computed) before anything is written.
     design_variables(spec);
     // The sized spec records the margin used (its sizing section), so its check can be repeated.
     if (!o->margin.empty()) spec.sizing->required_margin = *parse_margin(o->margin);
     objective_metric(spec);
-    const std::string spec_sha = sha256_file(o->spec);
     // Every output problem (the overwrite rule, a folder that cannot be written, another run
     // writing it) is reported here, before any work is done.
-    PacketWriter packet(o->out, spec.name, spec_sha, o->force);
-    print_notices(packet);
+    SizingPacket packet(spec, std::move(spec_text), PacketOptions{o->out, o->force, !o->no_audit, {}});
+    print_notices(packet.take_notices());
     const CaseSpace space(spec);
     const SizingSpec& s = *spec.sizing;
     std::cerr << fmt::format(
@@ -105,24 +98,13 @@ Action add_size(CLI::App& app) {
         o->spec, s.variables.size(), space.size(), space.starts(), spec.scenarios.size(), spec.cases.duration,
         s.max_evaluations, s.max_seconds, s.mode == SearchMode::local ? "local" : "global", s.seed,
         100 * s.required_margin);
-    install_cancel_handlers();
 
-    std::ofstream csv(packet.path("cases.csv"), std::ios::binary);
     SizingOptions options;
     options.jobs = o->jobs;
     options.screening_cases = o->screening;
     options.audit = !o->no_audit;
     options.load = LoadOptions{o->max_cases, o->max_samples};
-    bool header_written = false;
-    options.on_final_case = [&](const CaseMetrics& m) {
-      if (!header_written) csv << cases_csv_header(spec);
-      header_written = true;
-      csv << cases_csv_row(spec, m);
-    };
-    options.write_sized_spec = [&](const std::string& text) {
-      packet.write("sized_spec.yaml", text);
-      return packet.path("sized_spec.yaml");
-    };
+    packet.attach(options);
     const bool terminal = !o->quiet && ::isatty(2);
     if (terminal)
       options.progress = [](const SizingProgress& p) {
@@ -136,64 +118,9 @@ Action add_size(CLI::App& app) {
       };
     const SizingResult result = run_sizing(spec, options);
     if (terminal) std::cerr << '\n';
-    csv.close();
-    if (!csv) throw RunError(fmt::format("writing {} failed (disk full or not writable?)", packet.path("cases.csv")));
-    packet.write("results.json", results_json(result.sized, result.after));
-    packet.write("sizing_history.csv", sizing_history_csv(spec, result));
-    {
-      // Convergence: the objective and the least constraint value of every evaluation.
-      plot::Series objective{"objective", {}, {}, false, true, 0}, least{"least margin (constraint value)", {}, {}, false, true, 1};
-      for (const auto& e : result.history) {
-        objective.x.push_back(static_cast<double>(e.number));
-        objective.y.push_back(e.objective);
-        least.x.push_back(static_cast<double>(e.number));
-        least.y.push_back(std::isfinite(e.least) ? e.least : std::nan(""));
-      }
-      const plot::Plot objective_plot =
-          plot::scatter_chart("Sizing: objective per evaluation", plot::Axis{"evaluation", ""}, plot::Axis{result.objective_label, result.objective_unit},
-                        {objective});
-      const plot::Plot margin_plot =
-          plot::scatter_chart("Sizing: least margin per evaluation (>= 0 passes)", plot::Axis{"evaluation", ""},
-                        plot::Axis{"least constraint value", ""}, {least}, {plot::RefLine{0.0, "feasible above"}});
-      packet.write("convergence_objective.svg", plot::to_svg(objective_plot, "obj"));
-      packet.write("convergence_margin.svg", plot::to_svg(margin_plot, "mar"));
-      packet.write("convergence_objective.png", plot::to_png(objective_plot));
-      packet.write("convergence_margin.png", plot::to_png(margin_plot));
-    }
-    const std::string table = sizing_table_markdown(spec, result);
-    packet.write("sizing.md", table);
-    packet.write("sizing.json", sizing_summary_json(spec, result));
-    packet.write("input_spec.yaml", read_file_text(o->spec));
-    // The review documents of the sized design's full check, as `check` writes them for a spec.
-    const std::string date = now_utc_iso8601();
-    // The report names the sized spec where the user finds it (the packet is written in a
-    // temporary folder and renamed when complete), and shows the sizing (before/after, summary).
-    Spec shown = result.sized;
-    shown.source_file = (std::filesystem::path(packet.target()) / "sized_spec.yaml").string();
-    ReportMeta meta;
-    meta.sizing = &result;
-    meta.sizing_input = &spec;
-    write_review_documents(packet, shown, result.after, date, meta);
-    throw_if_cancelled();
-    ManifestInfo info;
-    info.spec_file = "input_spec.yaml";
-    info.spec_name = spec.name;
-    info.spec_sha256 = spec_sha;
-    info.date_utc = date;
-    info.settings.push_back(
-        fmt::format("sizing: objective={} mode={} seed={} budget={} evaluations, {:g} s; "
-                    "screening={} cases; required_margin={:g}",
-                    s.objective == Objective::min_cost     ? "min_cost"
-                    : s.objective == Objective::max_margin ? "max_margin"
-                                                           : "min_metric",
-                    s.mode == SearchMode::local ? "local" : "global", s.seed, s.max_evaluations,
-                    s.max_seconds, result.screening_size, s.required_margin));
-    info.settings.push_back(fmt::format("sized spec: sized_spec.yaml sha256={} (results.json is its check)",
-                                        spec_sha256(result.sized)));
-    info.settings.push_back(fmt::format("accuracy_audit: {}", o->no_audit ? "off" : "governing cases at rtol/100, atol/100"));
-    packet.commit(info);
-    print_notices(packet);
-    std::cout << table;
+    packet.finish(result);
+    print_notices(packet.take_notices());
+    std::cout << sizing_table_markdown(spec, result);
     std::cerr << fmt::format("wrote {}: sized_spec.yaml, report.pdf, report.html, results.json, cases.csv, "
                              "sizing_history.csv, sizing.md, sizing.json ({} evaluations, {:.1f} s)\n",
                              packet.target(), result.evaluations, result.seconds);

@@ -20,6 +20,7 @@ Action add_validate(CLI::App& app) {
       ->check(CLI::PositiveNumber);
   return [cmd, spec_path, max_cases, max_samples]() {
     if (!cmd->parsed()) return -1;
+    require_input_file("SPEC", *spec_path);
     const Spec spec = load_spec(*spec_path, LoadOptions{*max_cases, *max_samples});
     std::cout << normalised_yaml(spec);
     std::cerr << spec_path->c_str() << ": valid (" << spec.links.size() << " links, " << case_count(spec)

@@ -15,6 +15,7 @@ Action add_verify(CLI::App& app) {
       ->required();
   return [cmd, path]() {
     if (!cmd->parsed()) return -1;
+    require_input_path("DIR", *path);
     const VerifyResult r = verify_packet(*path);
     std::cout << verify_report(r);
     return r.intact() ? kExitPass : kExitFail;

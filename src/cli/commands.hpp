@@ -3,16 +3,10 @@
 // CLI11 app and returning the action to run. Exit status: 0 pass, 1 a check fails, 2 input/run error.
 #include <functional>
 #include <string>
+#include <vector>
 
 #include <CLI/CLI.hpp>
 
-#include "swaybound/report/document.hpp"
-
-namespace swaybound {
-class PacketWriter;
-struct CheckReport;
-struct Spec;
-}  // namespace swaybound
 
 namespace swaybound::cli {
 
@@ -30,16 +24,18 @@ Action add_diff(CLI::App& app);
 Action add_size(CLI::App& app);
 Action add_verify(CLI::App& app);
 
-/// The whole file as bytes (the spec copy in a packet); RunError if it cannot be read.
-std::string read_file_text(const std::string& path);
+/// The whole file named on the command line by `option` (e.g. "SPEC"), as bytes: UsageError when
+/// there is no such file or it is a folder, RunError when it cannot be read.
+std::string read_input_file(const std::string& option, const std::string& path);
+
+/// UsageError when the file or folder named on the command line by `option` does not exist.
+void require_input_path(const std::string& option, const std::string& path);
+
+/// UsageError when the file named on the command line by `option` does not exist or is a folder.
+void require_input_file(const std::string& option, const std::string& path);
 
 /// Prints the packet writer's notices (a previous revision replaced, leftovers of a killed run
 /// cleaned up) on stderr.
-void print_notices(PacketWriter& packet);
-
-/// report.pdf and report.html of `report` into the packet, dated `date_utc` (ISO 8601); the
-/// packet's cases.csv must be complete (the envelope plots read it).
-void write_review_documents(PacketWriter& packet, const Spec& spec, const CheckReport& report,
-                            const std::string& date_utc, ReportMeta meta = {});
+void print_notices(const std::vector<std::string>& notices);
 
 }  // namespace swaybound::cli

@@ -1,3 +1,4 @@
+#include <filesystem>
 #include <fstream>
 #include <iostream>
 #include <sstream>
@@ -6,29 +7,36 @@
 
 #include "commands.hpp"
 #include "swaybound/core/error.hpp"
-#include "swaybound/report/document.hpp"
-#include "swaybound/report/packet.hpp"
 
 namespace swaybound::cli {
 
-std::string read_file_text(const std::string& path) {
+namespace fs = std::filesystem;
+
+void require_input_path(const std::string& option, const std::string& path) {
+  std::error_code ec;
+  if (path.empty()) throw UsageError(option, "empty", "name a file");
+  if (!fs::exists(path, ec))
+    throw UsageError(option, fmt::format("no file or folder '{}'", path), "check the path and the working folder");
+}
+
+void require_input_file(const std::string& option, const std::string& path) {
+  require_input_path(option, path);
+  std::error_code ec;
+  if (fs::is_directory(path, ec)) throw UsageError(option, fmt::format("'{}' is a folder", path), "name a file");
+}
+
+std::string read_input_file(const std::string& option, const std::string& path) {
+  require_input_file(option, path);
   std::ifstream in(path, std::ios::binary);
+  if (!in) throw RunError(fmt::format("cannot read {}", path));
   std::ostringstream s;
   s << in.rdbuf();
   if (!in && !in.eof()) throw RunError(fmt::format("cannot read {}", path));
   return s.str();
 }
 
-void print_notices(PacketWriter& packet) {
-  for (const auto& notice : packet.take_notices()) std::cerr << "swaybound: " << notice << '\n';
-}
-
-void write_review_documents(PacketWriter& packet, const Spec& spec, const CheckReport& report,
-                            const std::string& date_utc, ReportMeta meta) {
-  meta.date = date_utc.substr(0, 10);
-  const std::string cases_text = read_file_text(packet.path("cases.csv"));
-  write_report_pdf(spec, report, packet.path("report.pdf"), meta, cases_text);
-  packet.write("report.html", report_html(spec, report, meta, cases_text));
+void print_notices(const std::vector<std::string>& notices) {
+  for (const auto& notice : notices) std::cerr << "swaybound: " << notice << '\n';
 }
 
 }  // namespace swaybound::cli

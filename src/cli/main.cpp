@@ -33,8 +33,13 @@ int main(int argc, char** argv) {
     return 128 + (e.signal_number() > 0 ? e.signal_number() : 2);
   } catch (const SpecError& e) {
     for (const auto& d : e.diagnostics()) std::cerr << SpecError::format(e.file(), d) << '\n';
-    std::cerr << fmt::format("{}: {} error{}; nothing was written\n", e.file(), e.diagnostics().size(),
+    std::cerr << fmt::format("{}: {} error{} in the spec; nothing was written\n", e.file(), e.diagnostics().size(),
                              e.diagnostics().size() == 1 ? "" : "s");
+    return cli::kExitError;
+  } catch (const UsageError& e) {
+    std::cerr << fmt::format("swaybound: usage error: {}: {}\n", e.option(), e.message());
+    if (!e.fix().empty()) std::cerr << "    fix: " << e.fix() << '\n';
+    std::cerr << "nothing was written\n";
     return cli::kExitError;
   } catch (const Error& e) {
     std::cerr << "swaybound: error: " << e.what() << '\n';

@@ -25,4 +25,10 @@ std::string SpecError::format(const std::string& file, const Diagnostic& d) {
   return text;
 }
 
+UsageError::UsageError(std::string option, std::string message, std::string fix)
+    : Error(fmt::format("{}: {}{}{}", option, message, fix.empty() ? "" : "; ", fix)),
+      option_(std::move(option)),
+      message_(std::move(message)),
+      fix_(std::move(fix)) {}
+
 }  // namespace swaybound

@@ -117,7 +117,7 @@ using namespace build;
 
 Rich plain(std::string text) { return {Span{std::move(text)}}; }
 
-Document build_document(const Spec& spec, const CheckReport& r, const ReportMeta& meta, std::string_view cases_csv) {
+Document build_document(const Spec& spec, const CheckReport& r, const ReportMeta& meta, const std::vector<CaseEnvelopeRow>* cases) {
   Document d;
   d.title = spec.report.title.empty() ? spec.name : spec.report.title;
   d.mechanism = spec.name;
@@ -136,11 +136,11 @@ Document build_document(const Spec& spec, const CheckReport& r, const ReportMeta
     d.sections.push_back(sizing_section(*meta.sizing_input, *meta.sizing));
   d.sections.push_back(scope_section(spec, r, d));
   d.sections.push_back(design_section(spec, r));
-  d.sections.push_back(verdict_section(spec, r, cases_csv));
+  d.sections.push_back(verdict_section(spec, r, cases));
   d.sections.push_back(modal_section(spec, r));
   d.sections.push_back(governing_section(spec, r));
   d.sections.push_back(chaos_section(spec, r));
-  d.sections.push_back(envelope_section(spec, r, cases_csv));
+  d.sections.push_back(envelope_section(spec, r, cases));
   d.sections.push_back(trust_section(spec, r));
   d.sections.push_back(caution_section());
   return d;

@@ -63,7 +63,7 @@ std::string link_name(const Spec& spec, int link);
 std::string where_text(const Spec& spec, const CheckResult& c);
 /// The static-load table, the warnings for load limits the chain breaks at rest, and the force on
 /// the trolley or boom tip (document_build_loads.cpp).
-void static_load_blocks(const Spec& spec, const CheckReport& r, std::string_view csv, std::vector<Block>& out);
+void static_load_blocks(const Spec& spec, const CheckReport& r, const std::vector<CaseEnvelopeRow>* cases, std::vector<Block>& out);
 /// Every value of v times `factor` (document_build_governing.cpp).
 std::vector<double> scaled(const std::vector<double>& v, double factor);
 /// Adds a reference line unless the same one is there (document_build_governing.cpp).
@@ -77,11 +77,11 @@ Section title_section(const Document& d, const Spec& spec, const CheckReport& r)
 Section sizing_section(const Spec& input, const SizingResult& r);
 Section scope_section(const Spec& spec, const CheckReport& r, const Document& d);
 Section design_section(const Spec& spec, const CheckReport& r);
-Section verdict_section(const Spec& spec, const CheckReport& r, std::string_view csv);
+Section verdict_section(const Spec& spec, const CheckReport& r, const std::vector<CaseEnvelopeRow>* cases);
 Section modal_section(const Spec& spec, const CheckReport& r);
 Section governing_section(const Spec& spec, const CheckReport& r);
 Section chaos_section(const Spec& spec, const CheckReport& r);
-Section envelope_section(const Spec& spec, const CheckReport& r, std::string_view csv);
+Section envelope_section(const Spec& spec, const CheckReport& r, const std::vector<CaseEnvelopeRow>* cases);
 Section trust_section(const Spec& spec, const CheckReport& r);
 Section caution_section();
 

@@ -44,19 +44,13 @@ void thin(std::vector<double>& x, std::vector<double>& y) {
 
 }  // namespace
 
-Section envelope_section(const Spec& spec, const CheckReport& r, std::string_view csv) {
+Section envelope_section(const Spec& spec, const CheckReport& r, const std::vector<CaseEnvelopeRow>* cases) {
   Section s{"envelope", "8", "Envelope over the case set", {}, true};
-  if (csv.empty()) {
+  if (!cases) {
     s.blocks.push_back(paragraph("Not drawn: the per-case table (cases.csv) was not supplied to the report."));
     return s;
   }
-  std::vector<CaseEnvelopeRow> rows;
-  try {
-    rows = read_case_envelope(spec, csv);
-  } catch (const std::exception& e) {
-    s.blocks.push_back(paragraph(fmt::format("Not drawn: cases.csv could not be read ({}).", e.what())));
-    return s;
-  }
+  const std::vector<CaseEnvelopeRow>& rows = *cases;
   long ok = 0;
   for (const auto& row : rows) ok += row.ok;
   s.blocks.push_back(paragraph(fmt::format(

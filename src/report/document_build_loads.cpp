@@ -40,7 +40,7 @@ bool limit_applies(const LimitSpec& l, std::size_t link) { return l.link < 0 || 
 
 /// The static-load table, the warnings for load limits the chain breaks at rest, and the force on
 /// the trolley or boom tip.
-void static_load_blocks(const Spec& spec, const CheckReport& r, std::string_view csv, std::vector<Block>& out) {
+void static_load_blocks(const Spec& spec, const CheckReport& r, const std::vector<CaseEnvelopeRow>* cases, std::vector<Block>& out) {
   const StaticLoads st = static_loads(spec);
   out.push_back(subheading("Static loads (hanging at rest)"));
   out.push_back(paragraph(
@@ -102,22 +102,18 @@ void static_load_blocks(const Spec& spec, const CheckReport& r, std::string_view
   out.push_back(subheading("Force on the trolley or boom tip"));
   const std::string top = spec.links.empty() ? std::string() : spec.links.front().name;
   std::string peak = "its peak over the cases needs cases.csv, which was not supplied to the report.";
-  if (!csv.empty()) {
-    try {
-      double best = std::nan("");
-      std::string where;
-      for (const auto& row : read_case_envelope(spec, csv))
-        if (row.ok && !row.peak_load.empty() && !(row.peak_load[0] <= best)) {
-          best = row.peak_load[0];
-          where = row.id;
-        }
-      peak = std::isfinite(best) ? fmt::format("its peak magnitude over the cases is {} kN, in case {} (the peak pivot "
-                                               "load of the top pivot; {} times the static {} kN).",
-                                               kn(best), where, num(best / st.pivot.front(), 3), kn(st.pivot.front()))
-                                 : "no case ran to its end, so it has no peak.";
-    } catch (const std::exception& e) {
-      peak = fmt::format("its peak could not be read from cases.csv ({}).", e.what());
-    }
+  if (cases) {
+    double best = std::nan("");
+    std::string where;
+    for (const auto& row : *cases)
+      if (row.ok && !row.peak_load.empty() && !(row.peak_load[0] <= best)) {
+        best = row.peak_load[0];
+        where = row.id;
+      }
+    peak = std::isfinite(best) ? fmt::format("its peak magnitude over the cases is {} kN, in case {} (the peak pivot "
+                                             "load of the top pivot; {} times the static {} kN).",
+                                             kn(best), where, num(best / st.pivot.front(), 3), kn(st.pivot.front()))
+                               : "no case ran to its end, so it has no peak.";
   }
   out.push_back(paragraph(fmt::format(
       "The chain pulls on its support with F = -R, the negative of the reaction R on the top link '{}'. Components: x "

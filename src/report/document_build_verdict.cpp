@@ -78,7 +78,7 @@ std::vector<Rich> figure_definitions(const Spec& spec) {
 
 }  // namespace
 
-Section verdict_section(const Spec& spec, const CheckReport& r, std::string_view csv) {
+Section verdict_section(const Spec& spec, const CheckReport& r, const std::vector<CaseEnvelopeRow>* cases) {
   Section s{"verdict", "4", "Verdict", {}, true};
   long failing = 0;
   for (const auto& c : r.checks) failing += !c.pass;
@@ -163,7 +163,7 @@ Section verdict_section(const Spec& spec, const CheckReport& r, std::string_view
 
   s.blocks.push_back(subheading("What each figure is"));
   s.blocks.push_back(bullets(figure_definitions(spec)));
-  static_load_blocks(spec, r, csv, s.blocks);
+  static_load_blocks(spec, r, cases, s.blocks);
   return s;
 }
 

@@ -336,8 +336,8 @@ std::string share_svg_glyphs(const std::string& html) {
   return linked;
 }
 
-std::string report_html(const Spec& spec, const CheckReport& report, const ReportMeta& meta, std::string_view cases_csv) {
-  return share_svg_glyphs(HtmlWriter(build_document(spec, report, meta, cases_csv)).run());
+std::string report_html(const Spec& spec, const CheckReport& report, const ReportMeta& meta, const std::vector<CaseEnvelopeRow>* cases) {
+  return share_svg_glyphs(HtmlWriter(build_document(spec, report, meta, cases)).run());
 }
 
 }  // namespace swaybound

@@ -552,8 +552,8 @@ int compose(cairo_surface_t* surface, const Document& d, int total, SectionPages
 }  // namespace
 
 void write_report_pdf(const Spec& spec, const CheckReport& report, const std::string& path, const ReportMeta& meta,
-                      std::string_view cases_csv) {
-  const Document d = build_document(spec, report, meta, cases_csv);
+                      const std::vector<CaseEnvelopeRow>* cases) {
+  const Document d = build_document(spec, report, meta, cases);
   const PageSize size = page_size(d.paper);
 
   cairo_surface_t* counting = cairo_pdf_surface_create_for_stream(discard, nullptr, size.w, size.h);

@@ -92,6 +92,6 @@ struct Document {
 };
 
 Document build_document(const Spec& spec, const CheckReport& report, const ReportMeta& meta,
-                        std::string_view cases_csv);
+                        const std::vector<CaseEnvelopeRow>* cases);
 
 }  // namespace swaybound::report_doc

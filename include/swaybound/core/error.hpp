@@ -1,6 +1,8 @@
 #pragma once
 // One exception hierarchy for the whole tool, rooted at swaybound::Error.
 //   SpecError   bad input at the loading edge: every problem found, each with file:line:column.
+//   UsageError  bad command-line input: an option's value, options that conflict, a file named on
+//               the command line that is not there; names the option (a spec's content is SpecError).
 //   RunError    a run that cannot go on for a reason outside the input (I/O, resources).
 // Argument checks use SWAYBOUND_REQUIRE, which is never compiled out and prints the values.
 #include <stdexcept>
@@ -41,6 +43,20 @@ class SpecError : public Error {
  private:
   std::string file_;
   std::vector<Diagnostic> diagnostics_;
+};
+
+/// Bad command-line input, told apart from bad spec content (SpecError): `option` names what was
+/// given ("--duration", "SPEC"), `message` what is wrong with it and `fix` what to give instead.
+/// what() is "OPTION: MESSAGE" (and "; FIX" when there is one).
+class UsageError : public Error {
+ public:
+  UsageError(std::string option, std::string message, std::string fix = {});
+  const std::string& option() const { return option_; }
+  const std::string& message() const { return message_; }
+  const std::string& fix() const { return fix_; }
+
+ private:
+  std::string option_, message_, fix_;
 };
 
 class RunError : public Error {

@@ -16,6 +16,7 @@
 #include <vector>
 
 #include "swaybound/checks/check_run.hpp"
+#include "swaybound/checks/metrics.hpp"
 #include "swaybound/spec/spec.hpp"
 
 namespace swaybound {
@@ -44,17 +45,18 @@ struct CaseEnvelopeRow {
   std::vector<double> peak_load;    ///< per link, at its upper pivot [N] (NaN when the run failed)
 };
 
-/// Reads the text of cases.csv (the format of cases_csv_header / cases_csv_row in
-/// report/results.hpp, for this spec's links). Columns are found by their header names, so
-/// extra columns do not matter. Throws RunError when a needed column is missing or a row has the
-/// wrong number of fields.
-std::vector<CaseEnvelopeRow> read_case_envelope(const Spec& spec, std::string_view cases_csv);
+/// The envelope row of one case (`metrics` of a case of `spec`), with the values as cases.csv
+/// records them (report/results.hpp: 10 significant digits), so the envelope section shows the
+/// figures of the packet's cases.csv without reading it back. The packet writer collects one row
+/// per case, in case order, as the cases stream in.
+CaseEnvelopeRow case_envelope_row(const Spec& spec, const CaseMetrics& metrics);
 
-/// Writes report.pdf to `path` (paper size from spec.report.paper). `cases_csv` is the text of
-/// cases.csv for the envelope section; empty: the section says it was not supplied.
+/// Writes report.pdf to `path` (paper size from spec.report.paper). `cases` are the envelope rows
+/// of every case (case_envelope_row), in case order; nullptr: the section says they were not
+/// supplied.
 /// Throws RunError when the file cannot be written.
 void write_report_pdf(const Spec& spec, const CheckReport& report, const std::string& path,
-                      const ReportMeta& meta = {}, std::string_view cases_csv = {});
+                      const ReportMeta& meta = {}, const std::vector<CaseEnvelopeRow>* cases = nullptr);
 
 /// The glyph outlines of every inline SVG of an HTML page (cairo writes each text glyph as a
 /// <symbol> per SVG) moved into one hidden SVG at the top of the body, equal outlines kept once,
@@ -63,6 +65,6 @@ std::string share_svg_glyphs(const std::string& html);
 
 /// report.html text, the same content as the PDF.
 std::string report_html(const Spec& spec, const CheckReport& report, const ReportMeta& meta = {},
-                        std::string_view cases_csv = {});
+                        const std::vector<CaseEnvelopeRow>* cases = nullptr);
 
 }  // namespace swaybound
