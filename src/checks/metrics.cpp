@@ -4,6 +4,7 @@
 #include <cmath>
 
 #include "swaybound/chaos/ftle.hpp"
+#include "swaybound/checks/limit_kinds.hpp"
 
 namespace swaybound {
 
@@ -15,7 +16,7 @@ enum Block { kAngle, kRelative, kRate, kLoad, kTensionTop, kTensionBottom, kBloc
 std::vector<double> residual_windows(const Model& model, const Spec& spec) {
   std::vector<double> from(static_cast<std::size_t>(kBlocks * model.n), 0.0);
   for (const auto& l : spec.limits)
-    if (l.kind == LimitKind::residual_sway) from.push_back(l.after);
+    if (limit_kind(l.kind).options.after) from.push_back(l.after);
   return from;
 }
 }  // namespace
@@ -46,7 +47,7 @@ CaseExtremes::CaseExtremes(const Model& model, const Spec& spec)
               },
               residual_windows(model, spec)) {
   for (const auto& l : spec.limits)
-    if (l.kind == LimitKind::residual_sway) residual_links_.push_back(l.link);
+    if (limit_kind(l.kind).options.after) residual_links_.push_back(l.link);
 }
 
 void CaseExtremes::write(CaseMetrics& m) const {
