@@ -29,6 +29,7 @@ Extreme dynamic_factor(const CaseMetrics& m, const LimitSpec&, std::size_t k) {
 Extreme rope_tension(const CaseMetrics& m, const LimitSpec& l, std::size_t k) {
   return l.end == RopeEnd::top ? m.min_tension_top[k] : l.end == RopeEnd::bottom ? m.min_tension_bottom[k] : m.min_tension[k];
 }
+Extreme horizontal_support_force(const CaseMetrics& m, const LimitSpec&, int) { return m.support_force_x; }
 /// The window's maximum over its links (no instant recorded).
 Extreme residual_sway(const CaseMetrics& m, const LimitSpec&, int slot) {
   return {m.residual.at(static_cast<std::size_t>(slot)), kNaN};
@@ -57,6 +58,12 @@ constexpr LimitKindInfo kKinds[] = {
      "The peak comes from the simulation of each case; the factor is not a design standard's dynamic coefficient nor "
      "computed by its formula.",
      dynamic_factor, nullptr, "dynamic_factor"},
+    {LimitKind::horizontal_support_force, "horizontal_support_force", u::force, kPositive, Bound::upper, true,
+     LimitScope::chain, {}, false,
+     "the largest |F_x| over the run of the horizontal component of the force F = -R the chain applies to its "
+     "support (the trolley or boom tip), R being the reaction at the top link's upper pivot: what a trolley drive "
+     "and its brakes, or a boom's side-load rating, must carry.",
+     nullptr, horizontal_support_force, "horizontal_support_force"},
     {LimitKind::rope_tension_min, "rope_tension_min", u::force, kNonNegative, Bound::lower, true,
      LimitScope::rope_links, {.end = true}, false,
      "the least axial tension of a rope link over the run, at the end(s) the limit names (the least of both ends by "
