@@ -15,6 +15,7 @@
 #include "swaybound/checks/limit_kinds.hpp"
 #include "swaybound/report/results.hpp"
 #include "swaybound/report/verify.hpp"
+#include "swaybound/sizing/evaluate.hpp"
 #include "swaybound/spec.hpp"
 #include "swaybound/spec/case_set_kinds.hpp"
 #include "../support/process.hpp"
@@ -204,4 +205,21 @@ TEST_CASE("a packet with a horizontal_support_force check verifies, and its repo
   CHECK(html.find(std::string(limit_kind(LimitKind::horizontal_support_force).definition.substr(0, 60))) !=
         std::string::npos);
   fs::remove_all(out);
+}
+
+TEST_CASE("sizing can minimise the worst horizontal_support_force, a whole-chain quantity in newtons",
+          "[checks][kinds][sizing]") {
+  const Spec spec = spec_file("objective", pendulum("{pivot_load: 1 MN}") + R"(
+sizing:
+  variables:
+    - {path: "links[rod].mass", range: [100 kg, 300 kg]}
+  objective: {min: horizontal_support_force}
+)");
+  const ObjectiveMetric m = objective_metric(spec);
+  CHECK(m.active);
+  CHECK(m.limit.kind == LimitKind::horizontal_support_force);
+  CHECK(m.unit == "N");
+  CHECK_FALSE(m.lower);
+  CHECK(m.check == -1);  // no such limit: the evaluator accumulates it from the cases
+  CHECK(m.label == "worst horizontal_support_force");
 }
