@@ -47,7 +47,7 @@ double limit_value_in_case(const LimitSpec& limit, int slot, const CaseMetrics& 
 /// What a check applies to: the link it names or the links of its scope, then its options.
 std::string check_subject(const Spec& spec, const LimitSpec& l) {
   const LimitKindInfo& info = limit_kind(l.kind);
-  std::string s = l.link >= 0                               ? fmt::format("link '{}'", spec.links[static_cast<std::size_t>(l.link)].name)
+  std::string s = l.link >= 0 ? fmt::format("link '{}'", spec.links[static_cast<std::size_t>(l.link)].name)
                   : info.scope == LimitScope::rope_links ? std::string("every rope link")
                   : info.scope == LimitScope::chain      ? std::string("the chain")
                                                          : std::string("every link");

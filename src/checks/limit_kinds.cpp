@@ -1,7 +1,7 @@
 #include "swaybound/checks/limit_kinds.hpp"
 
-#include <array>
 #include <cmath>
+#include <limits>
 
 #include "swaybound/checks/metrics.hpp"
 
