@@ -8,77 +8,54 @@ namespace swaybound {
 
 namespace {
 
-units::Dim limit_dim(LimitKind kind) {
-  switch (kind) {
-    case LimitKind::peak_angle:
-    case LimitKind::relative_angle:
-    case LimitKind::residual_sway: return units::angle;
-    case LimitKind::peak_rate: return units::angular_rate;
-    case LimitKind::pivot_load:
-    case LimitKind::rope_tension_min: return units::force;
-    case LimitKind::ftle_max: return units::rate;
-    case LimitKind::dynamic_factor:
-    case LimitKind::modal_damping_min:
-    case LimitKind::onset_margin: return units::dimensionless;
-  }
-  return units::dimensionless;
-}
-
-bool is_lower_bound(LimitKind kind) {
-  return kind == LimitKind::rope_tension_min || kind == LimitKind::modal_damping_min ||
-         kind == LimitKind::onset_margin;
-}
-
-bool is_per_case(LimitKind kind) { return kind != LimitKind::modal_damping_min && kind != LimitKind::onset_margin; }
-
-/// Index of `limit` among the spec's residual_sway limits (the slot in CaseMetrics::residual).
+/// Index of `limit` among the spec's limits with a window (`after`): its slot in CaseMetrics::residual.
 int residual_slot(const Spec& spec, int limit) {
   int slot = 0;
-  for (int i = 0; i < limit; ++i) slot += spec.limits[static_cast<std::size_t>(i)].kind == LimitKind::residual_sway;
+  for (int i = 0; i < limit; ++i) slot += limit_kind(spec.limits[static_cast<std::size_t>(i)].kind).options.after;
   return slot;
 }
 
 }  // namespace
 
 double limit_value_in_case(const LimitSpec& limit, int slot, const CaseMetrics& m, int& link, double& time) {
-  const int n = static_cast<int>(m.peak_angle.size());
-  const bool lower = is_lower_bound(limit.kind);
-  double worst = std::nan("");
+  const LimitKindInfo& info = limit_kind(limit.kind);
   link = -1;
   time = std::nan("");
-  const auto offer = [&](double v, int i, double t) {
-    if (std::isnan(v)) return;
-    if (std::isnan(worst) || (lower ? v < worst : v > worst)) {
-      worst = v;
-      link = i;
-      time = t;
-    }
-  };
+  if (info.case_value) {
+    const Extreme e = info.case_value(m, limit, slot);
+    link = limit.link;
+    time = e.time;
+    return e.value;
+  }
+  double worst = std::nan("");
+  if (!info.link_value) return worst;
+  const bool lower = info.bound == Bound::lower;
+  const int n = static_cast<int>(m.peak_angle.size());
   for (int i = 0; i < n; ++i) {
     if (limit.link >= 0 && limit.link != i) continue;
-    const auto k = static_cast<std::size_t>(i);
-    switch (limit.kind) {
-      case LimitKind::peak_angle: offer(m.peak_angle[k].value, i, m.peak_angle[k].time); break;
-      case LimitKind::relative_angle: offer(m.peak_relative[k].value, i, m.peak_relative[k].time); break;
-      case LimitKind::peak_rate: offer(m.peak_rate[k].value, i, m.peak_rate[k].time); break;
-      case LimitKind::pivot_load: offer(m.peak_load[k].value, i, m.peak_load[k].time); break;
-      case LimitKind::dynamic_factor: offer(m.dynamic_factor[k], i, m.peak_load[k].time); break;
-      case LimitKind::rope_tension_min: {
-        const auto& e = limit.end == RopeEnd::top      ? m.min_tension_top[k]
-                        : limit.end == RopeEnd::bottom ? m.min_tension_bottom[k]
-                                                       : m.min_tension[k];
-        offer(e.value, i, e.time);
-        break;
-      }
-      default: break;
+    const Extreme e = info.link_value(m, limit, static_cast<std::size_t>(i));
+    if (std::isnan(e.value)) continue;
+    if (std::isnan(worst) || (lower ? e.value < worst : e.value > worst)) {
+      worst = e.value;
+      link = i;
+      time = e.time;
     }
   }
-  if (limit.kind == LimitKind::residual_sway) {
-    worst = m.residual.at(static_cast<std::size_t>(slot));
-    link = limit.link;
-  }
-  if (limit.kind == LimitKind::ftle_max) worst = m.ftle;
   return worst;
+}
+
+/// What a check applies to: the link it names or the links of its scope, then its options.
+std::string check_subject(const Spec& spec, const LimitSpec& l) {
+  const LimitKindInfo& info = limit_kind(l.kind);
+  std::string s = l.link >= 0 ? fmt::format("link '{}'", spec.links[static_cast<std::size_t>(l.link)].name)
+                  : info.scope == LimitScope::rope_links ? std::string("every rope link")
+                  : info.scope == LimitScope::chain      ? std::string("the chain")
+                                                         : std::string("every link");
+  if (info.options.after) s += fmt::format(", after {:g} s", l.after);
+  if (info.options.horizon) s += fmt::format(", horizon {:g} s", l.horizon);
+  if (info.options.end)
+    s += l.end == RopeEnd::top ? ", top end" : l.end == RopeEnd::bottom ? ", bottom end" : ", either end";
+  return s;
 }
 
 CheckSet::CheckSet(const Spec& spec) : spec_(&spec) {
@@ -87,22 +64,12 @@ CheckSet::CheckSet(const Spec& spec) : spec_(&spec) {
     CheckResult c;
     c.limit = static_cast<int>(i);
     c.key = l.key;
-    c.unit = units::si_unit(limit_dim(l.kind));
-    c.bound = is_lower_bound(l.kind) ? Bound::lower : Bound::upper;
+    const LimitKindInfo& info = limit_kind(l.kind);
+    c.unit = units::si_unit(info.dim);
+    c.bound = info.bound;
     c.limit_value = l.value;
-    c.per_case = is_per_case(l.kind);
-    if (l.link >= 0)
-      c.subject = fmt::format("link '{}'", spec.links[static_cast<std::size_t>(l.link)].name);
-    else if (l.kind == LimitKind::rope_tension_min)
-      c.subject = "every rope link";
-    else if (!c.per_case || l.kind == LimitKind::ftle_max)
-      c.subject = "the chain";
-    else
-      c.subject = "every link";
-    if (l.kind == LimitKind::residual_sway) c.subject += fmt::format(", after {:g} s", l.after);
-    if (l.kind == LimitKind::ftle_max) c.subject += fmt::format(", horizon {:g} s", l.horizon);
-    if (l.kind == LimitKind::rope_tension_min)
-      c.subject += l.end == RopeEnd::top ? ", top end" : l.end == RopeEnd::bottom ? ", bottom end" : ", either end";
+    c.per_case = info.per_case;
+    c.subject = check_subject(spec, l);
     results_.push_back(std::move(c));
   }
 }

@@ -4,18 +4,22 @@
 #include <cmath>
 
 #include "swaybound/chaos/ftle.hpp"
+#include "swaybound/checks/limit_kinds.hpp"
 
 namespace swaybound {
 
 namespace {
 /// Index blocks of the quantities of CaseExtremes: per link angle, relative angle, rate, load,
-/// negated top-end tension, negated bottom-end tension; then one per residual_sway limit.
+/// negated top-end tension, negated bottom-end tension; then the chain's quantities (Chain);
+/// then one per residual_sway limit.
 enum Block { kAngle, kRelative, kRate, kLoad, kTensionTop, kTensionBottom, kBlocks };
+/// Quantities of the whole chain, after the blocks: |horizontal force on the support|.
+enum Chain { kSupportX, kChain };
 
 std::vector<double> residual_windows(const Model& model, const Spec& spec) {
-  std::vector<double> from(static_cast<std::size_t>(kBlocks * model.n), 0.0);
+  std::vector<double> from(static_cast<std::size_t>(kBlocks * model.n + kChain), 0.0);
   for (const auto& l : spec.limits)
-    if (l.kind == LimitKind::residual_sway) from.push_back(l.after);
+    if (limit_kind(l.kind).options.after) from.push_back(l.after);
   return from;
 }
 }  // namespace
@@ -37,16 +41,17 @@ CaseExtremes::CaseExtremes(const Model& model, const Spec& spec)
                   q[kTensionTop * n + i] = -top;
                   q[kTensionBottom * n + i] = -bottom;
                 }
+                q[kBlocks * n + kSupportX] = std::fabs(v.ws->reaction_x[0]);
                 for (std::size_t r = 0; r < residual_links_.size(); ++r) {
                   double worst = 0;
                   for (int i = 0; i < n; ++i)
                     if (residual_links_[r] < 0 || residual_links_[r] == i) worst = std::max(worst, std::fabs(x[i]));
-                  q[kBlocks * n + static_cast<int>(r)] = worst;
+                  q[kBlocks * n + kChain + static_cast<int>(r)] = worst;
                 }
               },
               residual_windows(model, spec)) {
   for (const auto& l : spec.limits)
-    if (l.kind == LimitKind::residual_sway) residual_links_.push_back(l.link);
+    if (limit_kind(l.kind).options.after) residual_links_.push_back(l.link);
 }
 
 void CaseExtremes::write(CaseMetrics& m) const {
@@ -73,9 +78,10 @@ void CaseExtremes::write(CaseMetrics& m) const {
     if (i + 1 < n) m.min_tension_bottom[k] = {-bottom.value, bottom.time};
     m.min_tension[k] = i + 1 < n && bottom.value > top.value ? m.min_tension_bottom[k] : m.min_tension_top[k];
   }
+  m.support_force_x = finder_.max(kBlocks * n + kSupportX);
   m.residual.assign(residual_links_.size(), 0.0);
   for (std::size_t r = 0; r < residual_links_.size(); ++r)
-    m.residual[r] = std::max(0.0, finder_.max(kBlocks * n + static_cast<int>(r)).value);
+    m.residual[r] = std::max(0.0, finder_.max(kBlocks * n + kChain + static_cast<int>(r)).value);
 }
 
 FtleSettings ftle_settings(const Spec& spec, const RunSettings& run) {

@@ -6,6 +6,7 @@
 
 #include <fmt/format.h>
 
+#include "swaybound/checks/limit_kinds.hpp"
 #include "swaybound/report/format.hpp"
 #include "swaybound/report/results.hpp"
 
@@ -29,48 +30,9 @@ std::vector<Rich> figure_definitions(const Spec& spec) {
   std::set<LimitKind> kinds{LimitKind::pivot_load};
   for (const auto& l : spec.limits) kinds.insert(l.kind);
   std::vector<Rich> out;
-  const auto item = [&](const char* key, std::string text) { out.push_back({Span{key, true, false, true}, Span{": " + text}}); };
-  for (LimitKind k : kinds) switch (k) {
-      case LimitKind::peak_angle:
-        item("peak_angle", "the largest |θ| of the link over the run; θ is its absolute angle from the downward vertical.");
-        break;
-      case LimitKind::relative_angle:
-        item("relative_angle", "the largest |θ_i - θ_(i-1)| at the link's upper pivot over the run (the top link's "
-                               "is its own angle from the vertical).");
-        break;
-      case LimitKind::peak_rate: item("peak_rate", "the largest |ω| of the link over the run."); break;
-      case LimitKind::pivot_load:
-        item("pivot_load", "the largest magnitude |R| over the run of the reaction R at the link's upper pivot. "
-                           "Sign convention: R is the force of the upper body (the link above, or for the top link "
-                           "the trolley or boom tip) on the link; the force on the upper body is -R. It includes "
-                           "gravity, inertia of the swing and of the base motion, and the wind.");
-        break;
-      case LimitKind::dynamic_factor:
-        item("dynamic_factor", "peak pivot load ÷ static pivot load of the same pivot (g × the mass at and below it, "
-                               "the static-load table). The peak comes from the simulation of each case; the factor is "
-                               "not a design standard's dynamic coefficient nor computed by its formula.");
-        break;
-      case LimitKind::rope_tension_min:
-        item("rope_tension_min", "the least axial tension of a rope link over the run, at the end(s) the limit names "
-                                 "(the least of both ends by default); below zero the rope would go slack.");
-        break;
-      case LimitKind::residual_sway:
-        item("residual_sway", "the largest |θ| of the links after the limit's time (after:), i.e. the sway left once "
-                              "the base motion has stopped.");
-        break;
-      case LimitKind::ftle_max:
-        item("ftle_max", "the largest finite-time Lyapunov exponent of a case over the limit's horizon (section 7); "
-                         "above zero, nearby starts drift apart.");
-        break;
-      case LimitKind::modal_damping_min:
-        item("modal_damping_min", "the least damping ratio of the linear modes about the hanging rest position "
-                                  "(section 5); one value for the design, not per case.");
-        break;
-      case LimitKind::onset_margin:
-        item("onset_margin", "the start amplitude at which the FTLE first exceeds the chaos threshold ÷ the largest "
-                             "start amplitude of the case sets (section 7); one value for the design.");
-        break;
-    }
+  for (const auto& info : limit_kinds())
+    if (kinds.contains(info.kind))
+      out.push_back({Span{std::string(info.key), true, false, true}, Span{": " + std::string(info.definition)}});
   out.push_back({Span{"Source: ", true}, Span{"every figure is computed by this tool from the spec (simulation, "
                                               "linearisation or FTLE); none is taken from a design standard."}});
   return out;

@@ -6,6 +6,7 @@
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
+#include "swaybound/checks/limit_kinds.hpp"
 #include "swaybound/core/hash.hpp"
 #include "swaybound/core/version.hpp"
 
@@ -74,7 +75,7 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
     Json cj;
     cj["limit"] = c.key;
     cj["applies_to"] = c.subject;
-    cj["bound"] = c.bound == Bound::upper ? "upper" : "lower";
+    cj["bound"] = std::string(bound_name(c.bound));
     cj["unit"] = c.unit;
     cj["limit_value"] = number(c.limit_value);
     cj["worst"] = number(c.worst);
@@ -146,26 +147,54 @@ void add_field(std::string& line, std::string_view value) {
 }
 }  // namespace
 
+namespace {
+/// The unit of a cases.csv column of a kind: its SI unit, "-" when dimensionless.
+std::string csv_unit(const LimitKindInfo& info) {
+  const std::string unit = units::si_unit(info.dim);
+  return unit.empty() ? "-" : unit;
+}
+
+/// Whether a per-link kind has columns for link k (a rope kind: rope links only).
+bool has_link_columns(const Spec& spec, const LimitKindInfo& info, std::size_t k) {
+  return info.link_value && !info.csv.empty() &&
+         (info.scope != LimitScope::rope_links || spec.links[k].kind == LinkKind::rope);
+}
+
+/// A limit of the kind with default options and, for a kind with `end`, the end given.
+LimitSpec probe_limit(const LimitKindInfo& info, RopeEnd end = RopeEnd::either) {
+  LimitSpec l;
+  l.kind = info.kind;
+  l.end = end;
+  return l;
+}
+}  // namespace
+
 std::string cases_csv_header(const Spec& spec) {
   std::string h = "\"case\",\"scenario\",\"set\",\"status\"";
   const auto column = [&h](const std::string& name) { add_field(h, csv_quote(name)); };
   for (const auto& l : spec.links) column(fmt::format("theta0({}) [rad]", l.name));
   for (const auto& l : spec.links) column(fmt::format("omega0({}) [rad/s]", l.name));
-  for (const auto& l : spec.links) {
-    column(fmt::format("peak_angle({}) [rad]", l.name));
-    column(fmt::format("peak_relative_angle({}) [rad]", l.name));
-    column(fmt::format("peak_rate({}) [rad/s]", l.name));
-    column(fmt::format("peak_pivot_load({}) [N]", l.name));
-    column(fmt::format("dynamic_factor({}) [-]", l.name));
-    if (l.kind == LinkKind::rope) {
-      column(fmt::format("min_rope_tension({}) [N]", l.name));
-      column(fmt::format("min_rope_tension_time({}) [s]", l.name));
-      column(fmt::format("min_rope_tension_top({}) [N]", l.name));
-      column(fmt::format("min_rope_tension_bottom({}) [N]", l.name));
+  // Per link, the per-link kinds in the order of the table.
+  for (std::size_t k = 0; k < spec.links.size(); ++k)
+    for (const auto& info : limit_kinds()) {
+      if (!has_link_columns(spec, info, k)) continue;
+      const std::string& name = spec.links[k].name;
+      column(fmt::format("{}({}) [{}]", info.csv, name, csv_unit(info)));
+      if (!info.options.end) continue;
+      column(fmt::format("{}_time({}) [s]", info.csv, name));
+      column(fmt::format("{}_top({}) [{}]", info.csv, name, csv_unit(info)));
+      column(fmt::format("{}_bottom({}) [{}]", info.csv, name, csv_unit(info)));
     }
+  // Per case: one column per kind, or per limit for a kind whose value depends on its window.
+  for (const auto& info : limit_kinds()) {
+    if (!info.case_value || info.csv.empty()) continue;
+    if (!info.options.after) {
+      column(fmt::format("{} [{}]", info.csv, csv_unit(info)));
+      continue;
+    }
+    for (std::size_t i = 0; i < spec.limits.size(); ++i)
+      if (spec.limits[i].kind == info.kind) column(fmt::format("{}(limits[{}]) [{}]", info.csv, i, csv_unit(info)));
   }
-  for (std::size_t i = 0; i < spec.limits.size(); ++i)
-    if (spec.limits[i].kind == LimitKind::residual_sway) column(fmt::format("residual_sway(limits[{}]) [rad]", i));
   h += ",\"settling_time [s]\",\"ftle [1/s]\",\"energy_audit_relative [-]\",\"steps\",\"reason\"\n";
   return h;
 }
@@ -181,20 +210,31 @@ std::string cases_csv_row(const Spec& spec, const CaseMetrics& m) {
   // A failed run has no peaks: its measured fields stay empty.
   const bool ok = m.ok();
   const auto measured = [&row, ok](double x) { add_field(row, ok ? csv_number(x) : std::string()); };
-  for (std::size_t i = 0; i < n; ++i) {
-    measured(m.peak_angle[i].value);
-    measured(m.peak_relative[i].value);
-    measured(m.peak_rate[i].value);
-    measured(m.peak_load[i].value);
-    measured(m.dynamic_factor[i]);
-    if (spec.links[i].kind == LinkKind::rope) {
-      measured(m.min_tension[i].value);
-      measured(m.min_tension[i].time);
-      measured(m.min_tension_top[i].value);
-      measured(m.min_tension_bottom[i].value);
+  const auto link_value = [&](const LimitKindInfo& info, std::size_t k, RopeEnd end) {
+    return ok ? info.link_value(m, probe_limit(info, end), k) : Extreme{};
+  };
+  for (std::size_t k = 0; k < n; ++k)
+    for (const auto& info : limit_kinds()) {
+      if (!has_link_columns(spec, info, k)) continue;
+      const Extreme either = link_value(info, k, RopeEnd::either);
+      measured(either.value);
+      if (!info.options.end) continue;
+      measured(either.time);
+      measured(link_value(info, k, RopeEnd::top).value);
+      measured(link_value(info, k, RopeEnd::bottom).value);
+    }
+  for (const auto& info : limit_kinds()) {
+    if (!info.case_value || info.csv.empty()) continue;
+    if (!info.options.after) {
+      measured(ok ? info.case_value(m, probe_limit(info), 0).value : 0.0);
+      continue;
+    }
+    int slot = 0;  // the limit's window among every limit with `after` (CaseMetrics::residual)
+    for (const auto& l : spec.limits) {
+      if (l.kind == info.kind) measured(ok ? info.case_value(m, l, slot).value : 0.0);
+      slot += limit_kind(l.kind).options.after;
     }
   }
-  for (double r : m.residual) measured(r);
   measured(m.settling_time);
   add_field(row, csv_number(m.ftle));
   add_field(row, csv_number(m.audit_relative));

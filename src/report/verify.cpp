@@ -14,6 +14,7 @@
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
+#include "swaybound/checks/limit_kinds.hpp"
 #include "swaybound/core/error.hpp"
 #include "swaybound/core/hash.hpp"
 #include "swaybound/report/format.hpp"
@@ -72,23 +73,19 @@ long csv_records(const std::string& text) {
 }
 
 /// Whether the limit named `key` is a lower bound (its worst value is its least, and it must stay
-/// above the limit), as in checks.cpp; false for an upper bound; an empty optional for a key that
-/// names no limit kind.
+/// above the limit), from the table of limit kinds; false for an upper bound; an empty optional
+/// for a key that names no limit kind.
 std::optional<bool> lower_bound_limit(const std::string& key) {
-  static const std::map<std::string, bool> kinds = {{"peak_angle", false},       {"relative_angle", false},
-                                                    {"peak_rate", false},        {"pivot_load", false},
-                                                    {"dynamic_factor", false},   {"residual_sway", false},
-                                                    {"ftle_max", false},         {"rope_tension_min", true},
-                                                    {"modal_damping_min", true}, {"onset_margin", true}};
-  const auto it = kinds.find(key);
-  if (it == kinds.end()) return std::nullopt;
-  return it->second;
+  const LimitKindInfo* info = find_limit_kind(key);
+  if (!info) return std::nullopt;
+  return info->bound == Bound::lower;
 }
 
 /// Modal damping and the onset margin are values of the design, not of each case: no failed case
-/// counts against them (checks.cpp, is_per_case).
+/// counts against them (the table's per_case).
 bool per_case_limit(const std::string& key) {
-  return key != "modal_damping_min" && key != "onset_margin";
+  const LimitKindInfo* info = find_limit_kind(key);
+  return !info || info->per_case;
 }
 
 /// A number of results.json: finite, or NaN where the file holds null (non-finite values are

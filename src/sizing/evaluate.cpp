@@ -7,6 +7,7 @@
 
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/cases/runner.hpp"
+#include "swaybound/checks/limit_kinds.hpp"
 #include "swaybound/core/error.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/modal/modes.hpp"
@@ -15,31 +16,6 @@
 namespace swaybound {
 
 namespace {
-
-struct KindInfo {
-  std::string_view key;
-  LimitKind kind;
-  units::Dim dim;
-  bool lower;
-};
-const KindInfo kKinds[] = {
-    {"peak_angle", LimitKind::peak_angle, units::angle, false},
-    {"relative_angle", LimitKind::relative_angle, units::angle, false},
-    {"peak_rate", LimitKind::peak_rate, units::angular_rate, false},
-    {"pivot_load", LimitKind::pivot_load, units::force, false},
-    {"dynamic_factor", LimitKind::dynamic_factor, units::dimensionless, false},
-    {"rope_tension_min", LimitKind::rope_tension_min, units::force, true},
-    {"residual_sway", LimitKind::residual_sway, units::angle, false},
-    {"ftle_max", LimitKind::ftle_max, units::rate, false},
-    {"modal_damping_min", LimitKind::modal_damping_min, units::dimensionless, true},
-    {"onset_margin", LimitKind::onset_margin, units::dimensionless, true},
-};
-
-const KindInfo& kind_info(LimitKind kind) {
-  for (const auto& k : kKinds)
-    if (k.kind == kind) return k;
-  return kKinds[0];
-}
 
 /// Running worst value of the objective metric over the cases offered (when it is not a check's).
 struct MetricAccumulator {
@@ -75,13 +51,14 @@ DesignOutcome outcome_from(const Spec& spec, const std::vector<CheckResult>& che
 
 double constraint_scale(const Spec& spec, const LimitSpec& limit) {
   if (limit.value != 0) return std::fabs(limit.value);
-  const units::Dim dim = kind_info(limit.kind).dim;
+  const LimitKindInfo& info = limit_kind(limit.kind);
+  const units::Dim dim = info.dim;
   if (dim == units::force) {
     double mass = 0;
     for (const auto& l : spec.links) mass += l.mass;
     return mass * spec.gravity > 0 ? mass * spec.gravity : 1.0;
   }
-  if (limit.kind == LimitKind::ftle_max) {
+  if (info.options.horizon) {
     const double horizon = limit.horizon > 0 ? limit.horizon : spec.cases.duration;
     return horizon > 0 ? 1.0 / horizon : 1.0;
   }
@@ -100,9 +77,7 @@ ObjectiveMetric objective_metric(const Spec& spec) {
   ObjectiveMetric m;
   if (!spec.sizing || spec.sizing->objective != Objective::min_metric) return m;
   const SizingSpec& s = *spec.sizing;
-  const KindInfo* info = nullptr;
-  for (const auto& k : kKinds)
-    if (k.key == s.metric) info = &k;
+  const LimitKindInfo* info = find_limit_kind(s.metric);
   const std::string file = spec.source_file.empty() ? std::string("spec") : spec.source_file;
   if (!info)
     throw SpecError(file, {Diagnostic{s.mark, "sizing.objective.min", fmt::format("unknown limit kind '{}'", s.metric),
@@ -111,7 +86,7 @@ ObjectiveMetric objective_metric(const Spec& spec) {
   m.limit.kind = info->kind;
   m.limit.key = std::string(info->key);
   m.limit.link = s.metric_link;
-  m.lower = info->lower;
+  m.lower = info->bound == Bound::lower;
   m.unit = units::si_unit(info->dim);
   m.label = fmt::format("worst {}{}", info->key,
                         s.metric_link >= 0
@@ -126,15 +101,13 @@ ObjectiveMetric objective_metric(const Spec& spec) {
       m.residual_slot = slot;
       break;
     }
-    slot += l.kind == LimitKind::residual_sway;
+    slot += limit_kind(l.kind).options.after;
   }
-  const bool needs_limit = info->kind == LimitKind::residual_sway || info->kind == LimitKind::ftle_max ||
-                           info->kind == LimitKind::onset_margin;
-  if (needs_limit && m.check < 0)
+  if (info->objective_needs_limit && m.check < 0)
     throw SpecError(file, {Diagnostic{s.mark, "sizing.objective",
                                       fmt::format("objective {{min: {}}} needs a {} limit{} in the spec", info->key,
                                                   info->key, s.metric_link >= 0 ? " for the same link" : ""),
-                                      info->kind == LimitKind::residual_sway
+                                      info->options.after
                                           ? "add the limit: it gives the time after which sway counts"
                                           : "add the limit: it switches its computation on and sets its horizon"}});
   return m;

@@ -5,6 +5,8 @@
 #include <fmt/format.h>
 #include <yaml-cpp/yaml.h>
 
+#include "swaybound/checks/limit_kinds.hpp"
+#include "swaybound/spec/case_set_kinds.hpp"
 #include "swaybound/spec/loader.hpp"
 #include "swaybound/spec/paths.hpp"
 
@@ -71,17 +73,6 @@ class Writer {
   const Spec& spec_;
   std::vector<std::string> path_;
 };
-
-const char* kind_name(InitialKind k) {
-  switch (k) {
-    case InitialKind::single: return "single";
-    case InitialKind::grid: return "grid";
-    case InitialKind::random: return "random";
-    case InitialKind::corners: return "corners";
-    case InitialKind::ladder: return "ladder";
-  }
-  return "";
-}
 
 void emit_ranges(YAML::Emitter& out, const char* key, const std::vector<Range>& ranges, bool with_count,
                  const u::Dim& dim) {
@@ -227,18 +218,19 @@ std::string normalised_yaml(const Spec& spec) {
     w.at(fmt::format("cases.initial[{}]", i));
     out << YAML::BeginMap;
     w.text("name", set.name);
-    out << YAML::Key << kind_name(set.kind) << YAML::Value << YAML::BeginMap;
+    const InitialKindInfo& kind = initial_kind(set.kind);
+    out << YAML::Key << std::string(kind.name) << YAML::Value << YAML::BeginMap;
     if (set.kind == InitialKind::ladder) out << YAML::Key << "from" << YAML::Value << YAML::BeginMap;
-    const bool ranged = set.kind == InitialKind::grid || set.kind == InitialKind::random ||
-                        set.kind == InitialKind::corners;
+    const bool ranged = kind.shape != StartShape::values;
     if (set.kind == InitialKind::random)
       out << YAML::Key << "count" << YAML::Value << set.count << YAML::Key << "seed" << YAML::Value << set.seed
           << YAML::Key << "method" << YAML::Value
           << (set.method == SamplingMethod::uniform ? "uniform" : "latin_hypercube");
     if (set.kind == InitialKind::random) w.mark_default("random.method");
     if (ranged) {
-      emit_ranges(out, "theta", set.theta, set.kind == InitialKind::grid, u::angle);
-      emit_ranges(out, "rate", set.rate, set.kind == InitialKind::grid, u::angular_rate);
+      const bool counted = kind.shape == StartShape::counted_ranges;
+      emit_ranges(out, "theta", set.theta, counted, u::angle);
+      emit_ranges(out, "rate", set.rate, counted, u::angular_rate);
     } else {
       for (auto [key, list, dim] : {std::tuple{"theta", &set.theta, u::angle}, {"rate", &set.rate, u::angular_rate}}) {
         if (list->empty()) continue;
@@ -264,13 +256,12 @@ std::string normalised_yaml(const Spec& spec) {
   if (!spec.limits.empty()) {
     out << YAML::Key << "limits" << YAML::Value << YAML::BeginSeq;
     for (const auto& l : spec.limits) {
-      static const u::Dim dims[] = {u::angle, u::angle, u::angular_rate, u::force, u::dimensionless,
-                                    u::force, u::angle, u::rate, u::dimensionless, u::dimensionless};
-      const u::Dim& dim = dims[static_cast<int>(l.kind)];
+      const LimitKindInfo& info = limit_kind(l.kind);
+      const u::Dim& dim = info.dim;
       out << YAML::Flow << YAML::BeginMap << YAML::Key << l.key << YAML::Value << number(l.value, dim);
       if (l.link >= 0) out << YAML::Key << "link" << YAML::Value << spec.links[static_cast<std::size_t>(l.link)].name;
-      if (l.kind == LimitKind::residual_sway) out << YAML::Key << "after" << YAML::Value << fmt::format("{:.12g}", l.after);
-      if (l.kind == LimitKind::ftle_max) out << YAML::Key << "horizon" << YAML::Value << fmt::format("{:.12g}", l.horizon);
+      if (info.options.after) out << YAML::Key << "after" << YAML::Value << fmt::format("{:.12g}", l.after);
+      if (info.options.horizon) out << YAML::Key << "horizon" << YAML::Value << fmt::format("{:.12g}", l.horizon);
       if (l.end != RopeEnd::either)
         out << YAML::Key << "end" << YAML::Value << (l.end == RopeEnd::top ? "top" : "bottom");
       out << YAML::EndMap;

@@ -1,5 +1,6 @@
-// Long for a reason: cases, limits, chaos, sizing and solver each validate many coupled keys here;
-// the per-kind tables of the planned renovation will move each section to its own file.
+// Long for a reason: cases, limits, chaos, sizing and solver each validate many coupled keys here.
+// What each limit kind and case-set kind is comes from their tables (checks/limit_kinds.hpp,
+// spec/case_set_kinds.hpp); the sections can move to files of their own without touching them.
 // Spec loader, part 2: cases, limits, sizing, solver and report metadata.
 #include <algorithm>
 #include <cmath>
@@ -9,6 +10,8 @@
 #include <fmt/format.h>
 
 #include "loader_parts.hpp"
+#include "swaybound/checks/limit_kinds.hpp"
+#include "swaybound/spec/case_set_kinds.hpp"
 #include "swaybound/spec/paths.hpp"
 
 namespace swaybound {
@@ -16,27 +19,7 @@ namespace swaybound {
 using namespace spec_detail;
 namespace u = units;
 
-long initial_set_size(const InitialSetSpec& set) {
-  switch (set.kind) {
-    case InitialKind::single: return 1;
-    case InitialKind::random: return set.count;
-    case InitialKind::ladder: return 1 + static_cast<long>(set.steps.size());
-    case InitialKind::grid: {
-      long n = 1;
-      for (const auto& r : set.theta) n = n > 1'000'000'000L / std::max(1, r.count) ? 1'000'000'001L : n * r.count;
-      for (const auto& r : set.rate) n = n > 1'000'000'000L / std::max(1, r.count) ? 1'000'000'001L : n * r.count;
-      return n;
-    }
-    case InitialKind::corners: {
-      long n = 1;
-      for (const auto* list : {&set.theta, &set.rate})
-        for (const auto& r : *list)
-          if (r.hi > r.lo) n = std::min(2 * n, 1'000'000'001L);
-      return n;
-    }
-  }
-  return 0;
-}
+long initial_set_size(const InitialSetSpec& set) { return initial_kind(set.kind).size(set); }
 
 long case_count(const Spec& spec) {
   long starts = 0;
@@ -66,7 +49,12 @@ void check_sample_cap(const MapView& cases, const Spec& spec, const LoadOptions&
                   std::floor(static_cast<double>(options.max_samples - 1) / spec.cases.duration)));
 }
 
-constexpr std::string_view kKinds[] = {"single", "grid", "random", "corners", "ladder"};
+/// The keys of the kinds of initial-condition set, in the table's order.
+std::string kind_list() {
+  std::string all;
+  for (const auto& k : initial_kinds()) all += (all.empty() ? "" : ", ") + std::string(k.name);
+  return all;
+}
 
 /// Reads a per-link list of values ("single" and ladder "from"): [10 deg, -5 deg].
 void read_value_list(Context& ctx, const YAML::Node& node, const std::string& path, const u::Dim& dim,
@@ -122,21 +110,25 @@ void read_range_list(Context& ctx, const YAML::Node& node, const std::string& pa
 
 void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& path, const Spec& spec,
                       InitialSetSpec& set) {
-  MapView m(ctx, node, path, {"name", "single", "grid", "random", "corners", "ladder"});
+  std::vector<std::string_view> keys{"name"};
+  for (const auto& k : initial_kinds()) keys.push_back(k.name);
+  MapView m(ctx, node, path, keys);
   if (!m.ok()) return;
   set.mark = m.mark();
+  const InitialKindInfo* info = nullptr;
   int kinds = 0;
-  for (std::size_t k = 0; k < std::size(kKinds); ++k)
-    if (m.has(kKinds[k])) {
-      set.kind = static_cast<InitialKind>(k);
+  for (const auto& k : initial_kinds())
+    if (m.has(k.name)) {
+      info = &k;
       ++kinds;
     }
   if (kinds != 1) {
     ctx.error(m.mark(), path, kinds == 0 ? "no kind of initial set given" : "more than one kind of initial set given",
-              "give exactly one of: single, grid, random, corners, ladder");
+              "give exactly one of: " + kind_list());
     return;
   }
-  const std::string kind(kKinds[static_cast<int>(set.kind)]);
+  set.kind = info->kind;
+  const std::string kind(info->name);
   set.name = kind;
   if (m.has("name")) {
     if (auto s = read_string(ctx, m.get("name"), m.path("name"))) set.name = *s;
@@ -145,9 +137,10 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
   }
   const std::size_t n = spec.links.size();
   const std::string kp = m.path(kind);
+  const std::vector<std::string_view> body(info->keys.begin(), info->keys.end());
   switch (set.kind) {
     case InitialKind::single: {
-      MapView s(ctx, m.get(kind), kp, {"theta", "rate"});
+      MapView s(ctx, m.get(kind), kp, body);
       if (!s.ok()) return;
       if (s.has("theta")) read_value_list(ctx, s.get("theta"), s.path("theta"), u::angle, n, set.theta);
       if (s.has("rate")) read_value_list(ctx, s.get("rate"), s.path("rate"), u::angular_rate, n, set.rate);
@@ -155,8 +148,8 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
     }
     case InitialKind::grid:
     case InitialKind::corners: {
-      const bool grid = set.kind == InitialKind::grid;
-      MapView s(ctx, m.get(kind), kp, {"theta", "rate"});
+      const bool grid = info->shape == StartShape::counted_ranges;
+      MapView s(ctx, m.get(kind), kp, body);
       if (!s.ok()) return;
       if (!s.has("theta") && !s.has("rate"))
         ctx.error(s.mark(), kp, "no ranges given", "give 'theta' and/or 'rate' ranges per link");
@@ -165,7 +158,7 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
       break;
     }
     case InitialKind::random: {
-      MapView s(ctx, m.get(kind), kp, {"count", "seed", "method", "theta", "rate"});
+      MapView s(ctx, m.get(kind), kp, body);
       if (!s.ok()) return;
       if (s.require("count", "how many random starts"))
         if (auto c = read_integer(ctx, s.get("count"), s.path("count"), 1, 100'000'000)) set.count = static_cast<int>(*c);
@@ -184,7 +177,7 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
       break;
     }
     case InitialKind::ladder: {
-      MapView s(ctx, m.get(kind), kp, {"from", "relative", "absolute", "link"});
+      MapView s(ctx, m.get(kind), kp, body);
       if (!s.ok()) return;
       if (s.require("from", "the start to perturb, {theta: [...], rate: [...]}")) {
         MapView f(ctx, s.get("from"), s.path("from"), {"theta", "rate"});
@@ -240,7 +233,7 @@ void read_cases(const MapView& top, Spec& spec, const LoadOptions& options) {
   read_optional(m, "output_rate", spec.cases.output_rate, u::rate, Bounds{0, 1e5, true, false});
   read_optional(m, "settling_band", spec.cases.settling_band, u::angle, Bounds{0, 3.2, true, false});
   check_sample_cap(m, spec, options);
-  if (!m.require("initial", "a list of initial-condition sets (single, grid, random, corners, ladder)")) return;
+  if (!m.require("initial", "a list of initial-condition sets (" + kind_list() + ")")) return;
   const YAML::Node list = m.get("initial");
   if (!expect_sequence(ctx, list, "cases.initial", "initial-condition sets")) return;
   if (list.size() == 0)
@@ -262,25 +255,17 @@ void read_cases(const MapView& top, Spec& spec, const LoadOptions& options) {
 }
 
 namespace {
-struct LimitInfo {
-  std::string_view key;
-  LimitKind kind;
-  u::Dim dim;
-  Bounds bounds;
-  bool link_allowed;
-};
-const LimitInfo kLimits[] = {
-    {"peak_angle", LimitKind::peak_angle, u::angle, Bounds::positive(), true},
-    {"relative_angle", LimitKind::relative_angle, u::angle, Bounds::positive(), true},
-    {"peak_rate", LimitKind::peak_rate, u::angular_rate, Bounds::positive(), true},
-    {"pivot_load", LimitKind::pivot_load, u::force, Bounds::positive(), true},
-    {"dynamic_factor", LimitKind::dynamic_factor, u::dimensionless, Bounds{1, 1e300, false, false}, true},
-    {"rope_tension_min", LimitKind::rope_tension_min, u::force, Bounds::non_negative(), true},
-    {"residual_sway", LimitKind::residual_sway, u::angle, Bounds::positive(), true},
-    {"ftle_max", LimitKind::ftle_max, u::rate, Bounds::any(), false},
-    {"modal_damping_min", LimitKind::modal_damping_min, u::dimensionless, Bounds{0, 1, false, false}, false},
-    {"onset_margin", LimitKind::onset_margin, u::dimensionless, Bounds::positive(), false},
-};
+Bounds value_bounds(const LimitKindInfo& info) {
+  return {info.range.lo, info.range.hi, info.range.lo_open, info.range.hi_open};
+}
+
+/// "'after' belongs to residual_sway only": the kinds that take an option key.
+std::string option_owners(bool LimitOptions::*option) {
+  std::string all;
+  for (const auto& info : limit_kinds())
+    if (info.options.*option) all += (all.empty() ? "" : ", ") + std::string(info.key);
+  return all;
+}
 }  // namespace
 
 void read_limits(const MapView& top, Spec& spec) {
@@ -289,21 +274,21 @@ void read_limits(const MapView& top, Spec& spec) {
   const YAML::Node list = top.get("limits");
   if (!expect_sequence(ctx, list, "limits", "limits")) return;
   std::vector<std::string_view> keys{"link", "after", "horizon", "end"};
-  for (const auto& info : kLimits) keys.push_back(info.key);
+  for (const auto& info : limit_kinds()) keys.push_back(info.key);
   for (std::size_t i = 0; i < list.size(); ++i) {
     const std::string path = fmt::format("limits[{}]", i);
     MapView m(ctx, list[i], path, keys);
     if (!m.ok()) continue;
-    const LimitInfo* found = nullptr;
+    const LimitKindInfo* found = nullptr;
     int count = 0;
-    for (const auto& info : kLimits)
+    for (const auto& info : limit_kinds())
       if (m.has(info.key)) {
         found = &info;
         ++count;
       }
     if (count != 1) {
       std::string all;
-      for (const auto& info : kLimits) all += (all.empty() ? "" : ", ") + std::string(info.key);
+      for (const auto& info : limit_kinds()) all += (all.empty() ? "" : ", ") + std::string(info.key);
       ctx.error(m.mark(), path, count == 0 ? "no limit kind given" : "more than one limit kind in one entry",
                 "give exactly one of: " + all);
       continue;
@@ -312,21 +297,22 @@ void read_limits(const MapView& top, Spec& spec) {
     limit.kind = found->kind;
     limit.key = std::string(found->key);
     limit.mark = m.mark();
-    if (auto v = read_quantity(ctx, m.get(found->key), m.path(found->key), found->dim, found->bounds))
+    if (auto v = read_quantity(ctx, m.get(found->key), m.path(found->key), found->dim, value_bounds(*found)))
       limit.value = *v;
     if (m.has("link")) {
-      if (!found->link_allowed)
+      if (found->scope == LimitScope::chain)
         ctx.error(m.key_mark("link"), m.path("link"), fmt::format("'{}' applies to the whole chain", found->key),
                   "remove 'link' from this limit");
       else
         limit.link = read_link_ref(ctx, m.get("link"), m.path("link"), spec);
     }
-    if (limit.kind == LimitKind::rope_tension_min && limit.link >= 0 &&
+    const bool ropes = found->scope == LimitScope::rope_links;
+    if (ropes && limit.link >= 0 &&
         spec.links[static_cast<std::size_t>(limit.link)].kind != LinkKind::rope)
       ctx.error(m.get("link"), m.path("link"),
                 fmt::format("link '{}' is not a rope", spec.links[static_cast<std::size_t>(limit.link)].name),
                 "name a link of kind: rope, or set that link's kind to rope");
-    if (limit.kind == LimitKind::rope_tension_min && !m.has("link")) {
+    if (ropes && !m.has("link")) {
       bool any_rope = false;
       for (const auto& l : spec.links) any_rope |= l.kind == LinkKind::rope;
       if (!any_rope && !spec.links.empty())
@@ -334,8 +320,9 @@ void read_limits(const MapView& top, Spec& spec) {
                   "set kind: rope on the rope links or remove this limit");
     }
     if (m.has("end")) {
-      if (limit.kind != LimitKind::rope_tension_min)
-        ctx.error(m.key_mark("end"), m.path("end"), "'end' belongs to rope_tension_min only", "remove it");
+      if (!found->options.end)
+        ctx.error(m.key_mark("end"), m.path("end"), fmt::format("'end' belongs to {} only", option_owners(&LimitOptions::end)),
+                  "remove it");
       else if (auto k = read_choice(ctx, m.get("end"), m.path("end"), {"either", "top", "bottom"}))
         limit.end = *k == "top" ? RopeEnd::top : *k == "bottom" ? RopeEnd::bottom : RopeEnd::either;
       // The bottom end of the last link is free: there must be a rope with a link below it.
@@ -348,24 +335,26 @@ void read_limits(const MapView& top, Spec& spec) {
                   "use end: top, or name a rope link that has a link below it");
     }
     if (m.has("after")) {
-      if (limit.kind != LimitKind::residual_sway)
-        ctx.error(m.key_mark("after"), m.path("after"), "'after' belongs to residual_sway only", "remove it");
+      if (!found->options.after)
+        ctx.error(m.key_mark("after"), m.path("after"),
+                  fmt::format("'after' belongs to {} only", option_owners(&LimitOptions::after)), "remove it");
       else if (auto v = read_quantity(ctx, m.get("after"), m.path("after"), u::duration, Bounds::non_negative())) {
         limit.after = *v;
         if (spec.cases.duration > 0 && limit.after >= spec.cases.duration)
           ctx.error(m.get("after"), m.path("after"), "the residual window starts after the end of the run",
                     fmt::format("give a time below cases.duration ({})", u::format_si(spec.cases.duration, u::duration)));
       }
-    } else if (limit.kind == LimitKind::residual_sway) {
+    } else if (found->options.after) {
       ctx.error(m.mark(), m.path("after"), "missing required key 'after'",
                 "add 'after: ' with the time from which the sway must stay within the limit, e.g. '20 s'");
     }
     if (m.has("horizon")) {
-      if (limit.kind != LimitKind::ftle_max)
-        ctx.error(m.key_mark("horizon"), m.path("horizon"), "'horizon' belongs to ftle_max only", "remove it");
+      if (!found->options.horizon)
+        ctx.error(m.key_mark("horizon"), m.path("horizon"),
+                  fmt::format("'horizon' belongs to {} only", option_owners(&LimitOptions::horizon)), "remove it");
       else if (auto v = read_quantity(ctx, m.get("horizon"), m.path("horizon"), u::duration, Bounds::positive()))
         limit.horizon = *v;
-    } else if (limit.kind == LimitKind::ftle_max) {
+    } else if (found->options.horizon) {
       limit.horizon = spec.cases.duration;
       ctx.defaults_filled.push_back(m.path("horizon"));
     }
@@ -418,28 +407,24 @@ void check_sizing_target(Context& ctx, const Spec& spec, const SpecPath& target,
 /// and residual_sway, ftle_max and onset_margin need their limit (with the same link) in the spec,
 /// which sets the time after which sway counts or switches the computation on.
 void check_objective_limit(Context& ctx, const MapView& objective, const Spec& spec, const SizingSpec& s) {
-  const LimitInfo* info = nullptr;
-  for (const auto& k : kLimits)
-    if (k.key == s.metric) info = &k;
+  const LimitKindInfo* info = find_limit_kind(s.metric);
   if (!info) return;
-  if (objective.has("link") && !info->link_allowed) {
+  if (objective.has("link") && info->scope == LimitScope::chain) {
     ctx.error(objective.key_mark("link"), objective.path("link"),
               fmt::format("'{}' applies to the whole chain", info->key), "remove 'link' from the objective");
     return;
   }
-  const bool needs_limit = info->kind == LimitKind::residual_sway || info->kind == LimitKind::ftle_max ||
-                           info->kind == LimitKind::onset_margin;
-  if (!needs_limit) return;
+  if (!info->objective_needs_limit) return;
   for (const auto& l : spec.limits)
     if (l.kind == info->kind && l.link == s.metric_link) return;
   ctx.error(
       objective.get("min"), objective.path("min"),
       fmt::format("the objective {{min: {}}} needs a {} limit{} in 'limits'", info->key, info->key,
                   s.metric_link >= 0 ? " for the same link" : ""),
-      info->kind == LimitKind::residual_sway
-          ? fmt::format("add a limit {{residual_sway: VALUE, after: TIME{}}}: it gives the time after which "
+      info->options.after
+          ? fmt::format("add a limit {{{}: VALUE, after: TIME{}}}: it gives the time after which "
                         "sway counts",
-                        s.metric_link >= 0 ? ", link: NAME" : "")
+                        info->key, s.metric_link >= 0 ? ", link: NAME" : "")
           : fmt::format("add a limit {{{}: VALUE}}: it switches its computation on", info->key));
 }
 }  // namespace
@@ -702,7 +687,7 @@ void read_sizing(const MapView& top, Spec& spec) {
       MapView om(ctx, o, "sizing.objective", {"min", "link"});
       if (om.ok() && om.require("min", "the limit kind whose worst value is minimised, e.g. peak_angle")) {
         std::vector<std::string_view> names;
-        for (const auto& info : kLimits) names.push_back(info.key);
+        for (const auto& info : limit_kinds()) names.push_back(info.key);
         if (auto k = read_choice(ctx, om.get("min"), om.path("min"), names)) s.metric = *k;
         if (om.has("link")) s.metric_link = read_link_ref(ctx, om.get("link"), om.path("link"), spec);
         s.objective = Objective::min_metric;

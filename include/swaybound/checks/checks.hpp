@@ -6,12 +6,11 @@
 #include <string>
 #include <vector>
 
+#include "swaybound/checks/limit_kinds.hpp"
 #include "swaybound/checks/metrics.hpp"
 #include "swaybound/spec/spec.hpp"
 
 namespace swaybound {
-
-enum class Bound { upper, lower };
 
 struct CheckResult {
   int limit = 0;              ///< index into Spec::limits
@@ -60,5 +59,9 @@ class CheckSet {
 /// The value a per-case limit sees in one case's metrics (worst over the links it names), with the
 /// link and time; NaN when the case has no such value (e.g. no FTLE computed).
 double limit_value_in_case(const LimitSpec& limit, int residual_slot, const CaseMetrics& m, int& link, double& time);
+
+/// What a limit applies to, as the packet says it: "link 'NAME'" or its kind's scope ("every
+/// link", "every rope link", "the chain"), then its options (", after 20 s", ", top end").
+std::string check_subject(const Spec& spec, const LimitSpec& limit);
 
 }  // namespace swaybound

@@ -32,6 +32,8 @@ struct CaseMetrics {
   std::vector<Extreme> min_tension;    ///< least axial tension of rope links, either end [N]; NaN for rigid
   std::vector<Extreme> min_tension_top;     ///< of which at the top end (what the pivot above sees) [N]
   std::vector<Extreme> min_tension_bottom;  ///< at the bottom end [N]; NaN for rigid links and the last link
+  Extreme support_force_x;             ///< max |x component of the force of the chain on its support|
+                                       ///< = |x component of the reaction at link 0's pivot| [N]
   std::vector<double> residual;        ///< per residual_sway limit: max |theta| after its time [rad]
   double settling_time = 0;            ///< time after which every |theta| stays within the band [s];
                                        ///< NaN when the run ends outside the band
@@ -53,14 +55,15 @@ struct CaseOptions {
 };
 
 /// The extremes a case reports, located by an ExtremeFinder: per link |theta|, |theta_i -
-/// theta_{i-1}|, |omega|, the pivot load, the least tension at each end of a rope link; per
-/// residual_sway limit the largest |theta| of its links after its time.
+/// theta_{i-1}|, |omega|, the pivot load, the least tension at each end of a rope link; for the
+/// chain the horizontal force on its support; per residual_sway limit the largest |theta| of its
+/// links after its time.
 class CaseExtremes {
  public:
   CaseExtremes(const Model& model, const Spec& spec);
   /// The on_step observer.
   void observe(const StepView& v) { finder_.observe(v); }
-  /// Writes the extremes into m (peak_*, min_tension, residual).
+  /// Writes the extremes into m (peak_*, min_tension, support_force_x, residual).
   void write(CaseMetrics& m) const;
   const ExtremeFinder& finder() const { return finder_; }
 

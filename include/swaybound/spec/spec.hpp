@@ -136,6 +136,7 @@ enum class LimitKind {
   peak_rate,         ///< |omega_link| [rad/s]
   pivot_load,        ///< |reaction| at the link's upper pivot [N]
   dynamic_factor,    ///< peak / static pivot load [-]
+  horizontal_support_force,  ///< |horizontal force of the chain on its support| (trolley, boom tip) [N]
   rope_tension_min,  ///< lowest rope tension [N] (lower bound)
   residual_sway,     ///< largest |theta| after `after` [rad]
   ftle_max,          ///< largest finite-time Lyapunov exponent over `horizon` [1/s]

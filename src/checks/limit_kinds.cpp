@@ -1,0 +1,121 @@
+#include "swaybound/checks/limit_kinds.hpp"
+
+#include <cmath>
+#include <limits>
+
+#include "swaybound/checks/metrics.hpp"
+
+namespace swaybound {
+
+namespace {
+
+namespace u = units;
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+constexpr LimitRange kPositive{0, 1e300, true, false};
+constexpr LimitRange kNonNegative{0, 1e300, false, false};
+constexpr LimitRange kAny{};
+
+// Accessors: the value of a per-case kind in one case's metrics.
+
+Extreme peak_angle(const CaseMetrics& m, const LimitSpec&, std::size_t k) { return m.peak_angle[k]; }
+Extreme relative_angle(const CaseMetrics& m, const LimitSpec&, std::size_t k) { return m.peak_relative[k]; }
+Extreme peak_rate(const CaseMetrics& m, const LimitSpec&, std::size_t k) { return m.peak_rate[k]; }
+Extreme pivot_load(const CaseMetrics& m, const LimitSpec&, std::size_t k) { return m.peak_load[k]; }
+/// At the time of the peak load it divides.
+Extreme dynamic_factor(const CaseMetrics& m, const LimitSpec&, std::size_t k) {
+  return {m.dynamic_factor[k], m.peak_load[k].time};
+}
+Extreme rope_tension(const CaseMetrics& m, const LimitSpec& l, std::size_t k) {
+  return l.end == RopeEnd::top ? m.min_tension_top[k] : l.end == RopeEnd::bottom ? m.min_tension_bottom[k] : m.min_tension[k];
+}
+Extreme horizontal_support_force(const CaseMetrics& m, const LimitSpec&, int) { return m.support_force_x; }
+/// The window's maximum over its links (no instant recorded).
+Extreme residual_sway(const CaseMetrics& m, const LimitSpec&, int slot) {
+  return {m.residual.at(static_cast<std::size_t>(slot)), kNaN};
+}
+Extreme ftle(const CaseMetrics& m, const LimitSpec&, int) { return {m.ftle, kNaN}; }
+
+constexpr LimitKindInfo kKinds[] = {
+    {LimitKind::peak_angle, "peak_angle", u::angle, kPositive, Bound::upper, true, LimitScope::each_link, {}, false,
+     "the largest |θ| of the link over the run; θ is its absolute angle from the downward vertical.", peak_angle,
+     nullptr, "peak_angle"},
+    {LimitKind::relative_angle, "relative_angle", u::angle, kPositive, Bound::upper, true, LimitScope::each_link, {},
+     false,
+     "the largest |θ_i - θ_(i-1)| at the link's upper pivot over the run (the top link's is its own angle from the "
+     "vertical).",
+     relative_angle, nullptr, "peak_relative_angle"},
+    {LimitKind::peak_rate, "peak_rate", u::angular_rate, kPositive, Bound::upper, true, LimitScope::each_link, {},
+     false, "the largest |ω| of the link over the run.", peak_rate, nullptr, "peak_rate"},
+    {LimitKind::pivot_load, "pivot_load", u::force, kPositive, Bound::upper, true, LimitScope::each_link, {}, false,
+     "the largest magnitude |R| over the run of the reaction R at the link's upper pivot. Sign convention: R is the "
+     "force of the upper body (the link above, or for the top link the trolley or boom tip) on the link; the force on "
+     "the upper body is -R. It includes gravity, inertia of the swing and of the base motion, and the wind.",
+     pivot_load, nullptr, "peak_pivot_load"},
+    {LimitKind::dynamic_factor, "dynamic_factor", u::dimensionless, LimitRange{1, 1e300, false, false}, Bound::upper,
+     true, LimitScope::each_link, {}, false,
+     "peak pivot load ÷ static pivot load of the same pivot (g × the mass at and below it, the static-load table). "
+     "The peak comes from the simulation of each case; the factor is not a design standard's dynamic coefficient nor "
+     "computed by its formula.",
+     dynamic_factor, nullptr, "dynamic_factor"},
+    {LimitKind::horizontal_support_force, "horizontal_support_force", u::force, kPositive, Bound::upper, true,
+     LimitScope::chain, {}, false,
+     "the largest |F_x| over the run of the horizontal component of the force F = -R the chain applies to its "
+     "support (the trolley or boom tip), R being the reaction at the top link's upper pivot: what a trolley drive "
+     "and its brakes, or a boom's side-load rating, must carry.",
+     nullptr, horizontal_support_force, "horizontal_support_force"},
+    {LimitKind::rope_tension_min, "rope_tension_min", u::force, kNonNegative, Bound::lower, true,
+     LimitScope::rope_links, {.end = true}, false,
+     "the least axial tension of a rope link over the run, at the end(s) the limit names (the least of both ends by "
+     "default); below zero the rope would go slack.",
+     rope_tension, nullptr, "min_rope_tension"},
+    {LimitKind::residual_sway, "residual_sway", u::angle, kPositive, Bound::upper, true, LimitScope::each_link,
+     {.after = true}, true,
+     "the largest |θ| of the links after the limit's time (after:), i.e. the sway left once the base motion has "
+     "stopped.",
+     nullptr, residual_sway, "residual_sway"},
+    // The FTLE's cases.csv column is written after the settling time (its place before this table).
+    {LimitKind::ftle_max, "ftle_max", u::rate, kAny, Bound::upper, true, LimitScope::chain, {.horizon = true}, true,
+     "the largest finite-time Lyapunov exponent of a case over the limit's horizon (section 7); above zero, nearby "
+     "starts drift apart.",
+     nullptr, ftle, ""},
+    {LimitKind::modal_damping_min, "modal_damping_min", u::dimensionless, LimitRange{0, 1, false, false},
+     Bound::lower, false, LimitScope::chain, {}, false,
+     "the least damping ratio of the linear modes about the hanging rest position (section 5); one value for the "
+     "design, not per case.",
+     nullptr, nullptr, ""},
+    {LimitKind::onset_margin, "onset_margin", u::dimensionless, kPositive, Bound::lower, false, LimitScope::chain, {},
+     true,
+     "the start amplitude at which the FTLE first exceeds the chaos threshold ÷ the largest start amplitude of the "
+     "case sets (section 7); one value for the design.",
+     nullptr, nullptr, ""},
+};
+
+/// Row i describes the i-th enumerator, and each per-case row has exactly one accessor.
+constexpr bool table_is_consistent() {
+  for (std::size_t i = 0; i < std::size(kKinds); ++i) {
+    const LimitKindInfo& k = kKinds[i];
+    if (static_cast<std::size_t>(k.kind) != i) return false;
+    if (k.per_case != ((k.link_value != nullptr) != (k.case_value != nullptr))) return false;
+    if (!k.per_case && (k.link_value != nullptr || k.case_value != nullptr)) return false;
+    if (k.link_value != nullptr && k.scope == LimitScope::chain) return false;
+  }
+  return true;
+}
+static_assert(table_is_consistent(), "kKinds: one row per LimitKind, in enum order, per-case rows with one accessor");
+
+}  // namespace
+
+std::span<const LimitKindInfo> limit_kinds() { return kKinds; }
+
+const LimitKindInfo& limit_kind(LimitKind kind) { return kKinds[static_cast<std::size_t>(kind)]; }
+
+const LimitKindInfo* find_limit_kind(std::string_view key) {
+  for (const auto& k : kKinds)
+    if (k.key == key) return &k;
+  return nullptr;
+}
+
+std::string_view bound_name(Bound bound) { return bound == Bound::upper ? "upper" : "lower"; }
+
+}  // namespace swaybound

@@ -1,0 +1,61 @@
+#include "swaybound/spec/case_set_kinds.hpp"
+
+#include <algorithm>
+
+namespace swaybound {
+
+namespace {
+
+constexpr long kCap = 1'000'000'001L;  // "over 1e9": the case cap refuses it long before
+
+long single_size(const InitialSetSpec&) { return 1; }
+long random_size(const InitialSetSpec& set) { return set.count; }
+long ladder_size(const InitialSetSpec& set) { return 1 + static_cast<long>(set.steps.size()); }
+/// The product of the counts of every range.
+long grid_size(const InitialSetSpec& set) {
+  long n = 1;
+  for (const auto* list : {&set.theta, &set.rate})
+    for (const auto& r : *list) n = n > 1'000'000'000L / std::max(1, r.count) ? kCap : n * r.count;
+  return n;
+}
+/// Two starts per range that is not a single value.
+long corners_size(const InitialSetSpec& set) {
+  long n = 1;
+  for (const auto* list : {&set.theta, &set.rate})
+    for (const auto& r : *list)
+      if (r.hi > r.lo) n = std::min(2 * n, kCap);
+  return n;
+}
+
+constexpr std::string_view kValueKeys[] = {"theta", "rate"};
+constexpr std::string_view kRandomKeys[] = {"count", "seed", "method", "theta", "rate"};
+constexpr std::string_view kLadderKeys[] = {"from", "relative", "absolute", "link"};
+
+constexpr InitialKindInfo kKinds[] = {
+    {InitialKind::single, "single", kValueKeys, StartShape::values, single_size},
+    {InitialKind::grid, "grid", kValueKeys, StartShape::counted_ranges, grid_size},
+    {InitialKind::random, "random", kRandomKeys, StartShape::ranges, random_size},
+    {InitialKind::corners, "corners", kValueKeys, StartShape::ranges, corners_size},
+    {InitialKind::ladder, "ladder", kLadderKeys, StartShape::values, ladder_size},
+};
+
+constexpr bool in_enum_order() {
+  for (std::size_t i = 0; i < std::size(kKinds); ++i)
+    if (static_cast<std::size_t>(kKinds[i].kind) != i) return false;
+  return true;
+}
+static_assert(in_enum_order(), "kKinds: one row per InitialKind, in enum order");
+
+}  // namespace
+
+std::span<const InitialKindInfo> initial_kinds() { return kKinds; }
+
+const InitialKindInfo& initial_kind(InitialKind kind) { return kKinds[static_cast<std::size_t>(kind)]; }
+
+const InitialKindInfo* find_initial_kind(std::string_view name) {
+  for (const auto& k : kKinds)
+    if (k.name == name) return &k;
+  return nullptr;
+}
+
+}  // namespace swaybound
