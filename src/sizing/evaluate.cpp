@@ -137,65 +137,31 @@ Spec DesignEvaluator::design(const std::vector<double>& values) const {
 DesignOutcome DesignEvaluator::screen(const std::vector<double>& values, const std::vector<long>& cases,
                                       const std::vector<double>* onset_worst) const {
   const Spec spec = design(values);
-  const Model model = build_model(spec);
-  const CaseSpace space(spec);
-  RunSettings run = RunSettings::from_spec(spec);
-  run.output_rate = 0;  // as run_check streams its cases
-  CaseOptions case_options;
-  case_options.ftle = has_kind(spec, LimitKind::ftle_max);
-  case_options.ftle_settings = ftle_settings(spec, run);
-
+  const CheckPlan plan = plan_check(spec);
   CheckSet checks(spec);
+  CaseTotals totals;
   MetricAccumulator metric{&metric_};
-  long run_count = 0, failed = 0;
   RunnerOptions runner;
   runner.jobs = jobs_;
-  run_parallel(
-      model, static_cast<long>(cases.size()), runner,
-      [&](long k, Workspace& ws) {
-        return run_case(model, spec, ws, space.at(cases[static_cast<std::size_t>(k)]), run, case_options);
-      },
-      [&](CaseMetrics&& m) {
-        checks.offer(m);
-        metric.offer(m);
-        ++run_count;
-        failed += !m.ok();
-      });
+  stream_cases(plan, CaseList::of(cases), runner, checks, totals, [&](const CaseMetrics& m) { metric.offer(m); });
+  const long run_count = totals.cases, failed = totals.failed_total;
 
   double least_damping = std::nan("");
-  if (has_kind(spec, LimitKind::modal_damping_min) ||
-      (metric_.active && metric_.limit.kind == LimitKind::modal_damping_min)) {
-    least_damping = modal_analysis(model).least_damping_ratio;
-    for (std::size_t i = 0; i < spec.limits.size(); ++i)
-      if (spec.limits[i].kind == LimitKind::modal_damping_min)
-        checks.set_global(static_cast<int>(i), least_damping, "modal analysis");
+  if (plan.modal_limit || (metric_.active && metric_.limit.kind == LimitKind::modal_damping_min)) {
+    const ModalResult modes = modal_analysis(plan.model);
+    least_damping = modes.least_damping_ratio;
+    set_modal_checks(spec, modes, checks);
   }
   if (has_kind(spec, LimitKind::onset_margin) && onset_worst) {
     for (std::size_t i = 0; i < spec.limits.size(); ++i)
       if (spec.limits[i].kind == LimitKind::onset_margin)
         checks.set_global(static_cast<int>(i), onset_worst->at(i), "last full check");
   } else if (has_kind(spec, LimitKind::onset_margin)) {
-    // The onset search of run_check itself, on a spec reduced to one start at rest (run_check
-    // searches from the first scenario whatever the case set); the ratio uses the full case set's
-    // envelope, as the full check does.
-    Spec reduced = spec;
-    reduced.source_file.clear();
-    InitialSetSpec rest;
-    rest.kind = InitialKind::single;
-    rest.name = "rest";
-    reduced.cases.initial = {rest};
-    reduced.limits.clear();
-    for (const auto& l : spec.limits)
-      if (l.kind == LimitKind::onset_margin) reduced.limits.push_back(l);
-    reduced.chaos.map = false;
-    CheckOptions o;
-    o.jobs = jobs_;
-    o.audit = false;
-    o.record = false;
-    const CheckReport r = run_check(reduced, o);
-    const double ratio = envelope_ > 0 ? r.chaos.onset.amplitude / envelope_ : INFINITY;
-    for (std::size_t i = 0; i < spec.limits.size(); ++i)
-      if (spec.limits[i].kind == LimitKind::onset_margin) checks.set_global(static_cast<int>(i), ratio, "onset search");
+    // The onset stage of the full check (it searches from the first scenario whatever the cases);
+    // the ratio uses the full case set's envelope, as the full check does.
+    const OnsetResult onset =
+        onset_search(plan.model, spec, plan.case_options.ftle_settings, jobs_ > 0 ? jobs_ : default_jobs());
+    set_onset_checks(spec, onset, envelope_, checks);
   }
   checks.finish();
   DesignOutcome out = outcome_from(spec, checks.results());

@@ -84,15 +84,15 @@ double bare(const Spec& spec, int jobs, bool ftle) {
   RunnerOptions ro;
   ro.jobs = jobs;
   const auto start = Clock::now();
-  run_parallel(
-      model, space.size(), ro,
+  run_ordered<long>(
+      space.size(), ro, [&] { return Workspace(model); },
       [&](long i, Workspace& ws) {
         const CaseDef def = space.at(i);
         simulate_case(model, ws, def.scenario, def.initial, run);
         if (ftle) chain_ftle(model, ws, def.scenario, def.initial, fs);
-        return CaseMetrics{};
+        return i;
       },
-      [](CaseMetrics&&) {});
+      [](long&&) {});
   return seconds(start);
 }
 

@@ -108,19 +108,15 @@ TEST_CASE("random starts are uniform in range and repeat exactly", "[cases]") {
 TEST_CASE("the runner hands results over in case order on any thread count", "[cases][runner]") {
   const Spec spec = load_spec_text(kSpec, "cases.yaml");
   const Model model = build_model(spec);
+  const CaseSpace space(spec);
   for (int jobs : {1, 2, 4}) {
     std::vector<long> order;
     RunnerOptions options;
     options.jobs = jobs;
     options.window = 3;
-    run_parallel(
-        model, 200, options,
-        [](long i, Workspace&) {
-          CaseMetrics m;
-          m.index = i;
-          return m;
-        },
-        [&](CaseMetrics&& m) { order.push_back(m.index); });
+    run_ordered<CaseDef>(
+        200, options, [&] { return Workspace(model); },
+        [&](long i, Workspace&) { return space.at(i); }, [&](CaseDef&& def) { order.push_back(def.index); });
     REQUIRE(order.size() == 200);
     for (long i = 0; i < 200; ++i) CHECK(order[static_cast<std::size_t>(i)] == i);
   }

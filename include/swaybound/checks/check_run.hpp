@@ -1,11 +1,18 @@
 #pragma once
-// The design check, end to end: every case of the spec (in parallel, streamed through the checks),
-// the modal analysis, the chaotic-onset indicators, and the accuracy audit of each governing case.
+// The design check, as public stages that `check` and `size` compose:
+//   plan_check        spec -> CheckPlan (model, case space, run settings, what to compute)
+//   stream_cases      a list of cases, in parallel, into the checks and the running totals
+//   run_global_checks modal analysis and chaotic-onset indicators, into the global checks
+//   audit_governing   each governing case again at a 100x tighter tolerance
+//   record_governing  each governing case again with its time series recorded (for plots)
+// run_check composes them over every case of the spec.
 #include <functional>
 #include <string>
 #include <vector>
 
+#include "swaybound/cases/case_space.hpp"
 #include "swaybound/cases/runner.hpp"
+#include "swaybound/chaos/indicators.hpp"
 #include "swaybound/checks/checks.hpp"
 #include "swaybound/modal/modes.hpp"
 #include "swaybound/spec/spec.hpp"
@@ -14,46 +21,6 @@ namespace swaybound {
 
 struct FailedCase {
   std::string id, status, reason;
-};
-
-/// Divergence of a perturbation ladder from its base start.
-struct LadderResult {
-  std::string set, scenario;
-  int link = 0;                          ///< the perturbed link
-  std::vector<double> delta;             ///< actual initial angle perturbations [rad]
-  std::vector<double> divergence_time;   ///< first time max_i |dtheta_i| > chaos.tolerance [s]; NaN: never
-  double sample_interval = 0;            ///< of `separation` [s]
-  std::vector<std::vector<double>> separation;  ///< per step: max_i |dtheta_i| at each sample [rad]
-  double lambda = std::nan("");          ///< FTLE of the base start [1/s]
-  double slope = std::nan("");           ///< least-squares d(time)/d ln(1/delta) [s]
-  double horizon_measured = std::nan(""); ///< the fitted time at delta = chaos.uncertainty [s]
-  double horizon_predicted = std::nan("");///< ln(tolerance / uncertainty) / lambda [s]
-};
-
-struct OnsetResult {
-  bool computed = false;
-  bool found = false;                 ///< FTLE exceeded the threshold below chaos.onset.max
-  double amplitude = std::nan("");    ///< smallest amplitude with FTLE > threshold [rad] (upper end of the bracket)
-  double bracket_low = std::nan("");  ///< largest amplitude known below the threshold [rad]
-  std::vector<double> scan_amplitude, scan_ftle;  ///< coarse scan and bisection points [rad], [1/s]
-  std::string scenario;
-};
-
-struct ChaosMap {
-  bool computed = false;
-  std::vector<double> x, y;   ///< link 0 and link 1 start angles [rad]
-  std::vector<double> ftle;   ///< row-major, y outer: ftle[j * x.size() + i] [1/s]; NaN where a run failed
-};
-
-struct ChaosSummary {
-  bool per_case_ftle = false;
-  double horizon = 0;             ///< [s]
-  double max_ftle = std::nan(""); ///< over the cases [1/s]
-  std::string max_ftle_case;
-  double envelope_amplitude = 0;  ///< largest start angle of the case sets [rad]
-  std::vector<LadderResult> ladders;
-  OnsetResult onset;
-  ChaosMap map;
 };
 
 /// Most points kept per recorded time series (per plot line): a longer run is decimated to every
@@ -108,6 +75,83 @@ struct CheckReport {
   double seconds_cases = 0, seconds_chaos = 0, seconds_audit = 0;
 };
 
+/// What a check run of a spec computes, decided before any case runs. Refers to the spec it was
+/// planned from, which must outlive it.
+struct CheckPlan {
+  const Spec* spec = nullptr;
+  Model model;
+  CaseSpace space;
+  RunSettings run;           ///< the spec's settings (recordings sample at its output rate)
+  RunSettings streaming;     ///< `run` without output samples: how cases stream through the checks
+  CaseOptions case_options;  ///< the per-case FTLE when a ftle_max limit asks for it, and its settings
+  bool modal_limit = false;  ///< a modal_damping_min limit
+  bool onset = false;        ///< search the chaotic onset (an onset_margin limit or a chaos section)
+  bool map = false;          ///< compute the FTLE map (chaos.map)
+  std::vector<int> ladder_sets;  ///< initial sets of kind ladder
+};
+
+/// Builds the model and case space of `spec` and decides what its check computes.
+CheckPlan plan_check(const Spec& spec);
+
+/// The cases a stage runs: every case of a case space, or a list of its indices (ascending).
+class CaseList {
+ public:
+  /// Cases 0 .. count-1.
+  static CaseList all(long count);
+  /// The listed case indices, in the order given.
+  static CaseList of(std::vector<long> indices);
+  long size() const { return listed_ ? static_cast<long>(indices_.size()) : count_; }
+  long operator[](long k) const { return listed_ ? indices_[static_cast<std::size_t>(k)] : k; }
+
+ private:
+  bool listed_ = false;
+  long count_ = 0;
+  std::vector<long> indices_;
+};
+
+/// Running totals of the streamed cases besides the checks: failures, the time budget, steps, the
+/// largest energy-audit residual and the largest per-case FTLE.
+struct CaseTotals {
+  long cases = 0;                  ///< cases offered
+  std::vector<FailedCase> failed;  ///< the first 100 failed cases
+  long failed_total = 0;
+  long time_budget_total = 0;
+  double max_audit_relative = 0;
+  std::string max_audit_case;
+  long total_steps = 0;
+  double max_ftle = std::nan("");
+  std::string max_ftle_case;
+  /// Adds one case (offered in case order, so ties keep the first case).
+  void offer(const CaseMetrics& m);
+};
+
+/// Runs `cases` of the plan with its streaming settings on runner.jobs threads and offers each
+/// case's metrics, in list order, to `checks`, `totals` and then `on_case` (when set).
+void stream_cases(const CheckPlan& plan, const CaseList& cases, const RunnerOptions& runner, CheckSet& checks,
+                  CaseTotals& totals, const std::function<void(const CaseMetrics&)>& on_case = {});
+
+/// Sets every modal_damping_min check of `spec` to the least damping ratio of `modes`.
+void set_modal_checks(const Spec& spec, const ModalResult& modes, CheckSet& checks);
+
+/// Sets every onset_margin check of `spec` to onset amplitude / `envelope` (+inf for an envelope of 0).
+void set_onset_checks(const Spec& spec, const OnsetResult& onset, double envelope, CheckSet& checks);
+
+/// The global stage: the modal analysis into `modes`, and as the plan asks the ladders, the onset
+/// search and the FTLE map into `chaos` (on `jobs` threads, 0: all), with the modal and onset checks
+/// set. Does not finish the checks.
+void run_global_checks(const CheckPlan& plan, int jobs, CheckSet& checks, ModalResult& modes, ChaosSummary& chaos);
+
+/// Accuracy audit: re-runs every case that governs a per-case check at a 100x tighter tolerance
+/// (on `jobs` threads) and writes each such check's audit_value, audit_change and audit_warning.
+/// Returns how many re-runs the wall-clock budget stopped.
+long audit_governing(const CheckPlan& plan, int jobs, std::vector<CheckResult>& checks);
+
+/// Re-runs every case that governs a per-case check with its time series recorded (decimated to at
+/// most kMaxRecordedPoints per line), in case order.
+std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vector<CheckResult>& checks);
+
+/// The whole check of `spec`: every case, the global checks, the audit and the recordings as
+/// `options` asks.
 CheckReport run_check(const Spec& spec, const CheckOptions& options);
 
 }  // namespace swaybound

@@ -63,11 +63,12 @@ class DesignEvaluator {
   const Spec& base() const { return base_; }
   /// The base spec with the design's values set.
   Spec design(const std::vector<double>& values) const;
-  /// Evaluates the design on the given cases (ascending case indices of the spec's case space),
-  /// exactly as run_check evaluates them (same settings, same checks). The modal damping, which is
-  /// not per case, is computed in full; so is the chaotic-onset margin (an onset search of its
-  /// own, the costliest part of a screening) unless `onset_worst` is given: then each onset_margin
-  /// check takes its value from it (per limit, e.g. the last full check's worst values).
+  /// Evaluates the design on the given cases (ascending case indices of the spec's case space)
+  /// with run_check's own stages (plan_check, stream_cases over the list), so the same settings
+  /// and checks. The modal damping, which is not per case, is computed in full; so is the
+  /// chaotic-onset margin (the onset stage, onset_search: the costliest part of a screening)
+  /// unless `onset_worst` is given: then each onset_margin check takes its value from it (per
+  /// limit, e.g. the last full check's worst values).
   DesignOutcome screen(const std::vector<double>& values, const std::vector<long>& cases,
                        const std::vector<double>* onset_worst = nullptr) const;
   /// The full check of a design spec: run_check with `options` (its on_case is kept and chained).
