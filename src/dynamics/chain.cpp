@@ -124,21 +124,21 @@ void external_forces(const Model& model, Workspace& ws, double* q) {
 
 void pivot_torques(const Model& model, Workspace& ws, const double* reaction) {
   if (reaction == nullptr) {
-    // The parts that do not depend on the reaction: dampers, constant friction, and the tanh
-    // sliding factor that pin friction reuses in every fixed-point iteration.
+    // The parts that do not depend on the reaction: dampers, constant friction, and the sliding
+    // factor that pin friction reuses in every fixed-point iteration.
     for (int i = 0; i < model.n; ++i) {
       const PivotModel& p = model.pivots[i];
       const double w = ws.omega[i] - (i > 0 ? ws.omega[i - 1] : 0.0);
-      ws.slide[i] = p.has_friction() ? std::tanh(w / p.transition_rate) : 0.0;
-      ws.tau_fixed[i] = damper_torque(p, w) - p.coulomb_torque * ws.slide[i];
+      ws.slide[i] = friction_slide(p, w);
+      ws.tau_fixed[i] = damper_torque(p, w) + constant_friction_torque(p, ws.slide[i]);
       ws.tau_pin[i] = 0.0;
       ws.tau[i] = ws.tau_fixed[i];
     }
     return;
   }
-  // Pin friction -mu r |R| tanh(w / w_t), as friction_torque() in forces.hpp, split for reuse.
+  // Pin friction at the given reactions, the load-dependent part of friction_torque().
   for (int i = 0; i < model.n; ++i) {
-    ws.tau_pin[i] = -model.pivots[i].pin_friction * reaction[i] * ws.slide[i];
+    ws.tau_pin[i] = pin_friction_torque(model.pivots[i], ws.slide[i], reaction[i]);
     ws.tau[i] = ws.tau_fixed[i] + ws.tau_pin[i];
   }
 }
