@@ -339,7 +339,7 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
         rc.base_ay.push_back(v.ws->base_ay);
         for (std::size_t w = 0; w < model.wind.size(); ++w) {
           double fx, fy, vx, vy;
-          wind_load_force(model, *v.ws, w, fx, fy, vx, vy);
+          wind_load_force(model, *v.ws, *v.phase, w, fx, fy, vx, vy);
           rc.wind_x[w].push_back(fx);
         }
         for (int i = 0; i < n; ++i) {

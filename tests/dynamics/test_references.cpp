@@ -134,7 +134,7 @@ cases: {duration: 1 s, initial: [{single: {theta: [0]}}]}
 )");
   Workspace ws(model);
   std::vector<double> x(static_cast<std::size_t>(model.state_size()), 0.0), dxdt(x.size());
-  evaluate(model, ws, x.data(), 0.0, dxdt.data());
+  evaluate(model, ws, model.scenarios[0].phases[0], x.data(), 0.0, dxdt.data());
   const double weights[] = {(20 + 150 + 900) * 9.81, (150 + 900) * 9.81, 900 * 9.81};
   for (int i = 0; i < 3; ++i) {
     CHECK(ws.reaction[i] == Approx(weights[i]).epsilon(1e-14));

@@ -131,7 +131,7 @@ cases: {duration: 1 s, initial: [{single: {theta: [0]}}]}
 )");
   Workspace ws(model);
   std::vector<double> x = {0.7, -0.4, 0.3, -1.1, 0, 0}, dxdt(6);
-  evaluate(model, ws, x.data(), 0.0, dxdt.data());
+  evaluate(model, ws, model.scenarios[0].phases[0], x.data(), 0.0, dxdt.data());
   const double w[] = {0.3, -1.1 - 0.3};
   const double rates[] = {0.05, 0.01};
   const double mu_r[] = {0.3 * 0.06, 0.25 * 0.04};

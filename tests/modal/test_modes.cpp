@@ -50,8 +50,8 @@ Eigen::MatrixXd engine_jacobian(const Model& model, double step = 1e-6) {
     std::vector<double> xp = x, xm = x;
     xp[static_cast<std::size_t>(j)] += step;
     xm[static_cast<std::size_t>(j)] -= step;
-    evaluate(model, ws, xp.data(), 0.0, plus.data());
-    evaluate(model, ws, xm.data(), 0.0, minus.data());
+    evaluate(model, ws, model.scenarios[0].phases[0], xp.data(), 0.0, plus.data());
+    evaluate(model, ws, model.scenarios[0].phases[0], xm.data(), 0.0, minus.data());
     for (int i = 0; i < 2 * n; ++i)
       J(i, j) = (plus[static_cast<std::size_t>(i)] - minus[static_cast<std::size_t>(i)]) / (2 * step);
   }
