@@ -8,7 +8,8 @@
 #include <fmt/format.h>
 #include <fmt/ranges.h>
 
-#include "../dynamics/fixtures.hpp"
+#include "../support/close_to.hpp"
+#include "../support/pendulum.hpp"
 #include "swaybound/chaos/ftle.hpp"
 #include "swaybound/checks/metrics.hpp"
 
@@ -29,7 +30,7 @@ struct Lorenz {
   }
 };
 
-/// Two point masses on massless links (tests/dynamics/fixtures.hpp).
+/// Two point masses on massless links (tests/support/pendulum.hpp).
 std::string equal_double(double length, double mass) { return swaybound::testing::equal_double_yaml(length, mass, kG); }
 
 FtleSettings ftle_settings(double horizon) {
@@ -52,7 +53,7 @@ TEST_CASE("FTLE of the Lorenz system matches the published largest exponent", "[
   const FtleResult r = finite_time_lyapunov(lorenz, x, ftle_settings(1000));
   REQUIRE(r.status == FtleStatus::ok);
   INFO("Lorenz exponent " << r.exponent << " /s, " << r.steps << " steps");
-  CHECK(r.exponent == Approx(0.9056).epsilon(0.02));
+  CHECK_THAT(r.exponent, IsCloseTo(0.9056, 0, 0.02));
   CHECK(r.growth.size() == 2000);
   CHECK(r.growth.back().t == 1000.0);
 }
@@ -81,10 +82,10 @@ TEST_CASE("FTLE bookkeeping: breakpoints, on_interval and the growth record are 
   REQUIRE(r.growth.size() == expected_starts.size());
   for (const auto& g : r.growth) {
     INFO("t = " << g.t);
-    CHECK(g.log_growth == Approx(g.t < t_b + 1e-12 ? g.t : t_b - 2 * (g.t - t_b)).margin(1e-6));
+    CHECK_THAT(g.log_growth, IsCloseTo(g.t < t_b + 1e-12 ? g.t : t_b - 2 * (g.t - t_b), 1e-6, 0));
   }
   CHECK(r.growth.back().t == T);
-  CHECK(r.exponent == Approx((t_b - 2 * (T - t_b)) / T).margin(1e-6 / T));
+  CHECK_THAT(r.exponent, IsCloseTo((t_b - 2 * (T - t_b)) / T, 1e-6 / T, 0));
 }
 
 TEST_CASE("FTLE reports numerical trouble as a status, not an exception", "[chaos]") {
@@ -150,7 +151,7 @@ base: {{scenarios: [{{name: still, accel: []}}, {{name: jolt, accel: [{{for: 3.2
     const FtleResult r = chain_ftle(model, ws, 0, {{deg(5)}, {}}, ftle_settings(50));
     REQUIRE(r.status == FtleStatus::ok);
     INFO("damped exponent " << r.exponent << " /s, expected " << expected);
-    CHECK(r.exponent == Approx(expected).epsilon(0.05));
+    CHECK_THAT(r.exponent, IsCloseTo(expected, 0, 0.05));
   }
   SECTION("a base-acceleration phase: a breakpoint, and the same decay rate") {
     // During the jolt the pendulum swings about the tilted rest -atan(a / g); the linearisation
@@ -160,7 +161,7 @@ base: {{scenarios: [{{name: still, accel: []}}, {{name: jolt, accel: [{{for: 3.2
     const FtleResult r = chain_ftle(model, ws, 1, {{deg(5)}, {}}, ftle_settings(50));
     REQUIRE(r.status == FtleStatus::ok);
     INFO("damped exponent with a jolt " << r.exponent << " /s, expected " << expected);
-    CHECK(r.exponent == Approx(expected).epsilon(0.05));
+    CHECK_THAT(r.exponent, IsCloseTo(expected, 0, 0.05));
     // The last evaluation was under the phase after the jolt (no base acceleration).
     CHECK(ws.base_ax == 0.0);
     // The phase boundary at 3.25 s is an extra interval end (100 on the 0.5 s grid, plus one).
@@ -248,8 +249,8 @@ chaos: {{horizon: {} s, {}}}
     return r.exponent;
   };
   const double c = std::cos(w * H), s = std::sin(w * H);
-  CHECK(run("direction: {theta: [1]}") == Approx(0.5 * std::log(c * c + 1.5 * s * s) / H).margin(1e-6));
-  CHECK(run("direction: {rate: [1]}") == Approx(0.5 * std::log(c * c + s * s / 1.5) / H).margin(1e-6));
+  CHECK_THAT(run("direction: {theta: [1]}"), IsCloseTo(0.5 * std::log(c * c + 1.5 * s * s) / H, 1e-6, 0));
+  CHECK_THAT(run("direction: {rate: [1]}"), IsCloseTo(0.5 * std::log(c * c + s * s / 1.5) / H, 1e-6, 0));
   const std::string isotropic = fmt::format("rate_weight: {:.17g} s", 1 / w);
   CHECK(std::fabs(run(isotropic + ", direction: {theta: [1]}")) < 1e-6);
   CHECK(std::fabs(run(isotropic + ", direction: {theta: [0.3], rate: [0.7]}")) < 1e-6);
