@@ -12,6 +12,7 @@ double ftle_rate_weight(const Model& model) {
 
 FtleResult chain_ftle(const Model& model, Workspace& ws, int scenario, const InitialState& start,
                       const FtleSettings& s) {
+  require_built_for(model, ws);
   SWAYBOUND_REQUIRE(scenario >= 0 && scenario < static_cast<int>(model.scenarios.size()),
                     "scenario index {} out of range (model has {})", scenario, model.scenarios.size());
   const auto n = static_cast<std::size_t>(model.n);
@@ -47,17 +48,18 @@ FtleResult chain_ftle(const Model& model, Workspace& ws, int scenario, const Ini
     ~Lazy() { ws.lazy_reactions = before; }
   } lazy{ws, ws.lazy_reactions};
   ws.lazy_reactions = true;
-  ws.scenario = scenario;
-  ws.phase = 0;
   ws.friction_unconverged = 0;
-  ChainSystem<std::vector<double>> system{&model, &ws};
+  ChainSystem system(model, ws, scenario);
   FtleResult r = finite_time_lyapunov(system, std::move(x0), settings, breakpoints, [&](double t_start) {
-    ws.scenario = scenario;
-    ws.phase = sc.phase_at(t_start);
+    system.enter_phase(static_cast<std::size_t>(sc.phase_at(t_start)));
   });
-  if (r.status == FtleStatus::ok && ws.friction_unconverged > 0) {
-    r.status = FtleStatus::failed;
-    r.reason = fmt::format("pin friction did not converge in {} evaluations", ws.friction_unconverged);
+  // The cause, not the symptom: a pin-friction iteration that diverged makes the state non-finite.
+  if ((r.status == FtleStatus::ok || r.status == FtleStatus::non_finite) && ws.friction_unconverged > 0) {
+    r.reason = r.status == FtleStatus::ok
+                   ? fmt::format("pin friction did not converge in {} evaluations", ws.friction_unconverged)
+                   : fmt::format("pin friction did not converge in {} evaluations; {}", ws.friction_unconverged,
+                                 r.reason);
+    r.status = FtleStatus::friction_unconverged;
   }
   return r;
 }

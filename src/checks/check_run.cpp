@@ -194,7 +194,7 @@ std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vec
       rc.base_ay.push_back(v.ws->base_ay);
       for (std::size_t w = 0; w < model.wind.size(); ++w) {
         double fx, fy, vx, vy;
-        wind_load_force(model, *v.ws, w, fx, fy, vx, vy);
+        wind_load_force(model, *v.ws, *v.phase, w, fx, fy, vx, vy);
         rc.wind_x[w].push_back(fx);
       }
       for (int i = 0; i < n; ++i) {

@@ -94,6 +94,7 @@ FtleSettings ftle_settings(const Spec& spec, const RunSettings& run) {
   fs.rtol = run.rtol;
   fs.atol = run.atol;
   fs.max_steps = run.max_steps;
+  fs.max_seconds = run.max_seconds;
   return fs;
 }
 
@@ -139,7 +140,7 @@ CaseMetrics run_case(const Model& model, const Spec& spec, Workspace& ws, const 
     if (f.status == FtleStatus::ok)
       m.ftle = f.exponent;
     else {
-      m.status = RunStatus::non_finite;
+      m.status = f.status;  // the cause (step budget, time budget, ...), not a blanket non_finite
       m.reason = "FTLE run failed: " + f.reason;
       m.ftle_note = f.reason;
     }

@@ -248,7 +248,7 @@ Action add_simulate(CLI::App& app) {
       }
       for (std::size_t k = 0; k < model.wind.size(); ++k) {
         double fx, fy, vx, vy;
-        wind_load_force(model, w, k, fx, fy, vx, vy);
+        wind_load_force(model, w, *v.phase, k, fx, fy, vx, vy);
         csv << ',' << fx + 0.0 << ',' << fy + 0.0;  // + 0.0: no "-0"
       }
       csv << ',' << v.energy << ',' << v.x[2 * n] << ',' << v.x[2 * n + 1] << ',' << v.audit_residual << '\n';

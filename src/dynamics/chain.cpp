@@ -24,7 +24,7 @@ void Scratch<N>::resize(int n) {
   alpha.setZero();
 }
 
-Workspace::Workspace(const Model& model) {
+Workspace::Workspace(const Model& model) : model_id(model.id), links(model.n) {
   const auto n = static_cast<std::size_t>(model.n);
   for (auto* v : {&alpha, &slide, &tau_fixed, &sin_t, &cos_t, &omega, &force_x, &force_y, &tau, &tau_pin, &reaction_x, &reaction_y, &reaction, &reaction_prev,
                   &acc_x, &acc_y})
@@ -35,14 +35,20 @@ Workspace::Workspace(const Model& model) {
   sn.resize(model.n);
 }
 
-void kinematics(const Model& model, Workspace& ws, const double* x, double t) {
+void require_built_for(const Model& model, const Workspace& ws) {
+  SWAYBOUND_REQUIRE(ws.model_id == model.id && ws.links == model.n,
+                    "the workspace was built for another model (model id {}, {} links) than the one it is used with "
+                    "(model id {}, {} links); build one Workspace per model",
+                    ws.model_id, ws.links, model.id, model.n);
+}
+
+void kinematics(const Model& model, Workspace& ws, const Phase& p, const double* x, double t) {
   const int n = model.n;
   for (int i = 0; i < n; ++i) {
     ws.sin_t[i] = std::sin(x[i]);
     ws.cos_t[i] = std::cos(x[i]);
     ws.omega[i] = x[n + i];
   }
-  const Phase& p = model.scenarios[static_cast<std::size_t>(ws.scenario)].phases[static_cast<std::size_t>(ws.phase)];
   const double dt = t - p.t0;
   ws.base_ax = p.ax;
   ws.base_ay = p.ay;
@@ -85,20 +91,19 @@ void apply_point_force(const Model& model, Workspace& ws, int k, double s, doubl
 
 }  // namespace
 
-void wind_load_force(const Model& model, const Workspace& ws, std::size_t w, double& fx, double& fy, double& vx,
-                     double& vy) {
-  const Phase& phase = model.scenarios[static_cast<std::size_t>(ws.scenario)].phases[static_cast<std::size_t>(ws.phase)];
+void wind_load_force(const Model& model, const Workspace& ws, const Phase& phase, std::size_t w, double& fx,
+                     double& fy, double& vx, double& vy) {
   double px, py;
   point_state(model, ws, model.wind[w].point, px, py, vx, vy);
   drag_force(model.wind[w].drag_factor, phase.wind_speed[w], vx, vy, fx, fy);
 }
 
-void external_forces(const Model& model, Workspace& ws, double* q) {
+void external_forces(const Model& model, Workspace& ws, const Phase& phase, double* q) {
   for (int k = 0; k < model.n; ++k) ws.force_x[k] = ws.force_y[k] = 0.0;
   for (std::size_t w = 0; w < model.wind.size(); ++w) {
     const WindModel& wind = model.wind[w];
     double vx, vy, fx, fy;
-    wind_load_force(model, ws, w, fx, fy, vx, vy);
+    wind_load_force(model, ws, phase, w, fx, fy, vx, vy);
     apply_point_force(model, ws, wind.point.link, wind.point.at, fx, fy, q);
     ws.input_power += fx * vx + fy * vy;
   }
@@ -124,21 +129,21 @@ void external_forces(const Model& model, Workspace& ws, double* q) {
 
 void pivot_torques(const Model& model, Workspace& ws, const double* reaction) {
   if (reaction == nullptr) {
-    // The parts that do not depend on the reaction: dampers, constant friction, and the tanh
-    // sliding factor that pin friction reuses in every fixed-point iteration.
+    // The parts that do not depend on the reaction: dampers, constant friction, and the sliding
+    // factor that pin friction reuses in every fixed-point iteration.
     for (int i = 0; i < model.n; ++i) {
       const PivotModel& p = model.pivots[i];
       const double w = ws.omega[i] - (i > 0 ? ws.omega[i - 1] : 0.0);
-      ws.slide[i] = p.has_friction() ? std::tanh(w / p.transition_rate) : 0.0;
-      ws.tau_fixed[i] = damper_torque(p, w) - p.coulomb_torque * ws.slide[i];
+      ws.slide[i] = friction_slide(p, w);
+      ws.tau_fixed[i] = damper_torque(p, w) + constant_friction_torque(p, ws.slide[i]);
       ws.tau_pin[i] = 0.0;
       ws.tau[i] = ws.tau_fixed[i];
     }
     return;
   }
-  // Pin friction -mu r |R| tanh(w / w_t), as friction_torque() in forces.hpp, split for reuse.
+  // Pin friction at the given reactions, the load-dependent part of friction_torque().
   for (int i = 0; i < model.n; ++i) {
-    ws.tau_pin[i] = -model.pivots[i].pin_friction * reaction[i] * ws.slide[i];
+    ws.tau_pin[i] = pin_friction_torque(model.pivots[i], ws.slide[i], reaction[i]);
     ws.tau[i] = ws.tau_fixed[i] + ws.tau_pin[i];
   }
 }
@@ -171,12 +176,13 @@ namespace {
 constexpr int kMaxFrictionIterations = 50;
 
 template <int N>
-void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const double* x, double t, double* dxdt) {
+void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const Phase& phase, const double* x, double t,
+                   double* dxdt) {
   const int n = model.n;
   ++ws.evaluations;
   ws.dissipated_power = 0;
   ws.input_power = 0;
-  kinematics(model, ws, x, t);
+  kinematics(model, ws, phase, x, t);
 
   // Stage 2: mass matrix M_ij = mu_ij cos(theta_i - theta_j).
   for (int i = 0; i < n; ++i) {
@@ -203,7 +209,7 @@ void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const doub
     }
     sc.bias(i) = b;
   }
-  if (!model.wind.empty() || !model.dashpots.empty()) external_forces(model, ws, sc.bias.data());
+  if (!model.wind.empty() || !model.dashpots.empty()) external_forces(model, ws, phase, sc.bias.data());
 
   // Stage 4: pivot torques and accelerations; pin friction iterated to a consistent reaction.
   const bool need_reactions =
@@ -265,12 +271,13 @@ void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const doub
 
 }  // namespace
 
-void evaluate(const Model& model, Workspace& ws, const double* x, double t, double* dxdt) {
+void evaluate(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt) {
+  require_built_for(model, ws);
   switch (model.n) {
-    case 1: evaluate_impl(model, ws, ws.s1, x, t, dxdt); break;
-    case 2: evaluate_impl(model, ws, ws.s2, x, t, dxdt); break;
-    case 3: evaluate_impl(model, ws, ws.s3, x, t, dxdt); break;
-    default: evaluate_impl(model, ws, ws.sn, x, t, dxdt); break;
+    case 1: evaluate_impl(model, ws, ws.s1, phase, x, t, dxdt); break;
+    case 2: evaluate_impl(model, ws, ws.s2, phase, x, t, dxdt); break;
+    case 3: evaluate_impl(model, ws, ws.s3, phase, x, t, dxdt); break;
+    default: evaluate_impl(model, ws, ws.sn, phase, x, t, dxdt); break;
   }
 }
 
@@ -300,6 +307,23 @@ void link_tension(const Model& model, const Workspace& ws, int i, double& top, d
   const double ex = ws.sin_t[i], ey = -ws.cos_t[i];
   top = -(ws.reaction_x[i] * ex + ws.reaction_y[i] * ey);
   bottom = i + 1 < model.n ? -(ws.reaction_x[i + 1] * ex + ws.reaction_y[i + 1] * ey) : 0.0;
+}
+
+ChainSystem::ChainSystem(const Model& model, Workspace& ws, int scenario)
+    : model_(&model), ws_(&ws), scenario_(nullptr), phase_(nullptr), last_t_(std::nan("")),
+      last_x_(static_cast<std::size_t>(model.state_size())) {
+  SWAYBOUND_REQUIRE(scenario >= 0 && scenario < static_cast<int>(model.scenarios.size()),
+                    "scenario index {} out of range (model has {})", scenario, model.scenarios.size());
+  require_built_for(model, ws);
+  scenario_ = &model.scenarios[static_cast<std::size_t>(scenario)];
+  enter_phase(0);
+}
+
+void ChainSystem::enter_phase(std::size_t k) {
+  SWAYBOUND_REQUIRE(k < scenario_->phases.size(), "phase {} out of range (scenario has {})", k,
+                    scenario_->phases.size());
+  phase_ = &scenario_->phases[k];
+  last_t_ = std::nan("");
 }
 
 template struct Scratch<1>;

@@ -39,46 +39,172 @@ RunSettings RunSettings::from_spec(const Spec& spec) {
   return s;
 }
 
+StepGuard::StepGuard(long max_steps, double min_step, double max_seconds)
+    : max_steps_(max_steps), min_step_(min_step), max_seconds_(max_seconds),
+      started_(std::chrono::steady_clock::now()) {}
+
+void StepGuard::fail(RunStatus status, std::string reason) {
+  if (!ok()) return;
+  status_ = status;
+  reason_ = std::move(reason);
+}
+
+bool StepGuard::accept(const std::vector<double>& x, double t, double dt, bool closing) {
+  ++steps_;
+  rejected_in_a_row_ = 0;
+  if (!std::all_of(x.begin(), x.end(), [](double v) { return std::isfinite(v); })) {
+    if (unconverged != nullptr && *unconverged > 0)  // the cause, not the symptom: a pin-friction iteration that diverged
+      fail(RunStatus::friction_unconverged,
+           fmt::format("pin friction did not converge in {} evaluations; the state became non-finite at t = {:.6g} s",
+                       *unconverged, t));
+    fail(RunStatus::non_finite, fmt::format("the state became non-finite at t = {:.6g} s", t));
+    return false;
+  }
+  if (dt < min_step_ && !closing) {
+    fail(RunStatus::step_collapse,
+         fmt::format("the step size fell to {:.3g} s (< {:.3g} s) at t = {:.6g} s", dt, min_step_, t));
+    return false;
+  }
+  if (steps_ > max_steps_) {
+    fail(RunStatus::step_budget, fmt::format("more than {} steps by t = {:.6g} s", max_steps_, t));
+    return false;
+  }
+  if ((steps_ & 255) == 0) {
+    throw_if_cancelled();
+    const double elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - started_).count();
+    if (elapsed > max_seconds_) {
+      fail(RunStatus::time_budget,
+           fmt::format("the wall-clock budget of {:.3g} s ran out at t = {:.6g} s", max_seconds_, t));
+      return false;
+    }
+  }
+  return true;
+}
+
+bool StepGuard::reject(double t, double dt) {
+  ++rejected_;
+  if (dt < min_step_ || ++rejected_in_a_row_ > 500 || !(dt > 0) || !std::isfinite(dt)) {
+    fail(RunStatus::step_collapse, fmt::format("no step could be accepted at t = {:.6g} s (step {:.3g} s)", t, dt));
+    return false;
+  }
+  return true;
+}
+
 namespace {
 
-/// The system functor handed to Odeint (by std::ref), remembering its last evaluation so an
-/// observer at the same point reuses it instead of evaluating again.
-struct System {
-  const Model* model;
-  Workspace* ws;
-  double last_t = std::nan("");
-  State last_x;
-  void operator()(const State& x, State& dxdt, double t) {
-    evaluate(*model, *ws, x.data(), t, dxdt.data());
-    last_t = t;
-    std::copy(x.begin(), x.end(), last_x.begin());
+/// Dormand-Prince 5(4) with its continuous extension (Odeint's dense-output stepper), as the
+/// driver's loop uses a method: `step` takes one accepted step towards t_end, `interpolate` serves
+/// the previous and the current accepted step, `sample` the current one.
+class Dopri5Method {
+ public:
+  Dopri5Method(const RunSettings& s, const State& x, double t, double dt)
+      : stepper_(odeint::make_dense_output(s.atol, s.rtol, odeint::runge_kutta_dopri5<State>())) {
+    stepper_.initialize(x, t, dt);
+    // Copy-assigned each step: no allocation after this one.
+    previous_ = stepper_;
   }
-  /// Forgets the last evaluation: the inputs change at a jump while (x, t) stay the same.
-  void invalidate() { last_t = std::nan(""); }
-  /// Makes ws hold the evaluation at (x, t).
-  void ensure(const State& x, double t, State& scratch) {
-    if (t == last_t && std::equal(x.begin(), x.end(), last_x.begin())) return;
-    (*this)(x, scratch, t);
+  /// One accepted step, shortened to end on t_end. Odeint retries rejected trial steps itself and
+  /// throws when none can be accepted. Returns true (the guard is not consulted on rejections).
+  bool step(ChainSystem& system, double t_end, StepGuard&) {
+    const double remaining = t_end - stepper_.current_time();
+    if (stepped_) {
+      previous_ = stepper_;  // the previous step's interpolant, for extremes near a step boundary
+      have_previous_ = true;
+    }
+    if (stepper_.current_time_step() > remaining)
+      stepper_.initialize(stepper_.current_state(), stepper_.current_time(), remaining);
+    start_ = stepper_.do_step(std::ref(system)).first;
+    stepped_ = true;
+    return true;
   }
+  double time() const { return stepper_.current_time(); }
+  const State& state() const { return stepper_.current_state(); }
+  double step_start() const { return start_; }
+  double span_start() const { return have_previous_ ? previous_.previous_time() : start_; }
+  void interpolate(double ts, State& out) {
+    if (have_previous_ && ts < stepper_.previous_time())
+      previous_.calc_state(ts, out);
+    else
+      stepper_.calc_state(ts, out);
+  }
+  void sample(double ts, State& out) { stepper_.calc_state(ts, out); }
+  void close(double) {}
+  double next_step() const { return std::max(stepper_.current_time_step(), 1e-6); }
+
+ private:
+  using DenseStepper = decltype(odeint::make_dense_output(1.0, 1.0, odeint::runge_kutta_dopri5<State>()));
+  DenseStepper stepper_, previous_;
+  bool stepped_ = false, have_previous_ = false;
+  double start_ = 0;
 };
 
-bool finite(const State& x) {
-  return std::all_of(x.begin(), x.end(), [](double v) { return std::isfinite(v); });
-}
+/// Runge-Kutta-Fehlberg 7(8) under Odeint's step-size control. Odeint has no dense output for it:
+/// a state inside an accepted step is computed by one uncontrolled RKF78 step from the step's
+/// start to that time (shorter than the accepted step, so at least as accurate), which keeps it at
+/// the stepper's own order.
+class Rkf78Method {
+ public:
+  Rkf78Method(const RunSettings& s, const State& x, double t, double dt, ChainSystem& system)
+      : stepper_(odeint::make_controlled(s.atol, s.rtol, odeint::runge_kutta_fehlberg78<State>())), system_(system),
+        x_(x), x_old_(x), x_older_(x), t_(t), t_old_(t), t_older_(t), dt_(dt) {}
+  /// One accepted step towards t_end; rejected trials go to the guard. False when it stops the run.
+  bool step(ChainSystem& system, double t_end, StepGuard& guard) {
+    if (stepped_) {
+      x_older_ = x_old_;
+      t_older_ = t_old_;
+      have_older_ = true;
+    }
+    t_old_ = t_;
+    x_old_ = x_;
+    for (;;) {
+      dt_ = std::min(dt_, t_end - t_);
+      if (stepper_.try_step(std::ref(system), x_, t_, dt_) != odeint::fail) break;
+      if (!guard.reject(t_, dt_)) return false;
+    }
+    stepped_ = true;
+    return true;
+  }
+  double time() const { return t_; }
+  const State& state() const { return x_; }
+  double step_start() const { return t_old_; }
+  double span_start() const { return have_older_ ? t_older_ : t_old_; }
+  void interpolate(double ts, State& out) {
+    if (have_older_ && ts < t_old_)
+      from_start(x_older_, t_older_, ts, out);
+    else
+      from_start(x_old_, t_old_, ts, out);
+  }
+  void sample(double ts, State& out) { from_start(x_old_, t_old_, ts, out); }
+  /// A step that closed the segment lands exactly on its end.
+  void close(double t_end) { t_ = t_end; }
+  double next_step() const { return std::max(dt_, 1e-6); }
+
+ private:
+  void from_start(const State& start, double t_start, double ts, State& out) {
+    out = start;
+    if (ts > t_start) sampler_.do_step(std::ref(system_), out, t_start, ts - t_start);
+  }
+  decltype(odeint::make_controlled(1.0, 1.0, odeint::runge_kutta_fehlberg78<State>())) stepper_;
+  odeint::runge_kutta_fehlberg78<State> sampler_;
+  ChainSystem& system_;
+  State x_, x_old_, x_older_;
+  double t_, t_old_, t_older_, dt_;
+  bool stepped_ = false, have_older_ = false;
+};
 
 class Driver final : public DenseProbe {
  public:
-  Driver(const Model& model, Workspace& ws, const RunSettings& settings, const Observer& on_step,
+  Driver(const Model& model, Workspace& ws, int scenario, const RunSettings& settings, const Observer& on_step,
          const Observer& on_sample)
       : model_(model), ws_(ws), settings_(settings), on_step_(on_step), on_sample_(on_sample),
-        system_{&model, &ws, std::nan(""), State(static_cast<std::size_t>(model.state_size()))},
+        system_(model, ws, scenario), guard_(settings.max_steps, settings.min_step, settings.max_seconds),
         scratch_(static_cast<std::size_t>(model.state_size())),
-        sample_(static_cast<std::size_t>(model.state_size())), probe_state_(static_cast<std::size_t>(model.state_size())),
-        started_(std::chrono::steady_clock::now()) {}
+        sample_(static_cast<std::size_t>(model.state_size())), probe_state_(static_cast<std::size_t>(model.state_size())) {
+    guard_.unconverged = &ws.friction_unconverged;
+  }
 
   RunOutcome run(State x) {
-    const ScenarioModel& scenario = model_.scenarios[static_cast<std::size_t>(ws_.scenario)];
-    ws_.phase = 0;
+    const ScenarioModel& scenario = system_.scenario();
     ws_.friction_unconverged = 0;
     ws_.lazy_reactions = true;
     const long evaluations_before = ws_.evaluations;
@@ -86,12 +212,11 @@ class Driver final : public DenseProbe {
     next_sample_ = 0;
     double t = 0;
     bool first = true;
-    for (std::size_t k = 0; k < scenario.phases.size() && t < settings_.duration && ok(); ++k) {
+    for (std::size_t k = 0; k < scenario.phases.size() && t < settings_.duration && guard_.ok(); ++k) {
       const Phase& phase = scenario.phases[k];
       if (phase.t1 <= t) continue;
-      ws_.phase = static_cast<int>(k);
+      system_.enter_phase(k);
       // The segment's first state under its own inputs: the right-hand limit at the jump.
-      system_.invalidate();
       system_.ensure(x, t, scratch_);
       if (first) outcome_.energy0 = mechanical_energy(model_, ws_);
       first = false;
@@ -99,28 +224,36 @@ class Driver final : public DenseProbe {
       emit_samples_up_to(t, true, [&](double, State& out) { out = x; });
       const double t_end = std::min(phase.t1, settings_.duration);
       final_segment_ = t_end >= settings_.duration;
-      if (settings_.method == Stepper::dopri5)
-        integrate_dopri5(x, t, t_end);
-      else
-        integrate_rkf78(x, t, t_end);
+      const double dt = std::min(initial_step_, t_end - t);
+      if (settings_.method == Stepper::dopri5) {
+        Dopri5Method method(settings_, x, t, dt);
+        integrate_segment(method, x, t, t_end);
+      } else {
+        Rkf78Method method(settings_, x, t, dt, system_);
+        integrate_segment(method, x, t, t_end);
+      }
     }
     ws_.lazy_reactions = false;
     outcome_.t_reached = t;
     outcome_.evaluations = ws_.evaluations - evaluations_before;
-    if (ok() && ws_.friction_unconverged > 0)
-      fail(RunStatus::friction_unconverged,
-           fmt::format("pin friction did not converge in {} evaluations", ws_.friction_unconverged));
+    if (guard_.ok() && ws_.friction_unconverged > 0)
+      guard_.fail(RunStatus::friction_unconverged,
+                  fmt::format("pin friction did not converge in {} evaluations", ws_.friction_unconverged));
+    outcome_.status = guard_.status();
+    outcome_.reason = guard_.reason();
+    outcome_.steps = guard_.steps();
+    outcome_.rejected = guard_.rejected();
     return outcome_;
   }
 
- private:
-  bool ok() const { return outcome_.status == RunStatus::ok; }
-  void fail(RunStatus status, std::string reason) {
-    if (!ok()) return;
-    outcome_.status = status;
-    outcome_.reason = std::move(reason);
+  StepView at(double t) override {
+    t = std::clamp(t, from, to);
+    interpolate_(t, probe_state_);
+    system_(probe_state_, scratch_, t);
+    return view(probe_state_, t);
   }
 
+ private:
   enum class Segment { inside, start, end };
 
   /// The view of ws evaluated at (x, t) with the energy audit.
@@ -129,7 +262,8 @@ class Driver final : public DenseProbe {
     const double energy = mechanical_energy(model_, ws_);
     const auto n = static_cast<std::size_t>(model_.n);
     const double residual = energy + x[2 * n] - x[2 * n + 1] - outcome_.energy0;
-    return StepView{t, x.data(), &ws_, energy, residual};
+    StepView v{t, x.data(), &ws_, &system_.phase(), energy, residual};
+    return v;
   }
 
   /// Calls `observer` with ws evaluated at (x, t); `audit` folds the residual into the outcome.
@@ -161,153 +295,38 @@ class Driver final : public DenseProbe {
     }
   }
 
- public:
-  StepView at(double t) override {
-    t = std::clamp(t, from, to);
-    interpolate_(t, probe_state_);
-    system_(probe_state_, scratch_, t);
-    return view(probe_state_, t);
-  }
-
- private:
-
-  /// Checks after an accepted step; false when the run must stop. A short step that only closes
-  /// a phase (`phase_end`) is not a collapse.
-  bool after_step(const State& x, double t, double dt_taken, bool phase_end) {
-    ++outcome_.steps;
-    if (!finite(x)) {
-      if (ws_.friction_unconverged > 0)  // the cause, not the symptom: a pin-friction iteration that diverged
-        fail(RunStatus::friction_unconverged,
-             fmt::format("pin friction did not converge in {} evaluations; the state became non-finite at t = {:.6g} s",
-                         ws_.friction_unconverged, t));
-      fail(RunStatus::non_finite, fmt::format("the state became non-finite at t = {:.6g} s", t));
-      return false;
-    }
-    if (dt_taken < settings_.min_step && !phase_end) {
-      fail(RunStatus::step_collapse,
-           fmt::format("the step size fell to {:.3g} s (< {:.3g} s) at t = {:.6g} s", dt_taken, settings_.min_step, t));
-      return false;
-    }
-    if (outcome_.steps > settings_.max_steps) {
-      fail(RunStatus::step_budget, fmt::format("more than {} steps by t = {:.6g} s", settings_.max_steps, t));
-      return false;
-    }
-    if ((outcome_.steps & 255) == 0) {
-      throw_if_cancelled();  // a long case stops promptly on SIGINT/SIGTERM
-      const double elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - started_).count();
-      if (elapsed > settings_.max_seconds) {
-        fail(RunStatus::time_budget,
-             fmt::format("the wall-clock budget of {:.3g} s ran out at t = {:.6g} s", settings_.max_seconds, t));
-        return false;
-      }
-    }
-    return true;
-  }
-
-  void integrate_dopri5(State& x, double& t, double t_end) {
-    auto stepper = odeint::make_dense_output(settings_.atol, settings_.rtol, odeint::runge_kutta_dopri5<State>());
-    double dt = std::min(initial_step_, t_end - t);
-    stepper.initialize(x, t, dt);
-    // The previous accepted step's interpolant, kept so that an extreme near a step boundary can be
-    // located on both sides of it (copy-assigned each step: no allocation after the first).
-    auto previous = stepper;
-    bool have_previous = false;
-    interpolate_ = [&](double ts, State& out) {
-      if (have_previous && ts < stepper.previous_time())
-        previous.calc_state(ts, out);
-      else
-        stepper.calc_state(ts, out);
-    };
+  /// The one integration loop of a segment [t, t_end), for either method: step, check against
+  /// the guard, observe, sample; a step that reaches t_end closes the segment.
+  template <class Method>
+  void integrate_segment(Method& method, State& x, double& t, double t_end) {
+    interpolate_ = [&](double ts, State& out) { method.interpolate(ts, out); };
     try {
-      while (stepper.current_time() < t_end) {
-        const double remaining = t_end - stepper.current_time();
-        if (have_steps_) {
-          previous = stepper;
-          have_previous = true;
-        }
-        if (stepper.current_time_step() > remaining)
-          stepper.initialize(stepper.current_state(), stepper.current_time(), remaining);
-        const auto [t0, t1] = stepper.do_step(std::ref(system_));
-        have_steps_ = true;
+      while (method.time() < t_end) {
+        if (!method.step(system_, t_end, guard_)) break;
+        const double t1 = method.time();
         const bool phase_end = t1 >= t_end - 1e-14 * std::max(1.0, t_end);
-        system_.ensure(stepper.current_state(), t1, scratch_);
-        if (!after_step(stepper.current_state(), t1, t1 - t0, phase_end)) break;
-        from = have_previous ? previous.previous_time() : t0;
+        system_.ensure(method.state(), t1, scratch_);
+        if (!guard_.accept(method.state(), t1, t1 - method.step_start(), phase_end)) break;
+        from = method.span_start();
         to = t1;
-        observe(stepper.current_state(), t1, on_step_, true, phase_end ? Segment::end : Segment::inside);
-        emit_samples_up_to(t1, !phase_end || final_segment_, [&](double ts, State& out) { stepper.calc_state(ts, out); });
-        if (phase_end) break;
+        observe(method.state(), t1, on_step_, true, phase_end ? Segment::end : Segment::inside);
+        emit_samples_up_to(t1, !phase_end || final_segment_, [&](double ts, State& out) { method.sample(ts, out); });
+        if (phase_end) {
+          method.close(t_end);
+          break;
+        }
       }
     } catch (const Interrupted&) {
       throw;
     } catch (const std::exception& e) {
-      fail(finite(stepper.current_state()) ? RunStatus::step_collapse : RunStatus::non_finite,
-           fmt::format("no step could be accepted near t = {:.6g} s ({})", stepper.current_time(), e.what()));
+      const bool finite = std::all_of(method.state().begin(), method.state().end(), [](double v) { return std::isfinite(v); });
+      guard_.fail(finite ? RunStatus::step_collapse : RunStatus::non_finite,
+                  fmt::format("no step could be accepted near t = {:.6g} s ({})", method.time(), e.what()));
     }
     interpolate_ = nullptr;
-    have_steps_ = false;
-    x = stepper.current_state();
-    t = stepper.current_time();
-    initial_step_ = std::max(stepper.current_time_step(), 1e-6);
-  }
-
-  void integrate_rkf78(State& x, double& t, double t_end) {
-    auto stepper = odeint::make_controlled(settings_.atol, settings_.rtol, odeint::runge_kutta_fehlberg78<State>());
-    double dt = std::min(initial_step_, t_end - t);
-    // Odeint has no dense output for RKF78: a sample inside an accepted step is computed by one
-    // uncontrolled RKF78 step from the step's start to the sample time (shorter than the accepted
-    // step, so at least as accurate), which keeps the sample at the stepper's own order.
-    odeint::runge_kutta_fehlberg78<State> sampler;
-    State x_old(x.size()), x_older(x.size());
-    double t_old = t, t_older = t;
-    bool have_older = false;
-    const auto from_start = [&](const State& start, double t_start, double ts, State& out) {
-      out = start;
-      if (ts > t_start) sampler.do_step(std::ref(system_), out, t_start, ts - t_start);
-    };
-    interpolate_ = [&](double ts, State& out) {
-      if (have_older && ts < t_old)
-        from_start(x_older, t_older, ts, out);
-      else
-        from_start(x_old, t_old, ts, out);
-    };
-    int failures = 0;
-    bool stepped = false;
-    while (t < t_end) {
-      dt = std::min(dt, t_end - t);
-      if (stepped) {
-        x_older = x_old;
-        t_older = t_old;
-        have_older = true;
-      }
-      t_old = t;
-      x_old = x;
-      if (stepper.try_step(std::ref(system_), x, t, dt) == odeint::fail) {
-        ++outcome_.rejected;
-        if (dt < settings_.min_step || ++failures > 500) {
-          fail(RunStatus::step_collapse,
-               fmt::format("no step could be accepted at t = {:.6g} s (step {:.3g} s)", t, dt));
-          break;
-        }
-        continue;
-      }
-      failures = 0;
-      stepped = true;
-      const bool phase_end = t >= t_end - 1e-14 * std::max(1.0, t_end);
-      system_.ensure(x, t, scratch_);
-      if (!after_step(x, t, t - t_old, phase_end)) break;
-      from = have_older ? t_older : t_old;
-      to = t;
-      observe(x, t, on_step_, true, phase_end ? Segment::end : Segment::inside);
-      emit_samples_up_to(t, !phase_end || final_segment_,
-                         [&](double ts, State& out) { from_start(x_old, t_old, ts, out); });
-      if (phase_end) {
-        t = t_end;
-        break;
-      }
-    }
-    interpolate_ = nullptr;
-    initial_step_ = std::max(dt, 1e-6);
+    x = method.state();
+    t = method.time();
+    initial_step_ = method.next_step();
   }
 
   const Model& model_;
@@ -315,13 +334,12 @@ class Driver final : public DenseProbe {
   const RunSettings& settings_;
   const Observer& on_step_;
   const Observer& on_sample_;
-  System system_;
+  ChainSystem system_;
+  StepGuard guard_;
   State scratch_, sample_;
   State probe_state_;                              ///< state at a probe time [as x]
   std::function<void(double, State&)> interpolate_;  ///< the current segment's dense output
-  bool have_steps_ = false;                        ///< an accepted step exists in this segment (dopri5)
   bool final_segment_ = false;                     ///< this segment ends the run
-  std::chrono::steady_clock::time_point started_;
   RunOutcome outcome_;
   long next_sample_ = 0;
   double initial_step_ = 1e-3;
@@ -338,11 +356,11 @@ RunOutcome simulate_case(const Model& model, Workspace& ws, int scenario, const 
                     "initial state has {} angles and {} rates for {} links", start.theta.size(), start.omega.size(),
                     model.n);
   SWAYBOUND_REQUIRE(settings.duration > 0, "duration must be > 0, got {}", settings.duration);
+  require_built_for(model, ws);
   State x(static_cast<std::size_t>(model.state_size()), 0.0);
   std::copy(start.theta.begin(), start.theta.end(), x.begin());
   std::copy(start.omega.begin(), start.omega.end(), x.begin() + model.n);
-  ws.scenario = scenario;
-  Driver driver(model, ws, settings, on_step, on_sample);
+  Driver driver(model, ws, scenario, settings, on_step, on_sample);
   return driver.run(std::move(x));
 }
 

@@ -1,6 +1,7 @@
 #include "swaybound/model/model.hpp"
 
 #include <algorithm>
+#include <atomic>
 #include <cmath>
 #include <limits>
 
@@ -70,7 +71,9 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
 }  // namespace
 
 Model build_model(const Spec& spec) {
+  static std::atomic<std::uint64_t> next_id{1};
   Model m;
+  m.id = next_id.fetch_add(1, std::memory_order_relaxed);
   m.n = static_cast<int>(spec.links.size());
   SWAYBOUND_REQUIRE(m.n >= 1, "a model needs at least one link, got {}", m.n);
   m.gravity = spec.gravity;

@@ -70,7 +70,9 @@ double median(std::vector<double> v) {
 struct EngineSystem {
   const Model* model;
   Workspace* ws;
-  void operator()(const State& x, State& dxdt, double t) { evaluate(*model, *ws, x.data(), t, dxdt.data()); }
+  void operator()(const State& x, State& dxdt, double t) {
+    evaluate(*model, *ws, model->scenarios[0].phases[0], x.data(), t, dxdt.data());
+  }
 };
 
 }  // namespace
@@ -88,7 +90,7 @@ int main(int argc, char** argv) {
     double worst = 0;
     for (int k = 0; k < 1000; ++k) {
       State x = {u(rng), u(rng), u(rng), u(rng), 0, 0}, a(6), b(4);
-      evaluate(model2, ws, x.data(), 0, a.data());
+      evaluate(model2, ws, model2.scenarios[0].phases[0], x.data(), 0, a.data());
       ClosedForm{}(State(x.begin(), x.begin() + 4), b, 0);
       worst = std::max({worst, std::fabs(a[2] - b[2]) / (1 + std::fabs(b[2])), std::fabs(a[3] - b[3]) / (1 + std::fabs(b[3]))});
     }
@@ -198,7 +200,7 @@ int main(int argc, char** argv) {
       std::vector<double> per;
       for (int r = 0; r < 5; ++r) {
         const auto start = Clock::now();
-        for (long k = 0; k < calls; ++k) evaluate(model, ws, states[static_cast<std::size_t>(k & 255)].data(), 0.0, dxdt.data());
+        for (long k = 0; k < calls; ++k) evaluate(model, ws, model.scenarios[0].phases[0], states[static_cast<std::size_t>(k & 255)].data(), 0.0, dxdt.data());
         per.push_back(std::chrono::duration<double>(Clock::now() - start).count() / static_cast<double>(calls));
       }
       cost[variant] = median(per);

@@ -72,9 +72,7 @@ Result engine(const Model& model, Workspace& ws, const std::vector<double>& stat
   const int n = model.n;
   std::vector<double> x(static_cast<std::size_t>(2 * n + 2), 0.0), dxdt(x.size(), 0.0);
   std::copy(state.begin(), state.end(), x.begin());
-  ws.scenario = 0;
-  ws.phase = 0;
-  evaluate(model, ws, x.data(), 0.5, dxdt.data());
+  evaluate(model, ws, model.scenarios[0].phases[0], x.data(), 0.5, dxdt.data());
   Result r;
   for (int i = 0; i < n; ++i) {
     r.alpha.push_back(dxdt[static_cast<std::size_t>(n + i)]);

@@ -13,30 +13,24 @@
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
-#include "../dynamics/fixtures.hpp"
+#include "../support/close_to.hpp"
+#include "../support/pendulum.hpp"
 #include "../support/process.hpp"
 #include "swaybound/dynamics/chain.hpp"
 #include "swaybound/modal/modes.hpp"
 #include "swaybound/spec.hpp"
 
 using namespace swaybound;
+using swaybound::testing::IsCloseTo;
 using std::numbers::pi;
 
 namespace {
 constexpr double kG = 9.81;
 
-Model model_of(const std::string& yaml) { return build_model(load_spec_text(yaml, "inline.yaml")); }
+Model model_of(const std::string& yaml) { return swaybound::testing::model_from_yaml(yaml); }
 
 std::string single_link(double length, double mass, double com, double inertia, const std::string& pivot) {
-  return fmt::format(R"(
-swaybound: 1
-name: single link
-gravity: {}
-links:
-  - {{name: arm, length: {}, mass: {}, com: {}, inertia: {}, pivot: {}}}
-cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1 rad]}}}}]}}
-)",
-                     kG, length, mass, com, inertia, pivot);
+  return swaybound::testing::single_link_yaml(length, mass, com, inertia, pivot, kG);
 }
 
 /// Jacobian of the engine's right-hand side (angles and rates only) at the rest state, by central
@@ -50,8 +44,8 @@ Eigen::MatrixXd engine_jacobian(const Model& model, double step = 1e-6) {
     std::vector<double> xp = x, xm = x;
     xp[static_cast<std::size_t>(j)] += step;
     xm[static_cast<std::size_t>(j)] -= step;
-    evaluate(model, ws, xp.data(), 0.0, plus.data());
-    evaluate(model, ws, xm.data(), 0.0, minus.data());
+    evaluate(model, ws, model.scenarios[0].phases[0], xp.data(), 0.0, plus.data());
+    evaluate(model, ws, model.scenarios[0].phases[0], xm.data(), 0.0, minus.data());
     for (int i = 0; i < 2 * n; ++i)
       J(i, j) = (plus[static_cast<std::size_t>(i)] - minus[static_cast<std::size_t>(i)]) / (2 * step);
   }
@@ -76,21 +70,21 @@ TEST_CASE("modes: equal double pendulum of point masses", "[modal]") {
   const ModalResult r = modal_analysis(model);
   REQUIRE(r.modes.size() == 2);
   const double w_slow = std::sqrt((2 - std::sqrt(2.0)) * kG / L), w_fast = std::sqrt((2 + std::sqrt(2.0)) * kG / L);
-  CHECK(r.modes[0].frequency_hz == Approx(w_slow / (2 * pi)).epsilon(1e-10));
-  CHECK(r.modes[1].frequency_hz == Approx(w_fast / (2 * pi)).epsilon(1e-10));
-  CHECK(r.modes[0].period_s == Approx(2 * pi / w_slow).epsilon(1e-10));
+  CHECK_THAT(r.modes[0].frequency_hz, IsCloseTo(w_slow / (2 * pi), 0, 1e-10));
+  CHECK_THAT(r.modes[1].frequency_hz, IsCloseTo(w_fast / (2 * pi), 0, 1e-10));
+  CHECK_THAT(r.modes[0].period_s, IsCloseTo(2 * pi / w_slow, 0, 1e-10));
   // In phase, lower link sqrt 2 times the upper; then in antiphase. Largest component (lower) is +1.
   CHECK(r.modes[0].shape[1] == 1.0);
   CHECK(r.modes[1].shape[1] == 1.0);
-  CHECK(r.modes[0].shape[1] / r.modes[0].shape[0] == Approx(std::sqrt(2.0)).epsilon(1e-10));
-  CHECK(r.modes[1].shape[1] / r.modes[1].shape[0] == Approx(-std::sqrt(2.0)).epsilon(1e-10));
+  CHECK_THAT(r.modes[0].shape[1] / r.modes[0].shape[0], IsCloseTo(std::sqrt(2.0), 0, 1e-10));
+  CHECK_THAT(r.modes[1].shape[1] / r.modes[1].shape[0], IsCloseTo(-std::sqrt(2.0), 0, 1e-10));
   // No damping: the damped system has the same frequencies and zero damping ratios.
   for (const Mode& mode : r.modes) {
-    CHECK(mode.natural_frequency_with_damping_hz == Approx(mode.frequency_hz).epsilon(1e-10));
-    CHECK(mode.damped_frequency_hz == Approx(mode.frequency_hz).epsilon(1e-10));
-    CHECK(mode.damping_ratio == Approx(0).margin(1e-12));
+    CHECK_THAT(mode.natural_frequency_with_damping_hz, IsCloseTo(mode.frequency_hz, 0, 1e-10));
+    CHECK_THAT(mode.damped_frequency_hz, IsCloseTo(mode.frequency_hz, 0, 1e-10));
+    CHECK_THAT(mode.damping_ratio, IsCloseTo(0, 1e-12, 0));
   }
-  CHECK(r.least_damping_ratio == Approx(0).margin(1e-12));
+  CHECK_THAT(r.least_damping_ratio, IsCloseTo(0, 1e-12, 0));
 }
 
 TEST_CASE("modes: compound pendulum with a linear rotary damper", "[modal]") {
@@ -108,13 +102,13 @@ TEST_CASE("modes: compound pendulum with a linear rotary damper", "[modal]") {
     const ModalResult r = modal_analysis(model_of(single_link(L, m, d, I_cm, fmt::format("{{damper: {{coefficient: {} N m s/rad}}}}", c))));
     REQUIRE(r.modes.size() == 1);
     const Mode& mode = r.modes[0];
-    CHECK(mode.frequency_hz == Approx(wn / (2 * pi)).epsilon(1e-10));
-    CHECK(mode.natural_frequency_with_damping_hz == Approx(wn / (2 * pi)).epsilon(1e-10));
-    CHECK(mode.damping_ratio == Approx(zeta).epsilon(1e-10));
-    CHECK(mode.damped_frequency_hz == Approx(wn * std::sqrt(1 - zeta * zeta) / (2 * pi)).epsilon(1e-10));
+    CHECK_THAT(mode.frequency_hz, IsCloseTo(wn / (2 * pi), 0, 1e-10));
+    CHECK_THAT(mode.natural_frequency_with_damping_hz, IsCloseTo(wn / (2 * pi), 0, 1e-10));
+    CHECK_THAT(mode.damping_ratio, IsCloseTo(zeta, 0, 1e-10));
+    CHECK_THAT(mode.damped_frequency_hz, IsCloseTo(wn * std::sqrt(1 - zeta * zeta) / (2 * pi), 0, 1e-10));
     CHECK_FALSE(mode.overdamped);
     CHECK(mode.shape == std::vector<double>{1.0});
-    CHECK(r.least_damping_ratio == Approx(zeta).epsilon(1e-10));
+    CHECK_THAT(r.least_damping_ratio, IsCloseTo(zeta, 0, 1e-10));
   }
   SECTION("overdamped: zeta > 1 from the two real roots") {
     const double zeta = 2.5;
@@ -123,15 +117,15 @@ TEST_CASE("modes: compound pendulum with a linear rotary damper", "[modal]") {
     REQUIRE(r.modes.size() == 1);
     const Mode& mode = r.modes[0];
     CHECK(mode.overdamped);
-    CHECK(mode.damping_ratio == Approx(zeta).epsilon(1e-10));
-    CHECK(r.least_damping_ratio == Approx(zeta).epsilon(1e-10));
-    CHECK(mode.natural_frequency_with_damping_hz == Approx(wn / (2 * pi)).epsilon(1e-10));
+    CHECK_THAT(mode.damping_ratio, IsCloseTo(zeta, 0, 1e-10));
+    CHECK_THAT(r.least_damping_ratio, IsCloseTo(zeta, 0, 1e-10));
+    CHECK_THAT(mode.natural_frequency_with_damping_hz, IsCloseTo(wn / (2 * pi), 0, 1e-10));
     CHECK(mode.damped_frequency_hz == 0.0);
     CHECK(mode.eigenvalue.imag() == 0.0);
     CHECK(mode.partner.imag() == 0.0);
     const double slow = -zeta * wn + wn * std::sqrt(zeta * zeta - 1), fast = -zeta * wn - wn * std::sqrt(zeta * zeta - 1);
-    CHECK(mode.eigenvalue.real() == Approx(slow).epsilon(1e-10));
-    CHECK(mode.partner.real() == Approx(fast).epsilon(1e-10));
+    CHECK_THAT(mode.eigenvalue.real(), IsCloseTo(slow, 0, 1e-10));
+    CHECK_THAT(mode.partner.real(), IsCloseTo(fast, 0, 1e-10));
   }
   SECTION("power-law dampers: the small-signal slope of the law in forces.hpp") {
     // Project convention (forces.hpp, damper_torque): exponent < 1 is linear below w0 with slope
@@ -140,15 +134,15 @@ TEST_CASE("modes: compound pendulum with a linear rotary damper", "[modal]") {
     const double c = C * std::pow(w0, alpha - 1);
     const ModalResult soft = modal_analysis(model_of(single_link(
         L, m, d, I_cm, fmt::format("{{damper: {{coefficient: {} N m s/rad, exponent: {}, linear_below: {} rad/s}}}}", C, alpha, w0))));
-    CHECK(soft.modes[0].damping_ratio == Approx(c / (2 * std::sqrt(I_pivot * k))).epsilon(1e-10));
+    CHECK_THAT(soft.modes[0].damping_ratio, IsCloseTo(c / (2 * std::sqrt(I_pivot * k)), 0, 1e-10));
     const ModalResult stiff =
         modal_analysis(model_of(single_link(L, m, d, I_cm, "{damper: {coefficient: 12 N m s/rad, exponent: 1.4}}")));
-    CHECK(stiff.modes[0].damping_ratio == Approx(0).margin(1e-12));
+    CHECK_THAT(stiff.modes[0].damping_ratio, IsCloseTo(0, 1e-12, 0));
     CHECK(stiff.notes.size() >= 2);
   }
   SECTION("friction is left out and noted") {
     const ModalResult r = modal_analysis(model_of(single_link(L, m, d, I_cm, "{friction: {torque: 3}}")));
-    CHECK(r.modes[0].damping_ratio == Approx(0).margin(1e-12));
+    CHECK_THAT(r.modes[0].damping_ratio, IsCloseTo(0, 1e-12, 0));
     bool noted = false;
     for (const auto& note : r.notes) noted |= note.find("friction") != std::string::npos;
     CHECK(noted);
@@ -201,11 +195,11 @@ cases: {duration: 1 s, initial: [{single: {theta: [0.1 rad]}}]}
     std::sort(modal.begin(), modal.end());
     for (std::size_t k = 0; k < 3; ++k) {
       INFO("mode " << k + 1);
-      CHECK(modal[k].first == Approx(roots[k].first).epsilon(1e-6));
-      CHECK(modal[k].second == Approx(roots[k].second).epsilon(1e-6));
+      CHECK_THAT(modal[k].first, IsCloseTo(roots[k].first, 0, 1e-6));
+      CHECK_THAT(modal[k].second, IsCloseTo(roots[k].second, 0, 1e-6));
       CHECK(modal[k].second > 0.0);
     }
-    CHECK(r.least_damping_ratio == Approx(std::min({modal[0].second, modal[1].second, modal[2].second})));
+    CHECK_THAT(r.least_damping_ratio, IsCloseTo(std::min({modal[0].second, modal[1].second, modal[2].second}), 0, 1e-12));
   }
   SECTION("without damping: the undamped natural frequencies") {
     Model bare = model;
@@ -216,8 +210,8 @@ cases: {duration: 1 s, initial: [{single: {theta: [0.1 rad]}}]}
     REQUIRE(roots.size() == 3);
     for (std::size_t k = 0; k < 3; ++k) {
       INFO("mode " << k + 1);
-      CHECK(r.modes[k].frequency_hz == Approx(roots[k].first).epsilon(1e-6));
-      CHECK(roots[k].second == Approx(0).margin(1e-6));
+      CHECK_THAT(r.modes[k].frequency_hz, IsCloseTo(roots[k].first, 0, 1e-6));
+      CHECK_THAT(roots[k].second, IsCloseTo(0, 1e-6, 0));
     }
   }
 }

@@ -34,12 +34,14 @@
 #include <cmath>
 #include <cstddef>
 #include <functional>
+#include <limits>
 #include <string>
 #include <vector>
 
 #include <boost/numeric/odeint.hpp>
 #include <fmt/format.h>
 
+#include "swaybound/core/cancel.hpp"
 #include "swaybound/core/error.hpp"
 #include "swaybound/dynamics/chain.hpp"
 #include "swaybound/integrate/run.hpp"
@@ -60,10 +62,15 @@ struct FtleSettings {
   /// chain_ftle only: weight T of the rates in the norm [s]; 0 = sqrt(total length / g).
   double rate_weight = 0;
   long max_steps = 5'000'000;  ///< accepted-step budget
+  double min_step = 0;         ///< smallest accepted step [s] (a step closing an interval is exempt)
+  double max_seconds = std::numeric_limits<double>::infinity();  ///< wall-clock budget [s]
   double initial_step = 1e-3;  ///< first trial step [s]
 };
 
-enum class FtleStatus { ok, failed };
+/// How an FTLE run ended: ok, or the cause of its failure, named as for a case run (a FTLE run
+/// fails for the same reasons: non-finite state, step collapse, step or time budget, pin friction
+/// that did not converge).
+using FtleStatus = RunStatus;
 
 struct FtleSample {
   double t = 0;           ///< end of an interval [s]
@@ -71,7 +78,7 @@ struct FtleSample {
 };
 
 struct FtleResult {
-  FtleStatus status = FtleStatus::ok;
+  FtleStatus status = FtleStatus::ok;  ///< ok, or the cause of the failure
   std::string reason;              ///< empty when ok
   double exponent = 0;             ///< lambda = log_growth / t_reached [1/s] (horizon when ok)
   double log_growth = 0;           ///< sum of ln(d / d0) [-]
@@ -122,9 +129,10 @@ inline std::vector<double> ftle_grid(double horizon, double renormalise, const s
 
 /// Largest finite-time Lyapunov exponent of dx/dt = system(x, t) from x0 over [0, s.horizon].
 /// `system` is called as system(const std::vector<double>& x, std::vector<double>& dxdt, double t).
-/// Bad settings throw ArgumentError; numerical trouble (non-finite state, step budget, failed
-/// step-size adjustment, an exception from Odeint or the system) gives status failed with the
-/// reason, and the exponent over the time reached.
+/// Bad settings throw ArgumentError; numerical trouble gives the status of its cause (StepGuard:
+/// non_finite, step_collapse for a failed step-size adjustment or an exception from Odeint or the
+/// system, step_budget, time_budget) with the reason, and the exponent over the time reached.
+/// Cancellation (SIGINT/SIGTERM) throws Interrupted.
 template <class System>
 FtleResult finite_time_lyapunov(System& system, std::vector<double> x0, const FtleSettings& s,
                                 const std::vector<double>& breakpoints = {},
@@ -178,15 +186,7 @@ FtleResult finite_time_lyapunov(System& system, std::vector<double> x0, const Ft
   }
 
   FtleResult r;
-  const auto fail = [&](std::string reason) {
-    if (r.status != FtleStatus::ok) return;
-    r.status = FtleStatus::failed;
-    r.reason = std::move(reason);
-  };
-  const auto finite = [](const State& v) {
-    return std::all_of(v.begin(), v.end(), [](double a) { return std::isfinite(a); });
-  };
-
+  StepGuard guard(s.max_steps, s.min_step, s.max_seconds);
   const std::vector<double> grid = detail::ftle_grid(s.horizon, s.renormalise, breakpoints);
   r.growth.reserve(grid.size());
   detail::PairedSystem<System> paired{&system, m, State(m), State(m)};
@@ -196,42 +196,33 @@ FtleResult finite_time_lyapunov(System& system, std::vector<double> x0, const Ft
     try {
       if (on_interval) on_interval(t);
       stepper.reset();  // drop the first-same-as-last derivative: new interval, maybe new state
-      int failures = 0;
       while (t < t_end) {
         const double remaining = t_end - t;
         const bool closing = dt >= remaining;
         double h = closing ? remaining : dt;
         if (stepper.try_step(std::ref(paired), z, t, h) == odeint::fail) {
-          ++r.rejected;
-          if (++failures > 500 || !(h > 0) || !std::isfinite(h)) {
-            fail(fmt::format("the step-size adjustment failed near t = {:.6g} s (step {:.3g} s)", t, h));
-            break;
-          }
+          if (!guard.reject(t, h)) break;
           dt = h;
           continue;
         }
-        failures = 0;
-        ++r.steps;
+        const double taken = closing ? remaining : dt;
         if (closing) t = t_end;  // land exactly on the interval end
         // A step shortened to close the interval says little about the next one.
         dt = closing ? std::max(h, dt) : h;
-        if (!finite(z)) {
-          fail(fmt::format("the state became non-finite at t = {:.6g} s", t));
-          break;
-        }
-        if (r.steps > s.max_steps) {
-          fail(fmt::format("more than {} steps by t = {:.6g} s", s.max_steps, t));
-          break;
-        }
+        if (!guard.accept(z, t, taken, closing)) break;
       }
+    } catch (const Interrupted&) {
+      throw;
     } catch (const std::exception& e) {
-      fail(fmt::format("integration failed near t = {:.6g} s ({})", t, e.what()));
+      const bool finite = std::all_of(z.begin(), z.end(), [](double v) { return std::isfinite(v); });
+      guard.fail(finite ? RunStatus::step_collapse : RunStatus::non_finite,
+                 fmt::format("integration failed near t = {:.6g} s ({})", t, e.what()));
     }
-    if (r.status != FtleStatus::ok) break;
+    if (!guard.ok()) break;
     t = t_end;
     const double d = norm(z);
     if (!(d > 0) || !std::isfinite(d)) {
-      fail(fmt::format("the separation became {} at t = {:.6g} s", d, t));
+      guard.fail(RunStatus::non_finite, fmt::format("the separation became {} at t = {:.6g} s", d, t));
       break;
     }
     sum += std::log(d / s.separation);
@@ -239,6 +230,10 @@ FtleResult finite_time_lyapunov(System& system, std::vector<double> x0, const Ft
     const double scale = s.separation / d;
     for (std::size_t k = 0; k < m; ++k) z[m + k] = z[k] + scale * (z[m + k] - z[k]);
   }
+  r.status = guard.status();
+  r.reason = guard.reason();
+  r.steps = guard.steps();
+  r.rejected = guard.rejected();
   r.t_reached = r.growth.empty() ? 0.0 : r.growth.back().t;
   r.log_growth = sum;
   r.exponent = r.t_reached > 0 ? sum / r.t_reached : 0.0;
@@ -255,10 +250,11 @@ FtleResult finite_time_lyapunov(System& system, std::vector<double> x0, const Ft
 /// of 1 / T_ref counts like an angle of 1 rad (the separation d0 = 1e-8 is thus 1e-8 rad-like).
 /// s.measured and s.weights are set by this wrapper (the caller's values are ignored); the other
 /// settings, including s.direction (2N components), are passed on.
-/// Breakpoints are the phase boundaries of the scenario below the horizon; before each interval
-/// ws.scenario = scenario and ws.phase = phase_at(t_start). The reference and perturbed halves
-/// are evaluated one after the other with the same workspace (it is scratch only). A run in which
-/// the pin-friction fixed point did not converge is reported as failed.
+/// Breakpoints are the phase boundaries of the scenario below the horizon; each interval is
+/// integrated under the phase that contains its start (the ChainSystem of the case driver). The
+/// reference and perturbed halves are evaluated one after the other with the same workspace (it
+/// is scratch only). A run in which the pin-friction fixed point did not converge fails with
+/// status friction_unconverged, also when the state then became non-finite.
 FtleResult chain_ftle(const Model& model, Workspace& ws, int scenario, const InitialState& start,
                       const FtleSettings& s);
 

@@ -19,6 +19,8 @@
 //
 // State layout x (size 2N+2): theta[0..N) [rad], omega[0..N) [rad/s], dissipated energy [J],
 // work done on the chain by the base and the wind [J].
+#include <algorithm>
+#include <cstdint>
 #include <vector>
 
 #include <Eigen/Cholesky>
@@ -43,69 +45,89 @@ struct Scratch {
 };
 
 /// Per-thread scratch of the dynamics; sized once for a model, never reallocated by `evaluate`.
+/// Fields are grouped by the stage that writes them; sizes are N = model.n unless noted. The
+/// inputs of the current phase (base motion, wind speeds) are not kept here: every stage that
+/// needs them takes the Phase as an argument.
 struct Workspace {
   explicit Workspace(const Model& model);
 
-  int scenario = 0;  ///< index into Model::scenarios
-  int phase = 0;     ///< current phase of that scenario (set by the integration driver)
+  // The model this workspace was sized for (see `require_built_for`).
+  std::uint64_t model_id = 0;        ///< Model::id of that model
+  int links = 0;                     ///< its number of links N
 
+  // Caller's choice, read by `evaluate`.
+  bool lazy_reactions = false;       ///< skip reactions when the right-hand side does not need them
+
+  // Stage 1, kinematics (`kinematics`).
   std::vector<double> sin_t, cos_t;  ///< sin, cos of theta_i [-] (N)
   std::vector<double> omega;         ///< omega_i [rad/s] (N)
   double base_x = 0, base_y = 0;     ///< base position [m]
   double base_vx = 0, base_vy = 0;   ///< base velocity [m/s]
   double base_ax = 0, base_ay = 0;   ///< base acceleration [m/s^2]
+
+  // Stage 3, force elements (`external_forces`, `pivot_torques`).
   std::vector<double> force_x, force_y;  ///< external point forces summed per link [N] (N)
   std::vector<double> tau;           ///< pivot torque on link i from above [N m] (N)
   std::vector<double> tau_pin;       ///< of which load-dependent pin friction [N m] (N)
   std::vector<double> tau_fixed;     ///< of which dampers and constant friction [N m] (N)
   std::vector<double> slide;         ///< friction sliding factor tanh(w / w_t) per pivot [-] (N)
-  std::vector<double> reaction_x, reaction_y;  ///< pivot force on link i from above [N] (N)
-  std::vector<double> reaction;      ///< its magnitude [N] (N)
-  std::vector<double> reaction_prev; ///< previous pin-friction iterate of `reaction` [N] (N)
-  std::vector<double> acc_x, acc_y;  ///< centre-of-mass accelerations [m/s^2] (N)
-  double dissipated_power = 0;       ///< by dampers, friction, dashpots [W] (>= 0)
-  double input_power = 0;            ///< into the chain by the base and the wind [W]
+
+  // Stage 4, dynamics solve (`evaluate`: mass matrix, accelerations, pin-friction fixed point).
   std::vector<double> alpha;         ///< angular accelerations of the last evaluation [rad/s^2] (N)
-  bool lazy_reactions = false;       ///< skip reactions when the right-hand side does not need them
-  bool reactions_current = false;    ///< reaction_* belong to the last evaluation
   int friction_iterations = 0;       ///< iterations of the last pin-friction solve
   long friction_unconverged = 0;     ///< evaluations whose pin-friction iteration did not converge
   long evaluations = 0;              ///< right-hand-side evaluations
+  Scratch<1> s1;                     ///< matrices for N = 1
+  Scratch<2> s2;                     ///< matrices for N = 2
+  Scratch<3> s3;                     ///< matrices for N = 3
+  Scratch<Eigen::Dynamic> sn;        ///< matrices for N > 3
 
-  Scratch<1> s1;
-  Scratch<2> s2;
-  Scratch<3> s3;
-  Scratch<Eigen::Dynamic> sn;
+  // Stage 5, reactions (`pivot_reactions`, `finish_reactions`).
+  std::vector<double> acc_x, acc_y;  ///< centre-of-mass accelerations [m/s^2] (N)
+  std::vector<double> reaction_x, reaction_y;  ///< pivot force on link i from above [N] (N)
+  std::vector<double> reaction;      ///< its magnitude [N] (N)
+  std::vector<double> reaction_prev; ///< previous pin-friction iterate of `reaction` [N] (N)
+  bool reactions_current = false;    ///< reaction_* belong to the last evaluation
+
+  // Energy audit (`external_forces`, `evaluate`): the last two components of dx/dt.
+  double dissipated_power = 0;       ///< by dampers, friction, dashpots [W] (>= 0)
+  double input_power = 0;            ///< into the chain by the base and the wind [W]
 };
 
-/// Stage 1: sin/cos of the angles, rates, base state at time t (from ws.scenario/ws.phase).
-void kinematics(const Model& model, Workspace& ws, const double* x, double t);
+/// Throws ArgumentError unless `ws` was built for `model` (the same Model::id and link count):
+/// a workspace sized for another chain would be read out of bounds.
+void require_built_for(const Model& model, const Workspace& ws);
+
+/// Stage 1: sin/cos of the angles, rates, and the base state at time t within `phase`.
+void kinematics(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t);
 
 /// Position [m] and velocity [m/s] of a point of the chain (after `kinematics`).
 void point_state(const Model& model, const Workspace& ws, const PointRef& p, double& px, double& py,
                  double& vx, double& vy);
 
 /// Drag force of wind load w [N] (x horizontal, y up) at the state of the last `kinematics`, with
-/// the wind speed of the current phase; also its point's velocity (vx, vy) [m/s].
-void wind_load_force(const Model& model, const Workspace& ws, std::size_t w, double& fx, double& fy, double& vx,
-                     double& vy);
+/// the wind speed of `phase`; also its point's velocity (vx, vy) [m/s].
+void wind_load_force(const Model& model, const Workspace& ws, const Phase& phase, std::size_t w, double& fx,
+                     double& fy, double& vx, double& vy);
 
-/// Stage 3a: wind and dashpot forces into ws.force_x/y and the generalised force Q (added to q),
-/// and their dissipated and input power into ws.
-void external_forces(const Model& model, Workspace& ws, double* q);
+/// Stage 3a: wind (at the speeds of `phase`) and dashpot forces into ws.force_x/y and the
+/// generalised force Q (added to q), and their dissipated and input power into ws.
+void external_forces(const Model& model, Workspace& ws, const Phase& phase, double* q);
 
 /// Stage 3b: pivot torques into ws.tau. With reaction == nullptr: dampers and constant friction
 /// (pin friction 0); then with the reactions [N]: the same plus pin friction, reusing the first
-/// call's reaction-independent parts (the pin-friction fixed point calls it repeatedly).
+/// call's reaction-independent parts (the pin-friction fixed point calls it repeatedly). The
+/// friction laws are those of forces.hpp.
 void pivot_torques(const Model& model, Workspace& ws, const double* reaction);
 
 /// Stage 5: pivot reactions from the angular accelerations alpha (Newton-Euler over sub-chains).
 void pivot_reactions(const Model& model, Workspace& ws, const double* alpha);
 
-/// The whole right-hand side: dxdt = f(x, t). Uses fixed-size matrices for N <= 3. With
-/// ws.lazy_reactions the pivot reactions are computed only when the right-hand side needs them
-/// (pin friction, or a moving base whose work is audited); `finish_reactions` completes them.
-void evaluate(const Model& model, Workspace& ws, const double* x, double t, double* dxdt);
+/// The whole right-hand side under the inputs of `phase`: dxdt = f(x, t). Uses fixed-size
+/// matrices for N <= 3. With ws.lazy_reactions the pivot reactions are computed only when the
+/// right-hand side needs them (pin friction, or a moving base whose work is audited);
+/// `finish_reactions` completes them. Throws ArgumentError when ws was built for another model.
+void evaluate(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt);
 
 /// Makes ws.reaction* belong to the last evaluation (no-op when they already do).
 void finish_reactions(const Model& model, Workspace& ws);
@@ -118,12 +140,41 @@ double mechanical_energy(const Model& model, const Workspace& ws);
 /// the lower end of the last link is free, tension 0).
 void link_tension(const Model& model, const Workspace& ws, int i, double& top, double& bottom);
 
-/// The Odeint system functor: (x, dxdt, t). Pass it with std::ref so Odeint does not copy it.
-template <class State>
-struct ChainSystem {
-  const Model* model;
-  Workspace* ws;
-  void operator()(const State& x, State& dxdt, double t) const { evaluate(*model, *ws, x.data(), t, dxdt.data()); }
+/// The right-hand side of one case (a model under one scenario) as the Odeint system
+/// (x, dxdt, t), evaluated under the phase selected by `enter_phase`. It remembers its last
+/// evaluation, so `ensure` at the same point reuses it. The one system functor of the engine:
+/// the case driver and the FTLE both integrate it. Pass it with std::ref so Odeint does not copy it.
+class ChainSystem {
+ public:
+  using State = std::vector<double>;
+  /// Checks the scenario index and that ws was built for model (ArgumentError otherwise); selects phase 0.
+  ChainSystem(const Model& model, Workspace& ws, int scenario);
+
+  /// dxdt = f(x, t) under the current phase.
+  void operator()(const State& x, State& dxdt, double t) {
+    evaluate(*model_, *ws_, *phase_, x.data(), t, dxdt.data());
+    last_t_ = t;
+    std::copy(x.begin(), x.end(), last_x_.begin());
+  }
+  /// Selects phase k of the scenario; forgets the last evaluation (the inputs jump while (x, t) stay).
+  void enter_phase(std::size_t k);
+  /// Makes the workspace hold the evaluation at (x, t), evaluating into `scratch` if needed.
+  void ensure(const State& x, double t, State& scratch) {
+    if (t == last_t_ && std::equal(x.begin(), x.end(), last_x_.begin())) return;
+    (*this)(x, scratch, t);
+  }
+  const ScenarioModel& scenario() const { return *scenario_; }
+  const Phase& phase() const { return *phase_; }
+  const Model& model() const { return *model_; }
+  Workspace& workspace() const { return *ws_; }
+
+ private:
+  const Model* model_;
+  Workspace* ws_;
+  const ScenarioModel* scenario_;
+  const Phase* phase_;
+  double last_t_;
+  State last_x_;
 };
 
 }  // namespace swaybound

@@ -34,14 +34,30 @@ inline double damper_torque(const PivotModel& p, double w) {
   return tau;
 }
 
+/// Sliding factor of the regularised Coulomb friction at pivot p, tanh(w / w_t) [-] (0 for a
+/// pivot without friction). w [rad/s] is the rate of the lower link relative to the upper one.
+inline double friction_slide(const PivotModel& p, double w) {
+  return p.has_friction() ? std::tanh(w / p.transition_rate) : 0.0;
+}
+
+/// The constant part of the friction torque at sliding factor `slide`: -T0 slide [N m].
+inline double constant_friction_torque(const PivotModel& p, double slide) { return -p.coulomb_torque * slide; }
+
+/// The load-dependent (pin) part of the friction torque at sliding factor `slide` and pivot
+/// reaction |R| = `reaction` [N]: -mu r |R| slide [N m].
+inline double pin_friction_torque(const PivotModel& p, double slide, double reaction) {
+  return -p.pin_friction * reaction * slide;
+}
+
 /// Regularised Coulomb friction: tau = -(T0 + mu r |R|) tanh(w / w_t), with T0 the constant
 /// torque, mu r the pin friction factor, |R| the pivot reaction [N] and w_t the transition rate.
 /// tanh keeps the law smooth; its slope at w = 0 is (T0 + mu r |R|) / w_t, so a small w_t makes
-/// the equations stiff for an explicit stepper (see DEVELOPERS.md, "Friction").
+/// the equations stiff for an explicit stepper (see DEVELOPERS.md, "Friction"). The sum of its
+/// two parts above, evaluated as the dynamics does (the pin-friction fixed point re-evaluates only
+/// the pin part, reusing the sliding factor).
 inline double friction_torque(const PivotModel& p, double w, double reaction) {
-  const double level = p.coulomb_torque + p.pin_friction * reaction;
-  if (level <= 0) return 0.0;
-  return -level * std::tanh(w / p.transition_rate);
+  const double slide = friction_slide(p, w);
+  return constant_friction_torque(p, slide) + pin_friction_torque(p, slide, reaction);
 }
 
 /// Quadratic drag of a point moving at velocity (vx, vy) in a horizontal wind u:

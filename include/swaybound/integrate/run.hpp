@@ -2,6 +2,7 @@
 // One case: integrate a chain from an initial state over a duration with Boost.Odeint, restarting
 // the stepper at every phase boundary (a jump in base acceleration or wind), watching for numerical
 // trouble, and reporting each accepted step and each output sample to observers.
+#include <chrono>
 #include <functional>
 #include <string>
 #include <string_view>
@@ -21,6 +22,43 @@ enum class RunStatus {
   friction_unconverged,  ///< the pin-friction fixed point did not converge at some evaluation
 };
 std::string_view status_name(RunStatus status);
+
+/// The budgets of one integration and the checks of every step against them, shared by the case
+/// driver and the FTLE: a non-finite state, a step below the minimum (or no step accepted after
+/// 500 tries), more than the step budget, the wall-clock budget (checked every 256 steps, with
+/// cancellation: a long run stops promptly on SIGINT/SIGTERM by throwing Interrupted). The first
+/// failure is kept with its reason; later ones do not overwrite it.
+class StepGuard {
+ public:
+  StepGuard(long max_steps, double min_step, double max_seconds);
+
+  /// Checks an accepted step of length dt [s] that ended at (x, t); a short step that only closes
+  /// an interval (`closing`) is not a collapse. False when the run must stop. When the state
+  /// became non-finite and `*unconverged` (if set) counts pin-friction evaluations that did not
+  /// converge, the cause reported is friction_unconverged, not the non-finite symptom.
+  bool accept(const std::vector<double>& x, double t, double dt, bool closing);
+  /// Checks a rejected step whose retry is `dt` [s] at t. False when the run must stop.
+  bool reject(double t, double dt);
+  /// Records a failure (no-op after the first).
+  void fail(RunStatus status, std::string reason);
+
+  bool ok() const { return status_ == RunStatus::ok; }
+  RunStatus status() const { return status_; }
+  const std::string& reason() const { return reason_; }
+  long steps() const { return steps_; }
+  long rejected() const { return rejected_; }
+  /// Optional: the counter of unconverged pin-friction evaluations (Workspace::friction_unconverged).
+  const long* unconverged = nullptr;
+
+ private:
+  long max_steps_;
+  double min_step_, max_seconds_;
+  std::chrono::steady_clock::time_point started_;
+  RunStatus status_ = RunStatus::ok;
+  std::string reason_;
+  long steps_ = 0, rejected_ = 0;
+  int rejected_in_a_row_ = 0;
+};
 
 struct InitialState {
   std::vector<double> theta;  ///< absolute link angles [rad]; missing links start at 0
@@ -52,6 +90,7 @@ struct StepView {
   double t = 0;
   const double* x = nullptr;     ///< state, layout as in chain.hpp
   const Workspace* ws = nullptr;
+  const Phase* phase = nullptr;  ///< the inputs (base motion, wind) ws was evaluated under
   double energy = 0;             ///< mechanical energy [J]
   double audit_residual = 0;     ///< E + dissipated - work in - E(0) [J]
   bool segment_start = false;    ///< first state of a segment (t = 0 or just after a jump)
@@ -93,7 +132,8 @@ struct RunOutcome {
 /// every segment end (see StepView); `on_sample` (optional) sees t = k / output_rate from dense
 /// output. A sample that falls on a jump is right-continuous: it is taken under the new phase,
 /// except at the end of the run. Never throws for numerical trouble:
-/// the outcome carries the status and the reason.
+/// the outcome carries the status and the reason. Throws ArgumentError for a bad scenario, start
+/// or duration, or a workspace built for another model.
 RunOutcome simulate_case(const Model& model, Workspace& ws, int scenario, const InitialState& start,
                          const RunSettings& settings, const Observer& on_step = {},
                          const Observer& on_sample = {});

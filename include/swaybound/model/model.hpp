@@ -9,6 +9,7 @@
 //   mu_ij = sum_k m_k a_ki a_kj + delta_ij I_i      [kg m^2]   (mass matrix: M_ij = mu_ij cos(theta_i - theta_j))
 //   h_i   = m_i c_i + L_i sum_{k>i} m_k             [kg m]     (first moment about pivot i)
 // depend only on the geometry and are computed here once.
+#include <cstdint>
 #include <string>
 #include <vector>
 
@@ -75,6 +76,7 @@ struct ScenarioModel {
 };
 
 struct Model {
+  std::uint64_t id = 0;            ///< unique per build_model call in this process (copies share it): a Workspace records it
   int n = 0;                       ///< number of links
   double gravity = 0;              ///< [m/s^2]
   std::vector<std::string> names;  ///< link names

@@ -1,5 +1,6 @@
 #pragma once
-// Shared fixtures for dynamics tests: build a model from inline YAML, run a case, keep samples.
+// Shared fixtures of the engine tests (dynamics, integrate, chaos, modal): chains with closed-form
+// references written as inline YAML, building a model from it, running a case and keeping samples.
 #include <string>
 
 #include <fmt/format.h>
@@ -41,6 +42,21 @@ cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1 rad]}}}}]}}
 {3}
 )",
                      g, length, mass, extra);
+}
+
+/// One rigid link on a fixed pivot: length, mass, com [m from the pivot], inertia about the com,
+/// and the pivot's YAML map (`{}` for a free pivot), under gravity `g`.
+inline std::string single_link_yaml(double length, double mass, double com, double inertia, const std::string& pivot,
+                                    double g = 9.81) {
+  return fmt::format(R"(
+swaybound: 1
+name: single link
+gravity: {}
+links:
+  - {{name: arm, length: {}, mass: {}, com: {}, inertia: {}, pivot: {}}}
+cases: {{duration: 1 s, initial: [{{single: {{theta: [0.1 rad]}}}}]}}
+)",
+                     g, length, mass, com, inertia, pivot);
 }
 
 /// Runs one case, keeping samples at `output_rate` per second (dense output).
