@@ -41,22 +41,10 @@ void print_summary(const CheckReport& r, std::ostream& out) {
 
 Action add_check(CLI::App& app) {
   auto* cmd = app.add_subcommand("check", "Run every case of a spec against its limits and write the packet to DIR");
-  struct Options {
-    std::string spec, out = "reports/check";
-    int jobs = 0;
-    long max_cases = kDefaultMaxCases;
-    long max_samples = kDefaultMaxSamples;
-    bool no_audit = false, quiet = false, force = false;
-  };
-  auto o = std::make_shared<Options>();
+  auto o = std::make_shared<PacketRunOptions>();
+  o->out = "reports/check";
   cmd->add_option("SPEC", o->spec, "YAML design spec")->required();
-  cmd->add_option("--out", o->out, "Packet folder (written whole, replaced only when complete)")->capture_default_str();
-  cmd->add_option("--jobs", o->jobs, "Threads (default: every core)")->check(CLI::NonNegativeNumber);
-  cmd->add_option("--max-cases", o->max_cases, "Cap on the number of cases")->check(CLI::PositiveNumber)->capture_default_str();
-  cmd->add_option("--max-samples", o->max_samples,
-                  "Cap on the output samples per case (cases.duration x cases.output_rate)")
-      ->check(CLI::PositiveNumber)
-      ->capture_default_str();
+  add_packet_run_options(cmd, *o, "Packet folder (written whole, replaced only when complete)");
   cmd->add_flag("--no-audit", o->no_audit, "Skip re-running governing cases at a tighter tolerance");
   cmd->add_flag("--force", o->force,
                 "Replace the packet of another design (a spec with another name); never deletes files "

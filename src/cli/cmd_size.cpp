@@ -39,24 +39,14 @@ std::optional<double> parse_margin(const std::string& text) {
 Action add_size(CLI::App& app) {
   auto* cmd = app.add_subcommand("size", "Search the spec's design variables for the least cost (or the objective "
                                          "given) with every limit holding; write the sized spec and its check to DIR");
-  struct Options {
-    std::string spec, out = "reports/size";
-    int jobs = 0;
-    long max_cases = kDefaultMaxCases;
-    long max_samples = kDefaultMaxSamples;
+  struct Options : PacketRunOptions {
     long screening = 64;
-    bool no_audit = false, quiet = false, force = false;
     std::string margin;  ///< "5%" or "0.05"; empty: the spec's sizing.required_margin
   };
   auto o = std::make_shared<Options>();
+  o->out = "reports/size";
   cmd->add_option("SPEC", o->spec, "YAML design spec with a sizing section")->required();
-  cmd->add_option("--out", o->out, "Output folder (written whole, replaced only when complete)")->capture_default_str();
-  cmd->add_option("--jobs", o->jobs, "Threads (default: every core)")->check(CLI::NonNegativeNumber);
-  cmd->add_option("--max-cases", o->max_cases, "Cap on the number of cases")->check(CLI::PositiveNumber)->capture_default_str();
-  cmd->add_option("--max-samples", o->max_samples,
-                  "Cap on the output samples per case (cases.duration x cases.output_rate)")
-      ->check(CLI::PositiveNumber)
-      ->capture_default_str();
+  add_packet_run_options(cmd, *o, "Output folder (written whole, replaced only when complete)");
   cmd->add_option("--screen", o->screening, "About this many every-k-th cases screen designs during the search "
                                             "(plus the governing cases); 0: every case")
       ->check(CLI::NonNegativeNumber)

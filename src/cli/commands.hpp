@@ -34,6 +34,17 @@ void require_input_path(const std::string& option, const std::string& path);
 /// UsageError when the file named on the command line by `option` does not exist or is a folder.
 void require_input_file(const std::string& option, const std::string& path);
 
+/// What `check` and `size` share on the command line: the output folder, threads and the caps.
+struct PacketRunOptions {
+  std::string spec, out;
+  int jobs = 0;
+  long max_cases = 20'000;       ///< kDefaultMaxCases (spec/loader.hpp)
+  long max_samples = 10'000'000; ///< kDefaultMaxSamples
+  bool no_audit = false, quiet = false, force = false;
+};
+/// Registers --out (described by `out_help`), --jobs, --max-cases and --max-samples on `cmd`.
+void add_packet_run_options(CLI::App* cmd, PacketRunOptions& options, const std::string& out_help);
+
 /// Prints the packet writer's notices (a previous revision replaced, leftovers of a killed run
 /// cleaned up) on stderr.
 void print_notices(const std::vector<std::string>& notices);

@@ -7,6 +7,7 @@
 
 #include "commands.hpp"
 #include "swaybound/core/error.hpp"
+#include "swaybound/spec/loader.hpp"
 
 namespace swaybound::cli {
 
@@ -37,6 +38,18 @@ std::string read_input_file(const std::string& option, const std::string& path) 
 
 void print_notices(const std::vector<std::string>& notices) {
   for (const auto& notice : notices) std::cerr << "swaybound: " << notice << '\n';
+}
+
+static_assert(PacketRunOptions{}.max_cases == kDefaultMaxCases && PacketRunOptions{}.max_samples == kDefaultMaxSamples);
+
+void add_packet_run_options(CLI::App* cmd, PacketRunOptions& o, const std::string& out_help) {
+  cmd->add_option("--out", o.out, out_help)->capture_default_str();
+  cmd->add_option("--jobs", o.jobs, "Threads (default: every core)")->check(CLI::NonNegativeNumber);
+  cmd->add_option("--max-cases", o.max_cases, "Cap on the number of cases")->check(CLI::PositiveNumber)->capture_default_str();
+  cmd->add_option("--max-samples", o.max_samples,
+                  "Cap on the output samples per case (cases.duration x cases.output_rate)")
+      ->check(CLI::PositiveNumber)
+      ->capture_default_str();
 }
 
 }  // namespace swaybound::cli

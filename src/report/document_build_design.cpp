@@ -5,6 +5,7 @@
 
 #include <fmt/format.h>
 
+#include "swaybound/spec/case_set_kinds.hpp"
 #include "swaybound/spec/loader.hpp"
 
 namespace swaybound::report_doc::build {
@@ -16,11 +17,12 @@ namespace {
 
 std::string range_text(const std::vector<Range>& ranges, InitialKind kind, double factor, const std::string& unit) {
   if (ranges.empty()) return "0";
+  const StartShape shape = initial_kind(kind).shape;
   std::vector<std::string> parts;
   for (const auto& r : ranges) {
-    if (kind == InitialKind::single || kind == InitialKind::ladder || r.lo == r.hi)
+    if (shape == StartShape::values || r.lo == r.hi)
       parts.push_back(num(r.lo * factor));
-    else if (kind == InitialKind::grid)
+    else if (shape == StartShape::counted_ranges)
       parts.push_back(fmt::format("{} to {} ({})", num(r.lo * factor), num(r.hi * factor), r.count));
     else
       parts.push_back(fmt::format("{} to {}", num(r.lo * factor), num(r.hi * factor)));
@@ -28,16 +30,7 @@ std::string range_text(const std::vector<Range>& ranges, InitialKind kind, doubl
   return fmt::format("[{}] {}", fmt::join(parts, "; "), unit);
 }
 
-const char* kind_name(InitialKind k) {
-  switch (k) {
-    case InitialKind::single: return "single";
-    case InitialKind::grid: return "grid";
-    case InitialKind::random: return "random";
-    case InitialKind::corners: return "corners";
-    case InitialKind::ladder: return "ladder";
-  }
-  return "";
-}
+std::string kind_name(InitialKind k) { return std::string(initial_kind(k).name); }
 
 std::string attachment_text(const Spec& spec, const AttachmentSpec& a) {
   if (a.link < 0) return fmt::format("base at ({}, {}) m", num(a.base_x), num(a.base_y));

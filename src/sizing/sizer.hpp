@@ -86,6 +86,9 @@ class Sizer {
   /// The design on every case (no audit); its governing and failed cases join the screening set
   /// when they are not in it. Returns the verified point.
   Point verify(const std::vector<double>& values, bool& added);
+  /// A design on every case without audit or recording (counted as a full check); the first 16
+  /// cases whose run failed go to `failed`.
+  DesignOutcome full_check(const Spec& design, CheckReport& report, std::vector<long>& failed);
   /// The spec as re-loaded from its normalised YAML (values at 12 significant digits); the spec
   /// itself when it cannot be re-loaded (a point beyond the end of its link: an infeasible design).
   Spec round_trip(const Spec& design) const;

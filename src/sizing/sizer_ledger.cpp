@@ -117,21 +117,25 @@ const Point& Sizer::screen(const std::vector<double>& values) {
 
 /// The design on every case (no audit); its governing and failed cases join the screening set
 /// when they are not in it. Returns the verified point.
-Point Sizer::verify(const std::vector<double>& values, bool& added) {
-  ++evaluations_;
+DesignOutcome Sizer::full_check(const Spec& design, CheckReport& report, std::vector<long>& failed) {
   ++full_checks_;
-  // Through the normalised YAML, as the final design will be: the spec verified is the spec written.
-  const Spec design = round_trip(evaluator_.design(values));
   CheckOptions o;
   o.jobs = options_.jobs;
   o.audit = false;
   o.record = false;
-  std::vector<long> failed;
   o.on_case = [&](const CaseMetrics& m) {
     if (!m.ok() && failed.size() < 16) failed.push_back(m.index);
   };
+  return evaluator_.check(design, o, report);
+}
+
+Point Sizer::verify(const std::vector<double>& values, bool& added) {
+  ++evaluations_;
+  // Through the normalised YAML, as the final design will be: the spec verified is the spec written.
+  const Spec design = round_trip(evaluator_.design(values));
+  std::vector<long> failed;
   CheckReport report;
-  Point p = make_point(values, evaluator_.check(design, o, report));
+  Point p = make_point(values, full_check(design, report, failed));
   p.verified = true;
   std::vector<long> extra = failed;
   for (long g : p.outcome.governing)

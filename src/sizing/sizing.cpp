@@ -58,16 +58,8 @@ SizingResult Sizer::run() {
 
   // 1. The design as given, on every case.
   {
-    CheckOptions o;
-    o.jobs = options_.jobs;
-    o.audit = false;
-    o.record = false;
     std::vector<long> failed;
-    o.on_case = [&](const CaseMetrics& m) {
-      if (!m.ok() && failed.size() < 16) failed.push_back(m.index);
-    };
-    ++full_checks_;
-    r.outcome_before = evaluator_.check(spec_, o, r.before);
+    r.outcome_before = full_check(spec_, r.before, failed);
     const double metric = r.outcome_before.metric;
     metric_scale_ = std::isfinite(metric) && metric != 0 ? std::fabs(metric) : 1.0;
     Point p = make_point(r.initial_values, r.outcome_before);
