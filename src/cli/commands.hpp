@@ -7,6 +7,8 @@
 
 #include <CLI/CLI.hpp>
 
+#include "swaybound/spec/loader.hpp"
+
 
 namespace swaybound::cli {
 
@@ -38,8 +40,8 @@ void require_input_file(const std::string& option, const std::string& path);
 struct PacketRunOptions {
   std::string spec, out;
   int jobs = 0;
-  long max_cases = 20'000;       ///< kDefaultMaxCases (spec/loader.hpp)
-  long max_samples = 10'000'000; ///< kDefaultMaxSamples
+  long max_cases = kDefaultMaxCases;
+  long max_samples = kDefaultMaxSamples;
   bool no_audit = false, quiet = false, force = false;
 };
 /// Registers --out (described by `out_help`), --jobs, --max-cases and --max-samples on `cmd`.

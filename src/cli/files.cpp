@@ -7,7 +7,6 @@
 
 #include "commands.hpp"
 #include "swaybound/core/error.hpp"
-#include "swaybound/spec/loader.hpp"
 
 namespace swaybound::cli {
 
@@ -39,8 +38,6 @@ std::string read_input_file(const std::string& option, const std::string& path) 
 void print_notices(const std::vector<std::string>& notices) {
   for (const auto& notice : notices) std::cerr << "swaybound: " << notice << '\n';
 }
-
-static_assert(PacketRunOptions{}.max_cases == kDefaultMaxCases && PacketRunOptions{}.max_samples == kDefaultMaxSamples);
 
 void add_packet_run_options(CLI::App* cmd, PacketRunOptions& o, const std::string& out_help) {
   cmd->add_option("--out", o.out, out_help)->capture_default_str();
