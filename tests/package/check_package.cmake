@@ -1,7 +1,8 @@
 # ctest script: installs the build tree into WORK/prefix, builds tests/package against it with
 # find_package(swaybound COMPONENTS engine), runs the program, and fails when its link line names a
 # library that only sizing or the report need (NLopt, cairo, Pango, OpenSSL).
-# -DBUILD_DIR= the swaybound build tree, -DSOURCE_DIR= this folder, -DWORK= a scratch folder.
+# -DBUILD_DIR= the swaybound build tree, -DSOURCE_DIR= this folder, -DWORK= a scratch folder,
+# -DCXX= the compiler of the build tree.
 file(REMOVE_RECURSE ${WORK})
 function(run)
   execute_process(COMMAND ${ARGN} RESULT_VARIABLE status OUTPUT_VARIABLE out ERROR_VARIABLE err)
@@ -11,7 +12,7 @@ function(run)
   set(last_output "${out}" PARENT_SCOPE)
 endfunction()
 run(${CMAKE_COMMAND} --install ${BUILD_DIR} --prefix ${WORK}/prefix)
-run(${CMAKE_COMMAND} -S ${SOURCE_DIR} -B ${WORK}/build -DCMAKE_PREFIX_PATH=${WORK}/prefix -DCMAKE_BUILD_TYPE=Release)
+run(${CMAKE_COMMAND} -S ${SOURCE_DIR} -B ${WORK}/build -DCMAKE_PREFIX_PATH=${WORK}/prefix -DCMAKE_BUILD_TYPE=Release -DCMAKE_CXX_COMPILER=${CXX})
 run(${CMAKE_COMMAND} --build ${WORK}/build)
 run(${WORK}/build/engine_consumer)
 message(STATUS "${last_output}")
