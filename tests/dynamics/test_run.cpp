@@ -10,18 +10,6 @@
 using namespace swaybound;
 using namespace swaybound::testing;
 
-namespace {
-const char* kBraking = R"(
-swaybound: 1
-name: braking trolley
-links:
-  - {name: rope, kind: rope, length: 5, mass: 30}
-  - {name: load, length: 1, mass: 2000, com: 0.8, inertia: 100}
-base: {scenarios: [{name: brake, initial_velocity: {x: 1}, accel: [{for: 1.5 s, x: -0.6667}]}]}
-cases: {duration: 10 s, initial: [{single: {theta: [0]}}]}
-)";
-}  // namespace
-
 TEST_CASE("the stepper restarts exactly at a jump in base acceleration", "[integrate]") {
   const Model model = model_from_yaml(kBraking);
   Workspace ws(model);

@@ -7,7 +7,9 @@
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
+#include <string>
 #include <sys/wait.h>
+#include <unistd.h>
 
 #include <nlohmann/json.hpp>
 
@@ -22,7 +24,8 @@ TEST_CASE("the committed example packet matches a fresh check of the demo spec",
   const fs::path committed = source / "reports/gantry_hook_block";
   REQUIRE(fs::exists(committed / "results.json"));
   CHECK(verify_manifest(committed.string()).empty());
-  const fs::path fresh = fs::temp_directory_path() / "swaybound-example-packet";
+  // Per process: two test runs at once (two build trees) must not share the folder.
+  const fs::path fresh = fs::temp_directory_path() / ("swaybound-example-packet-" + std::to_string(::getpid()));
   fs::remove_all(fresh);
   const std::string cmd = std::string(SWAYBOUND_CLI) + " check " + (source / "specs/gantry_hook_block.yaml").string() +
                           " --out " + fresh.string() + " --quiet >/dev/null 2>&1";
@@ -34,6 +37,17 @@ TEST_CASE("the committed example packet matches a fresh check of the demo spec",
   CHECK(d.spec_changes.empty());
   INFO(diff_report(d, false));
   CHECK_FALSE(d.regression());
+  // cases.csv: the same columns and as many rows (its figures are compared through results.json's
+  // worst values; a new column means the example must be regenerated).
+  std::ifstream csv_a(committed / "cases.csv"), csv_b(fresh / "cases.csv");
+  std::string header_a, header_b, line;
+  std::getline(csv_a, header_a);
+  std::getline(csv_b, header_b);
+  CHECK(header_a == header_b);
+  long rows_a = 0, rows_b = 0;
+  while (std::getline(csv_a, line)) ++rows_a;
+  while (std::getline(csv_b, line)) ++rows_b;
+  CHECK(rows_a == rows_b);
   // Every worst value the same to 1e-6 relative (allowing only the last digits of libm to differ).
   std::ifstream a(committed / "results.json"), b(fresh / "results.json");
   const auto ja = nlohmann::json::parse(a), jb = nlohmann::json::parse(b);
@@ -47,4 +61,6 @@ TEST_CASE("the committed example packet matches a fresh check of the demo spec",
     CHECK(ja["checks"][i]["governing_case"] == jb["checks"][i]["governing_case"]);
   }
   CHECK(ja["cases"]["count"] == jb["cases"]["count"]);
+  std::error_code ignored;
+  fs::remove_all(fresh, ignored);
 }

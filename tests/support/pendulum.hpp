@@ -26,6 +26,17 @@ struct Trace {
   double max_abs_energy_change = 0;  ///< max |E(t) - E(0)| over accepted steps [J]
 };
 
+/// A rope and hook load under a trolley braking from 1 m/s at 0.6667 m/s^2 for 1.5 s, released at rest.
+inline const char* kBraking = R"(
+swaybound: 1
+name: braking trolley
+links:
+  - {name: rope, kind: rope, length: 5, mass: 30}
+  - {name: load, length: 1, mass: 2000, com: 0.8, inertia: 100}
+base: {scenarios: [{name: brake, initial_velocity: {x: 1}, accel: [{for: 1.5 s, x: -0.6667}]}]}
+cases: {duration: 10 s, initial: [{single: {theta: [0]}}]}
+)";
+
 inline Model model_from_yaml(const std::string& yaml) { return build_model(load_spec_text(yaml, "inline.yaml")); }
 
 /// Equal double pendulum: two point masses `mass` on massless links `length`, gravity `g`, plus
