@@ -184,18 +184,23 @@ TEST_CASE("the packet's envelope rows, taken as the cases stream, are the figure
   CHECK(n == rows.size());
 }
 
+namespace {
+/// A complete check packet of `spec` (no audit) in `out`: the previous packet of the next test steps.
+void write_first_packet(const Spec& spec, const fs::path& spec_path, const fs::path& out) {
+  CheckOptions options;
+  options.audit = false;
+  CheckPacket first(spec, read(spec_path), at(out));
+  first.attach(options);
+  first.finish(run_check(spec, options));
+}
+}  // namespace
+
 TEST_CASE("a check packet not finished leaves the previous packet as it was and nothing beside it",
           "[packet][library]") {
   const fs::path spec_path = write(temp("unfinished.yaml"), kSpec), out = temp("unfinished-packet");
   fs::remove_all(out);
   const Spec spec = load_spec(spec_path.string());
-  CheckOptions options;
-  options.audit = false;
-  {
-    CheckPacket first(spec, read(spec_path), at(out));
-    first.attach(options);
-    first.finish(run_check(spec, options));
-  }
+  write_first_packet(spec, spec_path, out);
   const std::string results = read(out / "results.json"), manifest = read(out / "MANIFEST");
   {
     // A run that stops (an exception, say) before finish(): the packet object goes away unfinished.
@@ -216,13 +221,7 @@ TEST_CASE("a stop requested while the packet is finished leaves the previous pac
   const fs::path spec_path = write(temp("stopped.yaml"), kSpec), out = temp("stopped-packet");
   fs::remove_all(out);
   const Spec spec = load_spec(spec_path.string());
-  CheckOptions options;
-  options.audit = false;
-  {
-    CheckPacket first(spec, read(spec_path), at(out));
-    first.attach(options);
-    first.finish(run_check(spec, options));
-  }
+  write_first_packet(spec, spec_path, out);
   const std::string manifest = read(out / "MANIFEST");
   {
     CheckPacket second(spec, read(spec_path), at(out));
