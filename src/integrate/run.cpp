@@ -229,12 +229,14 @@ class Driver final : public DenseProbe {
         system_(model, ws, scenario), guard_(settings.max_steps, settings.min_step, settings.max_seconds),
         scratch_(static_cast<std::size_t>(model.state_size())),
         sample_(static_cast<std::size_t>(model.state_size())), probe_state_(static_cast<std::size_t>(model.state_size())),
-        ends_(rope_ends(model)), slack_state_(static_cast<std::size_t>(model.state_size())) {
+        ends_(rope_ends(model)) {
     guard_.unconverged = &ws.friction_unconverged;
-    if (!ends_.empty())
+    if (!ends_.empty()) {
+      slack_state_.resize(static_cast<std::size_t>(model.state_size()));
       slack_.emplace(static_cast<int>(ends_.size()), [this](const StepView& v, double* q) {
         for (std::size_t e = 0; e < ends_.size(); ++e) q[e] = -end_tension(model_, *v.ws, ends_[e]);
       });
+    }
   }
 
   RunOutcome run(State x) {
