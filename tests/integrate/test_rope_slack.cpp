@@ -71,7 +71,7 @@ RunOutcome run_first(const Spec& spec, Stepper method = Stepper::dopri5) {
 }
 }  // namespace
 
-TEST_CASE("a rope pendulum released from rest below 90 deg stays taut; above 90 deg it is slack at once",
+TEST_CASE("a rope pendulum released from rest below 90 deg stays taut, above 90 deg it is slack at once",
           "[integrate][rope]") {
   SECTION("80 deg: ok, least tension m g cos theta0") {
     const Spec spec = load_text("rope-80", point_pendulum("{single: {theta: [80 deg]}}", 6));
