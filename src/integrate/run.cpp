@@ -3,10 +3,14 @@
 #include <algorithm>
 #include <chrono>
 #include <cmath>
+#include <limits>
+#include <optional>
 
+#include <boost/math/tools/toms748_solve.hpp>
 #include <boost/numeric/odeint.hpp>
 
 #include "swaybound/core/cancel.hpp"
+#include "swaybound/integrate/extremes.hpp"
 #include <fmt/format.h>
 
 namespace swaybound {
@@ -22,6 +26,7 @@ std::string_view status_name(RunStatus status) {
     case RunStatus::step_budget: return "step_budget";
     case RunStatus::time_budget: return "time_budget";
     case RunStatus::friction_unconverged: return "friction_unconverged";
+    case RunStatus::rope_slack: return "rope_slack";
   }
   return "unknown";
 }
@@ -192,6 +197,30 @@ class Rkf78Method {
   bool stepped_ = false, have_older_ = false;
 };
 
+/// The ends of rope links whose tension must stay >= 0: the top end of every rope link, and its
+/// bottom end when a link hangs below it (the bottom end of the last link is free).
+struct RopeEnd {
+  int link;
+  bool top;
+};
+
+std::vector<RopeEnd> rope_ends(const Model& model) {
+  std::vector<RopeEnd> ends;
+  for (int i = 0; i < model.n; ++i) {
+    if (model.kind[static_cast<std::size_t>(i)] != LinkKind::rope) continue;
+    ends.push_back({i, true});
+    if (i + 1 < model.n) ends.push_back({i, false});
+  }
+  return ends;
+}
+
+/// The axial tension at a rope end [N] after `evaluate` and `finish_reactions`.
+double end_tension(const Model& model, const Workspace& ws, const RopeEnd& end) {
+  double top = 0, bottom = 0;
+  link_tension(model, ws, end.link, top, bottom);
+  return end.top ? top : bottom;
+}
+
 class Driver final : public DenseProbe {
  public:
   Driver(const Model& model, Workspace& ws, int scenario, const RunSettings& settings, const Observer& on_step,
@@ -199,8 +228,15 @@ class Driver final : public DenseProbe {
       : model_(model), ws_(ws), settings_(settings), on_step_(on_step), on_sample_(on_sample),
         system_(model, ws, scenario), guard_(settings.max_steps, settings.min_step, settings.max_seconds),
         scratch_(static_cast<std::size_t>(model.state_size())),
-        sample_(static_cast<std::size_t>(model.state_size())), probe_state_(static_cast<std::size_t>(model.state_size())) {
+        sample_(static_cast<std::size_t>(model.state_size())), probe_state_(static_cast<std::size_t>(model.state_size())),
+        ends_(rope_ends(model)) {
     guard_.unconverged = &ws.friction_unconverged;
+    if (!ends_.empty()) {
+      slack_state_.resize(static_cast<std::size_t>(model.state_size()));
+      slack_.emplace(static_cast<int>(ends_.size()), [this](const StepView& v, double* q) {
+        for (std::size_t e = 0; e < ends_.size(); ++e) q[e] = -end_tension(model_, *v.ws, ends_[e]);
+      });
+    }
   }
 
   RunOutcome run(State x) {
@@ -221,6 +257,7 @@ class Driver final : public DenseProbe {
       if (first) outcome_.energy0 = mechanical_energy(model_, ws_);
       first = false;
       observe(x, t, on_step_, true, Segment::start);
+      if (!guard_.ok()) break;  // a rope already slack at t = 0 or just after the jump
       emit_samples_up_to(t, true, [&](double, State& out) { out = x; });
       const double t_end = std::min(phase.t1, settings_.duration);
       final_segment_ = t_end >= settings_.duration;
@@ -235,6 +272,11 @@ class Driver final : public DenseProbe {
     }
     ws_.lazy_reactions = false;
     outcome_.t_reached = t;
+    outcome_.x_reached = x;
+    if (guard_.status() == RunStatus::rope_slack) {
+      outcome_.t_reached = slack_time_;
+      outcome_.x_reached = slack_state_;
+    }
     outcome_.evaluations = ws_.evaluations - evaluations_before;
     if (guard_.ok() && ws_.friction_unconverged > 0)
       guard_.fail(RunStatus::friction_unconverged,
@@ -268,14 +310,72 @@ class Driver final : public DenseProbe {
 
   /// Calls `observer` with ws evaluated at (x, t); `audit` folds the residual into the outcome.
   /// The view of an accepted step inside a segment carries this driver as its dense probe.
+  /// An observed accepted step (`audit`) is also checked for a slack rope, first: its probes
+  /// re-evaluate the workspace, which is then evaluated at (x, t) again for the observer. The
+  /// observer does not see a step in which a rope went slack.
   void observe(const State& x, double t, const Observer& observer, bool audit, Segment segment = Segment::inside) {
     StepView v = view(x, t);
     if (audit) outcome_.max_audit_residual = std::max(outcome_.max_audit_residual, std::fabs(v.audit_residual));
-    if (!observer) return;
     v.segment_start = segment == Segment::start;
     v.segment_end = segment == Segment::end;
     if (segment != Segment::start && interpolate_) v.probe = this;
+    if (audit && slack_) {
+      const long probes = slack_->probes();
+      watch_slack(v);
+      if (!guard_.ok()) return;
+      if (slack_->probes() != probes) {
+        system_(x, scratch_, t);
+        finish_reactions(model_, ws_);
+      }
+    }
+    if (!observer) return;
     observer(v);
+  }
+
+  /// The least rope-end tension at time t on the dense output [N].
+  double least_tension(double t) {
+    const StepView v = at(t);
+    double least = std::numeric_limits<double>::infinity();
+    for (const auto& e : ends_) least = std::min(least, end_tension(model_, *v.ws, e));
+    return least;
+  }
+
+  /// Feeds the slack watch; when some rope end's tension went below zero, locates the time it
+  /// reached zero (the instant itself at a segment start, else on the dense output between the
+  /// last time it was known positive and the negative value found) and ends the run there.
+  void watch_slack(const StepView& v) {
+    slack_->observe(v);
+    int worst = -1;
+    for (int e = 0; e < static_cast<int>(ends_.size()); ++e)
+      if (slack_->max(e).value > 0 && (worst < 0 || slack_->max(e).time < slack_->max(worst).time)) worst = e;
+    if (worst < 0) return;
+    double crossing = slack_->max(worst).time;
+    if (v.probe != nullptr) {
+      // Every sample before this step's span was offered to the watch and found taut (>= 0), so
+      // the zero lies between the span's start and the negative value found: locate it there.
+      const double a = from, b = crossing;
+      const double ta = least_tension(a), tb = least_tension(b);
+      if (ta <= 0) {
+        crossing = a;
+      } else if (tb < 0) {
+        const double tol = 1e-13 * std::max(1.0, std::fabs(b));
+        std::uintmax_t iterations = 100;
+        const auto found = boost::math::tools::toms748_solve(
+            [this](double ts) { return least_tension(ts); }, a, b, ta, tb,
+            [tol](double lo, double hi) { return std::fabs(hi - lo) <= tol; }, iterations);
+        crossing = found.second;  // the upper end: the tension is <= 0 there
+      }
+      interpolate_(crossing, slack_state_);
+    } else {
+      slack_state_.assign(v.x, v.x + model_.state_size());  // slack at a segment start: that instant
+    }
+    slack_time_ = crossing;
+    const RopeEnd& end = ends_[static_cast<std::size_t>(worst)];
+    guard_.fail(RunStatus::rope_slack,
+                fmt::format("rope '{}' went slack at t = {:.9g} s (its tension at the {} end reached zero): the "
+                            "rigid-rope model does not hold after that, so the case has no valid values past it; an "
+                            "elastic rope that can go slack is not modelled yet",
+                            model_.names[static_cast<std::size_t>(end.link)], crossing, end.top ? "top" : "bottom"));
   }
 
   /// Emits every output sample with time <= t (or < t when `include_t` is false: a sample on a
@@ -310,6 +410,7 @@ class Driver final : public DenseProbe {
         from = method.span_start();
         to = t1;
         observe(method.state(), t1, on_step_, true, phase_end ? Segment::end : Segment::inside);
+        if (!guard_.ok()) break;  // a rope went slack
         emit_samples_up_to(t1, !phase_end || final_segment_, [&](double ts, State& out) { method.sample(ts, out); });
         if (phase_end) {
           method.close(t_end);
@@ -341,6 +442,10 @@ class Driver final : public DenseProbe {
   std::function<void(double, State&)> interpolate_;  ///< the current segment's dense output
   bool final_segment_ = false;                     ///< this segment ends the run
   RunOutcome outcome_;
+  std::vector<RopeEnd> ends_;                      ///< rope ends watched for slack
+  std::optional<ExtremeFinder> slack_;             ///< max of -tension per rope end; empty without ropes
+  double slack_time_ = 0;                          ///< when a rope's tension reached zero [s]
+  State slack_state_;                              ///< the state then
   long next_sample_ = 0;
   double initial_step_ = 1e-3;
 };

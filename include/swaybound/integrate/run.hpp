@@ -20,6 +20,7 @@ enum class RunStatus {
   step_budget,           ///< more than max_steps steps
   time_budget,           ///< the wall-clock budget per case ran out
   friction_unconverged,  ///< the pin-friction fixed point did not converge at some evaluation
+  rope_slack,            ///< a rope link's tension went below zero: the rigid-rope model broke down
 };
 std::string_view status_name(RunStatus status);
 
@@ -120,7 +121,8 @@ using Observer = std::function<void(const StepView&)>;
 struct RunOutcome {
   RunStatus status = RunStatus::ok;
   std::string reason;             ///< empty when ok
-  double t_reached = 0;           ///< [s]
+  double t_reached = 0;           ///< [s]; for rope_slack: when the tension reached zero
+  std::vector<double> x_reached;  ///< the state at t_reached (layout as in chain.hpp)
   long steps = 0, rejected = 0;   ///< accepted and rejected steps
   long evaluations = 0;           ///< right-hand-side evaluations
   double energy0 = 0;             ///< [J]
@@ -131,7 +133,15 @@ struct RunOutcome {
 /// Integrates one case. `on_step` (optional) sees every segment start, every accepted step and
 /// every segment end (see StepView); `on_sample` (optional) sees t = k / output_rate from dense
 /// output. A sample that falls on a jump is right-continuous: it is taken under the new phase,
-/// except at the end of the run. Never throws for numerical trouble:
+/// except at the end of the run.
+///
+/// A rope link is a rigid bar that may only pull: when the axial tension at either end of any rope
+/// link goes below zero (strictly; a tolerance of 0) the run ends with rope_slack. The tension is
+/// watched as the case's extremes are (integrate/extremes.hpp: at every accepted step, on both sides
+/// of every jump, and inside steps on the dense output), and the time it reached zero is located
+/// on the dense output to the solver's accuracy; t_reached and x_reached are that time and state
+/// (a tension already negative at t = 0 or just after a jump fails at that instant). Observers may
+/// have seen the step in which it happened. Never throws for numerical trouble:
 /// the outcome carries the status and the reason. Throws ArgumentError for a bad scenario, start
 /// or duration, or a workspace built for another model.
 RunOutcome simulate_case(const Model& model, Workspace& ws, int scenario, const InitialState& start,
