@@ -66,9 +66,10 @@ Section scope_section(const Spec& spec, const CheckReport& r, const Document& d)
                    Span{"Every link is a rigid body of fixed length. " +
                         (ropes.empty() ? std::string("The chain has no rope links.")
                                        : "The rope link(s) " + ropes +
-                                             " are treated as rigid links of fixed length; their axial tension is "
-                                             "computed and checked, and a negative tension means the rope would go "
-                                             "slack, which the model itself does not represent.")}});
+                                             " are treated as rigid links of fixed length while taut; their axial tension "
+                                             "is computed and checked at both ends. A case in which it goes below "
+                                             "zero ends there with status rope_slack (the rigid model does not hold "
+                                             "once a rope is slack) and fails every check it touches.")}});
   std::string friction = "Friction at a pivot is a constant Coulomb torque plus pin friction mu r |R|, regularised "
                          "as tanh(w / w_t), so it never sticks exactly: below the transition rate w_t it acts like a "
                          "stiff viscous damper.";
@@ -97,7 +98,7 @@ Section scope_section(const Spec& spec, const CheckReport& r, const Document& d)
   s.blocks.push_back(bullets(model));
   s.blocks.push_back(subheading("Not modelled"));
   s.blocks.push_back(bullets(std::vector<std::string>{
-      "rope stretch (elastic ropes) and slack-rope dynamics;",
+      "rope stretch (elastic ropes) and the motion of a slack rope (a case ends when a rope goes slack);",
       "hoisting or lowering during travel (the rope length is fixed);",
       "three-dimensional (spherical) swing and twisting of the load;",
       "flexibility of the crane structure, boom, trolley and supports, and any feedback of the sway on the base "
