@@ -47,8 +47,8 @@ void prepare_every_command(const Spec& spec) {
   (void)modal_analysis(model);
   // size (src/cli/cmd_size.cpp): the design vector, the objective, the evaluator, and the model of
   // the designs at both ends of every range (the search starts from clamped bounds).
-  // `size` writes its designs as normalised YAML and re-loads them (src/sizing/sizing.cpp): the
-  // normalised form of an accepted spec must load again.
+  // `size` writes its designs as normalised YAML and re-loads them (Sizer::round_trip in
+  // src/sizing/sizer_ledger.cpp): the normalised form of an accepted spec must load again.
   (void)load_spec_text(normalised_yaml(spec), "normalised.yaml");
   if (spec.sizing) {
     const std::vector<DesignVariable> variables = design_variables(spec);
