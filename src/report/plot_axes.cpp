@@ -109,34 +109,30 @@ void fill_white(cairo_t* cr, double x, double y, double w, double h) {
   cairo_fill(cr);
 }
 
+namespace {
+/// Vertical lines at the x values and horizontal lines at the y values across the frame, one path.
+void grid_lines(cairo_t* cr, const Frame& f, const std::vector<double>& xs, const std::vector<double>& ys,
+                const Rgb& colour, double width) {
+  cairo_set_line_width(cr, width);
+  set_colour(cr, colour);
+  for (double v : xs) {
+    const double px = f.sx.map(v);
+    cairo_move_to(cr, px, f.y0);
+    cairo_line_to(cr, px, f.y1);
+  }
+  for (double v : ys) {
+    const double py = f.sy.map(v);
+    cairo_move_to(cr, f.x0, py);
+    cairo_line_to(cr, f.x1, py);
+  }
+  cairo_stroke(cr);
+}
+}  // namespace
+
 void draw_grid(cairo_t* cr, const Frame& f) {
   cairo_save(cr);
-  cairo_set_line_width(cr, 0.45);
-  set_colour(cr, kMinorGrid);
-  for (double v : f.tx.minor) {
-    const double px = f.sx.map(v);
-    cairo_move_to(cr, px, f.y0);
-    cairo_line_to(cr, px, f.y1);
-  }
-  for (double v : f.ty.minor) {
-    const double py = f.sy.map(v);
-    cairo_move_to(cr, f.x0, py);
-    cairo_line_to(cr, f.x1, py);
-  }
-  cairo_stroke(cr);
-  set_colour(cr, kGrid);
-  cairo_set_line_width(cr, 0.6);
-  for (double v : f.tx.major) {
-    const double px = f.sx.map(v);
-    cairo_move_to(cr, px, f.y0);
-    cairo_line_to(cr, px, f.y1);
-  }
-  for (double v : f.ty.major) {
-    const double py = f.sy.map(v);
-    cairo_move_to(cr, f.x0, py);
-    cairo_line_to(cr, f.x1, py);
-  }
-  cairo_stroke(cr);
+  grid_lines(cr, f, f.tx.minor, f.ty.minor, kMinorGrid, 0.45);
+  grid_lines(cr, f, f.tx.major, f.ty.major, kGrid, 0.6);
   cairo_restore(cr);
 }
 

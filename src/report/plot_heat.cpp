@@ -174,16 +174,7 @@ void draw_heat(cairo_t* cr, const Plot& p, double W, double H) {
     if (!(mk.value >= zlo && mk.value <= zhi)) continue;
     const double py = sz.map(mk.value);
     cairo_save(cr);
-    cairo_set_source_rgb(cr, 1, 1, 1);
-    cairo_set_line_width(cr, 3);
-    cairo_move_to(cr, bx0 - 3, py);
-    cairo_line_to(cr, bx1 + 3, py);
-    cairo_stroke(cr);
-    set_colour(cr, kRef);
-    cairo_set_line_width(cr, 1.2);
-    cairo_move_to(cr, bx0 - 3, py);
-    cairo_line_to(cr, bx1 + 3, py);
-    cairo_stroke(cr);
+    haloed_level_line(cr, bx0 - 3, bx1 + 3, py);
     cairo_restore(cr);
   }
   cairo_save(cr);

@@ -65,16 +65,7 @@ void draw_legend(cairo_t* cr, const std::vector<LegendEntry>& entries, const Leg
           set_colour(cr, sequential_colour(0.2 + 0.2 * k));
           cairo_fill(cr);
         }
-        cairo_set_source_rgb(cr, 1, 1, 1);
-        cairo_set_line_width(cr, 3);
-        cairo_move_to(cr, bx - 3, cy);
-        cairo_line_to(cr, bx + 13, cy);
-        cairo_stroke(cr);
-        set_colour(cr, kRef);
-        cairo_set_line_width(cr, 1.2);
-        cairo_move_to(cr, bx - 3, cy);
-        cairo_line_to(cr, bx + 13, cy);
-        cairo_stroke(cr);
+        haloed_level_line(cr, bx - 3, bx + 13, cy);
         break;
       }
       case LegendEntry::ref:

@@ -115,6 +115,19 @@ void paint_markers(cairo_t* cr, Marker m, const Rgb& c, bool opaque) {
   cairo_restore(cr);
 }
 
+void haloed_level_line(cairo_t* cr, double x0, double x1, double y) {
+  cairo_set_source_rgb(cr, 1, 1, 1);
+  cairo_set_line_width(cr, 3);
+  cairo_move_to(cr, x0, y);
+  cairo_line_to(cr, x1, y);
+  cairo_stroke(cr);
+  set_colour(cr, kRef);
+  cairo_set_line_width(cr, 1.2);
+  cairo_move_to(cr, x0, y);
+  cairo_line_to(cr, x1, y);
+  cairo_stroke(cr);
+}
+
 void draw_marker(cairo_t* cr, Marker m, double x, double y, double r, const Rgb& c) {
   cairo_new_path(cr);
   marker_path(cr, m, x, y, r);
