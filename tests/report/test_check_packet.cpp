@@ -19,6 +19,7 @@
 #include "swaybound/report/verify.hpp"
 #include "swaybound/spec.hpp"
 #include "../support/packet_files.hpp"
+#include "../support/sizing_specs.hpp"
 
 using namespace swaybound;
 namespace fs = std::filesystem;
@@ -38,19 +39,7 @@ limits:
   - {pivot_load: 6 kN, link: rope}
 )";
 
-const char* kSizingSpec = R"(
-swaybound: 1
-name: library sizing packet
-links:
-  - {name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {damper: {coefficient: 5 N m s/rad}}}
-cases: {duration: 10 s, initial: [{single: {theta: [2 deg]}}]}
-limits:
-  - {residual_sway: 0.5 deg, after: 9.5 s}
-sizing:
-  variables:
-    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}
-  budget: {evaluations: 40}
-)";
+const std::string kSizingSpec = swaybound::testing::arm_damper_sizing_yaml("library sizing packet", 40);
 
 /// A fresh folder for this process's files.
 fs::path temp(const std::string& name) {

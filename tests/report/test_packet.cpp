@@ -14,6 +14,7 @@
 #include "swaybound/report/diff.hpp"
 #include "swaybound/report/packet.hpp"
 #include "../support/packet_files.hpp"
+#include "../support/sizing_specs.hpp"
 
 using namespace swaybound;
 namespace fs = std::filesystem;
@@ -216,20 +217,8 @@ TEST_CASE("a full disk is reported as a write error and leaves no packet", "[pac
 TEST_CASE("swaybound size writes its convergence plots into its output folder", "[packet][sizing]") {
   const fs::path out = temp("sizing-out");
   fs::remove_all(out);
-  const fs::path spec = write_spec("sizing", R"(
-swaybound: 1
-name: sizing convergence plot
-gravity: 9.81
-links:
-  - {name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {damper: {coefficient: 5 N m s/rad}}}
-cases: {duration: 10 s, initial: [{single: {theta: [2 deg]}}]}
-limits:
-  - {residual_sway: 0.5 deg, after: 9.5 s}
-sizing:
-  variables:
-    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}
-  budget: {evaluations: 60}
-)");
+  const fs::path spec =
+      write_spec("sizing", swaybound::testing::arm_damper_sizing_yaml("sizing convergence plot", 60, "gravity: 9.81"));
   REQUIRE(run_cli(fmt::format("size {} --out {} --quiet", spec.string(), out.string())) == 0);
   for (const char* name : {"convergence_objective.svg", "convergence_margin.svg"}) {
     std::ifstream in(out / name);

@@ -13,6 +13,7 @@
 #include <nlohmann/json.hpp>
 
 #include "../support/process.hpp"
+#include "../support/sizing_specs.hpp"
 #include "swaybound/core/error.hpp"
 #include "swaybound/core/hash.hpp"
 #include "swaybound/report/diff.hpp"
@@ -159,19 +160,7 @@ TEST_CASE("an untouched packet verifies: check packet, sizing folder, the commit
   CHECK(example.checks_verified == 8);
 
   const fs::path sizing_spec = temp("sizing.yaml"), sizing = temp("sizing");
-  std::ofstream(sizing_spec) << R"(
-swaybound: 1
-name: sizing verify
-links:
-  - {name: arm, length: 1, mass: 1, com: 1, inertia: 0, pivot: {damper: {coefficient: 5 N m s/rad}}}
-cases: {duration: 10 s, initial: [{single: {theta: [2 deg]}}]}
-limits:
-  - {residual_sway: 0.5 deg, after: 9.5 s}
-sizing:
-  variables:
-    - {path: "links[arm].pivot.damper.coefficient", range: [0.5 N m s/rad, 10 N m s/rad], cost: 1}
-  budget: {evaluations: 40}
-)";
+  std::ofstream(sizing_spec) << swaybound::testing::arm_damper_sizing_yaml("sizing verify", 40);
   fs::remove_all(sizing);
   REQUIRE(run_cli(fmt::format("size {} --out {} --quiet", sizing_spec.string(), sizing.string())).status ==
           0);
