@@ -17,8 +17,12 @@ constexpr double kInfinity = std::numeric_limits<double>::infinity();
 double piece_position(const ProfilePiece& q, double d) {
   return q.p0 + d * (q.v0 + d * (q.a0 / 2 + d * q.j / 6));
 }
-double piece_speed(const ProfilePiece& q, double d) { return q.v0 + d * (q.a0 + d * q.j / 2); }
-double piece_accel(const ProfilePiece& q, double d) { return q.a0 + d * q.j; }
+double piece_speed(const ProfilePiece& q, double d) {
+  return q.v0 + d * (q.a0 + d * q.j / 2);
+}
+double piece_accel(const ProfilePiece& q, double d) {
+  return q.a0 + d * q.j;
+}
 
 /// Appends pieces one after another and keeps the state at the end of the last one.
 class PieceChain {
@@ -61,12 +65,16 @@ class PieceChain {
 
 void check_move(std::size_t index, const SpeedMove& m, double previous_reached, std::size_t previous_index) {
   if (!std::isfinite(m.at) || !std::isfinite(m.to) || !std::isfinite(m.accel) || !std::isfinite(m.jerk))
-    throw ProfileError(index, fmt::format("a value is not finite (at {}, to {}, accel {}, jerk {})", m.at, m.to, m.accel, m.jerk),
-                       "give finite numbers");
+    throw ProfileError(
+        index,
+        fmt::format("a value is not finite (at {}, to {}, accel {}, jerk {})", m.at, m.to, m.accel, m.jerk),
+        "give finite numbers");
   if (m.at < 0)
-    throw ProfileError(index, fmt::format("starts at {:g} s, before t = 0", m.at), "start it at 0 s or later");
+    throw ProfileError(index, fmt::format("starts at {:g} s, before t = 0", m.at),
+                       "start it at 0 s or later");
   if (m.accel <= 0)
-    throw ProfileError(index, fmt::format("accel is {:g} m/s^2", m.accel), "give an acceleration limit above 0");
+    throw ProfileError(index, fmt::format("accel is {:g} m/s^2", m.accel),
+                       "give an acceleration limit above 0");
   if (m.jerk < 0)
     throw ProfileError(index, fmt::format("jerk is {:g} m/s^3", m.jerk),
                        "give 0 for a trapezoid or a jerk limit above 0 for an S-curve");
@@ -102,9 +110,11 @@ SpeedProfile SpeedProfile::build(double initial_speed, const std::vector<SpeedMo
       end = m.at + 2 * std::sqrt(size / m.jerk);
     }
     if (!std::isfinite(end))
-      throw ProfileError(i, fmt::format("a speed change of {:g} m/s at {:g} m/s^2 ends at a time that is not finite",
-                                        change, m.accel),
-                         "raise accel (or jerk) or reduce the speed change");
+      throw ProfileError(
+          i,
+          fmt::format("a speed change of {:g} m/s at {:g} m/s^2 ends at a time that is not finite", change,
+                      m.accel),
+          "raise accel (or jerk) or reduce the speed change");
 
     chain.append(m.at, 0, 0, 0);  // constant speed up to the move
     if (m.jerk == 0) {

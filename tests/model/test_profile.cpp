@@ -37,7 +37,9 @@ double left_speed(const ProfilePiece& q) {
   const double d = q.t1 - q.t0;
   return q.v0 + q.a0 * d + q.j * d * d / 2;
 }
-double left_accel(const ProfilePiece& q) { return q.a0 + q.j * (q.t1 - q.t0); }
+double left_accel(const ProfilePiece& q) {
+  return q.a0 + q.j * (q.t1 - q.t0);
+}
 
 /// integral_0^t f, split at the profile's breakpoints; a 10-point Gauss-Legendre rule is exact for the
 /// polynomials of degree <= 19, so for each piece's cubic position, quadratic speed, linear acceleration.
@@ -55,11 +57,11 @@ double integral(const SpeedProfile& profile, F f, double t) {
 /// Accelerate (S-curve), cruise, brake (S-curve), reverse (trapezoid), cruise, brake (S-curve) and a
 /// small S-curve change that stays below the acceleration limit (triangular).
 const std::vector<SpeedMove> kSeveral = {
-    {0, 3, 1, 2},         // 0 -> 3 m/s: 3 >= 1^2/2, lasts 3/1 + 1/2 = 3.5 s, covers 1.5 * 3.5 = 5.25 m
-    {6, 0, 1.5, 3},       // cruise 2.5 s at 3 m/s = 7.5 m; 3 -> 0: 3/1.5 + 1.5/3 = 2.5 s, 3.75 m
-    {9, -1.5, 1, 0},      // 0.5 s at rest; 0 -> -1.5 trapezoid: 1.5 s, -1.125 m
-    {12, 0, 2, 8},        // cruise 1.5 s at -1.5 = -2.25 m; -1.5 -> 0: 1.5 >= 2^2/8, 0.75 + 0.25 = 1 s, -0.75 m
-    {13, 0.1, 2, 8},      // 0 -> 0.1: 0.1 < 0.5, triangular, 2 sqrt(0.1/8) s, 0.05 m/s times that
+    {0, 3, 1, 2},     // 0 -> 3 m/s: 3 >= 1^2/2, lasts 3/1 + 1/2 = 3.5 s, covers 1.5 * 3.5 = 5.25 m
+    {6, 0, 1.5, 3},   // cruise 2.5 s at 3 m/s = 7.5 m; 3 -> 0: 3/1.5 + 1.5/3 = 2.5 s, 3.75 m
+    {9, -1.5, 1, 0},  // 0.5 s at rest; 0 -> -1.5 trapezoid: 1.5 s, -1.125 m
+    {12, 0, 2, 8},    // cruise 1.5 s at -1.5 = -2.25 m; -1.5 -> 0: 1.5 >= 2^2/8, 0.75 + 0.25 = 1 s, -0.75 m
+    {13, 0.1, 2, 8},  // 0 -> 0.1: 0.1 < 0.5, triangular, 2 sqrt(0.1/8) s, 0.05 m/s times that
 };
 
 /// Every check that holds for any profile: contiguous pieces of positive duration from 0 to +infinity,
@@ -225,12 +227,12 @@ TEST_CASE("several moves: accelerate, cruise, brake, reverse, brake", "[profile]
   const SpeedProfile p = SpeedProfile::build(0, kSeveral);
   const double last = 2 * std::sqrt(0.1 / 8);  // the triangular move at the end
   CHECK_THAT(p.end_of_moves(), IsCloseTo(13 + last, 0, 1e-15));
-  CHECK_THAT(p.speed(5), IsCloseTo(3, 0, 1e-15));       // cruising
+  CHECK_THAT(p.speed(5), IsCloseTo(3, 0, 1e-15));  // cruising
   CHECK(p.accel(5) == 0);
-  CHECK_THAT(p.speed(8.75), IsCloseTo(0, 1e-15, 0));    // at rest between the brake and the reversal
-  CHECK_THAT(p.speed(11), IsCloseTo(-1.5, 0, 1e-15));   // reversed
-  CHECK(p.accel(9) == -1);                              // the trapezoid's step
-  CHECK(p.accel(12) == 0);                              // an S-curve starts at zero acceleration
+  CHECK_THAT(p.speed(8.75), IsCloseTo(0, 1e-15, 0));   // at rest between the brake and the reversal
+  CHECK_THAT(p.speed(11), IsCloseTo(-1.5, 0, 1e-15));  // reversed
+  CHECK(p.accel(9) == -1);                             // the trapezoid's step
+  CHECK(p.accel(12) == 0);                             // an S-curve starts at zero acceleration
   // Distance: sum of the moves' (v0 + v1)/2 * duration and the cruises' speed * time (kSeveral's notes).
   CHECK_THAT(p.position(3.5), IsCloseTo(5.25, 0, 1e-14));
   CHECK_THAT(p.position(6), IsCloseTo(5.25 + 7.5, 0, 1e-14));

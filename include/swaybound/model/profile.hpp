@@ -26,7 +26,8 @@
 namespace swaybound {
 
 /// One speed command: from time `at` [s], change the speed to `to` [m/s] with |acceleration| <= accel [m/s^2]
-/// and, if jerk > 0, |jerk| <= jerk [m/s^3] (S-curve); jerk = 0 means the acceleration steps (trapezoid in speed).
+/// and, if jerk > 0, |jerk| <= jerk [m/s^3] (S-curve); jerk = 0 means the acceleration steps (trapezoid in
+/// speed).
 struct SpeedMove {
   double at = 0, to = 0, accel = 0, jerk = 0;
 };
