@@ -3,6 +3,7 @@
 #include <cmath>
 
 #include "swaybound/dynamics/forces.hpp"
+#include "chain_stages.hpp"
 
 namespace swaybound {
 
@@ -27,12 +28,28 @@ void Scratch<N>::resize(int n) {
 Workspace::Workspace(const Model& model) : model_id(model.id), links(model.n) {
   const auto n = static_cast<std::size_t>(model.n);
   for (auto* v : {&alpha, &slide, &tau_fixed, &sin_t, &cos_t, &omega, &force_x, &force_y, &tau, &tau_pin, &reaction_x, &reaction_y, &reaction, &reaction_prev,
-                  &acc_x, &acc_y})
+                  &acc_x, &acc_y, &len_rate, &len_accel, &com_rate, &inertia_rate, &drum_force, &acc0_x, &acc0_y})
     v->assign(n, 0.0);
+  len = model.length;
+  com_now = model.com;
+  inertia_now = model.inertia;
+  const std::size_t ropes = model.elastic_links.size();
+  rope_slack.assign(ropes, 0);
+  for (auto* v : {&unstretched, &unstretched_rate, &stiffness, &stretch, &stretch_rate, &rope_force, &taut_margin})
+    v->assign(ropes, 0.0);
   s1.resize(1);
   s2.resize(2);
   s3.resize(3);
   sn.resize(model.n);
+  if (model.variable_length()) {
+    const auto e = static_cast<Eigen::Index>(model.extended), f = static_cast<Eigen::Index>(model.dof);
+    mass_x = Eigen::MatrixXd::Zero(e, e);
+    bias_x = rhs_x = accel_x = Eigen::VectorXd::Zero(e);
+    mass_f = Eigen::MatrixXd::Identity(f, f);
+    rhs_f = accel_f = Eigen::VectorXd::Zero(f);
+    llt_f.compute(mass_f);  // sizes the factor (see Scratch::resize)
+    jac_x = jac_y = Eigen::MatrixXd::Zero(static_cast<Eigen::Index>(n), e);
+  }
 }
 
 void require_built_for(const Model& model, const Workspace& ws) {
@@ -47,7 +64,7 @@ void kinematics(const Model& model, Workspace& ws, const Phase& p, const double*
   for (int i = 0; i < n; ++i) {
     ws.sin_t[i] = std::sin(x[i]);
     ws.cos_t[i] = std::cos(x[i]);
-    ws.omega[i] = x[n + i];
+    ws.omega[i] = x[model.dof + i];
   }
   const double dt = t - p.t0;
   ws.base_ax = p.ax;
@@ -56,6 +73,7 @@ void kinematics(const Model& model, Workspace& ws, const Phase& p, const double*
   ws.base_vy = p.vy0 + p.ay * dt;
   ws.base_x = p.x0 + p.vx0 * dt + 0.5 * p.ax * dt * dt;
   ws.base_y = p.y0 + p.vy0 * dt + 0.5 * p.ay * dt * dt;
+  if (model.variable_length()) rope_kinematics(model, ws, p, x, t);
 }
 
 void point_state(const Model& model, const Workspace& ws, const PointRef& p, double& px, double& py, double& vx, double& vy) {
@@ -69,23 +87,29 @@ void point_state(const Model& model, const Workspace& ws, const PointRef& p, dou
     return;
   }
   for (int j = 0; j <= p.link; ++j) {
-    const double r = j < p.link ? model.length[j] : p.at;
+    // A point on a rope of variable length keeps its fraction of the length.
+    const double scale = j < p.link ? 1.0 : p.at / model.length[j];
+    const bool fixed = model.length_coordinate[j] < 0 && ws.len_rate[j] == 0.0;
+    const double r = j < p.link ? ws.len[j] : fixed ? p.at : ws.len[j] * scale, r_rate = ws.len_rate[j] * scale;
     px += r * ws.sin_t[j];
     py -= r * ws.cos_t[j];
-    vx += r * ws.omega[j] * ws.cos_t[j];
-    vy += r * ws.omega[j] * ws.sin_t[j];
+    vx += r * ws.omega[j] * ws.cos_t[j] + r_rate * ws.sin_t[j];
+    vy += r * ws.omega[j] * ws.sin_t[j] - r_rate * ws.cos_t[j];
   }
 }
 
 namespace {
 
-/// Adds a point force (fx, fy) on link k at distance s to the generalised forces q and ws.force_*.
+/// Adds a point force (fx, fy) on link k at distance s (at the link's length in the spec) to the
+/// generalised forces q (extended coordinates) and ws.force_*.
 void apply_point_force(const Model& model, Workspace& ws, int k, double s, double fx, double fy, double* q) {
   ws.force_x[k] += fx;
   ws.force_y[k] += fy;
   for (int i = 0; i <= k; ++i) {
-    const double lever = i < k ? model.length[i] : s;
+    const double scale = i < k ? 1.0 : s / model.length[i];
+    const double lever = i < k ? ws.len[i] : model.length_coordinate[i] < 0 ? s : ws.len[i] * scale;
     q[i] += (fx * ws.cos_t[i] + fy * ws.sin_t[i]) * lever;
+    if (const int c = model.length_coordinate[i]; c >= 0) q[c] += (fx * ws.sin_t[i] - fy * ws.cos_t[i]) * scale;
   }
 }
 
@@ -160,9 +184,13 @@ void pivot_reactions(const Model& model, Workspace& ws, const double* alpha) {
     px += model.length[k] * tx;
     py += model.length[k] * ty;
   }
+  sub_chain_reactions(model, ws);
+}
+
+void sub_chain_reactions(const Model& model, Workspace& ws) {
   // Backward: Newton's second law for the sub-chain below each pivot.
   double fx = 0, fy = 0;
-  for (int k = n - 1; k >= 0; --k) {
+  for (int k = model.n - 1; k >= 0; --k) {
     fx += model.mass[k] * ws.acc_x[k] - ws.force_x[k];
     fy += model.mass[k] * (ws.acc_y[k] + model.gravity) - ws.force_y[k];
     ws.reaction_x[k] = fx;
@@ -172,8 +200,6 @@ void pivot_reactions(const Model& model, Workspace& ws, const double* alpha) {
 }
 
 namespace {
-
-constexpr int kMaxFrictionIterations = 50;
 
 template <int N>
 void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const Phase& phase, const double* x, double t,
@@ -231,25 +257,7 @@ void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const Phas
   };
   solve(nullptr);
   ws.reactions_current = need_reactions;
-  ws.friction_iterations = 0;
-  if (model.any_pin_friction) {
-    // Fixed point R = reactions(alpha(tau_pin(R))), started from the reactions without pin
-    // friction. The map contracts by about mu * r_pin / (link length) per iteration (small for
-    // real pins), so a few iterations reach the tolerance.
-    bool converged = false;
-    for (int it = 0; it < kMaxFrictionIterations && !converged; ++it) {
-      ws.reaction_prev = ws.reaction;
-      solve(ws.reaction_prev.data());
-      double change = 0, scale = 0;
-      for (int i = 0; i < n; ++i) {
-        change = std::fmax(change, std::fabs(ws.reaction[i] - ws.reaction_prev[i]));
-        scale = std::fmax(scale, ws.reaction[i]);
-      }
-      ws.friction_iterations = it + 1;
-      converged = change <= 1e-13 * scale;
-    }
-    if (!converged) ++ws.friction_unconverged;
-  }
+  pin_friction_fixed_point(model, ws, solve);
 
   // Powers: pivot torques dissipate tau * relative rate; the base does work through pivot 0.
   if (model.any_pivot_torque)
@@ -261,7 +269,7 @@ void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const Phas
     ws.input_power += ws.reaction_x[0] * ws.base_vx + ws.reaction_y[0] * ws.base_vy;
 
   for (int i = 0; i < n; ++i) {
-    dxdt[i] = x[n + i];
+    dxdt[i] = x[n + i];  // a model of fixed lengths: dof = n
     dxdt[n + i] = sc.alpha(i);
     ws.alpha[i] = sc.alpha(i);
   }
@@ -273,6 +281,10 @@ void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const Phas
 
 void evaluate(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt) {
   require_built_for(model, ws);
+  if (model.variable_length()) {
+    evaluate_general(model, ws, phase, x, t, dxdt);
+    return;
+  }
   switch (model.n) {
     case 1: evaluate_impl(model, ws, ws.s1, phase, x, t, dxdt); break;
     case 2: evaluate_impl(model, ws, ws.s2, phase, x, t, dxdt); break;
@@ -283,22 +295,27 @@ void evaluate(const Model& model, Workspace& ws, const Phase& phase, const doubl
 
 void finish_reactions(const Model& model, Workspace& ws) {
   if (ws.reactions_current) return;
-  pivot_reactions(model, ws, ws.alpha.data());
+  if (model.variable_length())
+    general_reactions(model, ws);
+  else
+    pivot_reactions(model, ws, ws.alpha.data());
   ws.reactions_current = true;
 }
 
 double mechanical_energy(const Model& model, const Workspace& ws) {
-  double energy = 0;
+  double energy = ws.strain_energy;
   double py = ws.base_y, vx = ws.base_vx, vy = ws.base_vy;  // x positions do not enter the energy
   for (int k = 0; k < model.n; ++k) {
-    const double c = model.com[k];
+    const double c = ws.com_now[k], c_rate = ws.com_rate[k];
     const double cy = py - c * ws.cos_t[k];
-    const double cvx = vx + c * ws.omega[k] * ws.cos_t[k], cvy = vy + c * ws.omega[k] * ws.sin_t[k];
-    energy += 0.5 * model.mass[k] * (cvx * cvx + cvy * cvy) + 0.5 * model.inertia[k] * ws.omega[k] * ws.omega[k] +
+    const double cvx = vx + c * ws.omega[k] * ws.cos_t[k] + c_rate * ws.sin_t[k];
+    const double cvy = vy + c * ws.omega[k] * ws.sin_t[k] - c_rate * ws.cos_t[k];
+    energy += 0.5 * model.mass[k] * (cvx * cvx + cvy * cvy) + 0.5 * ws.inertia_now[k] * ws.omega[k] * ws.omega[k] +
               model.mass[k] * model.gravity * cy;
-    py -= model.length[k] * ws.cos_t[k];
-    vx += model.length[k] * ws.omega[k] * ws.cos_t[k];
-    vy += model.length[k] * ws.omega[k] * ws.sin_t[k];
+    const double l = ws.len[k], l_rate = ws.len_rate[k];
+    py -= l * ws.cos_t[k];
+    vx += l * ws.omega[k] * ws.cos_t[k] + l_rate * ws.sin_t[k];
+    vy += l * ws.omega[k] * ws.sin_t[k] - l_rate * ws.cos_t[k];
   }
   return energy;
 }

@@ -11,6 +11,8 @@
 
 #include "swaybound/core/cancel.hpp"
 #include "swaybound/integrate/extremes.hpp"
+#include "methods.hpp"
+#include "mode_watch.hpp"
 #include <fmt/format.h>
 
 namespace swaybound {
@@ -27,6 +29,18 @@ std::string_view status_name(RunStatus status) {
     case RunStatus::time_budget: return "time_budget";
     case RunStatus::friction_unconverged: return "friction_unconverged";
     case RunStatus::rope_slack: return "rope_slack";
+    case RunStatus::touch_down: return "touch_down";
+    case RunStatus::mode_chatter: return "mode_chatter";
+  }
+  return "unknown";
+}
+
+std::string_view event_name(ModeEventKind kind) {
+  switch (kind) {
+    case ModeEventKind::slack: return "slack";
+    case ModeEventKind::taut: return "taut";
+    case ModeEventKind::lift_off: return "lift_off";
+    case ModeEventKind::touch_down: return "touch_down";
   }
   return "unknown";
 }
@@ -97,105 +111,9 @@ bool StepGuard::reject(double t, double dt) {
 
 namespace {
 
-/// Dormand-Prince 5(4) with its continuous extension (Odeint's dense-output stepper), as the
-/// driver's loop uses a method: `step` takes one accepted step towards t_end, `interpolate` serves
-/// the previous and the current accepted step, `sample` the current one.
-class Dopri5Method {
- public:
-  Dopri5Method(const RunSettings& s, const State& x, double t, double dt)
-      : stepper_(odeint::make_dense_output(s.atol, s.rtol, odeint::runge_kutta_dopri5<State>())) {
-    stepper_.initialize(x, t, dt);
-    // Copy-assigned each step: no allocation after this one.
-    previous_ = stepper_;
-  }
-  /// One accepted step, shortened to end on t_end. Odeint retries rejected trial steps itself and
-  /// throws when none can be accepted. Returns true (the guard is not consulted on rejections).
-  bool step(ChainSystem& system, double t_end, StepGuard&) {
-    const double remaining = t_end - stepper_.current_time();
-    if (stepped_) {
-      previous_ = stepper_;  // the previous step's interpolant, for extremes near a step boundary
-      have_previous_ = true;
-    }
-    if (stepper_.current_time_step() > remaining)
-      stepper_.initialize(stepper_.current_state(), stepper_.current_time(), remaining);
-    start_ = stepper_.do_step(std::ref(system)).first;
-    stepped_ = true;
-    return true;
-  }
-  double time() const { return stepper_.current_time(); }
-  const State& state() const { return stepper_.current_state(); }
-  double step_start() const { return start_; }
-  double span_start() const { return have_previous_ ? previous_.previous_time() : start_; }
-  void interpolate(double ts, State& out) {
-    if (have_previous_ && ts < stepper_.previous_time())
-      previous_.calc_state(ts, out);
-    else
-      stepper_.calc_state(ts, out);
-  }
-  void sample(double ts, State& out) { stepper_.calc_state(ts, out); }
-  void close(double) {}
-  double next_step() const { return std::max(stepper_.current_time_step(), 1e-6); }
-
- private:
-  using DenseStepper = decltype(odeint::make_dense_output(1.0, 1.0, odeint::runge_kutta_dopri5<State>()));
-  DenseStepper stepper_, previous_;
-  bool stepped_ = false, have_previous_ = false;
-  double start_ = 0;
-};
-
-/// Runge-Kutta-Fehlberg 7(8) under Odeint's step-size control. Odeint has no dense output for it:
-/// a state inside an accepted step is computed by one uncontrolled RKF78 step from the step's
-/// start to that time (shorter than the accepted step, so at least as accurate), which keeps it at
-/// the stepper's own order.
-class Rkf78Method {
- public:
-  Rkf78Method(const RunSettings& s, const State& x, double t, double dt, ChainSystem& system)
-      : stepper_(odeint::make_controlled(s.atol, s.rtol, odeint::runge_kutta_fehlberg78<State>())), system_(system),
-        x_(x), x_old_(x), x_older_(x), t_(t), t_old_(t), t_older_(t), dt_(dt) {}
-  /// One accepted step towards t_end; rejected trials go to the guard. False when it stops the run.
-  bool step(ChainSystem& system, double t_end, StepGuard& guard) {
-    if (stepped_) {
-      x_older_ = x_old_;
-      t_older_ = t_old_;
-      have_older_ = true;
-    }
-    t_old_ = t_;
-    x_old_ = x_;
-    for (;;) {
-      dt_ = std::min(dt_, t_end - t_);
-      if (stepper_.try_step(std::ref(system), x_, t_, dt_) != odeint::fail) break;
-      if (!guard.reject(t_, dt_)) return false;
-    }
-    stepped_ = true;
-    return true;
-  }
-  double time() const { return t_; }
-  const State& state() const { return x_; }
-  double step_start() const { return t_old_; }
-  double span_start() const { return have_older_ ? t_older_ : t_old_; }
-  void interpolate(double ts, State& out) {
-    if (have_older_ && ts < t_old_)
-      from_start(x_older_, t_older_, ts, out);
-    else
-      from_start(x_old_, t_old_, ts, out);
-  }
-  void sample(double ts, State& out) { from_start(x_old_, t_old_, ts, out); }
-  /// A step that closed the segment lands exactly on its end.
-  void close(double t_end) { t_ = t_end; }
-  double next_step() const { return std::max(dt_, 1e-6); }
-
- private:
-  void from_start(const State& start, double t_start, double ts, State& out) {
-    out = start;
-    if (ts > t_start) sampler_.do_step(std::ref(system_), out, t_start, ts - t_start);
-  }
-  decltype(odeint::make_controlled(1.0, 1.0, odeint::runge_kutta_fehlberg78<State>())) stepper_;
-  odeint::runge_kutta_fehlberg78<State> sampler_;
-  ChainSystem& system_;
-  State x_, x_old_, x_older_;
-  double t_, t_old_, t_older_, dt_;
-  bool stepped_ = false, have_older_ = false;
-};
+using integrate_detail::Dopri5Method;
+using integrate_detail::ModeWatch;
+using integrate_detail::Rkf78Method;
 
 /// The ends of rope links whose tension must stay >= 0: the top end of every rope link, and its
 /// bottom end when a link hangs below it (the bottom end of the last link is free).
@@ -208,6 +126,7 @@ std::vector<RopeEnd> rope_ends(const Model& model) {
   std::vector<RopeEnd> ends;
   for (int i = 0; i < model.n; ++i) {
     if (model.kind[static_cast<std::size_t>(i)] != LinkKind::rope) continue;
+    if (model.length_kind[static_cast<std::size_t>(i)] == LengthKind::elastic) continue;  // has its own law
     ends.push_back({i, true});
     if (i + 1 < model.n) ends.push_back({i, false});
   }
@@ -229,8 +148,13 @@ class Driver final : public DenseProbe {
         system_(model, ws, scenario), guard_(settings.max_steps, settings.min_step, settings.max_seconds),
         scratch_(static_cast<std::size_t>(model.state_size())),
         sample_(static_cast<std::size_t>(model.state_size())), probe_state_(static_cast<std::size_t>(model.state_size())),
-        ends_(rope_ends(model)) {
+        ends_(rope_ends(model)), watch_(model, model.scenarios[static_cast<std::size_t>(scenario)].lift_off) {
     guard_.unconverged = &ws.friction_unconverged;
+    h_start_.resize(static_cast<std::size_t>(watch_.count()));
+    h_mid_.resize(h_start_.size());
+    h_end_.resize(h_start_.size());
+    h_probe_.resize(h_start_.size());
+    switch_state_.resize(static_cast<std::size_t>(model.state_size()));
     if (!ends_.empty()) {
       slack_state_.resize(static_cast<std::size_t>(model.state_size()));
       slack_.emplace(static_cast<int>(ends_.size()), [this](const StepView& v, double* q) {
@@ -251,23 +175,28 @@ class Driver final : public DenseProbe {
     for (std::size_t k = 0; k < scenario.phases.size() && t < settings_.duration && guard_.ok(); ++k) {
       const Phase& phase = scenario.phases[k];
       if (phase.t1 <= t) continue;
-      system_.enter_phase(k);
-      // The segment's first state under its own inputs: the right-hand limit at the jump.
-      system_.ensure(x, t, scratch_);
-      if (first) outcome_.energy0 = mechanical_energy(model_, ws_);
-      first = false;
-      observe(x, t, on_step_, true, Segment::start);
-      if (!guard_.ok()) break;  // a rope already slack at t = 0 or just after the jump
-      emit_samples_up_to(t, true, [&](double, State& out) { out = x; });
       const double t_end = std::min(phase.t1, settings_.duration);
-      final_segment_ = t_end >= settings_.duration;
-      const double dt = std::min(initial_step_, t_end - t);
-      if (settings_.method == Stepper::dopri5) {
-        Dopri5Method method(settings_, x, t, dt);
-        integrate_segment(method, x, t, t_end);
-      } else {
-        Rkf78Method method(settings_, x, t, dt, system_);
-        integrate_segment(method, x, t, t_end);
+      // Segments of the phase: cut again wherever a contact law switches.
+      while (t < t_end && guard_.ok()) {
+        system_.enter_phase(k);
+        // The segment's first state under its own inputs: the right-hand limit at the jump.
+        system_.ensure(x, t, scratch_);
+        if (first) outcome_.energy0 = mechanical_energy(model_, ws_);
+        first = false;
+        if (watch_.active()) watch_.indicators(ws_, h_start_.data());
+        observe(x, t, on_step_, true, Segment::start);
+        if (!guard_.ok()) break;  // a rigid rope already slack at t = 0 or just after the jump
+        emit_samples_up_to(t, true, [&](double, State& out) { out = x; });
+        final_segment_ = t_end >= settings_.duration;
+        const double dt = std::min(initial_step_, t_end - t);
+        if (settings_.method == Stepper::dopri5) {
+          Dopri5Method method(settings_, x, t, dt);
+          integrate_segment(method, x, t, t_end);
+        } else {
+          Rkf78Method method(settings_, x, t, dt, system_);
+          integrate_segment(method, x, t, t_end);
+        }
+        if (switching_ >= 0) switch_branch(t);
       }
     }
     ws_.lazy_reactions = false;
@@ -302,8 +231,8 @@ class Driver final : public DenseProbe {
   StepView view(const State& x, double t) {
     finish_reactions(model_, ws_);
     const double energy = mechanical_energy(model_, ws_);
-    const auto n = static_cast<std::size_t>(model_.n);
-    const double residual = energy + x[2 * n] - x[2 * n + 1] - outcome_.energy0;
+    const auto dof = static_cast<std::size_t>(model_.dof);
+    const double residual = energy + x[2 * dof] - x[2 * dof + 1] - outcome_.energy0;
     StepView v{t, x.data(), &ws_, &system_.phase(), energy, residual};
     return v;
   }
@@ -378,6 +307,107 @@ class Driver final : public DenseProbe {
                             model_.names[static_cast<std::size_t>(end.link)], crossing, end.top ? "top" : "bottom"));
   }
 
+  /// Looks for a switch of a contact law within the accepted step [t0, t1] (ws evaluated at t1):
+  /// an indicator negative at t1, at the step's midpoint, or at the vertex of the parabola through
+  /// the three when that vertex dips below zero. The earliest switch is located on the dense output
+  /// (TOMS 748) and kept in switch_time_ (the end of the final bracket, where the indicator is <= 0),
+  /// switch_state_ and switching_; ws is left evaluated at t1 when there is none.
+  bool find_switch(double t0, double t1, const State& x1) {
+    const int count = watch_.count();
+    watch_.indicators(ws_, h_end_.data());
+    const double tm = 0.5 * (t0 + t1);
+    indicators_at(tm, h_mid_.data());
+    double best = std::numeric_limits<double>::infinity();
+    int best_j = -1;
+    for (int j = 0; j < count; ++j) {
+      const auto u = static_cast<std::size_t>(j);
+      double a = t0, b = t1, ha = h_start_[u], hb = h_end_[u];
+      if (ha <= 0 && (h_mid_[u] < 0 || hb < 0)) {
+        b = t0;  // violated at once: the branch entered at t0 does not hold (a graze)
+      } else if (h_mid_[u] < 0) {
+        b = tm;
+        hb = h_mid_[u];
+      } else if (hb < 0) {
+        a = tm;
+        ha = h_mid_[u];
+      } else {
+        // A dip between the samples: the vertex of the parabola through them.
+        const double d1 = (h_mid_[u] - h_start_[u]) / (tm - t0), d2 = (h_end_[u] - h_mid_[u]) / (t1 - tm);
+        const double curvature = (d2 - d1) / (t1 - t0);
+        if (!(curvature > 0)) continue;
+        const double tv = 0.5 * (t0 + tm) - d1 / (2 * curvature);
+        if (!(tv > t0 && tv < t1)) continue;
+        const double hv = h_mid_[u] + (tv - tm) * (d1 + curvature * (tv - t0));  // Newton form at tm
+        if (hv > 0.25 * std::min(h_start_[u], h_mid_[u])) continue;
+        const double probed = indicator_at(j, tv);
+        if (!(probed < 0)) continue;
+        if (tv < tm) {
+          b = tv;
+          hb = probed;
+        } else {
+          a = tm;
+          ha = h_mid_[u];
+          b = tv;
+          hb = probed;
+        }
+      }
+      if (b > a && ha > 0) {
+        const double tol = 1e-13 * std::max(1.0, std::fabs(b));
+        std::uintmax_t iterations = 100;
+        b = boost::math::tools::toms748_solve([this, j](double ts) { return indicator_at(j, ts); }, a, b, ha, hb,
+                                               [tol](double lo, double hi) { return std::fabs(hi - lo) <= tol; },
+                                               iterations)
+                .second;
+      }
+      if (b < best) {
+        best = b;
+        best_j = j;
+      }
+    }
+    if (best_j < 0) {
+      system_.ensure(x1, t1, scratch_);
+      std::swap(h_start_, h_end_);
+      return false;
+    }
+    switch_time_ = best;
+    switching_ = best_j;
+    interpolate_(best, switch_state_);
+    return true;
+  }
+
+  /// The indicators at time t on the dense output (re-evaluates ws there).
+  void indicators_at(double t, double* h) {
+    at(t);
+    watch_.indicators(ws_, h);
+  }
+  double indicator_at(int j, double t) {
+    at(t);
+    watch_.indicators(ws_, h_probe_.data());
+    return h_probe_[static_cast<std::size_t>(j)];
+  }
+
+  /// Switches the branch found by find_switch at time t (x: the state there), records the event,
+  /// and ends the run at a touch-down or when the switches exceed their budget.
+  void switch_branch(double t) {
+    const int j = switching_;
+    switching_ = -1;
+    system_(switch_state_, scratch_, t);  // the old branch at the switch
+    const ModeEvent event = watch_.flip(j, ws_, t);
+    ++outcome_.switches;
+    if (outcome_.events.size() < RunOutcome::kMaxRecordedEvents) outcome_.events.push_back(event);
+    if (event.kind == ModeEventKind::touch_down) {
+      guard_.fail(RunStatus::touch_down,
+                  fmt::format("the load came down to the ground again at t = {:.9g} s after lifting off; setting a "
+                              "load down is not modelled, so the case has no valid values past it",
+                              t));
+    } else if (outcome_.switches > settings_.max_switches) {
+      guard_.fail(RunStatus::mode_chatter,
+                  fmt::format("more than {} switches between slack and taut (or on and off the ground) by t = {:.9g} s; "
+                              "the rope chatters at zero tension",
+                              settings_.max_switches, t));
+    }
+  }
+
   /// Emits every output sample with time <= t (or < t when `include_t` is false: a sample on a
   /// jump belongs to the next phase), getting each state from `interpolate`.
   template <class Interpolate>
@@ -409,6 +439,19 @@ class Driver final : public DenseProbe {
         if (!guard_.accept(method.state(), t1, t1 - method.step_start(), phase_end)) break;
         from = method.span_start();
         to = t1;
+        if (watch_.active() && find_switch(method.step_start(), t1, method.state())) {
+          // Ends the segment at the switch: its left-hand limit, under the old branch.
+          to = switch_time_;
+          system_(switch_state_, scratch_, switch_time_);
+          observe(switch_state_, switch_time_, on_step_, true, Segment::end);
+          if (guard_.ok())
+            emit_samples_up_to(switch_time_, false, [&](double ts, State& out) { method.interpolate(ts, out); });
+          interpolate_ = nullptr;
+          x = switch_state_;
+          t = switch_time_;
+          initial_step_ = method.next_step();
+          return;
+        }
         observe(method.state(), t1, on_step_, true, phase_end ? Segment::end : Segment::inside);
         if (!guard_.ok()) break;  // a rope went slack
         emit_samples_up_to(t1, !phase_end || final_segment_, [&](double ts, State& out) { method.sample(ts, out); });
@@ -443,6 +486,11 @@ class Driver final : public DenseProbe {
   bool final_segment_ = false;                     ///< this segment ends the run
   RunOutcome outcome_;
   std::vector<RopeEnd> ends_;                      ///< rope ends watched for slack
+  ModeWatch watch_;                                ///< switches of contact laws (elastic ropes, ground)
+  std::vector<double> h_start_, h_mid_, h_end_, h_probe_;  ///< its indicators at a step's start, middle, end, a probe
+  int switching_ = -1;                             ///< indicator that switches at the end of the segment, or -1
+  double switch_time_ = 0;                         ///< [s]
+  State switch_state_;
   std::optional<ExtremeFinder> slack_;             ///< max of -tension per rope end; empty without ropes
   double slack_time_ = 0;                          ///< when a rope's tension reached zero [s]
   State slack_state_;                              ///< the state then
@@ -464,7 +512,10 @@ RunOutcome simulate_case(const Model& model, Workspace& ws, int scenario, const 
   require_built_for(model, ws);
   State x(static_cast<std::size_t>(model.state_size()), 0.0);
   std::copy(start.theta.begin(), start.theta.end(), x.begin());
-  std::copy(start.omega.begin(), start.omega.end(), x.begin() + model.n);
+  std::copy(start.omega.begin(), start.omega.end(), x.begin() + model.dof);
+  const ScenarioModel& s = model.scenarios[static_cast<std::size_t>(scenario)];
+  ws.grounded = false;
+  rope_start(model, ws, s.phases.front(), s.lift_off, s.lift_off_slack, x);
   Driver driver(model, ws, scenario, settings, on_step, on_sample);
   return driver.run(std::move(x));
 }

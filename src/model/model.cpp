@@ -68,6 +68,45 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
   return out;
 }
 
+/// Length kinds, rope laws and the extended coordinates of ropes of variable length.
+void assign_length_coordinates(const Spec& spec, Model& m) {
+  const auto n = static_cast<std::size_t>(m.n);
+  m.length_kind.assign(n, LengthKind::fixed);
+  m.parts.assign(n, 1);
+  m.rope_law.assign(n, RopeLaw{});
+  m.length_coordinate.assign(n, -1);
+  for (std::size_t i = 0; i < n; ++i) {
+    const LinkSpec& l = spec.links[i];
+    if (l.kind != LinkKind::rope) continue;
+    m.parts[i] = l.parts_of_line;
+    if (l.elastic) {
+      m.length_kind[i] = LengthKind::elastic;
+      const double ea = l.elastic->stiffness > 0 ? l.elastic->stiffness * l.length : l.parts_of_line * l.elastic->ea;
+      double damping = l.elastic->damping;
+      if (l.elastic->damping_ratio >= 0) {
+        // Generalised mass of the length coordinate hanging at rest: phi^2 m_rope + the mass below.
+        const double phi = m.com[i] / l.length;
+        const double mass = phi * phi * m.mass[i] + (i + 1 < n ? m.mass_below[i + 1] : 0.0);
+        damping = 2 * l.elastic->damping_ratio * std::sqrt(ea / l.length * mass);
+      }
+      m.rope_law[i] = RopeLaw{ea, damping};
+    }
+  }
+  for (const ScenarioModel& s : m.scenarios)
+    if (s.hoist_link >= 0 && m.length_kind[static_cast<std::size_t>(s.hoist_link)] == LengthKind::fixed)
+      m.length_kind[static_cast<std::size_t>(s.hoist_link)] = LengthKind::prescribed;
+  int next = m.n;
+  for (std::size_t i = 0; i < n; ++i)
+    if (m.length_kind[i] == LengthKind::elastic) {
+      m.length_coordinate[i] = next++;
+      m.elastic_links.push_back(static_cast<int>(i));
+    }
+  m.dof = next;
+  for (std::size_t i = 0; i < n; ++i)
+    if (m.length_kind[i] == LengthKind::prescribed) m.length_coordinate[i] = next++;
+  m.extended = next;
+}
+
 }  // namespace
 
 Model build_model(const Spec& spec) {
@@ -123,6 +162,7 @@ Model build_model(const Spec& spec) {
   for (const auto& w : spec.wind)
     m.wind.push_back(WindModel{PointRef{w.link, w.at, 0, 0}, 0.5 * w.air_density * w.drag_coefficient * w.drag_area});
   for (const auto& s : spec.scenarios) m.scenarios.push_back(build_scenario(s, spec.wind));
+  assign_length_coordinates(spec, m);
   return m;
 }
 

@@ -625,7 +625,9 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   if (top.has("wind")) read_wind(ctx, top.get("wind"), spec);
   if (top.has("base")) read_base(ctx, top.get("base"), spec);
   if (spec.scenarios.empty() && !top.has("base")) {
-    spec.scenarios.push_back(ScenarioSpec{"still", 0, 0, {}, {}});
+    ScenarioSpec still;
+    still.name = "still";
+    spec.scenarios.push_back(still);
     ctx.defaults_filled.push_back("base.scenarios");
   }
   read_cases(top, spec, options);

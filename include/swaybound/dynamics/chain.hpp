@@ -89,6 +89,37 @@ struct Workspace {
   std::vector<double> reaction_prev; ///< previous pin-friction iterate of `reaction` [N] (N)
   bool reactions_current = false;    ///< reaction_* belong to the last evaluation
 
+  // Ropes of variable length (`kinematics`, `rope_forces`; models with model.variable_length()).
+  // For a link of fixed length len = its length, com_now = its com, inertia_now = its inertia and
+  // the rates are 0, so kinematics and energy read these for every model.
+  std::vector<double> len, len_rate;     ///< link length [m] and its rate [m/s] (N)
+  std::vector<double> len_accel;         ///< its acceleration where known (fixed, prescribed) [m/s^2] (N)
+  std::vector<double> com_now, com_rate; ///< centre of mass from the upper pivot [m], its rate [m/s] (N)
+  std::vector<double> inertia_now, inertia_rate;  ///< about the centre of mass [kg m^2], rate [kg m^2/s] (N)
+  double drum_s = 0, drum_v = 0, drum_a = 0;  ///< rope hauled in at the drum [m], speed [m/s], acceleration [m/s^2]
+  // Per elastic rope r (model.elastic_links[r]); R = their number.
+  std::vector<char> rope_slack;          ///< caller's choice: rope r is evaluated with the slack law (no force) (R)
+  std::vector<double> unstretched, unstretched_rate;  ///< ell [m], d ell/dt [m/s] (R)
+  std::vector<double> stiffness;         ///< k = EA n / ell [N/m] (R)
+  std::vector<double> stretch, stretch_rate;  ///< delta = length - ell [m], its rate [m/s] (R)
+  std::vector<double> rope_force;        ///< tension of the fall by the rope law [N] (R)
+  std::vector<double> taut_margin;       ///< min(k delta, k delta + c delta') [N]: > 0 exactly when the law pulls (R)
+  double strain_energy = 0;              ///< sum of 1/2 k delta^2 over stretched ropes [J]
+  // Per link: axial force a drum holds on a prescribed-length rope [N] (0 for other links) (N).
+  std::vector<double> drum_force;
+  // Lift-off: caller's choice `grounded` holds the links below rope link 0 on the ground; the
+  // ground's force on them [N] (x, y up) after `evaluate`.
+  bool grounded = false;
+  double ground_x = 0, ground_y = 0;
+  // Extended-coordinate dynamics (chain_general.cpp), sized model.extended once.
+  Eigen::MatrixXd mass_x;                ///< mass matrix of the extended coordinates
+  Eigen::VectorXd bias_x, rhs_x, accel_x;///< generalised forces and accelerations (extended)
+  Eigen::MatrixXd mass_f;                ///< its free block (dof x dof)
+  Eigen::VectorXd rhs_f, accel_f;        ///< (dof)
+  Eigen::LLT<Eigen::MatrixXd> llt_f;     ///< Cholesky factor of the free block
+  Eigen::MatrixXd jac_x, jac_y;          ///< com Jacobians d r_k / d q, per link row (N x extended)
+  std::vector<double> acc0_x, acc0_y;    ///< com accelerations without the unknown q'' [m/s^2] (N)
+
   // Energy audit (`external_forces`, `evaluate`): the last two components of dx/dt.
   double dissipated_power = 0;       ///< by dampers, friction, dashpots [W] (>= 0)
   double input_power = 0;            ///< into the chain by the base and the wind [W]
@@ -129,11 +160,21 @@ void pivot_reactions(const Model& model, Workspace& ws, const double* alpha);
 /// `finish_reactions` completes them. Throws ArgumentError when ws was built for another model.
 void evaluate(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt);
 
+/// Completes a start state x whose angles and angular rates are set, for a model with elastic
+/// ropes (no-op without): each rope length starts at its unstretched length under the drum at
+/// t = 0 plus the quasi-static stretch, the stretch at which no rope length accelerates at t = 0
+/// (with the rope's rate equal to the drum's, so its damper is idle), and ws.rope_slack is set
+/// to each rope's branch there (slack where no pulling tension holds it). For a lift-off
+/// (`lift_off`), rope link 0 instead spans its unstretched length less `slack` [m], the links below
+/// it are at rest and ws.grounded is set.
+void rope_start(const Model& model, Workspace& ws, const Phase& phase, bool lift_off, double slack,
+                std::vector<double>& x);
+
 /// Makes ws.reaction* belong to the last evaluation (no-op when they already do).
 void finish_reactions(const Model& model, Workspace& ws);
 
-/// Mechanical energy (kinetic + potential, potential zero at the base's y = 0) [J] after `evaluate`
-/// or `kinematics` at the same state.
+/// Mechanical energy (kinetic + potential, potential zero at the base's y = 0, plus the strain
+/// energy of elastic ropes) [J] after `evaluate` at the same state.
 double mechanical_energy(const Model& model, const Workspace& ws);
 
 /// Axial tension of link i at its upper and lower ends [N] after `evaluate` (positive = pulling;

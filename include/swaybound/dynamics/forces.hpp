@@ -60,6 +60,43 @@ inline double friction_torque(const PivotModel& p, double w, double reaction) {
   return constant_friction_torque(p, slide) + pin_friction_torque(p, slide, reaction);
 }
 
+/// The state of an elastic rope's law at stretch delta = l - ell [m] and rate delta' [m/s].
+struct RopeState {
+  double tension = 0;          ///< force of the fall [N]
+  double taut_margin = 0;      ///< min(k delta, k delta + c delta') [N]: > 0 exactly when the law pulls
+  double strain_energy = 0;    ///< 1/2 k delta^2 while stretched [J]
+  double dissipated_power = 0; ///< by the rope's damping [W] (>= 0)
+  double drum_power = 0;       ///< by the drum that changes ell [W]
+};
+
+/// Elastic rope (Kelvin-Voigt element that can only pull): k = EA n / ell, tension
+///   T = k delta + c delta'  while taut (delta > 0 and k delta + c delta' > 0), else 0,
+/// so the damper never pulls a slack rope. `slack` selects the law's branch (the caller holds it
+/// fixed between located transitions, so the right-hand side stays smooth within a step); the
+/// taut branch is evaluated as written even beyond the transition. Energy: strain energy
+/// U = 1/2 k delta^2 while delta > 0 (in the slack branch too: a rope that went slack while still
+/// stretched, because it shortens faster than its damper lets it relax, keeps its stretch), so
+/// with k' = -k ell'/ell (ell_rate_over_ell = ell'/ell [1/s]) and T the tension:
+///   d(E_chain + U)/dt = -T l' + k delta delta' + 1/2 k' delta^2
+///                     = -(T - k delta) delta' - T ell' + 1/2 k' delta^2,
+/// the first term being the damper's dissipation ((T - k delta) delta' = c delta'^2 taut, and
+/// -k delta delta' >= 0 slack and stretched), the rest the drum's power (rope wound on or paid
+/// out carries its strain energy with it). Inputs: k [N/m], c [N s/m], ell [m], ell' [m/s].
+inline RopeState rope_law_state(double k, double c, double delta, double delta_rate, bool slack, double ell,
+                                double ell_rate) {
+  RopeState s;
+  const double elastic = k * delta, viscous = c * delta_rate;
+  s.taut_margin = std::fmin(elastic, elastic + viscous);
+  const bool stretched = slack ? delta > 0 : true;
+  s.tension = slack ? 0.0 : elastic + viscous;
+  if (!stretched) return s;
+  const double k_rate = -k * ell_rate / ell;
+  s.strain_energy = 0.5 * elastic * delta;
+  s.dissipated_power = (s.tension - elastic) * delta_rate;
+  s.drum_power = -s.tension * ell_rate + 0.5 * k_rate * delta * delta;
+  return s;
+}
+
 /// Quadratic drag of a point moving at velocity (vx, vy) in a horizontal wind u:
 /// F = k |u - v| (u - v), k = 1/2 rho Cd A [kg/m]. Output in fx, fy [N].
 inline void drag_force(double k, double u, double vx, double vy, double& fx, double& fy) {

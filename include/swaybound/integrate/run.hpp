@@ -21,6 +21,8 @@ enum class RunStatus {
   time_budget,           ///< the wall-clock budget per case ran out
   friction_unconverged,  ///< the pin-friction fixed point did not converge at some evaluation
   rope_slack,            ///< a rope link's tension went below zero: the rigid-rope model broke down
+  touch_down,            ///< a lifted load came down to the ground again (setting down is not modelled)
+  mode_chatter,          ///< a rope or the ground switched branches more often than the run allows
 };
 std::string_view status_name(RunStatus status);
 
@@ -74,10 +76,23 @@ struct RunSettings {
   double min_step = 1e-12;    ///< [s]
   double max_seconds = 60;    ///< wall clock [s]
   double output_rate = 0;     ///< samples per second for `on_sample`; 0 = none
+  long max_switches = 100'000;  ///< switches of contact laws per case before mode_chatter
   static RunSettings from_spec(const Spec& spec);
 };
 
 class DenseProbe;
+
+enum class ModeEventKind { slack, taut, lift_off, touch_down };
+std::string_view event_name(ModeEventKind kind);
+
+/// A located switch of a contact law: an elastic rope going slack or taut again, a load leaving
+/// the ground or touching it again.
+struct ModeEvent {
+  double time = 0;   ///< [s]
+  int link = -1;     ///< the rope link
+  ModeEventKind kind = ModeEventKind::slack;
+  double value = 0;  ///< slack/taut: the rope's stretch [m]; lift_off: its tension [N]; touch_down: ground height [m]
+};
 
 /// What an observer sees: the time, the state, and the workspace evaluated at exactly this state
 /// (reactions, torques, powers), plus the energy audit.
@@ -128,6 +143,9 @@ struct RunOutcome {
   double energy0 = 0;             ///< [J]
   double max_audit_residual = 0;  ///< largest |audit residual| over the accepted steps [J]
   double audit_scale = 0;         ///< energy scale the residual is judged against [J]
+  long switches = 0;              ///< located switches of contact laws (ropes slack/taut, ground)
+  std::vector<ModeEvent> events;  ///< the first kMaxRecordedEvents of them, in time order
+  static constexpr std::size_t kMaxRecordedEvents = 1000;
 };
 
 /// Integrates one case. `on_step` (optional) sees every segment start, every accepted step and

@@ -60,19 +60,38 @@ struct WindModel {
   double drag_factor = 0;  ///< 1/2 rho Cd A [kg/m]
 };
 
-/// A time interval in which the base acceleration and the wind speeds are constant.
+/// A time interval in which the base acceleration, the wind speeds and the drum's jerk are
+/// constant (the drum's acceleration is continuous or jumps only at a phase boundary).
 struct Phase {
   double t0 = 0, t1 = 0;            ///< [s]; the last phase ends at infinity
   double ax = 0, ay = 0;            ///< base acceleration [m/s^2]
   double x0 = 0, y0 = 0, vx0 = 0, vy0 = 0;  ///< base position [m] and velocity [m/s] at t0
   std::vector<double> wind_speed;   ///< per wind load [m/s]
+  /// Rope hauled in at the drum since t = 0 [m], its speed [m/s], acceleration [m/s^2] at t0 and
+  /// the jerk [m/s^3] within the phase (all 0 without a hoist).
+  double drum_s0 = 0, drum_v0 = 0, drum_a0 = 0, drum_jerk = 0;
+  int drum_link = -1;               ///< the rope link the drum winds, -1 for none
 };
 
 struct ScenarioModel {
   std::string name;
+  int hoist_link = -1;        ///< the rope link the drum winds, -1 for none
+  bool lift_off = false;      ///< the load starts on the ground (see dynamics/rope.hpp)
+  double lift_off_slack = 0;  ///< rope slack at t = 0 [m]
   std::vector<Phase> phases;  ///< contiguous from t = 0
   /// Index of the phase containing t (t in [t0, t1)); the last phase for t beyond every boundary.
   int phase_at(double t) const;
+};
+
+/// How a link's length behaves: fixed (rigid links, ropes no drum winds), prescribed (an
+/// inextensible rope some scenario hoists: its length follows the drum), elastic (a rope whose
+/// length is a coordinate of the state, pulled by its elastic law towards the drum's length).
+enum class LengthKind { fixed, prescribed, elastic };
+
+/// The axial law of an elastic rope link (dynamics/rope.hpp).
+struct RopeLaw {
+  double ea = 0;       ///< parts of line x EA of one part [N]: the fall's stiffness is ea / ell [N/m]
+  double damping = 0;  ///< axial damping coefficient of the fall [N s/m]
 };
 
 struct Model {
@@ -82,6 +101,18 @@ struct Model {
   std::vector<std::string> names;  ///< link names
   std::vector<LinkKind> kind;
   std::vector<double> mass, length, com, inertia;  ///< [kg], [m], [m], [kg m^2] about the com
+  // Ropes of variable length. A rope whose length changes keeps its centre of mass at the same
+  // fraction of its length and its inertia about the centre of mass scales with the length squared.
+  std::vector<LengthKind> length_kind;  ///< per link
+  std::vector<int> parts;               ///< parts of line per link (1 for rigid links)
+  std::vector<RopeLaw> rope_law;        ///< per link (used by elastic links only)
+  /// Per link: index of its length among the extended coordinates (angles 0..n-1, then elastic
+  /// lengths n..dof-1, then prescribed lengths dof..extended-1), or -1 for a fixed length.
+  std::vector<int> length_coordinate;
+  std::vector<int> elastic_links;       ///< links with an elastic length, in link order
+  int dof = 0;                          ///< coordinates in the state: n angles + elastic lengths
+  int extended = 0;                     ///< dof + prescribed lengths
+  bool variable_length() const { return extended > n; }
   Eigen::MatrixXd mu;              ///< mass-matrix constants mu_ij [kg m^2]
   std::vector<double> h;           ///< first moments h_i [kg m]
   std::vector<double> mass_below;  ///< sum_{k>=i} m_k [kg]
@@ -93,7 +124,9 @@ struct Model {
   bool any_pivot_torque = false;   ///< some pivot has friction or a damper
   double energy_scale = 0;         ///< g sum_k m_k depth_k at rest [J]: scale for audit residuals
 
-  int state_size() const { return 2 * n + 2; }
+  /// State layout: coordinates q[0..dof) (angles, then elastic rope lengths [m]), their rates
+  /// [dof..2 dof), dissipated energy [J], work done on the chain by the base, the wind and the drum [J].
+  int state_size() const { return 2 * dof + 2; }
 };
 
 /// Builds the model. com/inertia not given in the spec follow the link's (possibly sized) length

@@ -39,9 +39,22 @@ struct PivotSpec {
   std::vector<DamperSpec> dampers;  ///< rotary dampers acting side by side at the pivot (torques add)
 };
 
+/// The axial law of an elastic rope link (see dynamics/rope.hpp): stiffness of the fall
+/// k = parts_of_line * EA / ell with ell its unstretched length, tension max(0, k stretch + c stretch rate)
+/// while stretched, 0 while slack.
+struct RopeElasticSpec {
+  double ea = 0;          ///< axial stiffness EA of one part of line [N] (0 when `stiffness` is given)
+  double stiffness = 0;   ///< spring rate of the whole fall at the link's length [N/m] (0 when `ea` is given)
+  double damping = 0;     ///< axial damping coefficient of the fall [N s/m]
+  double damping_ratio = -1;  ///< or: damping ratio of the axial (bounce) mode of the load hanging at rest [-]; -1 = not given
+  Mark mark;
+};
+
 struct LinkSpec {
   std::string name;
   LinkKind kind = LinkKind::rigid;
+  int parts_of_line = 1;   ///< rope: parts of line in the fall (hook speed = drum speed / parts)
+  std::optional<RopeElasticSpec> elastic;  ///< rope: elastic and able to go slack; absent = inextensible
   double length = 0;   ///< upper pivot to lower pivot [m]
   double mass = 0;     ///< [kg]
   double com = 0;      ///< centre of mass from the upper pivot, along the link [m]
@@ -90,10 +103,36 @@ struct AccelSegment {
   double ax = 0, ay = 0;///< [m/s^2]
 };
 
+/// One drum speed command: from `at`, change the drum speed to `to` with |acceleration| <= accel
+/// and |jerk| <= jerk (0: no jerk limit). Speeds are rope speed at the drum, + hauls in (hoists).
+struct DrumMoveSpec {
+  double at = 0, to = 0, accel = 0, jerk = 0;  ///< [s], [m/s], [m/s^2], [m/s^3]
+  Mark mark;
+};
+
+/// Hoisting or lowering during a scenario: the drum of one rope link. The rope's length (its
+/// unstretched length if it is elastic) is ell(t) = length - s(t) / parts_of_line, s the rope
+/// hauled in at the drum since t = 0.
+struct HoistSpec {
+  int link = -1;              ///< the rope link the drum winds
+  double initial_speed = 0;   ///< drum speed at t = 0 [m/s], + hauls in
+  std::vector<DrumMoveSpec> moves;
+  Mark mark;
+};
+
+/// A load that starts resting on the ground and is lifted off by the rope (see dynamics/rope.hpp):
+/// the links below the lowest elastic rope are held at rest until the rope carries their weight.
+struct LiftOffSpec {
+  double slack = 0;  ///< rope slack at t = 0 (unstretched length minus the distance it spans) [m]
+  Mark mark;
+};
+
 struct ScenarioSpec {
   std::string name;
   double initial_vx = 0, initial_vy = 0;  ///< base velocity at t = 0 [m/s]
   std::vector<AccelSegment> accel;        ///< after the last segment the base acceleration is 0
+  std::optional<HoistSpec> hoist;         ///< drum motion; absent = rope lengths stay fixed
+  std::optional<LiftOffSpec> lift_off;    ///< the load starts on the ground
   Mark mark;
 };
 

@@ -1,0 +1,56 @@
+#pragma once
+// Stages shared by the two right-hand sides of chain.cpp (links of fixed length, with fixed-size
+// matrices) and chain_general.cpp (ropes of variable length, extended coordinates). Private to
+// src/dynamics.
+#include <cmath>
+
+#include "swaybound/dynamics/chain.hpp"
+
+namespace swaybound {
+
+/// Lengths, centres of mass and inertias of ropes of variable length at (x, t), the drum's
+/// motion under `phase`, and the unstretched length of every elastic rope (ws.len* etc.).
+void rope_kinematics(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t);
+
+/// Stage 3c: the law of every elastic rope (dynamics/rope.hpp) at the state of the last
+/// kinematics: its tension into ws.rope_force and -tension into the generalised force q of its
+/// length; strain energy, the damper's dissipation and the drum's power into ws.
+void rope_forces(const Model& model, Workspace& ws, double* q);
+
+/// The right-hand side of a model with ropes of variable length (see chain_general.cpp).
+void evaluate_general(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt);
+
+/// Pivot reactions of the last general evaluation from its accelerations ws.accel_x.
+void general_reactions(const Model& model, Workspace& ws);
+
+/// Stage 5, backward half: pivot reactions from the centre-of-mass accelerations ws.acc_* and the
+/// external forces ws.force_* (Newton's second law for the sub-chain below each pivot).
+void sub_chain_reactions(const Model& model, Workspace& ws);
+
+inline constexpr int kMaxFrictionIterations = 50;
+
+/// Load-dependent pin friction: the fixed point R = reactions(accelerations(tau_pin(R))), started
+/// from the reactions without pin friction (`solve(nullptr)` has run). `solve(reaction)` solves the
+/// accelerations with pin friction at those reactions and recomputes ws.reaction. The map contracts
+/// by about mu * r_pin / (link length) per iteration (small for real pins), so a few iterations
+/// reach the tolerance; an evaluation that does not converge is counted in ws.friction_unconverged.
+template <class Solve>
+void pin_friction_fixed_point(const Model& model, Workspace& ws, Solve&& solve) {
+  ws.friction_iterations = 0;
+  if (!model.any_pin_friction) return;
+  bool converged = false;
+  for (int it = 0; it < kMaxFrictionIterations && !converged; ++it) {
+    ws.reaction_prev = ws.reaction;
+    solve(ws.reaction_prev.data());
+    double change = 0, scale = 0;
+    for (int i = 0; i < model.n; ++i) {
+      change = std::fmax(change, std::fabs(ws.reaction[i] - ws.reaction_prev[i]));
+      scale = std::fmax(scale, ws.reaction[i]);
+    }
+    ws.friction_iterations = it + 1;
+    converged = change <= 1e-13 * scale;
+  }
+  if (!converged) ++ws.friction_unconverged;
+}
+
+}  // namespace swaybound
