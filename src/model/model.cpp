@@ -1,5 +1,7 @@
 #include "swaybound/model/model.hpp"
 
+#include "swaybound/model/profile.hpp"
+
 #include <algorithm>
 #include <atomic>
 #include <cmath>
@@ -17,9 +19,19 @@ namespace {
 
 PointRef point_of(const AttachmentSpec& a) { return PointRef{a.link, a.at, a.base_x, a.base_y}; }
 
+/// The drum's speed profile of a scenario (standing still without a hoist).
+SpeedProfile drum_profile(const ScenarioSpec& s) {
+  if (!s.hoist) return {};
+  std::vector<SpeedMove> moves;
+  for (const DrumMoveSpec& m : s.hoist->moves) moves.push_back(SpeedMove{m.at, m.to, m.accel, m.jerk});
+  return SpeedProfile::build(s.hoist->initial_speed, moves);
+}
+
 ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>& wind) {
-  // Breakpoints: ends of base-acceleration segments and starts/ends of gusts.
-  std::vector<double> cuts;
+  // Breakpoints: ends of base-acceleration segments, starts/ends of gusts, and where the drum's
+  // acceleration or jerk jumps.
+  const SpeedProfile drum = drum_profile(s);
+  std::vector<double> cuts = drum.breakpoints();
   double t = 0;
   for (const auto& seg : s.accel) cuts.push_back(t += seg.duration);
   for (const auto& w : wind)
@@ -33,6 +45,9 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
 
   ScenarioModel out;
   out.name = s.name;
+  out.hoist_link = s.hoist ? s.hoist->link : -1;
+  out.lift_off = s.lift_off.has_value();
+  out.lift_off_slack = s.lift_off ? s.lift_off->slack : 0.0;
   double x = 0, y = 0, vx = s.initial_vx, vy = s.initial_vy;
   for (std::size_t k = 0; k < cuts.size(); ++k) {
     Phase p;
@@ -55,6 +70,17 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
     for (const auto& w : wind) {
       const bool gusting = w.gust && p.t0 >= w.gust->start && p.t0 < w.gust->start + w.gust->duration;
       p.wind_speed.push_back(w.speed + (gusting ? w.gust->speed : 0.0));
+    }
+    if (s.hoist) {
+      p.drum_link = s.hoist->link;
+      p.drum_s0 = drum.position(p.t0);
+      p.drum_v0 = drum.speed(p.t0);
+      p.drum_a0 = drum.accel(p.t0);
+      // The phase lies within one piece of constant jerk (every piece boundary is a cut).
+      const auto& pieces = drum.pieces();
+      const auto piece = std::upper_bound(pieces.begin(), pieces.end(), p.t0,
+                                          [](double t, const ProfilePiece& q) { return t < q.t0; });
+      p.drum_jerk = std::prev(piece)->j;
     }
     if (std::isfinite(p.t1)) {
       const double dt = p.t1 - p.t0;
