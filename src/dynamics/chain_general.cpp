@@ -285,7 +285,8 @@ void rope_start(const Model& model, Workspace& ws, const Phase& phase, bool lift
     std::fill(ws.rope_slack.begin(), ws.rope_slack.end(), 0);
     ws.grounded = true;
     evaluate(model, ws, phase, x.data(), 0.0, dxdt.data());
-    for (std::size_t r = 0; r < ropes; ++r) ws.rope_slack[r] = ws.taut_margin[r] > 0 ? 0 : 1;
+    // A rope that starts just taut (slack 0) counts as taut unless it is already shortening.
+    for (std::size_t r = 0; r < ropes; ++r) ws.rope_slack[r] = ws.taut_margin[r] >= 0 ? 0 : 1;
     return;
   }
   ws.grounded = false;

@@ -516,6 +516,21 @@ RunOutcome simulate_case(const Model& model, Workspace& ws, int scenario, const 
   const ScenarioModel& s = model.scenarios[static_cast<std::size_t>(scenario)];
   ws.grounded = false;
   rope_start(model, ws, s.phases.front(), s.lift_off, s.lift_off_slack, x);
+  if (!start.rope_length.empty()) {
+    SWAYBOUND_REQUIRE(start.rope_length.size() == model.elastic_links.size() &&
+                          start.rope_rate.size() == start.rope_length.size(),
+                      "initial state has {} rope lengths and {} rates for {} elastic ropes", start.rope_length.size(),
+                      start.rope_rate.size(), model.elastic_links.size());
+    std::vector<double> dxdt(x.size());
+    for (std::size_t r = 0; r < start.rope_length.size(); ++r) {
+      const auto c = static_cast<std::size_t>(model.length_coordinate[static_cast<std::size_t>(model.elastic_links[r])]);
+      x[c] = start.rope_length[r];
+      x[static_cast<std::size_t>(model.dof) + c] = start.rope_rate[r];
+      ws.rope_slack[r] = 0;
+    }
+    evaluate(model, ws, s.phases.front(), x.data(), 0.0, dxdt.data());
+    for (std::size_t r = 0; r < start.rope_length.size(); ++r) ws.rope_slack[r] = ws.taut_margin[r] > 0 ? 0 : 1;
+  }
   Driver driver(model, ws, scenario, settings, on_step, on_sample);
   return driver.run(std::move(x));
 }
