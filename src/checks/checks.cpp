@@ -49,6 +49,7 @@ std::string check_subject(const Spec& spec, const LimitSpec& l) {
   const LimitKindInfo& info = limit_kind(l.kind);
   std::string s = l.link >= 0 ? fmt::format("link '{}'", spec.links[static_cast<std::size_t>(l.link)].name)
                   : info.scope == LimitScope::rope_links ? std::string("every rope link")
+                  : info.scope == LimitScope::elastic_rope_links ? std::string("every elastic rope")
                   : info.scope == LimitScope::chain      ? std::string("the chain")
                                                          : std::string("every link");
   if (info.options.after) s += fmt::format(", after {:g} s", l.after);

@@ -29,6 +29,13 @@ Extreme dynamic_factor(const CaseMetrics& m, const LimitSpec&, std::size_t k) {
 Extreme rope_tension(const CaseMetrics& m, const LimitSpec& l, std::size_t k) {
   return l.end == RopeEnd::top ? m.min_tension_top[k] : l.end == RopeEnd::bottom ? m.min_tension_bottom[k] : m.min_tension[k];
 }
+Extreme rope_tension_max(const CaseMetrics& m, const LimitSpec&, std::size_t k) { return m.peak_rope_force[k]; }
+Extreme line_pull(const CaseMetrics& m, const LimitSpec&, std::size_t k) {
+  return {m.peak_rope_force[k].value / m.parts_of_line[k], m.peak_rope_force[k].time};
+}
+/// The total over the run (no instant recorded).
+Extreme slack_time(const CaseMetrics& m, const LimitSpec&, std::size_t k) { return {m.slack_time[k], kNaN}; }
+Extreme snatch_load(const CaseMetrics& m, const LimitSpec&, std::size_t k) { return m.snatch[k]; }
 Extreme horizontal_support_force(const CaseMetrics& m, const LimitSpec&, int) { return m.support_force_x; }
 /// The window's maximum over its links (no instant recorded).
 Extreme residual_sway(const CaseMetrics& m, const LimitSpec&, int slot) {
@@ -69,6 +76,26 @@ constexpr LimitKindInfo kKinds[] = {
      "the least axial tension of a rope link over the run, at the end(s) the limit names (the least of both ends by "
      "default); below zero the rope would go slack.",
      rope_tension, nullptr, "min_rope_tension"},
+    {LimitKind::rope_tension_max, "rope_tension_max", u::force, kPositive, Bound::upper, true, LimitScope::rope_links,
+     {}, false,
+     "the largest tension of the rope's fall over the run: for an elastic rope the tension of its law (k δ + c δ' "
+     "while taut), for an inextensible rope the axial force at its top end (what the sheave or the drum holds).",
+     rope_tension_max, nullptr, "peak_rope_tension"},
+    {LimitKind::line_pull, "line_pull", u::force, kPositive, Bound::upper, true, LimitScope::rope_links, {}, false,
+     "the largest tension of the rope's fall ÷ its parts of line: what one part of the rope carries, to be compared "
+     "with the rope's minimum breaking force divided by the coefficient of utilisation the applicable standard "
+     "requires.",
+     line_pull, nullptr, "peak_line_pull"},
+    {LimitKind::slack_time, "slack_time", u::duration, kNonNegative, Bound::upper, true,
+     LimitScope::elastic_rope_links, {}, false,
+     "the total time over the run that the elastic rope is slack (carries no tension); a limit of 0 s allows no slack "
+     "at all.",
+     slack_time, nullptr, "slack_time"},
+    {LimitKind::snatch_load, "snatch_load", u::force, kPositive, Bound::upper, true, LimitScope::elastic_rope_links,
+     {}, false,
+     "the largest tension of the elastic rope after it first went slack: the snatch when the load is caught taut "
+     "again (0 when the rope never went slack).",
+     snatch_load, nullptr, "snatch_load"},
     {LimitKind::residual_sway, "residual_sway", u::angle, kPositive, Bound::upper, true, LimitScope::each_link,
      {.after = true}, true,
      "the largest |θ| of the links after the limit's time (after:), i.e. the sway left once the base motion has "

@@ -12,7 +12,7 @@ namespace {
 /// Index blocks of the quantities of CaseExtremes: per link angle, relative angle, rate, load,
 /// negated top-end tension, negated bottom-end tension; then the chain's quantities (Chain);
 /// then one per residual_sway limit.
-enum Block { kAngle, kRelative, kRate, kLoad, kTensionTop, kTensionBottom, kBlocks };
+enum Block { kAngle, kRelative, kRate, kLoad, kTensionTop, kTensionBottom, kRopeForce, kSnatch, kBlocks };
 /// Quantities of the whole chain, after the blocks: |horizontal force on the support|.
 enum Chain { kSupportX, kChain };
 
@@ -40,6 +40,11 @@ CaseExtremes::CaseExtremes(const Model& model, const Spec& spec)
                   if (model_.kind[k] == LinkKind::rope) link_tension(model_, *v.ws, i, top, bottom);
                   q[kTensionTop * n + i] = -top;
                   q[kTensionBottom * n + i] = -bottom;
+                  // The fall's tension: an elastic rope's law, an inextensible rope's top end.
+                  const int r = model_.length_kind[k] == LengthKind::elastic ? model_.length_coordinate[k] - n : -1;
+                  const double force = r >= 0 ? v.ws->rope_force[static_cast<std::size_t>(r)] : top;
+                  q[kRopeForce * n + i] = model_.kind[k] == LinkKind::rope ? force : 0.0;
+                  q[kSnatch * n + i] = r >= 0 && slack_count_[static_cast<std::size_t>(r)] > 0 ? force : 0.0;
                 }
                 q[kBlocks * n + kSupportX] = std::fabs(v.ws->reaction_x[0]);
                 for (std::size_t r = 0; r < residual_links_.size(); ++r) {
@@ -52,6 +57,21 @@ CaseExtremes::CaseExtremes(const Model& model, const Spec& spec)
               residual_windows(model, spec)) {
   for (const auto& l : spec.limits)
     if (limit_kind(l.kind).options.after) residual_links_.push_back(l.link);
+  slack_time_.assign(model.elastic_links.size(), 0.0);
+  slack_count_.assign(model.elastic_links.size(), 0);
+  was_slack_.assign(model.elastic_links.size(), 0);
+}
+
+void CaseExtremes::observe(const StepView& v) {
+  // Slack intervals are whole segments (the driver switches a rope's branch at a segment start).
+  for (std::size_t r = 0; r < slack_time_.size(); ++r) {
+    const bool slack = v.ws->rope_slack[r] != 0;
+    if (slack && was_slack_[r]) slack_time_[r] += v.t - last_t_;
+    if (slack && !was_slack_[r]) ++slack_count_[r];
+    was_slack_[r] = slack;
+  }
+  last_t_ = v.t;
+  finder_.observe(v);
 }
 
 void CaseExtremes::write(CaseMetrics& m) const {
@@ -77,6 +97,21 @@ void CaseExtremes::write(CaseMetrics& m) const {
     m.min_tension_top[k] = {-top.value, top.time};
     if (i + 1 < n) m.min_tension_bottom[k] = {-bottom.value, bottom.time};
     m.min_tension[k] = i + 1 < n && bottom.value > top.value ? m.min_tension_bottom[k] : m.min_tension_top[k];
+  }
+  m.peak_rope_force.assign(nn, Extreme{std::nan(""), 0});
+  m.parts_of_line.assign(nn, 1.0);
+  m.slack_time.assign(nn, std::nan(""));
+  m.slack_count.assign(nn, 0);
+  m.snatch.assign(nn, Extreme{std::nan(""), 0});
+  for (int i = 0; i < n; ++i) {
+    const auto k = static_cast<std::size_t>(i);
+    m.parts_of_line[k] = model_.parts[k];
+    if (model_.kind[k] == LinkKind::rope) m.peak_rope_force[k] = peak(kRopeForce, i);
+    if (model_.length_kind[k] != LengthKind::elastic) continue;
+    const auto r = static_cast<std::size_t>(model_.length_coordinate[k] - n);
+    m.slack_time[k] = slack_time_[r];
+    m.slack_count[k] = slack_count_[r];
+    m.snatch[k] = peak(kSnatch, i);
   }
   m.support_force_x = finder_.max(kBlocks * n + kSupportX);
   m.residual.assign(residual_links_.size(), 0.0);
@@ -126,6 +161,9 @@ CaseMetrics run_case(const Model& model, const Spec& spec, Workspace& ws, const 
   m.evaluations = out.evaluations;
   m.audit_relative = out.audit_scale > 0 ? out.max_audit_residual / out.audit_scale : out.max_audit_residual;
   m.settling_time = outside_now ? std::nan("") : last_outside;
+  m.switches = out.switches;
+  for (const ModeEvent& e : out.events)
+    if (e.kind == ModeEventKind::lift_off) m.lift_off_time = e.time;
   extremes.write(m);
   for (int i = 0; i < n; ++i) {
     const auto k = static_cast<std::size_t>(i);

@@ -157,7 +157,8 @@ std::string csv_unit(const LimitKindInfo& info) {
 /// Whether a per-link kind has columns for link k (a rope kind: rope links only).
 bool has_link_columns(const Spec& spec, const LimitKindInfo& info, std::size_t k) {
   return info.link_value && !info.csv.empty() &&
-         (info.scope != LimitScope::rope_links || spec.links[k].kind == LinkKind::rope);
+         (info.scope != LimitScope::rope_links || spec.links[k].kind == LinkKind::rope) &&
+         (info.scope != LimitScope::elastic_rope_links || spec.links[k].elastic.has_value());
 }
 
 /// A limit of the kind with default options and, for a kind with `end`, the end given.

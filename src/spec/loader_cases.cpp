@@ -306,7 +306,20 @@ void read_limits(const MapView& top, Spec& spec) {
       else
         limit.link = read_link_ref(ctx, m.get("link"), m.path("link"), spec);
     }
-    const bool ropes = found->scope == LimitScope::rope_links;
+    const bool ropes = found->scope == LimitScope::rope_links || found->scope == LimitScope::elastic_rope_links;
+    if (found->scope == LimitScope::elastic_rope_links) {
+      bool any_elastic = false;
+      for (const auto& l : spec.links) any_elastic |= l.kind == LinkKind::rope && l.elastic.has_value();
+      if (limit.link >= 0 && spec.links[static_cast<std::size_t>(limit.link)].kind == LinkKind::rope &&
+          !spec.links[static_cast<std::size_t>(limit.link)].elastic)
+        ctx.error(m.get("link"), m.path("link"),
+                  fmt::format("rope '{}' is inextensible, so it cannot go slack",
+                              spec.links[static_cast<std::size_t>(limit.link)].name),
+                  "give the rope an elastic: section, or name an elastic rope");
+      else if (!m.has("link") && !any_elastic && !spec.links.empty())
+        ctx.error(m.mark(), path, fmt::format("no rope is elastic, so there is nothing for '{}' to check", found->key),
+                  "give a rope an elastic: section, or remove this limit");
+    }
     if (ropes && limit.link >= 0 &&
         spec.links[static_cast<std::size_t>(limit.link)].kind != LinkKind::rope)
       ctx.error(m.get("link"), m.path("link"),

@@ -22,6 +22,7 @@ enum class Bound { upper, lower };
 enum class LimitScope {
   each_link,   ///< every link (a `link` key picks one)
   rope_links,  ///< every link of kind rope (a `link` key must name a rope)
+  elastic_rope_links,  ///< every elastic rope link (a `link` key must name one)
   chain,       ///< the chain as a whole (no `link` key)
 };
 

@@ -32,6 +32,14 @@ struct CaseMetrics {
   std::vector<Extreme> min_tension;    ///< least axial tension of rope links, either end [N]; NaN for rigid
   std::vector<Extreme> min_tension_top;     ///< of which at the top end (what the pivot above sees) [N]
   std::vector<Extreme> min_tension_bottom;  ///< at the bottom end [N]; NaN for rigid links and the last link
+  // Ropes (NaN for the links they do not apply to).
+  std::vector<Extreme> peak_rope_force;  ///< largest tension of a rope's fall [N] (elastic: its law; else the top end)
+  std::vector<double> parts_of_line;     ///< per link (1 for rigid links) [-]
+  std::vector<double> slack_time;        ///< elastic ropes: total time slack [s]
+  std::vector<long> slack_count;         ///< elastic ropes: times it went slack [-] (0 for other links)
+  std::vector<Extreme> snatch;           ///< elastic ropes: largest tension after it first went slack [N] (0: never)
+  long switches = 0;                     ///< located switches of contact laws (ropes, ground)
+  double lift_off_time = std::nan("");   ///< when the load left the ground [s] (lift-off scenarios)
   Extreme support_force_x;             ///< max |x component of the force of the chain on its support|
                                        ///< = |x component of the reaction at link 0's pivot| [N]
   std::vector<double> residual;        ///< per residual_sway limit: max |theta| after its time [rad]
@@ -62,7 +70,7 @@ class CaseExtremes {
  public:
   CaseExtremes(const Model& model, const Spec& spec);
   /// The on_step observer.
-  void observe(const StepView& v) { finder_.observe(v); }
+  void observe(const StepView& v);
   /// Writes the extremes into m (peak_*, min_tension, support_force_x, residual).
   void write(CaseMetrics& m) const;
   const ExtremeFinder& finder() const { return finder_; }
@@ -70,6 +78,11 @@ class CaseExtremes {
  private:
   const Model& model_;
   std::vector<int> residual_links_;  ///< per residual_sway limit: its link, or -1 for every link
+  // Per elastic rope (model.elastic_links order); declared before finder_, whose quantities read them.
+  std::vector<double> slack_time_;   ///< total time slack so far [s]
+  std::vector<long> slack_count_;    ///< slack intervals so far
+  std::vector<char> was_slack_;      ///< slack at the last view
+  double last_t_ = 0;                ///< time of the last view [s]
   ExtremeFinder finder_;
 };
 

@@ -177,6 +177,10 @@ enum class LimitKind {
   dynamic_factor,    ///< peak / static pivot load [-]
   horizontal_support_force,  ///< |horizontal force of the chain on its support| (trolley, boom tip) [N]
   rope_tension_min,  ///< lowest rope tension [N] (lower bound)
+  rope_tension_max,  ///< largest tension of a rope's fall [N]
+  line_pull,         ///< largest tension of a rope's fall / its parts of line [N]
+  slack_time,        ///< total time an elastic rope is slack [s]
+  snatch_load,       ///< largest tension of an elastic rope after it first went slack [N]
   residual_sway,     ///< largest |theta| after `after` [rad]
   ftle_max,          ///< largest finite-time Lyapunov exponent over `horizon` [1/s]
   modal_damping_min, ///< least modal damping ratio [-] (lower bound)
