@@ -9,6 +9,7 @@
 #include <fmt/format.h>
 
 #include "swaybound/core/error.hpp"
+#include "swaybound/dynamics/chain.hpp"
 
 namespace swaybound {
 
@@ -101,19 +102,80 @@ Eigen::MatrixXd linear_damping_matrix(const Model& model) {
   return C;
 }
 
+namespace {
+
+struct LinearSystem {
+  Eigen::MatrixXd M, K, C;  ///< mass, stiffness and damping matrices about the rest position
+};
+
+/// M, K and C of a chain with elastic ropes, by central differences of the right-hand side about
+/// the hanging rest position (angles 0, each rope at its static stretch, base and drum at rest):
+/// K = -M d(q'')/dq, C = -M d(q'')/dq'. Friction and wind are left out as in the analytic case
+/// (the notes say why): the differences are taken on a copy of the model without them.
+LinearSystem linearise_numerically(const Model& model) {
+  Model m = model;
+  for (PivotModel& p : m.pivots) p.coulomb_torque = p.pin_friction = 0;
+  m.any_pin_friction = false;
+  m.any_pivot_torque = false;
+  for (const PivotModel& p : m.pivots) m.any_pivot_torque |= p.has_damper();
+  m.wind.clear();
+  Workspace ws(m);
+  Phase rest = m.scenarios.front().phases.front();
+  rest.ax = rest.ay = rest.vx0 = rest.vy0 = 0;
+  rest.drum_link = -1;
+  const int d = m.dof;
+  std::vector<double> x(static_cast<std::size_t>(m.state_size()), 0.0), dxdt(x.size()), plus(x.size()), minus(x.size());
+  rope_start(m, ws, rest, false, 0.0, x);
+  evaluate(m, ws, rest, x.data(), rest.t0, dxdt.data());
+  LinearSystem s;
+  s.M = ws.mass_x.topLeftCorner(d, d);
+  Eigen::MatrixXd dq(d, d), dv(d, d);
+  for (int j = 0; j < 2 * d; ++j) {
+    // Angles and rates: 1e-6; lengths: 1e-6 of the length (the taut law is linear in the stretch).
+    const double scale = j % d < m.n ? 1.0 : x[static_cast<std::size_t>(j % d)];
+    const double h = 1e-6 * scale;
+    std::vector<double> xp = x, xm = x;
+    xp[static_cast<std::size_t>(j)] += h;
+    xm[static_cast<std::size_t>(j)] -= h;
+    evaluate(m, ws, rest, xp.data(), rest.t0, plus.data());
+    evaluate(m, ws, rest, xm.data(), rest.t0, minus.data());
+    for (int i = 0; i < d; ++i) {
+      const double derivative = (plus[static_cast<std::size_t>(d + i)] - minus[static_cast<std::size_t>(d + i)]) / (2 * h);
+      (j < d ? dq(i, j) : dv(i, j - d)) = derivative;
+    }
+  }
+  s.K = -s.M * dq;
+  s.C = -s.M * dv;
+  s.K = 0.5 * (s.K + s.K.transpose()).eval();
+  s.C = 0.5 * (s.C + s.C.transpose()).eval();
+  return s;
+}
+
+LinearSystem linear_system(const Model& model) {
+  if (model.variable_length()) return linearise_numerically(model);
+  LinearSystem s;
+  s.M = model.mu;
+  s.K = Eigen::MatrixXd::Zero(model.n, model.n);
+  for (int i = 0; i < model.n; ++i) s.K(i, i) = model.gravity * model.h[static_cast<std::size_t>(i)];
+  s.C = linear_damping_matrix(model);
+  return s;
+}
+
+}  // namespace
+
 ModalResult modal_analysis(const Model& model) {
-  const int n = model.n;
-  SWAYBOUND_REQUIRE(n >= 1, "modal analysis needs at least one link, got {}", n);
+  SWAYBOUND_REQUIRE(model.n >= 1, "modal analysis needs at least one link, got {}", model.n);
+  const int n = model.dof;  // coordinates: the link angles, then the elastic rope lengths
   ModalResult result;
 
-  const Eigen::MatrixXd& M0 = model.mu;
+  const LinearSystem system = linear_system(model);
+  const Eigen::MatrixXd& M0 = system.M;
   Eigen::LLT<Eigen::MatrixXd> llt(M0);
   SWAYBOUND_REQUIRE(llt.info() == Eigen::Success,
                     "the mass matrix at rest is not positive definite (a link with neither mass away from "
                     "its pivot nor inertia?); no modes");
-  Eigen::MatrixXd K = Eigen::MatrixXd::Zero(n, n);
-  for (int i = 0; i < n; ++i) K(i, i) = model.gravity * model.h[static_cast<std::size_t>(i)];
-  const Eigen::MatrixXd C = linear_damping_matrix(model);
+  const Eigen::MatrixXd& K = system.K;
+  const Eigen::MatrixXd& C = system.C;
 
   // --- Undamped: K v = w^2 M0 v (eigenvalues ascending).
   Eigen::GeneralizedSelfAdjointEigenSolver<Eigen::MatrixXd> undamped(K, M0);
@@ -125,10 +187,16 @@ ModalResult modal_analysis(const Model& model) {
     mode.frequency_hz = std::sqrt(w2) / kTwoPi;
     mode.period_s = mode.frequency_hz > 0 ? 1.0 / mode.frequency_hz : std::numeric_limits<double>::infinity();
     Eigen::VectorXd v = undamped.eigenvectors().col(k);
+    // Axial when the rope lengths hold most of the kinetic energy v^T M v.
+    const int links = model.n, ropes = n - links;
+    const double total = v.dot(M0 * v);
+    const double axial = ropes > 0 ? v.tail(ropes).dot(M0.bottomRightCorner(ropes, ropes) * v.tail(ropes)) : 0.0;
+    mode.axial = ropes > 0 && axial > 0.5 * total;
     Eigen::Index largest = 0;
-    v.cwiseAbs().maxCoeff(&largest);
-    v /= v(largest);
-    mode.shape.assign(v.data(), v.data() + n);
+    (mode.axial ? v.tail(ropes) : v.head(links)).cwiseAbs().maxCoeff(&largest);
+    v /= v(mode.axial ? links + largest : largest);
+    mode.shape.assign(v.data(), v.data() + links);
+    mode.stretch_shape.assign(v.data() + links, v.data() + n);
   }
 
   // --- Damped: eigenvalues of A = [[0, I], [-M0^-1 K, -M0^-1 C]].
@@ -230,7 +298,7 @@ ModalResult modal_analysis(const Model& model) {
   auto& notes = result.notes;
   notes.push_back("linearised about the hanging rest position (all angles 0) with the base at rest; "
                   "valid for small swings only");
-  for (int i = 0; i < n; ++i) {
+  for (int i = 0; i < model.n; ++i) {
     const PivotModel& p = model.pivots[static_cast<std::size_t>(i)];
     if (p.has_friction())
       notes.push_back(fmt::format(
@@ -251,7 +319,11 @@ ModalResult modal_analysis(const Model& model) {
             "damper at the pivot of {} (exponent {:g} > 1) has zero slope at rest and adds no small-signal damping",
             link_label(model, i), d.alpha));
     }
-    if (model.kind[static_cast<std::size_t>(i)] == LinkKind::rope)
+    if (model.length_kind[static_cast<std::size_t>(i)] == LengthKind::elastic)
+      notes.push_back(fmt::format("rope {} linearised at its static stretch (taut at rest); its length is a "
+                                  "coordinate, so the load's bounce on the rope is an axial mode",
+                                  link_label(model, i)));
+    else if (model.kind[static_cast<std::size_t>(i)] == LinkKind::rope)
       notes.push_back(fmt::format("rope {} treated as a rigid link (taut at rest)", link_label(model, i)));
   }
   for (const DashpotModel& d : model.dashpots) {

@@ -21,6 +21,7 @@
 #include "../support/rope.hpp"
 #include "swaybound/integrate/extremes.hpp"
 #include "swaybound/integrate/run.hpp"
+#include "swaybound/modal/modes.hpp"
 #include "swaybound/model/model.hpp"
 
 using namespace swaybound;
@@ -207,4 +208,29 @@ TEST_CASE("an elastic rope converges to the inextensible rope as EA grows", "[ro
   CHECK(difference[1] > 0);
   CHECK_THAT(difference[0] / difference[1], IsCloseTo(10, 0, 0.2));
   CHECK_THAT(difference[1] / difference[2], IsCloseTo(10, 0, 0.2));
+}
+
+TEST_CASE("modes of a load on an elastic rope: the bounce sqrt(k/m) and the sway sqrt(g/l) at the stretched length",
+          "[rope][reference][modal]") {
+  // A point mass m at the end of a massless elastic rope (the rope link's own mass at its lower
+  // end): in the linear vibration of a mass on a spring (any vibrations text) the axial mode is
+  // omega = sqrt(k/m), damping ratio c / (2 sqrt(k m)); the sway is the simple pendulum
+  // omega = sqrt(g / l) at the statically stretched length l = ell + m g / k.
+  const double m = 2000, length = 15, ea = 3e7, c = 4e3;
+  RopeChain d;
+  d.g = kG;
+  d.links = {{.m = m, .L = length, .c = length, .I = 0, .ea = ea, .c_axial = c}};
+  const Model model = build_model(d.spec());
+  const ModalResult modes = modal_analysis(model);
+  REQUIRE(modes.modes.size() == 2);
+  const double k = ea / length;
+  const Mode& sway = modes.modes[0];
+  const Mode& bounce = modes.modes[1];
+  CHECK_FALSE(sway.axial);
+  CHECK(bounce.axial);
+  CHECK_THAT(bounce.frequency_hz, IsCloseTo(std::sqrt(k / m) / (2 * M_PI), 0, 1e-7));
+  CHECK_THAT(bounce.damping_ratio, IsCloseTo(c / (2 * std::sqrt(k * m)), 0, 1e-6));
+  CHECK_THAT(sway.frequency_hz, IsCloseTo(std::sqrt(kG / (length + m * kG / k)) / (2 * M_PI), 0, 1e-7));
+  REQUIRE(bounce.stretch_shape.size() == 1);
+  CHECK(bounce.stretch_shape[0] == 1.0);
 }

@@ -40,6 +40,11 @@ struct Mode {
   double frequency_hz = 0;       ///< undamped natural frequency w / (2 pi) [Hz]
   double period_s = 0;           ///< 1 / frequency_hz [s] (infinity for a neutral mode)
   std::vector<double> shape;     ///< per link [-]: largest |component| 1, and that component positive
+  /// Models with elastic ropes: the mode's stretch of each elastic rope [m per unit of the largest
+  /// component of the whole mode vector] (model.elastic_links order), and whether it is mostly axial
+  /// (more than half of its kinetic energy in the rope lengths: the bounce of the load on the rope).
+  std::vector<double> stretch_shape;
+  bool axial = false;
 
   // Damped (eigenvalues of A)
   double natural_frequency_with_damping_hz = 0;  ///< w_n / (2 pi) = |lambda| / (2 pi) [Hz]
