@@ -228,9 +228,26 @@ Action add_simulate(CLI::App& app) {
       csv << ',' << csv_quote(fmt::format("wind_force_x(wind[{}] on {}) [N]", w, on)) << ','
           << csv_quote(fmt::format("wind_force_y(wind[{}] on {}) [N]", w, on));
     }
-    csv << ',' << csv_quote("energy (kinetic + potential in the ground frame; potential 0 at the top pivot's start height) [J]")
-        << ',' << csv_quote("dissipated (by dampers, friction and dashpots, since t = 0) [J]") << ','
-        << csv_quote("work_in (done on the chain by the moving base and the wind, since t = 0) [J]") << ','
+    // Ropes of variable length: length, unstretched length, stretch, the fall's tension, slack flag.
+    for (int i = 0; i < n; ++i) {
+      const auto k = static_cast<std::size_t>(i);
+      if (model.length_kind[k] == LengthKind::fixed) continue;
+      const std::string& name = model.names[k];
+      csv << ',' << csv_quote(fmt::format("rope_length({}) [m]", name));
+      if (model.length_kind[k] == LengthKind::elastic)
+        csv << ',' << csv_quote(fmt::format("unstretched_length({}) [m]", name)) << ','
+            << csv_quote(fmt::format("stretch({}) [m]", name)) << ','
+            << csv_quote(fmt::format("rope_tension({}) [N]", name)) << ','
+            << csv_quote(fmt::format("slack({}) (1 while slack)", name));
+      else
+        csv << ',' << csv_quote(fmt::format("drum_force({}) [N]", name));
+    }
+    if (model.variable_length())
+      csv << ',' << csv_quote("drum_hauled_in (rope wound onto the drum since t = 0) [m]") << ','
+          << csv_quote("drum_speed [m/s]") << ',' << csv_quote("ground_force_y (on a load held on the ground) [N]");
+    csv << ',' << csv_quote("energy (kinetic + potential in the ground frame; potential 0 at the top pivot's start height; plus the ropes' strain energy) [J]")
+        << ',' << csv_quote("dissipated (by dampers, friction, dashpots and rope damping, since t = 0) [J]") << ','
+        << csv_quote("work_in (done on the chain by the moving base and the wind, and by a hoist drum, since t = 0) [J]") << ','
         << csv_quote("audit_residual (energy + dissipated - work_in - energy at t = 0) [J]") << '\n';
 
     const Observer on_sample = [&](const StepView& v) {
@@ -239,7 +256,7 @@ Action add_simulate(CLI::App& app) {
       csv << ',' << w.base_x << ',' << w.base_y << ',' << w.base_vx << ',' << w.base_vy << ',' << w.base_ax << ','
           << w.base_ay;
       for (int i = 0; i < n; ++i)
-        csv << ',' << v.x[i] << ',' << v.x[n + i] << ',' << v.x[i] - (i > 0 ? v.x[i - 1] : 0.0);
+        csv << ',' << v.x[i] << ',' << v.x[model.dof + i] << ',' << v.x[i] - (i > 0 ? v.x[i - 1] : 0.0);
       for (int i = 0; i < n; ++i) {
         double top, bottom;
         link_tension(model, *v.ws, i, top, bottom);
@@ -251,7 +268,21 @@ Action add_simulate(CLI::App& app) {
         wind_load_force(model, w, *v.phase, k, fx, fy, vx, vy);
         csv << ',' << fx + 0.0 << ',' << fy + 0.0;  // + 0.0: no "-0"
       }
-      csv << ',' << v.energy << ',' << v.x[2 * n] << ',' << v.x[2 * n + 1] << ',' << v.audit_residual << '\n';
+      for (int i = 0; i < n; ++i) {
+        const auto k = static_cast<std::size_t>(i);
+        if (model.length_kind[k] == LengthKind::fixed) continue;
+        csv << ',' << w.len[k];
+        if (model.length_kind[k] == LengthKind::elastic) {
+          const auto r = static_cast<std::size_t>(model.length_coordinate[k] - n);
+          csv << ',' << w.unstretched[r] << ',' << w.stretch[r] << ',' << w.rope_force[r] + 0.0 << ','
+              << (w.rope_slack[r] ? 1 : 0);
+        } else {
+          csv << ',' << w.drum_force[k];
+        }
+      }
+      if (model.variable_length()) csv << ',' << w.drum_s << ',' << w.drum_v << ',' << (w.grounded ? w.ground_y : 0.0);
+      const auto dof = static_cast<std::size_t>(model.dof);
+      csv << ',' << v.energy << ',' << v.x[2 * dof] << ',' << v.x[2 * dof + 1] << ',' << v.audit_residual << '\n';
     };
     // The same extremes as a check reports, located between steps and on both sides of jumps.
     CaseExtremes extremes(model, spec);
