@@ -143,10 +143,10 @@ void read_hoist(const MapView& scenario, const Spec& spec, ScenarioSpec& sc) {
       hoist.link = ropes[0];
       ctx.defaults_filled.push_back(h.path("rope"));
     } else if (ropes.empty()) {
-      ctx.error(h.mark(), h.path(), "no link is of kind rope, so there is no rope for the drum to wind",
+      ctx.error(hoist.mark, h.path(), "no link is of kind rope, so there is no rope for the drum to wind",
                 "set kind: rope on the link the drum winds (and name it here with rope: NAME)");
     } else {
-      ctx.error(h.mark(), h.path(),
+      ctx.error(hoist.mark, h.path(),
                 fmt::format("{} links are ropes ({}), and the hoist does not say which one the drum winds",
                             ropes.size(), rope_names(spec)),
                 "add rope: NAME, the rope link the drum winds");
