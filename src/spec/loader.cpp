@@ -644,6 +644,7 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   read_limits(top, spec);
   read_chaos(top, spec);
   read_sizing(top, spec);
+  if (ctx.diagnostics.empty()) check_sized_ropes(ctx, top.get("links"), spec);
   read_solver_and_report(top, spec);
 
   if (!ctx.diagnostics.empty()) throw SpecError(file_label, ctx.diagnostics);

@@ -28,6 +28,9 @@ void read_scenario_rope_keys(const MapView& scenario, const Spec& spec, Scenario
 /// the rope the drum hauled in, stays within [kMinHoistedShare, kMaxHoistedFactor] x its length
 /// over [0, duration].
 void check_hoisted_lengths(Context& ctx, const Spec& spec);
+/// After the sizing is read: the two checks above hold at both ends of every sizing range (or
+/// catalogue) of a link's length or mass, when the spec has an elastic or a hoisted rope.
+void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& spec);
 
 void read_cases(const MapView& top, Spec& spec, const LoadOptions& options);
 void read_limits(const MapView& top, Spec& spec);

@@ -9,6 +9,7 @@
 
 #include "loader_parts.hpp"
 #include "swaybound/model/profile.hpp"
+#include "swaybound/spec/paths.hpp"
 
 namespace swaybound::spec_detail {
 
@@ -372,6 +373,42 @@ void check_hoisted_lengths(Context& ctx, const Spec& spec) {
                 fmt::format("lower less within cases.duration ({}): a shorter lowering move (an earlier move to "
                             "drum speed 0, or a lower speed), or a longer rope at t = 0",
                             u::format_si(duration, u::duration)));
+  }
+}
+
+void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& spec) {
+  if (!spec.sizing) return;
+  bool any_rope_check = false;
+  for (const auto& l : spec.links) any_rope_check |= l.kind == LinkKind::rope && l.elastic;
+  for (const auto& sc : spec.scenarios) any_rope_check |= sc.hoist && sc.hoist->link >= 0;
+  if (!any_rope_check) return;
+  const auto& variables = spec.sizing->variables;
+  for (std::size_t i = 0; i < variables.size(); ++i) {
+    const SizingVariableSpec& v = variables[i];
+    std::string why;
+    const auto target = parse_spec_path(spec, v.path, why);
+    // The rope checks read links' lengths and masses only; each is monotonic in every one of them,
+    // so the ends of a range (or of a catalogue) are the designs to check.
+    if (!target || (target->field != SpecPath::Field::length && target->field != SpecPath::Field::mass)) continue;
+    const bool listed = !v.catalogue.empty();
+    const double low = listed ? *std::min_element(v.catalogue.begin(), v.catalogue.end()) : v.lo;
+    const double high = listed ? *std::max_element(v.catalogue.begin(), v.catalogue.end()) : v.hi;
+    for (const auto& [end, value] : {std::pair{"low", low}, std::pair{"high", high}}) {
+      Spec design = spec;
+      set_spec_value(design, *target, value);
+      Context probe;
+      check_elastic_ropes(probe, links_node, design);
+      check_hoisted_lengths(probe, design);
+      if (probe.diagnostics.empty()) continue;
+      const Diagnostic& d = probe.diagnostics.front();
+      const u::Dim dim = spec_path_dim(*target);
+      ctx.error(v.mark, fmt::format("sizing.variables[{}]", i),
+                fmt::format("at the {} end of its {}, {} = {}, {}: {}", end, listed ? "catalogue" : "range", v.path,
+                            u::format_si(value, dim), d.path, d.message),
+                fmt::format("narrow the {} to designs the loader accepts, or: {}", listed ? "catalogue" : "range",
+                            d.fix));
+      break;
+    }
   }
 }
 

@@ -481,3 +481,42 @@ cases: {duration: 20 s, initial: [{single: {theta: [5 deg]}}]}
     CHECK_FALSE(contains(plain, key));
   }
 }
+
+TEST_CASE("sizing a link's length or mass keeps the rope checks at both ends of its range", "[spec][rope][bad][sizing]") {
+  // Drum at 0.5 m/s for 10 s hauls in 5 m: a rope of 5.27 m or less goes below 5% (5 / 0.95 m).
+  const std::string hoisted = R"(swaybound: 1
+name: sized rope
+links:
+  - {name: rope, kind: rope, length: 6 m, mass: 30 kg, elastic: {ea: 90 MN}}
+  - {name: hook, length: 1 m, mass: 2 t}
+base:
+  scenarios:
+    - {name: lift, hoist: {drum_speed: 0.5 m/s}}
+cases: {duration: 10 s, initial: [{single: {theta: [5 deg, 0 deg]}}]}
+limits:
+  - {peak_angle: 30 deg}
+sizing:
+  variables:
+    - {path: "links[rope].length", VALUES}
+)";
+  const auto with = [&](const std::string& values) { return std::regex_replace(hoisted, std::regex("VALUES"), values); };
+  CHECK(problems(with("range: [5.3 m, 12 m]")).empty());
+  const Diagnostic low = only_problem(with("range: [5.2 m, 12 m]"), "sizing.variables[0]");
+  CHECK(contains(low.message, "at the low end of its range, links[rope].length = 5.2 m"));
+  CHECK(contains(low.message, "less than 0.26 m, 5% of its length 5.2 m"));
+  CHECK(contains(low.fix, "narrow the range"));
+  CHECK(contains(only_problem(with("catalogue: [5 m, 6 m]"), "sizing.variables[0]").message,
+                 "at the low end of its catalogue"));
+  // The load's mass at the high end: EA 90 kN on 6 m (k = 15 kN/m) holds up to 15e3 x 3 m / g - 30 kg.
+  const std::string soft = std::regex_replace(
+      std::regex_replace(hoisted, std::regex("90 MN"), "90 kN"), std::regex("links\\[rope\\].length"),
+      "links[hook].mass");
+  const double heaviest = 15e3 * 3 / kGravity - 30;
+  CHECK(problems(std::regex_replace(soft, std::regex("VALUES"), fmt::format("range: [1 t, {:.6g} kg]", heaviest * 0.99)))
+            .empty());
+  const Diagnostic high = only_problem(
+      std::regex_replace(soft, std::regex("VALUES"), fmt::format("range: [1 t, {:.6g} kg]", heaviest * 1.01)),
+      "sizing.variables[0]");
+  CHECK(contains(high.message, "at the high end of its range"));
+  CHECK(contains(high.message, "so soft"));
+}
