@@ -232,9 +232,10 @@ std::string normalised_yaml(const Spec& spec) {
       if (!h->moves.empty()) {
         out << YAML::Key << "moves" << YAML::Value << YAML::BeginSeq;
         for (const auto& m : h->moves) {
-          out << YAML::Flow << YAML::BeginMap << YAML::Key << "at" << YAML::Value << fmt::format("{:.12g}", m.at)
-              << YAML::Key << "to" << YAML::Value << fmt::format("{:.12g}", m.to) << YAML::Key << "accel"
-              << YAML::Value << fmt::format("{:.12g}", m.accel);
+          out << YAML::Flow << YAML::BeginMap << YAML::Key << "at" << YAML::Value
+              << fmt::format("{:.12g}", m.at) << YAML::Key << "to" << YAML::Value
+              << fmt::format("{:.12g}", m.to) << YAML::Key << "accel" << YAML::Value
+              << fmt::format("{:.12g}", m.accel);
           if (m.jerk > 0) out << YAML::Key << "jerk" << YAML::Value << fmt::format("{:.12g}", m.jerk);
           out << YAML::EndMap << YAML::Comment(m.jerk > 0 ? "s, m/s, m/s^2, m/s^3" : "s, m/s, m/s^2");
         }

@@ -10,10 +10,10 @@ int read_link_ref(Context& ctx, const YAML::Node& node, const std::string& path,
 
 /// Ranges of the rope keys (specs/README.md, "Limits of the loader").
 inline constexpr int kMaxPartsOfLine = 64;
-inline constexpr double kMaxRopeEa = 1e12;         ///< N, EA of one part of line
-inline constexpr double kMinRopePeriod = 1e-5;     ///< s, the load's bounce on an elastic rope
-inline constexpr double kMinHoistedShare = 0.05;   ///< a hoisted rope keeps >= 5% of its length
-inline constexpr double kMaxHoistedFactor = 10;    ///< and <= 10 times its length
+inline constexpr double kMaxRopeEa = 1e12;        ///< N, EA of one part of line
+inline constexpr double kMinRopePeriod = 1e-5;    ///< s, the load's bounce on an elastic rope
+inline constexpr double kMinHoistedShare = 0.05;  ///< a hoisted rope keeps >= 5% of its length
+inline constexpr double kMaxHoistedFactor = 10;   ///< and <= 10 times its length
 
 /// Reads a link's `parts_of_line` and `elastic` (loader_rope.cpp) into `link`, whose kind is read
 /// (`kind_read` false when the kind's value was refused); reports them on a link that is not a rope.

@@ -32,16 +32,19 @@ constexpr const char* kStiffnessFix =
 /// links[i].elastic: exactly one of ea and stiffness, at most one of damping and damping_ratio.
 void read_elastic(const MapView& link_map, LinkSpec& link) {
   Context& ctx = link_map.ctx();
-  MapView e(ctx, link_map.get("elastic"), link_map.path("elastic"), {"ea", "stiffness", "damping", "damping_ratio"});
+  MapView e(ctx, link_map.get("elastic"), link_map.path("elastic"),
+            {"ea", "stiffness", "damping", "damping_ratio"});
   if (!e.ok()) return;
   RopeElasticSpec elastic;
   elastic.mark = e.mark();
   bool ok = true;
   if (e.has("ea") && e.has("stiffness")) {
-    ctx.error(e.key_mark("stiffness"), e.path("stiffness"), "both 'ea' and 'stiffness' are given", kStiffnessFix);
+    ctx.error(e.key_mark("stiffness"), e.path("stiffness"), "both 'ea' and 'stiffness' are given",
+              kStiffnessFix);
     ok = false;
   } else if (!e.has("ea") && !e.has("stiffness")) {
-    ctx.error(e.mark(), e.path(), "the elastic rope has no axial stiffness: neither 'ea' nor 'stiffness' is given",
+    ctx.error(e.mark(), e.path(),
+              "the elastic rope has no axial stiffness: neither 'ea' nor 'stiffness' is given",
               kStiffnessFix);
     ok = false;
   } else if (e.has("ea")) {
@@ -50,17 +53,20 @@ void read_elastic(const MapView& link_map, LinkSpec& link) {
     ok = v.has_value();
     if (v) elastic.ea = *v;
   } else {
-    const auto v = read_quantity(ctx, e.get("stiffness"), e.path("stiffness"), u::stiffness, Bounds::positive());
+    const auto v =
+        read_quantity(ctx, e.get("stiffness"), e.path("stiffness"), u::stiffness, Bounds::positive());
     ok = v.has_value();
     if (v) elastic.stiffness = *v;
   }
   if (e.has("damping") && e.has("damping_ratio")) {
-    ctx.error(e.key_mark("damping_ratio"), e.path("damping_ratio"), "both 'damping' and 'damping_ratio' are given",
+    ctx.error(e.key_mark("damping_ratio"), e.path("damping_ratio"),
+              "both 'damping' and 'damping_ratio' are given",
               "give one: damping, the axial damping coefficient of the fall in N s/m (e.g. '20 kN s/m'), or "
               "damping_ratio, the damping ratio of the load's bounce on the rope (e.g. 0.02)");
     ok = false;
   } else if (e.has("damping")) {
-    if (auto v = read_quantity(ctx, e.get("damping"), e.path("damping"), u::linear_damping, Bounds::non_negative()))
+    if (auto v = read_quantity(ctx, e.get("damping"), e.path("damping"), u::linear_damping,
+                               Bounds::non_negative()))
       elastic.damping = *v;
   } else if (e.has("damping_ratio")) {
     if (auto v = read_quantity(ctx, e.get("damping_ratio"), e.path("damping_ratio"), u::dimensionless,
@@ -106,9 +112,10 @@ bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& pat
       ok = false;
   };
   read("at", "when the move starts, e.g. '2 s'", u::duration, Bounds::non_negative(), move.at);
-  read("to", "the drum speed the move reaches, e.g. '0.5 m/s' (+ hauls in, - pays out)", u::speed, Bounds::any(),
-       move.to);
-  read("accel", "the drum's acceleration limit, e.g. '0.4 m/s^2'", u::acceleration, Bounds::positive(), move.accel);
+  read("to", "the drum speed the move reaches, e.g. '0.5 m/s' (+ hauls in, - pays out)", u::speed,
+       Bounds::any(), move.to);
+  read("accel", "the drum's acceleration limit, e.g. '0.4 m/s^2'", u::acceleration, Bounds::positive(),
+       move.accel);
   if (m.has("jerk")) {
     if (auto v = read_quantity(ctx, m.get("jerk"), m.path("jerk"), u::jerk, Bounds::non_negative()))
       move.jerk = *v;
@@ -155,7 +162,8 @@ void read_hoist(const MapView& scenario, const Spec& spec, ScenarioSpec& sc) {
   }
   read_optional(h, "drum_speed", hoist.initial_speed, u::speed);
   bool moves_ok = true;
-  if (h.has("moves") && expect_sequence(ctx, h.get("moves"), h.path("moves"), "drum moves {at, to, accel, jerk}")) {
+  if (h.has("moves") &&
+      expect_sequence(ctx, h.get("moves"), h.path("moves"), "drum moves {at, to, accel, jerk}")) {
     const YAML::Node list = h.get("moves");
     for (std::size_t k = 0; k < list.size(); ++k) {
       DrumMoveSpec move;
@@ -184,32 +192,37 @@ void read_lift_off(const MapView& scenario, const Spec& spec, ScenarioSpec& sc) 
   LiftOffSpec lift;
   lift.mark = scenario.key_mark("lift_off");
   const std::string path = scenario.path("lift_off");
-  const char* elastic_fix = "give links[0] kind: rope and elastic: {ea: EA of one part of line, e.g. '90 MN'}";
+  const char* elastic_fix =
+      "give links[0] kind: rope and elastic: {ea: EA of one part of line, e.g. '90 MN'}";
   if (spec.links.empty()) return;  // the links are reported already
   const LinkSpec& top = spec.links[0];
   if (spec.links.size() < 2)
-    ctx.error(lift.mark, path,
-              fmt::format("lift-off needs a load below the rope, and the chain has one link ('{}')", top.name),
-              "add the load as a link below the rope: links[0] the elastic rope, the links below it the load "
-              "that starts on the ground");
+    ctx.error(
+        lift.mark, path,
+        fmt::format("lift-off needs a load below the rope, and the chain has one link ('{}')", top.name),
+        "add the load as a link below the rope: links[0] the elastic rope, the links below it the load "
+        "that starts on the ground");
   else if (top.kind != LinkKind::rope)
-    ctx.error(lift.mark, path,
-              fmt::format("lift-off needs links[0] to be an elastic rope, and links[0] '{}' is rigid", top.name),
-              elastic_fix);
+    ctx.error(
+        lift.mark, path,
+        fmt::format("lift-off needs links[0] to be an elastic rope, and links[0] '{}' is rigid", top.name),
+        elastic_fix);
   else if (!top.elastic)
-    ctx.error(lift.mark, path,
-              fmt::format("lift-off needs links[0] to be an elastic rope (one that can start slack and stretch as "
-                          "it takes the load), and rope '{}' has no 'elastic'",
-                          top.name),
-              elastic_fix);
+    ctx.error(
+        lift.mark, path,
+        fmt::format("lift-off needs links[0] to be an elastic rope (one that can start slack and stretch as "
+                    "it takes the load), and rope '{}' has no 'elastic'",
+                    top.name),
+        elastic_fix);
   if (l.has("slack")) {
     if (auto v = read_quantity(ctx, l.get("slack"), l.path("slack"), u::length, Bounds::non_negative())) {
       if (*v >= top.length)
-        ctx.error(l.get("slack"), l.path("slack"),
-                  fmt::format("slack {} is not less than the length of links[0] '{}', {}", u::format_si(*v, u::length),
-                              top.name, u::format_si(top.length, u::length)),
-                  "give the rope's slack at t = 0 (its unstretched length minus the distance it spans), below its "
-                  "length");
+        ctx.error(
+            l.get("slack"), l.path("slack"),
+            fmt::format("slack {} is not less than the length of links[0] '{}', {}",
+                        u::format_si(*v, u::length), top.name, u::format_si(top.length, u::length)),
+            "give the rope's slack at t = 0 (its unstretched length minus the distance it spans), below its "
+            "length");
       else
         lift.slack = *v;
     }
@@ -260,7 +273,8 @@ void read_rope_keys(const MapView& link_map, bool kind_read, LinkSpec& link) {
     return;
   }
   if (link_map.has("parts_of_line")) {
-    if (auto v = read_integer(ctx, link_map.get("parts_of_line"), link_map.path("parts_of_line"), 1, kMaxPartsOfLine))
+    if (auto v = read_integer(ctx, link_map.get("parts_of_line"), link_map.path("parts_of_line"), 1,
+                              kMaxPartsOfLine))
       link.parts_of_line = static_cast<int>(*v);
   } else {
     ctx.defaults_filled.push_back(link_map.path("parts_of_line"));
@@ -280,27 +294,29 @@ void check_elastic_ropes(Context& ctx, const YAML::Node& links_node, const Spec&
       const std::string path = fmt::format("links[{}].elastic.{}", k, key);
       const YAML::Node node = links_node[k]["elastic"][key];
       const std::string law =
-          by_ea ? fmt::format("k = parts_of_line EA / length = {} x {:.4g} N / {:.4g} m = {:.4g} N/m", l.parts_of_line,
-                              l.elastic->ea, l.length, stiffness)
+          by_ea ? fmt::format("k = parts_of_line EA / length = {} x {:.4g} N / {:.4g} m = {:.4g} N/m",
+                              l.parts_of_line, l.elastic->ea, l.length, stiffness)
                 : fmt::format("k = {:.4g} N/m", stiffness);
       const double period = 2 * std::numbers::pi * std::sqrt(mass / stiffness);
       const double stretch = mass * spec.gravity / stiffness;
       if (!(period >= kMinRopePeriod)) {
-        ctx.error(node, path,
-                  fmt::format("the rope is so stiff that the load would bounce on it with a period of {:.3g} s "
-                              "(2 pi sqrt(m / k), m = {:.4g} kg: the rope and every link below it, {}), below the "
-                              "{:g} s a check can follow",
-                              period, mass, law, kMinRopePeriod),
-                  by_ea ? "give EA of one part of line in N (e.g. 90 MN); check the value's unit"
-                        : "give the spring rate of the whole fall in N/m (e.g. 3 MN/m); check the value's unit");
+        ctx.error(
+            node, path,
+            fmt::format("the rope is so stiff that the load would bounce on it with a period of {:.3g} s "
+                        "(2 pi sqrt(m / k), m = {:.4g} kg: the rope and every link below it, {}), below the "
+                        "{:g} s a check can follow",
+                        period, mass, law, kMinRopePeriod),
+            by_ea ? "give EA of one part of line in N (e.g. 90 MN); check the value's unit"
+                  : "give the spring rate of the whole fall in N/m (e.g. 3 MN/m); check the value's unit");
       } else if (stretch > 0.5 * l.length) {
-        ctx.error(node, path,
-                  fmt::format("the rope is so soft that the load would stretch it by more than half its length: "
-                              "m g / k = {:.4g} m at rest for its length {} (m = {:.4g} kg: the rope and every "
-                              "link below it, {})",
-                              stretch, u::format_si(l.length, u::length), mass, law),
-                  by_ea ? "give EA of one part of line in N (e.g. 90 MN); check the value's unit and parts_of_line"
-                        : "give the spring rate of the whole fall in N/m (e.g. 3 MN/m); check the value's unit");
+        ctx.error(
+            node, path,
+            fmt::format("the rope is so soft that the load would stretch it by more than half its length: "
+                        "m g / k = {:.4g} m at rest for its length {} (m = {:.4g} kg: the rope and every "
+                        "link below it, {})",
+                        stretch, u::format_si(l.length, u::length), mass, law),
+            by_ea ? "give EA of one part of line in N (e.g. 90 MN); check the value's unit and parts_of_line"
+                  : "give the spring rate of the whole fall in N/m (e.g. 3 MN/m); check the value's unit");
       }
     }
     mass_below += l.mass;
@@ -352,27 +368,29 @@ void check_hoisted_lengths(Context& ctx, const Spec& spec) {
         extreme_time = t;
       }
     const std::string path = fmt::format("base.scenarios[{}].hoist", i);
-    const std::string law = rope.parts_of_line > 1
-                                ? fmt::format(" (length - drum travel / {} parts of line)", rope.parts_of_line)
-                                : " (length - drum travel)";
+    const std::string law =
+        rope.parts_of_line > 1 ? fmt::format(" (length - drum travel / {} parts of line)", rope.parts_of_line)
+                               : " (length - drum travel)";
     if (too_short)
-      ctx.error(hoist.mark, path,
-                fmt::format("the drum would wind rope '{}' in to less than {}, 5% of its length {}, at t = {:.6g} "
-                            "s{}; it reaches {:.4g} m at t = {:.6g} s",
-                            rope.name, u::format_si(shortest, u::length), u::format_si(rope.length, u::length), hi,
-                            law, extreme, extreme_time),
-                fmt::format("hoist less within cases.duration ({}): a shorter hoisting move (an earlier move to "
-                            "drum speed 0, or a lower speed), or a longer rope",
-                            u::format_si(duration, u::duration)));
+      ctx.error(
+          hoist.mark, path,
+          fmt::format("the drum would wind rope '{}' in to less than {}, 5% of its length {}, at t = {:.6g} "
+                      "s{}; it reaches {:.4g} m at t = {:.6g} s",
+                      rope.name, u::format_si(shortest, u::length), u::format_si(rope.length, u::length), hi,
+                      law, extreme, extreme_time),
+          fmt::format("hoist less within cases.duration ({}): a shorter hoisting move (an earlier move to "
+                      "drum speed 0, or a lower speed), or a longer rope",
+                      u::format_si(duration, u::duration)));
     else
-      ctx.error(hoist.mark, path,
-                fmt::format("the drum would pay rope '{}' out to more than {}, 10 times its length {}, at t = "
-                            "{:.6g} s{}; it reaches {:.4g} m at t = {:.6g} s",
-                            rope.name, u::format_si(longest, u::length), u::format_si(rope.length, u::length), hi,
-                            law, extreme, extreme_time),
-                fmt::format("lower less within cases.duration ({}): a shorter lowering move (an earlier move to "
-                            "drum speed 0, or a lower speed), or a longer rope at t = 0",
-                            u::format_si(duration, u::duration)));
+      ctx.error(
+          hoist.mark, path,
+          fmt::format("the drum would pay rope '{}' out to more than {}, 10 times its length {}, at t = "
+                      "{:.6g} s{}; it reaches {:.4g} m at t = {:.6g} s",
+                      rope.name, u::format_si(longest, u::length), u::format_si(rope.length, u::length), hi,
+                      law, extreme, extreme_time),
+          fmt::format("lower less within cases.duration ({}): a shorter lowering move (an earlier move to "
+                      "drum speed 0, or a lower speed), or a longer rope at t = 0",
+                      u::format_si(duration, u::duration)));
   }
 }
 
@@ -389,7 +407,8 @@ void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& s
     const auto target = parse_spec_path(spec, v.path, why);
     // The rope checks read links' lengths and masses only; each is monotonic in every one of them,
     // so the ends of a range (or of a catalogue) are the designs to check.
-    if (!target || (target->field != SpecPath::Field::length && target->field != SpecPath::Field::mass)) continue;
+    if (!target || (target->field != SpecPath::Field::length && target->field != SpecPath::Field::mass))
+      continue;
     const bool listed = !v.catalogue.empty();
     const double low = listed ? *std::min_element(v.catalogue.begin(), v.catalogue.end()) : v.lo;
     const double high = listed ? *std::max_element(v.catalogue.begin(), v.catalogue.end()) : v.hi;
@@ -403,10 +422,10 @@ void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& s
       const Diagnostic& d = probe.diagnostics.front();
       const u::Dim dim = spec_path_dim(*target);
       ctx.error(v.mark, fmt::format("sizing.variables[{}]", i),
-                fmt::format("at the {} end of its {}, {} = {}, {}: {}", end, listed ? "catalogue" : "range", v.path,
-                            u::format_si(value, dim), d.path, d.message),
-                fmt::format("narrow the {} to designs the loader accepts, or: {}", listed ? "catalogue" : "range",
-                            d.fix));
+                fmt::format("at the {} end of its {}, {} = {}, {}: {}", end, listed ? "catalogue" : "range",
+                            v.path, u::format_si(value, dim), d.path, d.message),
+                fmt::format("narrow the {} to designs the loader accepts, or: {}",
+                            listed ? "catalogue" : "range", d.fix));
       break;
     }
   }

@@ -155,8 +155,8 @@ TEST_CASE("inline specs with the rope keys the loader accepts pass every command
       "  - {name: rope, kind: rope, length: 10 m, mass: 50 kg, parts_of_line: 4, elastic: {ea: 90 MN, "
       "damping_ratio: 0.02}}\n"
       "  - {name: hook, length: 1 m, mass: 5 t}\n"
-      "base:\n  scenarios:\n    - name: lift\n      hoist:\n        moves: [{at: 1 s, to: 0.8 m/s, accel: 0.4 "
-      "m/s^2, jerk: 0.5 m/s^3}]\n      lift_off: {slack: 5 cm}\n"
+      "base:\n  scenarios:\n    - name: lift\n      hoist:\n"
+      "        moves: [{at: 1 s, to: 0.8 m/s, accel: 0.4 m/s^2, jerk: 0.5 m/s^3}]\n      lift_off: {slack: 5 cm}\n"
       "cases: {duration: 5 s, initial: [{single: {theta: [0 deg, 0 deg]}}]}\n",
       // an inextensible rope lowered by the drum, beside a scenario without a hoist
       "swaybound: 1\nname: lower\nlinks:\n"
@@ -167,7 +167,8 @@ TEST_CASE("inline specs with the rope keys the loader accepts pass every command
       // an elastic sling given by its spring rate below a rigid link
       "swaybound: 1\nname: sling\nlinks:\n"
       "  - {name: boom tip, length: 1 m, mass: 100 kg}\n"
-      "  - {name: sling, kind: rope, length: 3 m, mass: 8 kg, elastic: {stiffness: 450 kN/m, damping: 2 kN s/m}}\n"
+      "  - {name: sling, kind: rope, length: 3 m, mass: 8 kg,"
+      " elastic: {stiffness: 450 kN/m, damping: 2 kN s/m}}\n"
       "  - {name: load, length: 2 m, mass: 4 t}\n"
       "cases: {duration: 5 s, initial: [{single: {theta: [5 deg]}}]}\n",
   };
@@ -258,7 +259,8 @@ TEST_CASE("validate marks every value it filled in as a default", "[spec][truth]
       "swaybound: 1\nname: rope defaults\nlinks:\n"
       "  - {name: rope, kind: rope, length: 6 m, mass: 30 kg, elastic: {ea: 90 MN}}\n"
       "  - {name: hook, length: 1 m, mass: 2 t}\n"
-      "base:\n  scenarios:\n    - name: lift\n      initial_velocity: {x: 0 m/s}\n      hoist:\n        moves: [{at: 1 s, to: 0.2 m/s, accel: 0.1 m/s^2}]\n"
+      "base:\n  scenarios:\n    - name: lift\n      initial_velocity: {x: 0 m/s}\n"
+      "      hoist:\n        moves: [{at: 1 s, to: 0.2 m/s, accel: 0.1 m/s^2}]\n"
       "      lift_off: {}\n"
       "cases:\n  duration: 2 s\n  initial:\n    - single: {theta: [5 deg, 0 deg]}\n",
   };

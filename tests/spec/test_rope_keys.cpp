@@ -2,8 +2,8 @@
 // per scenario. Values in SI, the defaults recorded, every error's message and fix, the thresholds
 // of the loader's checks from their closed forms, and the round trip through the normalised spec.
 // The positions of these errors are in the bad-spec corpus (tests/bad_specs/200..221).
-#include <catch2/catch.hpp>
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <cmath>
 #include <numbers>
 #include <regex>
@@ -40,16 +40,19 @@ Diagnostic only_problem(const std::string& text, const std::string& path) {
   return all[0];
 }
 
-bool contains(const std::string& text, const std::string& part) { return text.find(part) != std::string::npos; }
+bool contains(const std::string& text, const std::string& part) {
+  return text.find(part) != std::string::npos;
+}
 
 bool defaulted(const Spec& spec, const std::string& path) {
-  return std::find(spec.defaults_filled.begin(), spec.defaults_filled.end(), path) != spec.defaults_filled.end();
+  return std::find(spec.defaults_filled.begin(), spec.defaults_filled.end(), path) !=
+         spec.defaults_filled.end();
 }
 
 /// A rope over a hook block: `rope` is the rope link's extra keys, `scenario` the scenario's extra
 /// keys (both flow-map contents), `duration` the case duration.
-std::string rope_spec(const std::string& rope, const std::string& scenario = "", const std::string& duration = "10 s",
-                      const std::string& rope_length = "6 m") {
+std::string rope_spec(const std::string& rope, const std::string& scenario = "",
+                      const std::string& duration = "10 s", const std::string& rope_length = "6 m") {
   return fmt::format(R"(swaybound: 1
 name: rope keys
 links:
@@ -60,10 +63,13 @@ base:
     - {{name: lift{}}}
 cases: {{duration: {}, initial: [{{single: {{theta: [5 deg, 0 deg]}}}}]}}
 )",
-                     rope_length, rope.empty() ? "" : ", " + rope, scenario.empty() ? "" : ", " + scenario, duration);
+                     rope_length, rope.empty() ? "" : ", " + rope, scenario.empty() ? "" : ", " + scenario,
+                     duration);
 }
 
-std::string strip_comments(const std::string& yaml) { return std::regex_replace(yaml, std::regex(" *#[^\n]*"), ""); }
+std::string strip_comments(const std::string& yaml) {
+  return std::regex_replace(yaml, std::regex(" *#[^\n]*"), "");
+}
 
 constexpr double kGravity = 9.80665;  // the loader's default gravity (CGPM 1901 standard gravity)
 
@@ -219,7 +225,8 @@ TEST_CASE("elastic needs exactly one stiffness, at most one damping, in their un
     std::string elastic, path, message, fix;
   };
   const Bad cases[] = {
-      {"{ea: 90 MN, stiffness: 3 MN/m}", "links[0].elastic.stiffness", "both 'ea' and 'stiffness'", "EA of one part of line"},
+      {"{ea: 90 MN, stiffness: 3 MN/m}", "links[0].elastic.stiffness", "both 'ea' and 'stiffness'",
+       "EA of one part of line"},
       {"{damping: 2 kN s/m}", "links[0].elastic", "neither 'ea' nor 'stiffness'", "'3 MN/m'"},
       {"{ea: 90 kN m}", "links[0].elastic.ea", "expects a force", "bare numbers are in N"},
       {"{ea: 0 N}", "links[0].elastic.ea", "out of range", "1e+12 N"},
@@ -241,8 +248,12 @@ TEST_CASE("elastic needs exactly one stiffness, at most one damping, in their un
     CHECK(contains(d.fix, bad.fix));
   }
   // The ends of the ranges that are allowed.
-  CHECK(load_spec_text(rope_spec("elastic: {ea: 90 MN, damping_ratio: 0}"), "rope.yaml").links[0].elastic->damping_ratio == 0);
-  CHECK(load_spec_text(rope_spec("elastic: {ea: 90 MN, damping: 0}"), "rope.yaml").links[0].elastic->damping == 0);
+  CHECK(load_spec_text(rope_spec("elastic: {ea: 90 MN, damping_ratio: 0}"), "rope.yaml")
+            .links[0]
+            .elastic->damping_ratio == 0);
+  CHECK(
+      load_spec_text(rope_spec("elastic: {ea: 90 MN, damping: 0}"), "rope.yaml").links[0].elastic->damping ==
+      0);
 }
 
 TEST_CASE("an elastic rope whose bounce period is below 10 us is refused as too stiff", "[spec][rope][bad]") {
@@ -256,15 +267,19 @@ cases: {duration: 1 s, initial: [{single: {theta: [5 deg]}}]}
 )";
   const double threshold = std::pow(2 * std::numbers::pi / 1e-5, 2);
   REQUIRE_THAT(threshold, IsCloseTo(3.948e11, 0, 1e-3));
-  const auto with = [&](double ea) { return std::regex_replace(one, std::regex("EA"), fmt::format("{:.6g} N", ea)); };
+  const auto with = [&](double ea) {
+    return std::regex_replace(one, std::regex("EA"), fmt::format("{:.6g} N", ea));
+  };
   CHECK(problems(with(threshold * 0.99)).empty());
   const Diagnostic d = only_problem(with(threshold * 1.01), "links[0].elastic.ea");
   CHECK(contains(d.message, "so stiff"));
   CHECK(d.fix == "give EA of one part of line in N (e.g. 90 MN); check the value's unit");
   // The stiffness counts the parts of line: 4 parts at a quarter of the EA are the same fall.
   const std::string four = std::regex_replace(one, std::regex("elastic"), "parts_of_line: 4, elastic");
-  CHECK(problems(std::regex_replace(four, std::regex("EA"), fmt::format("{:.6g} N", threshold * 0.99 / 4))).empty());
-  CHECK(problems(std::regex_replace(four, std::regex("EA"), fmt::format("{:.6g} N", threshold * 1.01 / 4))).size() == 1);
+  CHECK(problems(std::regex_replace(four, std::regex("EA"), fmt::format("{:.6g} N", threshold * 0.99 / 4)))
+            .empty());
+  CHECK(problems(std::regex_replace(four, std::regex("EA"), fmt::format("{:.6g} N", threshold * 1.01 / 4)))
+            .size() == 1);
 }
 
 TEST_CASE("an elastic rope the load would stretch by more than half its length is refused as too soft",
@@ -279,18 +294,21 @@ links:
 cases: {duration: 1 s, initial: [{single: {theta: [5 deg, 0 deg]}}]}
 )";
   const double k = 1000 * kGravity / 5;
-  const auto with = [&](const std::string& elastic) { return std::regex_replace(text, std::regex("ELASTIC"), elastic); };
+  const auto with = [&](const std::string& elastic) {
+    return std::regex_replace(text, std::regex("ELASTIC"), elastic);
+  };
   CHECK(problems(with(fmt::format("elastic: {{ea: {:.6g} N}}", k * 10 * 1.01))).empty());
   CHECK(problems(with(fmt::format("parts_of_line: 2, elastic: {{ea: {:.6g} N}}", k * 5 * 1.01))).empty());
   CHECK(problems(with(fmt::format("elastic: {{stiffness: {:.6g} N/m}}", k * 1.01))).empty());
-  const Diagnostic by_ea = only_problem(with(fmt::format("elastic: {{ea: {:.6g} N}}", k * 10 * 0.99)), "links[0].elastic.ea");
+  const Diagnostic by_ea =
+      only_problem(with(fmt::format("elastic: {{ea: {:.6g} N}}", k * 10 * 0.99)), "links[0].elastic.ea");
   CHECK(contains(by_ea.message, "so soft that the load would stretch it by more than half its length"));
   CHECK(contains(by_ea.fix, "EA of one part of line in N (e.g. 90 MN)"));
   CHECK(only_problem(with(fmt::format("parts_of_line: 2, elastic: {{ea: {:.6g} N}}", k * 5 * 0.99)),
                      "links[0].elastic.ea")
             .message.find("so soft") != std::string::npos);
-  const Diagnostic by_k =
-      only_problem(with(fmt::format("elastic: {{stiffness: {:.6g} N/m}}", k * 0.99)), "links[0].elastic.stiffness");
+  const Diagnostic by_k = only_problem(with(fmt::format("elastic: {{stiffness: {:.6g} N/m}}", k * 0.99)),
+                                       "links[0].elastic.stiffness");
   CHECK(contains(by_k.fix, "spring rate of the whole fall in N/m"));
   // EA given in N where MN was meant is caught here: 90 N on a 6 m rope under 2 t.
   CHECK(contains(only_problem(rope_spec("elastic: {ea: 90 N}"), "links[0].elastic.ea").message, "so soft"));
@@ -300,7 +318,8 @@ TEST_CASE("a hoist must wind a rope: the errors name the ropes there are", "[spe
   const Diagnostic rigid = only_problem(rope_spec("", "hoist: {rope: hook}"), "base.scenarios[0].hoist.rope");
   CHECK(rigid.message == "link 'hook' is rigid, and a drum winds a rope");
   CHECK(contains(rigid.fix, "ropes: 'rope'"));
-  const Diagnostic unknown = only_problem(rope_spec("", "hoist: {rope: rpoe}"), "base.scenarios[0].hoist.rope");
+  const Diagnostic unknown =
+      only_problem(rope_spec("", "hoist: {rope: rpoe}"), "base.scenarios[0].hoist.rope");
   CHECK(contains(unknown.fix, "did you mean 'rope'"));
   const std::string two_ropes = R"(swaybound: 1
 name: two ropes
@@ -316,18 +335,22 @@ cases: {duration: 5 s, initial: [{single: {theta: [5 deg]}}]}
   const Diagnostic two = only_problem(two_ropes, "base.scenarios[0].hoist");
   CHECK(contains(two.message, "('main', 'sling')"));
   CHECK(two.fix == "add rope: NAME, the rope link the drum winds");
-  CHECK(load_spec_text(std::regex_replace(two_ropes, std::regex("drum_speed"), "rope: sling, drum_speed"), "rope.yaml")
+  CHECK(load_spec_text(std::regex_replace(two_ropes, std::regex("drum_speed"), "rope: sling, drum_speed"),
+                       "rope.yaml")
             .scenarios[0]
             .hoist->link == 1);
-  const Diagnostic none = only_problem(
-      std::regex_replace(rope_spec("", "hoist: {}"), std::regex("kind: rope, "), ""), "base.scenarios[0].hoist");
+  const Diagnostic none =
+      only_problem(std::regex_replace(rope_spec("", "hoist: {}"), std::regex("kind: rope, "), ""),
+                   "base.scenarios[0].hoist");
   CHECK(contains(none.message, "no link is of kind rope"));
 }
 
-TEST_CASE("a drum move that cannot be built is reported at the move with the profile's reason", "[spec][rope][bad]") {
+TEST_CASE("a drum move that cannot be built is reported at the move with the profile's reason",
+          "[spec][rope][bad]") {
   // moves[0]: 0 -> 0.5 m/s at 0.25 m/s^2 from 1 s reaches its speed at 3 s.
   const std::string early = rope_spec(
-      "", "hoist: {moves: [{at: 1 s, to: 0.5 m/s, accel: 0.25 m/s^2}, {at: 2 s, to: 0 m/s, accel: 0.25 m/s^2}]}");
+      "",
+      "hoist: {moves: [{at: 1 s, to: 0.5 m/s, accel: 0.25 m/s^2}, {at: 2 s, to: 0 m/s, accel: 0.25 m/s^2}]}");
   const Diagnostic d = only_problem(early, "base.scenarios[0].hoist.moves[1]");
   CHECK(d.message == "starts at 2 s, before moves[0] reaches its speed at 3 s");
   CHECK(d.fix == "start it at 3 s or later, or raise the accel or jerk of moves[0]");
@@ -341,12 +364,14 @@ TEST_CASE("a drum move that cannot be built is reported at the move with the pro
                               "base.scenarios[0].hoist.moves[0].at")
                      .message,
                  "out of range"));
-  CHECK(contains(only_problem(rope_spec("", "hoist: {moves: [{at: 1 s, to: 0.5 m/s, accel: 1 m/s^2, jerk: 1 m/s^2}]}"),
-                              "base.scenarios[0].hoist.moves[0].jerk")
-                     .message,
-                 "expects a jerk"));
-  CHECK(contains(only_problem(rope_spec("", "hoist: {moves: {at: 1 s}}"), "base.scenarios[0].hoist.moves").message,
-                 "expected a list"));
+  CHECK(contains(
+      only_problem(rope_spec("", "hoist: {moves: [{at: 1 s, to: 0.5 m/s, accel: 1 m/s^2, jerk: 1 m/s^2}]}"),
+                   "base.scenarios[0].hoist.moves[0].jerk")
+          .message,
+      "expects a jerk"));
+  CHECK(contains(
+      only_problem(rope_spec("", "hoist: {moves: {at: 1 s}}"), "base.scenarios[0].hoist.moves").message,
+      "expected a list"));
 }
 
 TEST_CASE("a hoisted rope stays between 5% and 10 times its length over the run", "[spec][rope][bad]") {
@@ -354,7 +379,8 @@ TEST_CASE("a hoisted rope stays between 5% and 10 times its length over the run"
   // Rope 10 m in 2 parts: length 10 - s / 2 reaches 0.5 m (5%) at s = 19 m, t = 20.5 s.
   const std::string in = "hoist: {moves: [{at: 1 s, to: 1 m/s, accel: 1 m/s^2}]}";
   CHECK(problems(rope_spec("parts_of_line: 2", in, "20.4 s", "10 m")).empty());
-  const Diagnostic shortened = only_problem(rope_spec("parts_of_line: 2", in, "21 s", "10 m"), "base.scenarios[0].hoist");
+  const Diagnostic shortened =
+      only_problem(rope_spec("parts_of_line: 2", in, "21 s", "10 m"), "base.scenarios[0].hoist");
   CHECK(contains(shortened.message, "less than 0.5 m, 5% of its length 10 m, at t = 20.5 s"));
   CHECK(contains(shortened.message, "2 parts of line"));
   CHECK(contains(shortened.message, "reaches 0.25 m at t = 21 s"));  // 10 - 19.5 / 2
@@ -385,8 +411,9 @@ TEST_CASE("lift-off needs an elastic rope as links[0] with a load below it", "[s
   CHECK(contains(inextensible.message, "rope 'rope' has no 'elastic'"));
   CHECK(contains(inextensible.fix, "elastic: {ea:"));
 
-  const Diagnostic rigid = only_problem(
-      std::regex_replace(rope_spec("", "lift_off: {}"), std::regex("kind: rope, "), ""), "base.scenarios[0].lift_off");
+  const Diagnostic rigid =
+      only_problem(std::regex_replace(rope_spec("", "lift_off: {}"), std::regex("kind: rope, "), ""),
+                   "base.scenarios[0].lift_off");
   CHECK(contains(rigid.message, "links[0] 'rope' is rigid"));
 
   const std::string single = R"(swaybound: 1
@@ -400,8 +427,8 @@ cases: {duration: 5 s, initial: [{single: {theta: [5 deg]}}]}
 )";
   CHECK(contains(only_problem(single, "base.scenarios[0].lift_off").message, "the chain has one link"));
 
-  const Diagnostic slack =
-      only_problem(rope_spec("elastic: {ea: 90 MN}", "lift_off: {slack: 6 m}"), "base.scenarios[0].lift_off.slack");
+  const Diagnostic slack = only_problem(rope_spec("elastic: {ea: 90 MN}", "lift_off: {slack: 6 m}"),
+                                        "base.scenarios[0].lift_off.slack");
   CHECK(contains(slack.message, "not less than the length of links[0] 'rope', 6 m"));
   CHECK(contains(only_problem(rope_spec("elastic: {ea: 90 MN}", "lift_off: {slack: -1 cm}"),
                               "base.scenarios[0].lift_off.slack")
@@ -482,7 +509,8 @@ cases: {duration: 20 s, initial: [{single: {theta: [5 deg]}}]}
   }
 }
 
-TEST_CASE("sizing a link's length or mass keeps the rope checks at both ends of its range", "[spec][rope][bad][sizing]") {
+TEST_CASE("sizing a link's length or mass keeps the rope checks at both ends of its range",
+          "[spec][rope][bad][sizing]") {
   // Drum at 0.5 m/s for 10 s hauls in 5 m: a rope of 5.27 m or less goes below 5% (5 / 0.95 m).
   const std::string hoisted = R"(swaybound: 1
 name: sized rope
@@ -499,7 +527,9 @@ sizing:
   variables:
     - {path: "links[rope].length", VALUES}
 )";
-  const auto with = [&](const std::string& values) { return std::regex_replace(hoisted, std::regex("VALUES"), values); };
+  const auto with = [&](const std::string& values) {
+    return std::regex_replace(hoisted, std::regex("VALUES"), values);
+  };
   CHECK(problems(with("range: [5.3 m, 12 m]")).empty());
   const Diagnostic low = only_problem(with("range: [5.2 m, 12 m]"), "sizing.variables[0]");
   CHECK(contains(low.message, "at the low end of its range, links[rope].length = 5.2 m"));
@@ -508,11 +538,11 @@ sizing:
   CHECK(contains(only_problem(with("catalogue: [5 m, 6 m]"), "sizing.variables[0]").message,
                  "at the low end of its catalogue"));
   // The load's mass at the high end: EA 90 kN on 6 m (k = 15 kN/m) holds up to 15e3 x 3 m / g - 30 kg.
-  const std::string soft = std::regex_replace(
-      std::regex_replace(hoisted, std::regex("90 MN"), "90 kN"), std::regex("links\\[rope\\].length"),
-      "links[hook].mass");
+  const std::string soft = std::regex_replace(std::regex_replace(hoisted, std::regex("90 MN"), "90 kN"),
+                                              std::regex("links\\[rope\\].length"), "links[hook].mass");
   const double heaviest = 15e3 * 3 / kGravity - 30;
-  CHECK(problems(std::regex_replace(soft, std::regex("VALUES"), fmt::format("range: [1 t, {:.6g} kg]", heaviest * 0.99)))
+  CHECK(problems(std::regex_replace(soft, std::regex("VALUES"),
+                                    fmt::format("range: [1 t, {:.6g} kg]", heaviest * 0.99)))
             .empty());
   const Diagnostic high = only_problem(
       std::regex_replace(soft, std::regex("VALUES"), fmt::format("range: [1 t, {:.6g} kg]", heaviest * 1.01)),
