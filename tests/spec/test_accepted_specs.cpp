@@ -156,7 +156,8 @@ TEST_CASE("inline specs with the rope keys the loader accepts pass every command
       "damping_ratio: 0.02}}\n"
       "  - {name: hook, length: 1 m, mass: 5 t}\n"
       "base:\n  scenarios:\n    - name: lift\n      hoist:\n"
-      "        moves: [{at: 1 s, to: 0.8 m/s, accel: 0.4 m/s^2, jerk: 0.5 m/s^3}]\n      lift_off: {slack: 5 cm}\n"
+      "        moves: [{at: 1 s, to: 0.8 m/s, accel: 0.4 m/s^2, jerk: 0.5 m/s^3}]\n"
+      "      lift_off: {slack: 5 cm}\n"
       "cases: {duration: 5 s, initial: [{single: {theta: [0 deg, 0 deg]}}]}\n",
       // an inextensible rope lowered by the drum, beside a scenario without a hoist
       "swaybound: 1\nname: lower\nlinks:\n"
