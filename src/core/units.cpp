@@ -174,6 +174,8 @@ std::string dim_name(const Dim& d) {
       {linear_damping, "linear damping coefficient"},
       {speed, "speed"},
       {acceleration, "acceleration"},
+      {jerk, "jerk"},
+      {stiffness, "stiffness (force per length)"},
       {moment_of_inertia, "moment of inertia"},
       {rate, "rate (per time)"},
       {angular_rate, "angular rate"},
@@ -203,6 +205,7 @@ std::string si_unit(const Dim& d) {
       {linear_damping, "N s/m"},    {speed, "m/s"},         {acceleration, "m/s^2"},
       {moment_of_inertia, "kg m^2"}, {rate, "1/s"},         {angular_rate, "rad/s"},
       {area, "m^2"},                {density, "kg/m^3"},
+      {jerk, "m/s^3"},              {stiffness, "N/m"},
   };
   for (const auto& n : kUnits)
     if (n.dim == d) return std::string(n.unit);

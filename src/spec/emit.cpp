@@ -61,6 +61,8 @@ class Writer {
   void mark_default(const std::string& key) {
     if (is_default(key)) out << YAML::Comment("default");
   }
+  /// True when `key` (under the current path) was filled in by the loader.
+  bool defaulted(const std::string& key) const { return is_default(key); }
 
  private:
   bool is_default(const std::string& key) const {
@@ -106,6 +108,23 @@ std::string normalised_yaml(const Spec& spec) {
     w.value("mass", l.mass, u::mass);
     w.value("com", l.com, u::length);
     w.value("inertia", l.inertia, u::moment_of_inertia);
+    if (l.kind == LinkKind::rope) {
+      // Written when it is not the default 1 or was given, so a spec without the key stays as it was.
+      if (l.parts_of_line != 1 || !w.defaulted("parts_of_line"))
+        w.value("parts_of_line", l.parts_of_line, u::dimensionless);
+      if (const auto& e = l.elastic) {
+        w.begin("elastic");
+        if (e->ea > 0)
+          w.value("ea", e->ea, u::force);
+        else
+          w.value("stiffness", e->stiffness, u::stiffness);
+        if (e->damping_ratio >= 0)
+          w.value("damping_ratio", e->damping_ratio, u::dimensionless);
+        else
+          w.value("damping", e->damping, u::linear_damping);
+        w.end();
+      }
+    }
     if (l.pivot.friction || !l.pivot.dampers.empty()) {
       w.begin("pivot");
       if (const auto& f = l.pivot.friction) {
@@ -193,7 +212,8 @@ std::string normalised_yaml(const Spec& spec) {
       spec.defaults_filled.end())
     out << YAML::Comment("default: a fixed top pivot");
   out << YAML::BeginSeq;
-  for (const auto& s : spec.scenarios) {
+  for (std::size_t i = 0; i < spec.scenarios.size(); ++i) {
+    const ScenarioSpec& s = spec.scenarios[i];
     out << YAML::BeginMap << YAML::Key << "name" << YAML::Value << s.name;
     out << YAML::Key << "initial_velocity" << YAML::Value << YAML::Flow << YAML::BeginMap << YAML::Key << "x"
         << YAML::Value << fmt::format("{:.12g}", s.initial_vx) << YAML::Key << "y" << YAML::Value
@@ -203,7 +223,32 @@ std::string normalised_yaml(const Spec& spec) {
       out << YAML::Flow << YAML::BeginMap << YAML::Key << "for" << YAML::Value << fmt::format("{:.12g}", seg.duration)
           << YAML::Key << "x" << YAML::Value << fmt::format("{:.12g}", seg.ax) << YAML::Key << "y" << YAML::Value
           << fmt::format("{:.12g}", seg.ay) << YAML::EndMap << YAML::Comment("s, m/s^2");
-    out << YAML::EndSeq << YAML::EndMap;
+    out << YAML::EndSeq;
+    w.at(fmt::format("base.scenarios[{}]", i));
+    if (const auto& h = s.hoist) {
+      w.begin("hoist");
+      if (h->link >= 0) w.text("rope", spec.links[static_cast<std::size_t>(h->link)].name);
+      w.value("drum_speed", h->initial_speed, u::speed);
+      if (!h->moves.empty()) {
+        out << YAML::Key << "moves" << YAML::Value << YAML::BeginSeq;
+        for (const auto& m : h->moves) {
+          out << YAML::Flow << YAML::BeginMap << YAML::Key << "at" << YAML::Value
+              << fmt::format("{:.12g}", m.at) << YAML::Key << "to" << YAML::Value
+              << fmt::format("{:.12g}", m.to) << YAML::Key << "accel" << YAML::Value
+              << fmt::format("{:.12g}", m.accel);
+          if (m.jerk > 0) out << YAML::Key << "jerk" << YAML::Value << fmt::format("{:.12g}", m.jerk);
+          out << YAML::EndMap << YAML::Comment(m.jerk > 0 ? "s, m/s, m/s^2, m/s^3" : "s, m/s, m/s^2");
+        }
+        out << YAML::EndSeq;
+      }
+      w.end();
+    }
+    if (const auto& l = s.lift_off) {
+      w.begin("lift_off");
+      w.value("slack", l->slack, u::length);
+      w.end();
+    }
+    out << YAML::EndMap;
   }
   out << YAML::EndSeq << YAML::EndMap;
 

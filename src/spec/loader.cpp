@@ -135,7 +135,8 @@ void read_damper(const MapView& pivot, LinkSpec& link) {
 }
 
 void read_link(Context& ctx, const YAML::Node& node, const std::string& path, Spec& spec) {
-  MapView m(ctx, node, path, {"name", "kind", "length", "mass", "com", "inertia", "pivot"});
+  MapView m(ctx, node, path,
+            {"name", "kind", "length", "mass", "com", "inertia", "pivot", "parts_of_line", "elastic"});
   if (!m.ok()) return;
   LinkSpec link;
   link.mark = m.mark();
@@ -148,9 +149,12 @@ void read_link(Context& ctx, const YAML::Node& node, const std::string& path, Sp
                  "give every link a unique name");
     }
   }
+  bool kind_read = true;
   if (m.has("kind")) {
     if (auto k = read_choice(ctx, m.get("kind"), m.path("kind"), {"rigid", "rope"}))
       link.kind = *k == "rope" ? LinkKind::rope : LinkKind::rigid;
+    else
+      kind_read = false;
   } else {
     ctx.defaults_filled.push_back(m.path("kind"));
   }
@@ -193,6 +197,7 @@ void read_link(Context& ctx, const YAML::Node& node, const std::string& path, Sp
     link.inertia = have_mass && have_length ? link.mass * link.length * link.length / 12.0 : 0.0;
     ctx.defaults_filled.push_back(m.path("inertia"));
   }
+  read_rope_keys(m, kind_read, link);
   if (m.has("pivot")) {
     MapView p(ctx, m.get("pivot"), m.path("pivot"), {"friction", "damper", "dampers"});
     if (p.ok()) {
@@ -364,7 +369,7 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
               "give at least one scenario, or leave 'base' out for a fixed top pivot");
   for (std::size_t i = 0; i < list.size(); ++i) {
     const std::string path = fmt::format("base.scenarios[{}]", i);
-    MapView s(ctx, list[i], path, {"name", "initial_velocity", "accel"});
+    MapView s(ctx, list[i], path, {"name", "initial_velocity", "accel", "hoist", "lift_off"});
     if (!s.ok()) continue;
     ScenarioSpec sc;
     sc.mark = s.mark();
@@ -393,6 +398,7 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
         sc.accel.push_back(seg);
       }
     }
+    read_scenario_rope_keys(s, spec, sc);
     spec.scenarios.push_back(std::move(sc));
   }
 }
@@ -618,7 +624,10 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
                   "model the chain with fewer links");
       else
         for (std::size_t i = 0; i < links.size(); ++i) read_link(ctx, links[i], fmt::format("links[{}]", i), spec);
-      if (ctx.diagnostics.empty()) check_chain(ctx, links, spec);
+      if (ctx.diagnostics.empty()) {
+        check_chain(ctx, links, spec);
+        check_elastic_ropes(ctx, links, spec);
+      }
     }
   }
   if (top.has("dashpots")) read_dashpots(ctx, top.get("dashpots"), spec);
@@ -631,9 +640,11 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
     ctx.defaults_filled.push_back("base.scenarios");
   }
   read_cases(top, spec, options);
+  check_hoisted_lengths(ctx, spec);
   read_limits(top, spec);
   read_chaos(top, spec);
   read_sizing(top, spec);
+  if (ctx.diagnostics.empty()) check_sized_ropes(ctx, top.get("links"), spec);
   read_solver_and_report(top, spec);
 
   if (!ctx.diagnostics.empty()) throw SpecError(file_label, ctx.diagnostics);

@@ -8,6 +8,30 @@ namespace swaybound::spec_detail {
 /// Reads a link name and returns its index, or -1 after reporting an unknown name.
 int read_link_ref(Context& ctx, const YAML::Node& node, const std::string& path, const Spec& spec);
 
+/// Ranges of the rope keys (specs/README.md, "Limits of the loader").
+inline constexpr int kMaxPartsOfLine = 64;
+inline constexpr double kMaxRopeEa = 1e12;        ///< N, EA of one part of line
+inline constexpr double kMinRopePeriod = 1e-5;    ///< s, the load's bounce on an elastic rope
+inline constexpr double kMinHoistedShare = 0.05;  ///< a hoisted rope keeps >= 5% of its length
+inline constexpr double kMaxHoistedFactor = 10;   ///< and <= 10 times its length
+
+/// Reads a link's `parts_of_line` and `elastic` (loader_rope.cpp) into `link`, whose kind is read
+/// (`kind_read` false when the kind's value was refused); reports them on a link that is not a rope.
+void read_rope_keys(const MapView& link_map, bool kind_read, LinkSpec& link);
+/// Checks each elastic rope with the links below it: the load's bounce period 2 pi sqrt(m / k) is
+/// at least kMinRopePeriod (k the fall's stiffness, m the rope and every link below it) and the
+/// static stretch m g / k at most half the rope's length.
+void check_elastic_ropes(Context& ctx, const YAML::Node& links_node, const Spec& spec);
+/// Reads a scenario's `hoist` and `lift_off` (the links are read).
+void read_scenario_rope_keys(const MapView& scenario, const Spec& spec, ScenarioSpec& sc);
+/// After cases.duration is read: every hoisted rope's length, length - s(t) / parts_of_line with s
+/// the rope the drum hauled in, stays within [kMinHoistedShare, kMaxHoistedFactor] x its length
+/// over [0, duration].
+void check_hoisted_lengths(Context& ctx, const Spec& spec);
+/// After the sizing is read: the two checks above hold at both ends of every sizing range (or
+/// catalogue) of a link's length or mass, when the spec has an elastic or a hoisted rope.
+void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& spec);
+
 void read_cases(const MapView& top, Spec& spec, const LoadOptions& options);
 void read_limits(const MapView& top, Spec& spec);
 void read_chaos(const MapView& top, Spec& spec);

@@ -179,6 +179,8 @@ std::string example_for(const units::Dim& dim) {
   if (dim == linear_damping) return "'2 kN s/m'";
   if (dim == speed) return "'12 m/s' or '40 km/h'";
   if (dim == acceleration) return "'0.8 m/s^2'";
+  if (dim == jerk) return "'0.5 m/s^3'";
+  if (dim == stiffness) return "'3 MN/m'";
   if (dim == moment_of_inertia) return "'950 kg m^2'";
   if (dim == rate) return "'0.05 /s'";
   if (dim == angular_rate) return "'5 deg/s'";

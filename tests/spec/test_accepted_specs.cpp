@@ -147,6 +147,39 @@ TEST_CASE("inline specs with sizing sections the loader accepts pass every comma
   }
 }
 
+TEST_CASE("inline specs with the rope keys the loader accepts pass every command's preparation",
+          "[spec][truth][rope]") {
+  const char* specs[] = {
+      // an elastic rope of 4 parts, hoisted with an S-curve move, its load lifted off the ground
+      "swaybound: 1\nname: lift\nlinks:\n"
+      "  - {name: rope, kind: rope, length: 10 m, mass: 50 kg, parts_of_line: 4, elastic: {ea: 90 MN, "
+      "damping_ratio: 0.02}}\n"
+      "  - {name: hook, length: 1 m, mass: 5 t}\n"
+      "base:\n  scenarios:\n    - name: lift\n      hoist:\n"
+      "        moves: [{at: 1 s, to: 0.8 m/s, accel: 0.4 m/s^2, jerk: 0.5 m/s^3}]\n"
+      "      lift_off: {slack: 5 cm}\n"
+      "cases: {duration: 5 s, initial: [{single: {theta: [0 deg, 0 deg]}}]}\n",
+      // an inextensible rope lowered by the drum, beside a scenario without a hoist
+      "swaybound: 1\nname: lower\nlinks:\n"
+      "  - {name: rope, kind: rope, length: 6 m, mass: 30 kg}\n"
+      "  - {name: hook, length: 1 m, mass: 2 t}\n"
+      "base:\n  scenarios:\n    - {name: lower, hoist: {drum_speed: -0.3 m/s}}\n    - {name: still}\n"
+      "cases: {duration: 5 s, initial: [{single: {theta: [5 deg, 0 deg]}}]}\n",
+      // an elastic sling given by its spring rate below a rigid link
+      "swaybound: 1\nname: sling\nlinks:\n"
+      "  - {name: boom tip, length: 1 m, mass: 100 kg}\n"
+      "  - {name: sling, kind: rope, length: 3 m, mass: 8 kg,"
+      " elastic: {stiffness: 450 kN/m, damping: 2 kN s/m}}\n"
+      "  - {name: load, length: 2 m, mass: 4 t}\n"
+      "cases: {duration: 5 s, initial: [{single: {theta: [5 deg]}}]}\n",
+  };
+  for (const char* text : specs) {
+    INFO(text);
+    const Spec spec = load_spec_text(text, "inline.yaml");
+    CHECK_NOTHROW(prepare_every_command(spec));
+  }
+}
+
 namespace {
 /// Every value line of `normalised` (block-style YAML as normalised_yaml writes it) whose key is not
 /// in `source` and that does not say "default" in its comment, as "line N: TEXT". Values inside a
@@ -222,6 +255,15 @@ TEST_CASE("validate marks every value it filled in as a default", "[spec][truth]
       "N m s/rad]}\n"
       "solver: {rtol: 1e-7}\n"
       "report: {project: P-1}\n",
+      // the rope keys with their defaults: parts_of_line, the rope's damping, the hoisted rope,
+      // the drum's initial speed, a move's jerk and the lift-off slack
+      "swaybound: 1\nname: rope defaults\nlinks:\n"
+      "  - {name: rope, kind: rope, length: 6 m, mass: 30 kg, elastic: {ea: 90 MN}}\n"
+      "  - {name: hook, length: 1 m, mass: 2 t}\n"
+      "base:\n  scenarios:\n    - name: lift\n      initial_velocity: {x: 0 m/s}\n"
+      "      hoist:\n        moves: [{at: 1 s, to: 0.2 m/s, accel: 0.1 m/s^2}]\n"
+      "      lift_off: {}\n"
+      "cases:\n  duration: 2 s\n  initial:\n    - single: {theta: [5 deg, 0 deg]}\n",
   };
   for (const auto& text : specs) {
     const Spec spec = load_spec_text(text, "inline.yaml");

@@ -30,6 +30,8 @@ inline constexpr Dim rotary_damping{1, 2, -1, -1};  // N m s/rad
 inline constexpr Dim linear_damping{1, 0, -1, 0};   // N s/m
 inline constexpr Dim speed{0, 1, -1, 0};
 inline constexpr Dim acceleration{0, 1, -2, 0};
+inline constexpr Dim jerk{0, 1, -3, 0};             // m/s^3, a drum move's jerk limit
+inline constexpr Dim stiffness{1, 0, -2, 0};        // N/m, a rope's spring rate
 inline constexpr Dim moment_of_inertia{1, 2, 0, 0};
 inline constexpr Dim rate{0, 0, -1, 0};             // 1/s, e.g. a Lyapunov exponent
 inline constexpr Dim angular_rate{0, 0, -1, 1};     // rad/s
