@@ -29,13 +29,63 @@ const FieldInfo kLinkFields[] = {
     {"pivot.friction.torque", Field::friction_torque, units::torque, 0, false},
     {"pivot.friction.pin_radius", Field::friction_pin_radius, units::length, 0, false},
     {"pivot.friction.mu", Field::friction_mu, units::dimensionless, 0, false},
+    {"parts_of_line", Field::parts_of_line, units::dimensionless, 1, false},
+    {"elastic.ea", Field::rope_ea, units::force, 0, true},
+    {"elastic.stiffness", Field::rope_stiffness, units::stiffness, 0, true},
+    {"elastic.damping", Field::rope_damping, units::linear_damping, 0, false},
+    {"elastic.damping_ratio", Field::rope_damping_ratio, units::dimensionless, 0, false},
+};
+const FieldInfo kDrumFields[] = {
+    {"drum_speed", Field::drum_speed, units::speed, -1e300, false},
+    {"to", Field::drum_move_to, units::speed, -1e300, false},
+    {"accel", Field::drum_move_accel, units::acceleration, 0, true},
+    {"jerk", Field::drum_move_jerk, units::jerk, 0, false},
 };
 const FieldInfo kDashpotField{"coefficient", Field::dashpot_coefficient, units::linear_damping, 0, false};
 
 const FieldInfo& info(Field f) {
   for (const auto& i : kLinkFields)
     if (i.field == f) return i;
+  for (const auto& i : kDrumFields)
+    if (i.field == f) return i;
   return kDashpotField;
+}
+
+/// scenarios[NAME].hoist.drum_speed | hoist.moves[K].to | accel | jerk
+std::optional<SpecPath> parse_scenario_path(const Spec& spec, const std::string& name, std::string_view field,
+                                            std::string& error) {
+  int index = -1;
+  for (std::size_t i = 0; i < spec.scenarios.size(); ++i)
+    if (spec_detail::name_key(spec.scenarios[i].name) == spec_detail::name_key(name)) index = static_cast<int>(i);
+  if (index < 0) {
+    error = fmt::format("no scenario is named '{}'", name);
+    return std::nullopt;
+  }
+  const auto& hoist = spec.scenarios[static_cast<std::size_t>(index)].hoist;
+  if (!hoist) {
+    error = fmt::format("scenario '{}' has no hoist to vary", name);
+    return std::nullopt;
+  }
+  if (field == "hoist.drum_speed") return SpecPath{Field::drum_speed, index, 0};
+  if (field.rfind("hoist.moves[", 0) == 0) {
+    const auto end = field.find(']');
+    const std::string digits(field.substr(12, end == std::string_view::npos ? 0 : end - 12));
+    if (end != std::string_view::npos && !digits.empty() && digits.size() <= 3 &&
+        digits.find_first_not_of("0123456789") == std::string::npos && end + 1 < field.size() && field[end + 1] == '.') {
+      const int move = std::stoi(digits);
+      if (move >= static_cast<int>(hoist->moves.size())) {
+        error = fmt::format("scenario '{}' has {} drum move(s); K runs from 0", name, hoist->moves.size());
+        return std::nullopt;
+      }
+      const std::string_view what = field.substr(end + 2);
+      for (const auto& f : kDrumFields)
+        if (f.name == what && f.field != Field::drum_speed) return SpecPath{f.field, index, move};
+    }
+  }
+  error = fmt::format("unknown field '{}' (a scenario's hoist has: hoist.drum_speed, hoist.moves[K].to, "
+                      "hoist.moves[K].accel, hoist.moves[K].jerk)",
+                      field);
+  return std::nullopt;
 }
 }  // namespace
 
@@ -50,6 +100,7 @@ std::optional<SpecPath> parse_spec_path(const Spec& spec, std::string_view text,
   const std::string_view group = text.substr(0, open);
   const std::string name(text.substr(open + 1, close - open - 1));
   std::string_view field = text.substr(close + 2);
+  if (group == "scenarios") return parse_scenario_path(spec, name, field, error);
   if (group == "links") {
     const int index = spec.link_index(name);
     if (index < 0) {
@@ -96,6 +147,28 @@ std::optional<SpecPath> parse_spec_path(const Spec& spec, std::string_view text,
         error = fmt::format("link '{}' has no friction at its pivot to vary", name);
         return std::nullopt;
       }
+      const LinkSpec& link = spec.links[static_cast<std::size_t>(index)];
+      if (f.field == Field::parts_of_line && link.kind != LinkKind::rope) {
+        error = fmt::format("link '{}' is not a rope", name);
+        return std::nullopt;
+      }
+      const bool elastic_field = f.field == Field::rope_ea || f.field == Field::rope_stiffness ||
+                                 f.field == Field::rope_damping || f.field == Field::rope_damping_ratio;
+      if (elastic_field && !link.elastic) {
+        error = fmt::format("link '{}' is not an elastic rope (it has no elastic: section)", name);
+        return std::nullopt;
+      }
+      // The elastic section gives EA or a stiffness, damping or a damping ratio: the one it gives.
+      if ((f.field == Field::rope_ea && link.elastic->ea <= 0) || (f.field == Field::rope_stiffness && link.elastic->stiffness <= 0)) {
+        error = fmt::format("rope '{}' gives its {} instead", name, f.field == Field::rope_ea ? "stiffness" : "ea");
+        return std::nullopt;
+      }
+      if ((f.field == Field::rope_damping_ratio && link.elastic->damping_ratio < 0) ||
+          (f.field == Field::rope_damping && link.elastic->damping_ratio >= 0)) {
+        error = fmt::format("rope '{}' gives its {} instead", name,
+                            f.field == Field::rope_damping ? "damping_ratio" : "damping");
+        return std::nullopt;
+      }
       return SpecPath{f.field, index, damper};
     }
     std::string all;
@@ -115,7 +188,7 @@ std::optional<SpecPath> parse_spec_path(const Spec& spec, std::string_view text,
     error = fmt::format("no dashpot is named '{}'", name);
     return std::nullopt;
   }
-  error = fmt::format("unknown group '{}' (use links[...] or dashpots[...])", group);
+  error = fmt::format("unknown group '{}' (use links[...], dashpots[...] or scenarios[...])", group);
   return std::nullopt;
 }
 
@@ -130,6 +203,12 @@ namespace {
 template <class SpecT>
 auto& value_ref(SpecT& spec, const SpecPath& p) {
   if (p.field == Field::dashpot_coefficient) return spec.dashpots.at(static_cast<std::size_t>(p.index)).coefficient;
+  if (p.field >= Field::drum_speed) {
+    auto& hoist = spec.scenarios.at(static_cast<std::size_t>(p.index)).hoist.value();
+    if (p.field == Field::drum_speed) return hoist.initial_speed;
+    auto& move = hoist.moves.at(static_cast<std::size_t>(p.damper));
+    return p.field == Field::drum_move_to ? move.to : p.field == Field::drum_move_accel ? move.accel : move.jerk;
+  }
   auto& link = spec.links.at(static_cast<std::size_t>(p.index));
   switch (p.field) {
     case Field::length: return link.length;
@@ -142,15 +221,28 @@ auto& value_ref(SpecT& spec, const SpecPath& p) {
     case Field::friction_torque: return link.pivot.friction.value().torque;
     case Field::friction_pin_radius: return link.pivot.friction.value().pin_radius;
     case Field::friction_mu: return link.pivot.friction.value().mu;
+    case Field::rope_ea: return link.elastic.value().ea;
+    case Field::rope_stiffness: return link.elastic.value().stiffness;
+    case Field::rope_damping: return link.elastic.value().damping;
+    case Field::rope_damping_ratio: return link.elastic.value().damping_ratio;
     default: return link.length;
   }
 }
 }  // namespace
 
-double get_spec_value(const Spec& spec, const SpecPath& path) { return value_ref(spec, path); }
+double get_spec_value(const Spec& spec, const SpecPath& path) {
+  if (path.field == Field::parts_of_line) return spec.links.at(static_cast<std::size_t>(path.index)).parts_of_line;
+  return value_ref(spec, path);
+}
 
 void set_spec_value(Spec& spec, const SpecPath& path, double value) {
+  if (path.field == Field::parts_of_line) {
+    // A count: the nearest whole number of parts (sizing gives it a catalogue or a step of 1).
+    spec.links.at(static_cast<std::size_t>(path.index)).parts_of_line = static_cast<int>(std::lround(std::max(1.0, value)));
+    return;
+  }
   value_ref(spec, path) = value;
+  if (path.field >= Field::drum_speed) return;
   if (path.field == Field::dashpot_coefficient) return;
   auto& link = spec.links.at(static_cast<std::size_t>(path.index));
   if (path.field == Field::com) link.com_given = true;

@@ -13,6 +13,7 @@
 #include "../support/close_to.hpp"
 #include "swaybound/core/units.hpp"
 #include "swaybound/spec.hpp"
+#include "swaybound/spec/paths.hpp"
 
 using namespace swaybound;
 using swaybound::testing::IsCloseTo;
@@ -549,4 +550,53 @@ sizing:
       "sizing.variables[0]");
   CHECK(contains(high.message, "at the high end of its range"));
   CHECK(contains(high.message, "so soft"));
+}
+
+TEST_CASE("sizing paths address the rope keys and a scenario's drum", "[spec][rope][sizing]") {
+  Spec spec = load_spec_text(R"(swaybound: 1
+name: paths
+links:
+  - {name: main rope, kind: rope, length: 12 m, mass: 60 kg, parts_of_line: 4, elastic: {ea: 90 MN, damping_ratio: 0.02}}
+  - {name: sling, kind: rope, length: 3 m, mass: 8 kg, elastic: {stiffness: 450 kN/m, damping: 20 kN s/m}}
+  - {name: hook, length: 1.5 m, mass: 800 kg}
+base:
+  scenarios:
+    - name: lift
+      hoist: {rope: main rope, drum_speed: 0.2 m/s, moves: [{at: 1 s, to: 0.6 m/s, accel: 0.4 m/s^2, jerk: 0.5 m/s^3}]}
+cases: {duration: 5 s, initial: [{single: {theta: [5 deg]}}]}
+)",
+                             "paths.yaml");
+  std::string why;
+  const auto value = [&](const char* text) {
+    const auto p = parse_spec_path(spec, text, why);
+    INFO(text << ": " << why);
+    REQUIRE(p);
+    return get_spec_value(spec, *p);
+  };
+  CHECK(value("links[main rope].elastic.ea") == 90e6);
+  CHECK(value("links[main rope].elastic.damping_ratio") == 0.02);
+  CHECK(value("links[main rope].parts_of_line") == 4);
+  CHECK(value("links[sling].elastic.stiffness") == 450e3);
+  CHECK(value("links[sling].elastic.damping") == 20e3);
+  CHECK(value("scenarios[lift].hoist.drum_speed") == 0.2);
+  CHECK(value("scenarios[lift].hoist.moves[0].to") == 0.6);
+  CHECK(value("scenarios[lift].hoist.moves[0].accel") == 0.4);
+  CHECK(value("scenarios[lift].hoist.moves[0].jerk") == 0.5);
+  // Writing: a count rounds to whole parts; a drum value lands in the hoist.
+  set_spec_value(spec, *parse_spec_path(spec, "links[main rope].parts_of_line", why), 2.6);
+  CHECK(spec.links[0].parts_of_line == 3);
+  set_spec_value(spec, *parse_spec_path(spec, "scenarios[lift].hoist.moves[0].to", why), 0.45);
+  CHECK(spec.scenarios[0].hoist->moves[0].to == 0.45);
+  // What is not there to vary is refused with the reason.
+  for (const auto& [text, reason] :
+       std::vector<std::pair<const char*, const char*>>{{"links[hook].parts_of_line", "is not a rope"},
+                                                        {"links[main rope].elastic.stiffness", "gives its ea instead"},
+                                                        {"links[sling].elastic.damping_ratio", "gives its damping instead"},
+                                                        {"scenarios[lift].hoist.moves[1].to", "1 drum move(s)"},
+                                                        {"scenarios[nope].hoist.drum_speed", "no scenario is named"},
+                                                        {"scenarios[lift].hoist.speed", "unknown field"}}) {
+    INFO(text);
+    CHECK_FALSE(parse_spec_path(spec, text, why));
+    CHECK(why.find(reason) != std::string::npos);
+  }
 }

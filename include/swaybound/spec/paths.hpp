@@ -4,7 +4,9 @@
 //   links[NAME].pivot.damper.coefficient | exponent | max_torque   (a pivot with one damper)
 //   links[NAME].pivot.dampers[K].coefficient | exponent | max_torque   (K from 0, any pivot)
 //   links[NAME].pivot.friction.torque | pin_radius | mu
+//   links[NAME].parts_of_line | elastic.ea | elastic.stiffness | elastic.damping | elastic.damping_ratio  (ropes)
 //   dashpots[NAME].coefficient
+//   scenarios[NAME].hoist.drum_speed | hoist.moves[K].to | hoist.moves[K].accel | hoist.moves[K].jerk
 #include <optional>
 #include <string>
 #include <string_view>
@@ -20,10 +22,12 @@ struct SpecPath {
     damper_coefficient, damper_exponent, damper_max_torque,
     friction_torque, friction_pin_radius, friction_mu,
     dashpot_coefficient,
+    parts_of_line, rope_ea, rope_stiffness, rope_damping, rope_damping_ratio,
+    drum_speed, drum_move_to, drum_move_accel, drum_move_jerk,
   };
   Field field{};
   int index = 0;  ///< link or dashpot index
-  int damper = 0; ///< damper fields: which damper of the pivot
+  int damper = 0; ///< damper fields: which damper of the pivot; drum moves: which move
 };
 
 /// Parses `text` against `spec`; on failure returns nullopt and a sentence in `error`.
