@@ -405,9 +405,13 @@ void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& s
     const SizingVariableSpec& v = variables[i];
     std::string why;
     const auto target = parse_spec_path(spec, v.path, why);
-    // The rope checks read links' lengths and masses only; each is monotonic in every one of them,
-    // so the ends of a range (or of a catalogue) are the designs to check.
-    if (!target || (target->field != SpecPath::Field::length && target->field != SpecPath::Field::mass))
+    // The rope checks read links' lengths and masses, the ropes' stiffness and parts of line and
+    // the drum's moves; each is monotonic in every one of them, so the ends of a range (or of a
+    // catalogue) are the designs to check.
+    using F = SpecPath::Field;
+    if (!target || !(target->field == F::length || target->field == F::mass || target->field == F::rope_ea ||
+                     target->field == F::rope_stiffness || target->field == F::parts_of_line ||
+                     target->field >= F::drum_speed))
       continue;
     const bool listed = !v.catalogue.empty();
     const double low = listed ? *std::min_element(v.catalogue.begin(), v.catalogue.end()) : v.lo;
@@ -417,7 +421,14 @@ void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& s
       set_spec_value(design, *target, value);
       Context probe;
       check_elastic_ropes(probe, links_node, design);
-      check_hoisted_lengths(probe, design);
+      try {
+        for (const auto& sc : design.scenarios)
+          if (sc.hoist) (void)drum_profile(*sc.hoist);
+        check_hoisted_lengths(probe, design);
+      } catch (const ProfileError& e) {
+        const auto [message, fix] = split_profile_error(e);
+        probe.error(v.mark, fmt::format("hoist.moves[{}]", e.move_index()), message, fix);
+      }
       if (probe.diagnostics.empty()) continue;
       const Diagnostic& d = probe.diagnostics.front();
       const u::Dim dim = spec_path_dim(*target);

@@ -600,3 +600,38 @@ cases: {duration: 5 s, initial: [{single: {theta: [5 deg]}}]}
     CHECK(why.find(reason) != std::string::npos);
   }
 }
+
+TEST_CASE("sizing a rope's stiffness or the drum's moves keeps every design the search tries loadable",
+          "[spec][rope][sizing]") {
+  const auto spec_with = [](const std::string& variable) {
+    return fmt::format(R"(swaybound: 1
+name: sized rope
+links:
+  - {{name: main rope, kind: rope, length: 12 m, mass: 60 kg, elastic: {{ea: 90 MN}}}}
+  - {{name: hook, length: 1.5 m, mass: 2 t}}
+base:
+  scenarios:
+    - name: lift
+      hoist: {{moves: [{{at: 1 s, to: 0.5 m/s, accel: 0.5 m/s^2}}, {{at: 4 s, to: 0, accel: 0.5 m/s^2}}]}}
+cases: {{duration: 8 s, initial: [{{single: {{theta: [5 deg]}}}}]}}
+limits: [{{peak_angle: 20 deg}}]
+sizing:
+  variables: [{variable}]
+  objective: min_cost
+)",
+                       fmt::arg("variable", variable));
+  };
+  // 2 MN of EA over 12 m under 2 t stretches more than half the length: too soft at the low end.
+  const Diagnostic soft =
+      only_problem(spec_with("{path: 'links[main rope].elastic.ea', range: [2 kN, 200 MN]}"), "sizing.variables[0]");
+  CHECK(contains(soft.message, "low end"));
+  CHECK(contains(soft.message, "soft"));
+  // At 0.1 m/s^2 the first move takes 5 s and would still run when the second starts at 4 s.
+  const Diagnostic overlap = only_problem(
+      spec_with("{path: 'scenarios[lift].hoist.moves[0].accel', range: [0.1 m/s^2, 1 m/s^2]}"), "sizing.variables[0]");
+  CHECK(contains(overlap.message, "low end"));
+  CHECK(contains(overlap.message, "moves[1]"));
+  // Ranges whose ends load are accepted.
+  CHECK(problems(spec_with("{path: 'scenarios[lift].hoist.moves[0].accel', range: [0.2 m/s^2, 1 m/s^2]}")).empty());
+  CHECK(problems(spec_with("{path: 'links[main rope].elastic.ea', range: [20 MN, 200 MN]}")).empty());
+}
