@@ -88,8 +88,8 @@ constexpr LimitKindInfo kKinds[] = {
      line_pull, nullptr, "peak_line_pull"},
     {LimitKind::slack_time, "slack_time", u::duration, kNonNegative, Bound::upper, true,
      LimitScope::elastic_rope_links, {}, false,
-     "the total time over the run that the elastic rope is slack (carries no tension); a limit of 0 s allows no slack "
-     "at all.",
+     "the total time over the run that the elastic rope is slack (carries no tension) after it was first taut (a rope "
+     "that starts slack, as in a lift-off, is being taken up until then); a limit of 0 s allows no slack at all.",
      slack_time, nullptr, "slack_time"},
     {LimitKind::snatch_load, "snatch_load", u::force, kPositive, Bound::upper, true, LimitScope::elastic_rope_links,
      {}, false,

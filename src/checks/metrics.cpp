@@ -60,14 +60,18 @@ CaseExtremes::CaseExtremes(const Model& model, const Spec& spec)
   slack_time_.assign(model.elastic_links.size(), 0.0);
   slack_count_.assign(model.elastic_links.size(), 0);
   was_slack_.assign(model.elastic_links.size(), 0);
+  was_taut_.assign(model.elastic_links.size(), 0);
 }
 
 void CaseExtremes::observe(const StepView& v) {
   // Slack intervals are whole segments (the driver switches a rope's branch at a segment start).
+  // Slack counts once the rope has been taut: a rope that starts slack (a lift-off taking up its
+  // slack) is being taken up, not going slack.
   for (std::size_t r = 0; r < slack_time_.size(); ++r) {
     const bool slack = v.ws->rope_slack[r] != 0;
-    if (slack && was_slack_[r]) slack_time_[r] += v.t - last_t_;
-    if (slack && !was_slack_[r]) ++slack_count_[r];
+    if (!slack) was_taut_[r] = 1;
+    if (slack && was_slack_[r] && was_taut_[r]) slack_time_[r] += v.t - last_t_;
+    if (slack && !was_slack_[r] && was_taut_[r]) ++slack_count_[r];
     was_slack_[r] = slack;
   }
   last_t_ = v.t;

@@ -39,6 +39,13 @@ nlohmann::json modal_json(const ModalResult& r, const Model& model, const std::s
     nlohmann::json shape = nlohmann::json::object();
     for (std::size_t i = 0; i < m.shape.size(); ++i) shape[model.names[i]] = number(m.shape[i]);
     j["shape_rad_per_rad"] = shape;
+    if (!model.elastic_links.empty()) {
+      j["kind"] = m.axial ? "axial" : "sway";
+      nlohmann::json stretch = nlohmann::json::object();
+      for (std::size_t r = 0; r < m.stretch_shape.size(); ++r)
+        stretch[model.names[static_cast<std::size_t>(model.elastic_links[r])]] = number(m.stretch_shape[r]);
+      j["stretch_shape"] = stretch;
+    }
     modes.push_back(std::move(j));
   }
   out["modes"] = std::move(modes);
@@ -53,6 +60,12 @@ void print_table(const ModalResult& r, const Model& model, const std::string& sp
   std::cout << fmt::format("{:>4}  {:>14}  {:>10}  {:>17}  {:>20}  {:>20}", "mode", "frequency [Hz]", "period [s]",
                            "damping ratio [-]", "damped frequency [Hz]", "w_n with damping [Hz]");
   for (const auto& name : model.names) std::cout << "  " << fmt::format("{:>12}", "shape(" + name + ")");
+  const bool ropes = !model.elastic_links.empty();
+  if (ropes) {
+    std::cout << "  " << fmt::format("{:>5}", "kind");
+    for (int link : model.elastic_links)
+      std::cout << "  " << fmt::format("{:>12}", "stretch(" + model.names[static_cast<std::size_t>(link)] + ")");
+  }
   std::cout << '\n';
   for (std::size_t k = 0; k < r.modes.size(); ++k) {
     const Mode& m = r.modes[k];
@@ -62,10 +75,19 @@ void print_table(const ModalResult& r, const Model& model, const std::string& sp
                              m.natural_frequency_with_damping_hz);
     for (std::size_t i = 0; i < m.shape.size(); ++i)
       std::cout << "  " << fmt::format("{:>{}.6g}", m.shape[i], std::max<std::size_t>(12, model.names[i].size() + 7));
+    if (ropes) {
+      std::cout << "  " << fmt::format("{:>5}", m.axial ? "axial" : "sway");  // + 0.0 below: no "-0"
+      for (std::size_t r = 0; r < m.stretch_shape.size(); ++r)
+        std::cout << "  "
+                  << fmt::format("{:>{}.6g}", m.stretch_shape[r] + 0.0,
+                                 std::max<std::size_t>(12, model.names[static_cast<std::size_t>(model.elastic_links[r])].size() + 9));
+    }
     std::cout << '\n';
   }
   std::cout << fmt::format("\nleast damping ratio: {:.6g}\n", r.least_damping_ratio);
-  std::cout << "mode shapes: link angles [rad per rad], largest 1\n";
+  std::cout << (ropes ? "mode shapes: link angles [rad] and rope stretches [m] of one mode vector, its largest angle "
+                        "1 for a sway mode, its largest stretch 1 for an axial (bounce) mode\n"
+                      : "mode shapes: link angles [rad per rad], largest 1\n");
   for (const auto& note : r.notes) std::cout << "note: " << note << '\n';
 }
 

@@ -82,6 +82,7 @@ class CaseExtremes {
   std::vector<double> slack_time_;   ///< total time slack so far [s]
   std::vector<long> slack_count_;    ///< slack intervals so far
   std::vector<char> was_slack_;      ///< slack at the last view
+  std::vector<char> was_taut_;       ///< taut at some view so far
   double last_t_ = 0;                ///< time of the last view [s]
   ExtremeFinder finder_;
 };
