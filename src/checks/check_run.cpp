@@ -80,6 +80,8 @@ void CaseTotals::offer(const CaseMetrics& m) {
     max_audit_relative = m.audit_relative;
     max_audit_case = m.id;
   }
+  const bool slack = std::any_of(m.slack_count.begin(), m.slack_count.end(), [](long c) { return c > 0; });
+  if (slack && slack_cases++ == 0) first_slack_case = m.id;
   if (!std::isnan(m.ftle) && (std::isnan(max_ftle) || m.ftle > max_ftle)) {
     max_ftle = m.ftle;
     max_ftle_case = m.id;
@@ -238,6 +240,8 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   report.max_audit_relative = totals.max_audit_relative;
   report.max_audit_case = totals.max_audit_case;
   report.total_steps = totals.total_steps;
+  report.slack_cases = totals.slack_cases;
+  report.first_slack_case = totals.first_slack_case;
   report.chaos.per_case_ftle = plan.case_options.ftle;
   report.chaos.horizon = spec.chaos.horizon;
   report.chaos.envelope_amplitude = plan.space.envelope_amplitude();

@@ -1,5 +1,6 @@
 // swaybound check: every case of the spec against its limits; the packet (report/check_packet.hpp)
 // in DIR.
+#include <algorithm>
 #include <unistd.h>
 
 #include <iostream>
@@ -34,6 +35,13 @@ void print_summary(const CheckReport& r, std::ostream& out) {
   }
   out << fmt::format("verdict: {}{}\n", r.pass ? "all checks pass" : "a check fails",
                      r.failed_total > 0 ? fmt::format(" ({} case(s) failed to run)", r.failed_total) : "");
+  const bool has_slack_limit =
+      std::any_of(r.checks.begin(), r.checks.end(), [](const CheckResult& c) { return c.key == "slack_time"; });
+  if (r.slack_cases > 0)
+    out << fmt::format("note: an elastic rope went slack after it was taut in {} of {} case(s) (first: {}); the "
+                       "snatch when it was caught again is in the rope figures{}\n",
+                       r.slack_cases, r.case_count, r.first_slack_case,
+                       has_slack_limit ? "" : "; no slack_time limit bounds how long it may stay slack");
   out << "caution: a screening and design aid, not a certification; the design goes to a licensed engineer's review.\n";
 }
 

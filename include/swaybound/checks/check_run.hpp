@@ -70,6 +70,10 @@ struct CheckReport {
   double max_audit_relative = 0;   ///< largest energy-audit residual / energy scale over the cases
   std::string max_audit_case;
   long total_steps = 0;
+  /// Cases in which an elastic rope went slack after it was taut (its snatch is in the rope figures;
+  /// a slack_time limit bounds it), and the first of them.
+  long slack_cases = 0;
+  std::string first_slack_case;
   bool pass = false;
   // Wall time of the stages [s] (not written to results.json, which must not depend on the host).
   double seconds_cases = 0, seconds_chaos = 0, seconds_audit = 0;
@@ -119,6 +123,8 @@ struct CaseTotals {
   double max_audit_relative = 0;
   std::string max_audit_case;
   long total_steps = 0;
+  long slack_cases = 0;            ///< cases in which an elastic rope went slack after it was taut
+  std::string first_slack_case;    ///< the first of them (case order)
   double max_ftle = std::nan("");
   std::string max_ftle_case;
   /// Adds one case (offered in case order, so ties keep the first case).
