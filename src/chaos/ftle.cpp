@@ -20,6 +20,9 @@ FtleResult chain_ftle(const Model& model, Workspace& ws, int scenario, const Ini
                     "initial state has {} angles and {} rates for {} links", start.theta.size(), start.omega.size(),
                     model.n);
   SWAYBOUND_REQUIRE(model.gravity > 0, "the rate scaling needs gravity > 0, got {}", model.gravity);
+  SWAYBOUND_REQUIRE(model.elastic_links.empty(),
+                    "the FTLE does not follow an elastic rope's slack/taut switches; the chain has {} elastic rope(s)",
+                    model.elastic_links.size());
 
   std::vector<double> x0(static_cast<std::size_t>(model.state_size()), 0.0);
   std::copy(start.theta.begin(), start.theta.end(), x0.begin());

@@ -151,6 +151,9 @@ Action add_simulate(CLI::App& app) {
     require_input_file("SPEC", o->spec);
     const Spec spec = load_spec(o->spec, LoadOptions{kDefaultMaxCases, o->max_samples});
     const Model model = build_model(spec);
+    if (o->ftle && !model.elastic_links.empty())
+      throw UsageError("--ftle", "the FTLE does not follow an elastic rope's switches between slack and taut yet; run "
+                                 "it on a copy of the spec with the rope inextensible (without its elastic: section)");
     RunSettings settings = RunSettings::from_spec(spec);
     if (!o->duration.empty()) settings.duration = parse_one("--duration", o->duration, units::duration);
     if (!o->output_rate.empty()) settings.output_rate = parse_one("--output-rate", o->output_rate, units::rate);

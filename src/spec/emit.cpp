@@ -314,7 +314,7 @@ std::string normalised_yaml(const Spec& spec) {
     }
     out << YAML::EndSeq;
   }
-  {
+  if (spec.chaos.given) {  // a chaos section switches the onset search on: written only when the spec has one
     const ChaosSpec& c = spec.chaos;
     w.at("");
     w.begin("chaos");

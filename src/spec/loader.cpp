@@ -645,6 +645,7 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   read_chaos(top, spec);
   read_sizing(top, spec);
   if (ctx.diagnostics.empty()) check_sized_ropes(ctx, top.get("links"), spec);
+  refuse_ftle_with_elastic_ropes(ctx, spec);
   read_solver_and_report(top, spec);
 
   if (!ctx.diagnostics.empty()) throw SpecError(file_label, ctx.diagnostics);

@@ -32,6 +32,11 @@ void check_hoisted_lengths(Context& ctx, const Spec& spec);
 /// catalogue) of a link's length or mass, when the spec has an elastic or a hoisted rope.
 void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& spec);
 
+/// Refuses the FTLE-based indicators (ftle_max and onset_margin limits, a chaos section) for a
+/// chain with an elastic rope: the FTLE integrates the chain without the rope's slack/taut
+/// switches, so its figure would not describe the rope's motion.
+void refuse_ftle_with_elastic_ropes(Context& ctx, const Spec& spec);
+
 void read_cases(const MapView& top, Spec& spec, const LoadOptions& options);
 void read_limits(const MapView& top, Spec& spec);
 void read_chaos(const MapView& top, Spec& spec);

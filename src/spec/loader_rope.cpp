@@ -442,4 +442,25 @@ void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& s
   }
 }
 
+void refuse_ftle_with_elastic_ropes(Context& ctx, const Spec& spec) {
+  const auto elastic = std::find_if(spec.links.begin(), spec.links.end(),
+                                    [](const LinkSpec& l) { return l.kind == LinkKind::rope && l.elastic; });
+  if (elastic == spec.links.end()) return;
+  const std::string why = fmt::format(
+      "the finite-time Lyapunov exponent does not follow an elastic rope's switches between slack and taut yet, so it "
+      "would not describe the motion of rope '{}'",
+      elastic->name);
+  for (std::size_t i = 0; i < spec.limits.size(); ++i) {
+    const LimitSpec& l = spec.limits[i];
+    if (l.kind == LimitKind::ftle_max || l.kind == LimitKind::onset_margin)
+      ctx.error(l.mark, fmt::format("limits[{}]", i), fmt::format("{}: {}", l.key, why),
+                "remove this limit, or check the chaotic onset on a copy of the spec with the rope inextensible "
+                "(without its elastic: section)");
+  }
+  if (spec.chaos.given)
+    ctx.error(spec.chaos.mark, "chaos", fmt::format("the chaos section: {}", why),
+              "remove the chaos section, or study the chaotic onset on a copy of the spec with the rope "
+              "inextensible (without its elastic: section)");
+}
+
 }  // namespace swaybound::spec_detail
