@@ -6,7 +6,11 @@
 #include <cmath>
 #include <vector>
 
+#include "../../src/report/report_model.hpp"
 #include "../support/rope_packet_spec.hpp"
+#include <fmt/format.h>
+#include "swaybound/report/document.hpp"
+#include "swaybound/report/plot.hpp"
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/checks/check_run.hpp"
 #include "swaybound/checks/metrics.hpp"
@@ -162,4 +166,143 @@ TEST_CASE("recorded rope at rest: the static tension of the fall, no slack, no s
   CHECK(rc.hoist_link == -1);
   CHECK(rc.drum_travel.empty());
   CHECK(std::isnan(rc.lift_off_time));
+}
+
+namespace {
+
+/// The figures of the governing-cases section whose plot title starts with `title`.
+std::vector<const report_doc::Figure*> figures_titled(const report_doc::Document& d, const std::string& title) {
+  std::vector<const report_doc::Figure*> out;
+  for (const auto& s : d.sections)
+    if (s.id == "governing")
+      for (const auto& b : s.blocks)
+        for (const auto& f : b.figures)
+          if (f.plot.title.rfind(title, 0) == 0) out.push_back(&f);
+  return out;
+}
+
+}  // namespace
+
+TEST_CASE("rope page: tension with the slack intervals shaded, snatch peaks marked, static tension, lift-off",
+          "[rope-packet][report]") {
+  const Recorded& r = snatching();
+  const RecordedCase& rc = r.report.recorded[0];
+  const RecordedRope& rope = rc.ropes[0];
+  const report_doc::Document d = report_doc::build_document(r.spec, r.report, {"2025-02-03", "", ""}, nullptr);
+  const auto tension = figures_titled(d, "Rope l0: tension");
+  REQUIRE(tension.size() == 1);
+  const plot::Plot& p = tension[0]->plot;
+  // One band per slack interval, exactly the located interval.
+  REQUIRE(p.bands.size() == rope.slack.size());
+  REQUIRE(!p.bands.empty());
+  for (std::size_t k = 0; k < p.bands.size(); ++k) {
+    CHECK(p.bands[k].from == rope.slack[k].from);
+    CHECK(p.bands[k].to == rope.slack[k].to);
+  }
+  CHECK(!p.band_label.empty());
+  // A mark on every snatch peak at its located time and value; the largest carries both.
+  for (const SnatchPeak& s : rope.snatches) {
+    const auto mark = std::find_if(p.marks.begin(), p.marks.end(), [&](const plot::PointMark& m) {
+      return m.x == s.peak.time && m.y == s.peak.value / 1000;
+    });
+    CHECK(mark != p.marks.end());
+  }
+  const auto largest = std::max_element(rope.snatches.begin(), rope.snatches.end(), [](const SnatchPeak& a, const SnatchPeak& b) {
+    return a.peak.value < b.peak.value;
+  });
+  const std::string label = fmt::format("snatch {:.2f} kN at {:.2f} s", largest->peak.value / 1000, largest->peak.time);
+  CHECK(std::any_of(p.marks.begin(), p.marks.end(), [&](const plot::PointMark& m) { return m.label == label; }));
+  // Labels stay few: the plot must stay readable however often the rope snatches.
+  const auto labelled = std::count_if(p.marks.begin(), p.marks.end(), [](const plot::PointMark& m) { return !m.label.empty(); });
+  CHECK(labelled <= 4);
+  // The static tension g (m + m_rope / 2) as a horizontal line, lift-off as a vertical one.
+  const double static_kn = 9.81 * (testing::kSnatchLoad + 0.5 * testing::kSnatchRopeMass) / 1000;
+  CHECK(std::any_of(p.refs.begin(), p.refs.end(), [&](const plot::RefLine& l) {
+    return !l.vertical && l.value == Approx(static_kn).epsilon(1e-12) && l.label.find("static") != std::string::npos;
+  }));
+  CHECK(std::any_of(p.refs.begin(), p.refs.end(), [&](const plot::RefLine& l) {
+    return l.vertical && l.value == rc.lift_off_time && l.label.find("lift-off") != std::string::npos;
+  }));
+  // The tension series is the recorded fall tension in kN.
+  REQUIRE(p.series.size() == 1);
+  CHECK(p.series[0].y.size() == rope.force.size());
+  CHECK(p.series[0].y[100] == rope.force[100] / 1000);
+  // The hoist: rope length and the drum beside each other.
+  const auto length = figures_titled(d, "Rope l0: length");
+  const auto drum = figures_titled(d, "Hoist drum");
+  REQUIRE(length.size() == 1);
+  REQUIRE(drum.size() == 1);
+  CHECK(length[0]->width_share == 0.5);
+  CHECK(drum[0]->plot.series.size() == 2);
+  CHECK(drum[0]->plot.series[1].y == rc.drum_speed);
+}
+
+TEST_CASE("a chain without elastic ropes has no rope page", "[rope-packet][report]") {
+  testing::RopeChain c;
+  c.links = {{.m = 1, .L = 2, .c = 1, .I = 0.3, .rope = true}, {.m = 100, .L = 1, .c = 0.5, .I = 8}};
+  c.duration = 1;
+  Spec spec = c.spec();
+  spec.cases.initial[0].theta = {{0.05, 0.05, 1}, {0, 0, 1}};
+  LimitSpec l;
+  l.kind = LimitKind::peak_angle;
+  l.key = "peak_angle";
+  l.value = 0.5;
+  spec.limits.push_back(l);
+  CheckOptions o;
+  o.audit = false;
+  const CheckReport r = run_check(spec, o);
+  REQUIRE(r.recorded.size() == 1);
+  CHECK(r.recorded[0].ropes.empty());
+  const report_doc::Document d = report_doc::build_document(spec, r, {"2025-02-03", "", ""}, nullptr);
+  CHECK(figures_titled(d, "Rope").empty());
+  CHECK(figures_titled(d, "Link angles").size() == 1);
+}
+
+TEST_CASE("plot bands shade their x interval under the data", "[rope-packet][plots]") {
+  plot::Plot p = plot::line_chart("bands", {"time", "s"}, {"force", "kN"}, {{"f", {0, 10}, {1, 1}, true, false, 0}});
+  p.bands.push_back({2, 4});
+  p.band_label = "slack";
+  const std::string with = plot::to_png(p, 1);
+  p.bands.clear();
+  const std::string without = plot::to_png(p, 1);
+  CHECK(with != without);
+  // The legend names the bands only when some band lies within the plotted range.
+  p.bands.push_back({20, 30});
+  CHECK(plot::to_png(p, 1) == without);
+}
+
+
+namespace {
+
+/// The text of the scope section's bullets and paragraphs.
+std::string scope_text(const report_doc::Document& d) {
+  std::string text;
+  for (const auto& s : d.sections)
+    if (s.id == "scope")
+      for (const auto& b : s.blocks) {
+        for (const auto& span : b.text) text += span.text;
+        for (const auto& item : b.items)
+          for (const auto& span : item) text += span.text + "\n";
+      }
+  return text;
+}
+
+}  // namespace
+
+TEST_CASE("model notes: the elastic rope law, the drum's length profile and the ground of a lift-off",
+          "[rope-packet][report]") {
+  const Recorded& r = snatching();
+  const std::string text = scope_text(report_doc::build_document(r.spec, r.report, {"2025-02-03", "", ""}, nullptr));
+  INFO(text);
+  for (const char* needle : {"Kelvin-Voigt", "only pulls", "k = n EA / ℓ", "no bending stiffness", "no wave travels",
+                             "mass is stretched uniformly", "ℓ(t) = ℓ0 - s(t) / n", "ground's upward force",
+                             "reaches zero", "neither lets the load slide nor tip", "touching down again ends the case",
+                             "'l0' 1 part(s) of EA = 20,000,000 N"})
+    CHECK(text.find(needle) != std::string::npos);
+  // What no longer holds for this chain is not claimed.
+  CHECK(text.find("the rope length is fixed") == std::string::npos);
+  CHECK(text.find("a case ends when a rope goes slack") == std::string::npos);
+  // A chain without them keeps the rigid-rope notes.
+  const Spec still = snatch_spec(false, 1);
+  CHECK(scope_text(report_doc::build_document(still, r.report, {}, nullptr)).find("Lift-off") == std::string::npos);
 }
