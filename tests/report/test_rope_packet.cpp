@@ -6,16 +6,27 @@
 #include <cmath>
 #include <vector>
 
+#include <filesystem>
+#include <fstream>
+#include <map>
+#include <sstream>
+#include <string>
+
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+#include <unistd.h>
+
 #include "../../src/report/report_model.hpp"
 #include "../support/rope_packet_spec.hpp"
-#include <fmt/format.h>
-#include "swaybound/report/document.hpp"
-#include "swaybound/report/plot.hpp"
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/checks/check_run.hpp"
 #include "swaybound/checks/metrics.hpp"
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/model/model.hpp"
+#include "swaybound/report/check_packet.hpp"
+#include "swaybound/report/document.hpp"
+#include "swaybound/report/plot.hpp"
+#include "swaybound/report/verify.hpp"
 
 using namespace swaybound;
 using swaybound::testing::snatch_spec;
@@ -305,4 +316,147 @@ TEST_CASE("model notes: the elastic rope law, the drum's length profile and the 
   // A chain without them keeps the rigid-rope notes.
   const Spec still = snatch_spec(false, 1);
   CHECK(scope_text(report_doc::build_document(still, r.report, {}, nullptr)).find("Lift-off") == std::string::npos);
+}
+
+namespace {
+
+namespace fs = std::filesystem;
+using Json = nlohmann::json;
+
+std::string read_file(const fs::path& p) {
+  std::ifstream in(p, std::ios::binary);
+  std::ostringstream s;
+  s << in.rdbuf();
+  return s.str();
+}
+
+/// The fields of one CSV record (quotes removed, "" inside quotes read as ").
+std::vector<std::string> csv_fields(const std::string& line) {
+  std::vector<std::string> out(1);
+  bool quoted = false;
+  for (std::size_t i = 0; i < line.size(); ++i) {
+    const char c = line[i];
+    if (c == '"' && quoted && i + 1 < line.size() && line[i + 1] == '"') {
+      out.back() += '"';
+      ++i;
+    } else if (c == '"') {
+      quoted = !quoted;
+    } else if (c == ',' && !quoted) {
+      out.emplace_back();
+    } else if (c != '\n' && c != '\r') {
+      out.back() += c;
+    }
+  }
+  return out;
+}
+
+struct WrittenPacket {
+  fs::path dir;
+  std::vector<CaseMetrics> cases;  ///< as the run streamed them
+  Json results;
+  std::map<std::string, std::string> row;  ///< cases.csv: column -> value of the only case
+  std::vector<std::string> header;
+};
+
+/// A check packet of `spec` written by the library into a folder of this process.
+WrittenPacket write_packet(Spec spec, const std::string& name) {
+  WrittenPacket w;
+  w.dir = fs::temp_directory_path() / fmt::format("swaybound-test-rope-packet-{}-{}", ::getpid(), name);
+  fs::remove_all(w.dir);
+  spec.source_text = "# in-memory test spec: " + spec.name + "\n";
+  {
+    CheckPacket packet(spec, spec.source_text, PacketOptions{w.dir.string(), false, false, "2025-02-03T10:00:00Z"});
+    CheckOptions options;
+    options.audit = false;
+    options.on_case = [&](const CaseMetrics& m) { w.cases.push_back(m); };
+    packet.attach(options);
+    packet.finish(run_check(spec, options));
+  }
+  w.results = Json::parse(read_file(w.dir / "results.json"));
+  std::istringstream csv(read_file(w.dir / "cases.csv"));
+  std::string header, row;
+  std::getline(csv, header);
+  std::getline(csv, row);
+  w.header = csv_fields(header);
+  const std::vector<std::string> values = csv_fields(row);
+  REQUIRE(values.size() == w.header.size());
+  for (std::size_t k = 0; k < values.size(); ++k) w.row[w.header[k]] = values[k];
+  return w;
+}
+
+}  // namespace
+
+TEST_CASE("rope packet: results.json and cases.csv carry the rope figures of the run, and verify accepts it",
+          "[rope-packet][packet]") {
+  const WrittenPacket w = write_packet(snatch_spec(), "snatch");
+  const VerifyResult v = verify_packet(w.dir.string());
+  INFO(verify_report(v));
+  CHECK(v.intact());
+  CHECK(v.cases_csv_counted);
+  REQUIRE(w.cases.size() == 1);
+  const CaseMetrics& m = w.cases[0];
+  REQUIRE(m.ok());
+  REQUIRE(m.slack_count[0] >= 3);
+  // results.json: the governing case's rope as the streamed run measured it.
+  REQUIRE(w.results.contains("governing_cases"));
+  REQUIRE(w.results["governing_cases"].size() == 1);
+  const Json& g = w.results["governing_cases"][0];
+  CHECK(g["case"] == m.id);
+  CHECK(g["switches"].get<long>() == m.switches);
+  CHECK(g["lift_off_time_s"].get<double>() == Approx(m.lift_off_time).epsilon(1e-9));
+  REQUIRE(g["ropes"].size() == 1);
+  const Json& rope = g["ropes"][0];
+  CHECK(rope["link"] == "l0");
+  CHECK(rope["slack_count"].get<long>() == m.slack_count[0]);
+  CHECK(rope["slack_time_s"].get<double>() == Approx(m.slack_time[0]).epsilon(1e-9));
+  CHECK(rope["snatch_load_n"].get<double>() == Approx(m.snatch[0].value).epsilon(1e-9));
+  CHECK(rope["snatch_load_time_s"].get<double>() == Approx(m.snatch[0].time).epsilon(1e-9));
+  CHECK(rope["peak_rope_tension_n"].get<double>() == Approx(m.peak_rope_force[0].value).epsilon(1e-9));
+  CHECK(rope["slack_intervals_listed"] == true);
+  REQUIRE(rope["slack_intervals_s"].size() == static_cast<std::size_t>(m.slack_count[0]));
+  double total = 0;
+  for (const Json& in : rope["slack_intervals_s"]) total += in[1].get<double>() - in[0].get<double>();
+  CHECK(total == Approx(m.slack_time[0]).epsilon(1e-9));
+  CHECK(rope["snatch_peaks"].size() == rope["slack_intervals_s"].size());
+  // cases.csv: the rope kinds' columns for the rope link only, in SI units, and the counts.
+  for (const char* column : {"peak_rope_tension(l0) [N]", "peak_line_pull(l0) [N]", "slack_time(l0) [s]",
+                             "snatch_load(l0) [N]", "slack_count(l0) [-]", "switches [-]", "lift_off_time [s]"})
+    CHECK(w.row.count(column) == 1);
+  for (const char* column : {"peak_rope_tension(l1) [N]", "slack_time(l1) [s]", "slack_count(l1) [-]"})
+    CHECK(w.row.count(column) == 0);
+  CHECK(std::stod(w.row.at("peak_rope_tension(l0) [N]")) == Approx(m.peak_rope_force[0].value).epsilon(1e-9));
+  CHECK(std::stod(w.row.at("peak_line_pull(l0) [N]")) == Approx(m.peak_rope_force[0].value).epsilon(1e-9));  // one part
+  CHECK(std::stod(w.row.at("slack_time(l0) [s]")) == Approx(m.slack_time[0]).epsilon(1e-9));
+  CHECK(std::stod(w.row.at("snatch_load(l0) [N]")) == Approx(m.snatch[0].value).epsilon(1e-9));
+  CHECK(std::stol(w.row.at("slack_count(l0) [-]")) == m.slack_count[0]);
+  CHECK(std::stol(w.row.at("switches [-]")) == m.switches);
+  CHECK(std::stod(w.row.at("lift_off_time [s]")) == Approx(m.lift_off_time).epsilon(1e-9));
+  fs::remove_all(w.dir);
+}
+
+TEST_CASE("a chain with an inextensible rope only: no rope count columns, no governing_cases in results.json",
+          "[rope-packet][packet]") {
+  testing::RopeChain c;
+  c.links = {{.m = 1, .L = 2, .c = 1, .I = 0.3, .rope = true}, {.m = 100, .L = 1, .c = 0.5, .I = 8}};
+  c.duration = 1;
+  Spec spec = c.spec();
+  spec.cases.initial[0].theta = {{0.05, 0.05, 1}, {0, 0, 1}};
+  LimitSpec l;
+  l.kind = LimitKind::peak_angle;
+  l.key = "peak_angle";
+  l.value = 0.5;
+  spec.limits.push_back(l);
+  const WrittenPacket w = write_packet(spec, "rigid");
+  CHECK(verify_packet(w.dir.string()).intact());
+  CHECK_FALSE(w.results.contains("governing_cases"));
+  for (const auto& column : w.header) {
+    INFO(column);
+    CHECK(column.find("slack") == std::string::npos);
+    CHECK(column.find("switches") == std::string::npos);
+    CHECK(column.find("lift_off") == std::string::npos);
+  }
+  // The inextensible rope link still has the rope kinds that apply to it (its fall's tension).
+  CHECK(w.row.count("peak_rope_tension(l0) [N]") == 1);
+  CHECK(w.row.count("peak_rope_tension(l1) [N]") == 0);
+  fs::remove_all(w.dir);
 }
