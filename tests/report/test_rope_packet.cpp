@@ -460,3 +460,22 @@ TEST_CASE("a chain with an inextensible rope only: no rope count columns, no gov
   CHECK(w.row.count("peak_rope_tension(l1) [N]") == 0);
   fs::remove_all(w.dir);
 }
+
+TEST_CASE("rope recordings keep at most kMaxRecordedPoints per series", "[rope-packet][bounded]") {
+  Spec spec = snatch_spec(true, 2);
+  spec.cases.output_rate = 3 * kMaxRecordedPoints;  // over 6 x more samples than kept
+  CheckOptions o;
+  o.audit = false;
+  const CheckReport r = run_check(spec, o);
+  REQUIRE(r.recorded.size() == 1);
+  const RecordedCase& rc = r.recorded[0];
+  CHECK(rc.stride >= 6);
+  CHECK(static_cast<long>(rc.t.size()) <= kMaxRecordedPoints);
+  for (const auto* series : {&rc.ropes[0].force, &rc.ropes[0].length, &rc.ropes[0].unstretched, &rc.ropes[0].stretch,
+                             &rc.hoist_length, &rc.drum_travel, &rc.drum_speed})
+    CHECK(series->size() == rc.t.size());
+  // The intervals do not depend on the sampling: the same switches as at 100 samples/s.
+  const RecordedCase& coarse = snatching().report.recorded[0];
+  REQUIRE(coarse.ropes[0].slack.size() >= rc.ropes[0].slack.size());
+  for (std::size_t k = 0; k < rc.ropes[0].slack.size(); ++k) CHECK(rc.ropes[0].slack[k].from == coarse.ropes[0].slack[k].from);
+}
