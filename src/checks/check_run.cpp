@@ -212,7 +212,8 @@ std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vec
     };
     // One finder for the case's extremes and the ropes' snatch peaks (its probes re-evaluate the
     // workspace, so the ropes read their slack flags from each view first).
-    CaseExtremes extremes(model, spec, ropes.count(), [&ropes](const StepView& v, double* q) { ropes.quantities(v, q); });
+    CaseExtremes extremes(model, spec, ropes.count(),
+                          [&ropes](const StepView& v, double* q) { ropes.quantities(v, q); });
     const Observer on_step = [&](const StepView& v) {
       ropes.step(v);
       extremes.observe(v);

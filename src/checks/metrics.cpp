@@ -26,7 +26,8 @@ std::vector<double> residual_windows(const Model& model, const Spec& spec, int e
 }
 }  // namespace
 
-CaseExtremes::CaseExtremes(const Model& model, const Spec& spec, int extra, ExtremeFinder::Quantities extra_quantities)
+CaseExtremes::CaseExtremes(const Model& model, const Spec& spec, int extra,
+                           ExtremeFinder::Quantities extra_quantities)
     : model_(model),
       first_extra_(static_cast<int>(residual_windows(model, spec).size())),
       extra_quantities_(extra > 0 ? std::move(extra_quantities) : ExtremeFinder::Quantities{}),

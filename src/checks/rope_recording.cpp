@@ -35,7 +35,8 @@ Extreme largest_sample(const std::vector<double>& t, const std::vector<double>& 
 }  // namespace
 
 RopeRecorder::RopeRecorder(const Model& model, int scenario)
-    : model_(model), hoist_link_(model.scenarios[static_cast<std::size_t>(scenario)].hoist_link),
+    : model_(model),
+      hoist_link_(model.scenarios[static_cast<std::size_t>(scenario)].hoist_link),
       state_(model.elastic_links.size()) {}
 
 void RopeRecorder::quantities(const StepView& v, double* q) const {
@@ -92,7 +93,8 @@ void RopeRecorder::sample(const StepView& v, RecordedCase& rc) {
   rc.drum_speed.push_back(v.ws->drum_v);
 }
 
-void RopeRecorder::finish(const CaseExtremes& extremes, const CaseMetrics& m, double t_end, RecordedCase& rc) {
+void RopeRecorder::finish(const CaseExtremes& extremes, const CaseMetrics& m, double t_end,
+                          RecordedCase& rc) {
   for (std::size_t r = 0; r < state_.size(); ++r) {
     Rope& s = state_[r];
     if (s.seen && s.slack) close_interval(s.slack_intervals, s.slack_total, t_end);

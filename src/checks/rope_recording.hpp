@@ -34,9 +34,9 @@ class RopeRecorder {
 
  private:
   struct Rope {
-    bool seen = false;       ///< a view was observed
-    bool slack = false;      ///< slack at the last view
-    int taut_index = -1;     ///< index of the current taut interval after a slack one, -1 for none
+    bool seen = false;    ///< a view was observed
+    bool slack = false;   ///< slack at the last view
+    int taut_index = -1;  ///< index of the current taut interval after a slack one, -1 for none
     long slack_total = 0, taut_total = 0;
     std::vector<Interval> slack_intervals, taut_intervals;  ///< capped at kMaxRecordedIntervals
   };

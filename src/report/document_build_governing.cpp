@@ -151,7 +151,8 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
   // Figures per case: angles, loads, inputs, and the angle-angle plots two to a row.
   int ropes = 0;  // rope figures per case: a tension plot per elastic rope, a row for the hoist
   for (const auto& l : spec.links) ropes += l.elastic.has_value();
-  if (std::any_of(spec.scenarios.begin(), spec.scenarios.end(), [](const ScenarioSpec& s) { return s.hoist.has_value(); }))
+  if (std::any_of(spec.scenarios.begin(), spec.scenarios.end(),
+                  [](const ScenarioSpec& s) { return s.hoist.has_value(); }))
     ++ropes;
   const int per_case = 3 + static_cast<int>(spec.links.size()) / 2 + ropes;
   const std::size_t max_cases = static_cast<std::size_t>(std::max(1, kMaxGoverningPlots / per_case));

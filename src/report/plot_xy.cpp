@@ -110,7 +110,8 @@ void draw_bands(cairo_t* cr, const Frame& f, const Plot& p) {
 
 /// Whether some band lies (partly) within the x range [lo, hi].
 bool bands_show(const Plot& p, double lo, double hi) {
-  return std::any_of(p.bands.begin(), p.bands.end(), [&](const Band& b) { return b.to >= lo && b.from <= hi; });
+  return std::any_of(p.bands.begin(), p.bands.end(),
+                     [&](const Band& b) { return b.to >= lo && b.from <= hi; });
 }
 
 bool has_data(const Plot& p) {

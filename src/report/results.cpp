@@ -29,12 +29,14 @@ const char* stepper_name(Stepper s) { return s == Stepper::dopri5 ? "dopri5" : "
 
 /// Whether some link is an elastic rope.
 bool has_elastic_rope(const Spec& spec) {
-  return std::any_of(spec.links.begin(), spec.links.end(), [](const LinkSpec& l) { return l.elastic.has_value(); });
+  return std::any_of(spec.links.begin(), spec.links.end(),
+                     [](const LinkSpec& l) { return l.elastic.has_value(); });
 }
 
 /// Whether some scenario starts with the load on the ground.
 bool has_lift_off(const Spec& spec) {
-  return std::any_of(spec.scenarios.begin(), spec.scenarios.end(), [](const ScenarioSpec& s) { return s.lift_off.has_value(); });
+  return std::any_of(spec.scenarios.begin(), spec.scenarios.end(),
+                     [](const ScenarioSpec& s) { return s.lift_off.has_value(); });
 }
 
 /// The ropes, switches and lift-off of a recorded governing case (results.json).
@@ -46,8 +48,10 @@ Json governing_case_json(const Spec& spec, const RecordedCase& rc) {
     for (const Interval& s : rope.slack) slack.push_back({number(s.from), number(s.to)});
     Json snatches = Json::array();
     for (const SnatchPeak& p : rope.snatches)
-      snatches.push_back({{"tension_n", number(p.peak.value)}, {"time_s", number(p.peak.time)},
-                          {"taut_from_s", number(p.taut.from)}, {"taut_to_s", number(p.taut.to)},
+      snatches.push_back({{"tension_n", number(p.peak.value)},
+                          {"time_s", number(p.peak.time)},
+                          {"taut_from_s", number(p.taut.from)},
+                          {"taut_to_s", number(p.taut.to)},
                           {"located", p.located}});
     ropes.push_back({{"link", link.name},
                      {"parts_of_line", link.parts_of_line},
@@ -293,7 +297,8 @@ std::string cases_csv_row(const Spec& spec, const CaseMetrics& m) {
   }
   // Counts and instants of what happened before the run ended, written for failed runs too.
   for (std::size_t k = 0; k < n; ++k)
-    if (spec.links[k].elastic) add_field(row, std::to_string(k < m.slack_count.size() ? m.slack_count[k] : 0));
+    if (spec.links[k].elastic)
+      add_field(row, std::to_string(k < m.slack_count.size() ? m.slack_count[k] : 0));
   if (has_elastic_rope(spec) || has_lift_off(spec)) add_field(row, std::to_string(m.switches));
   if (has_lift_off(spec)) add_field(row, csv_number(m.lift_off_time));
   measured(m.settling_time);

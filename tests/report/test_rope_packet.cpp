@@ -13,8 +13,8 @@
 #include <string>
 
 #include <fmt/format.h>
-#include <nlohmann/json.hpp>
 #include <unistd.h>
+#include <nlohmann/json.hpp>
 
 #include "../../src/report/report_model.hpp"
 #include "../support/rope_packet_spec.hpp"
@@ -63,7 +63,8 @@ RunOutcome outcome_of(const Spec& spec) {
 
 }  // namespace
 
-TEST_CASE("recorded rope: slack intervals at the run's located switches, lift-off at its event", "[rope-packet]") {
+TEST_CASE("recorded rope: slack intervals at the run's located switches, lift-off at its event",
+          "[rope-packet]") {
   const Recorded& r = snatching();
   REQUIRE(r.report.recorded.size() == 1);
   const RecordedCase& rc = r.report.recorded[0];
@@ -182,7 +183,8 @@ TEST_CASE("recorded rope at rest: the static tension of the fall, no slack, no s
 namespace {
 
 /// The figures of the governing-cases section whose plot title starts with `title`.
-std::vector<const report_doc::Figure*> figures_titled(const report_doc::Document& d, const std::string& title) {
+std::vector<const report_doc::Figure*> figures_titled(const report_doc::Document& d,
+                                                      const std::string& title) {
   std::vector<const report_doc::Figure*> out;
   for (const auto& s : d.sections)
     if (s.id == "governing")
@@ -199,7 +201,8 @@ TEST_CASE("rope page: tension with the slack intervals shaded, snatch peaks mark
   const Recorded& r = snatching();
   const RecordedCase& rc = r.report.recorded[0];
   const RecordedRope& rope = rc.ropes[0];
-  const report_doc::Document d = report_doc::build_document(r.spec, r.report, {"2025-02-03", "", ""}, nullptr);
+  const report_doc::Document d =
+      report_doc::build_document(r.spec, r.report, {"2025-02-03", "", ""}, nullptr);
   const auto tension = figures_titled(d, "Rope l0: tension");
   REQUIRE(tension.size() == 1);
   const plot::Plot& p = tension[0]->plot;
@@ -218,18 +221,22 @@ TEST_CASE("rope page: tension with the slack intervals shaded, snatch peaks mark
     });
     CHECK(mark != p.marks.end());
   }
-  const auto largest = std::max_element(rope.snatches.begin(), rope.snatches.end(), [](const SnatchPeak& a, const SnatchPeak& b) {
-    return a.peak.value < b.peak.value;
-  });
-  const std::string label = fmt::format("snatch {:.2f} kN at {:.2f} s", largest->peak.value / 1000, largest->peak.time);
-  CHECK(std::any_of(p.marks.begin(), p.marks.end(), [&](const plot::PointMark& m) { return m.label == label; }));
+  const auto largest =
+      std::max_element(rope.snatches.begin(), rope.snatches.end(),
+                       [](const SnatchPeak& a, const SnatchPeak& b) { return a.peak.value < b.peak.value; });
+  const std::string label =
+      fmt::format("snatch {:.2f} kN at {:.2f} s", largest->peak.value / 1000, largest->peak.time);
+  CHECK(std::any_of(p.marks.begin(), p.marks.end(),
+                    [&](const plot::PointMark& m) { return m.label == label; }));
   // Labels stay few: the plot must stay readable however often the rope snatches.
-  const auto labelled = std::count_if(p.marks.begin(), p.marks.end(), [](const plot::PointMark& m) { return !m.label.empty(); });
+  const auto labelled = std::count_if(p.marks.begin(), p.marks.end(),
+                                      [](const plot::PointMark& m) { return !m.label.empty(); });
   CHECK(labelled <= 4);
   // The static tension g (m + m_rope / 2) as a horizontal line, lift-off as a vertical one.
   const double static_kn = 9.81 * (testing::kSnatchLoad + 0.5 * testing::kSnatchRopeMass) / 1000;
   CHECK(std::any_of(p.refs.begin(), p.refs.end(), [&](const plot::RefLine& l) {
-    return !l.vertical && l.value == Approx(static_kn).epsilon(1e-12) && l.label.find("static") != std::string::npos;
+    return !l.vertical && l.value == Approx(static_kn).epsilon(1e-12) &&
+           l.label.find("static") != std::string::npos;
   }));
   CHECK(std::any_of(p.refs.begin(), p.refs.end(), [&](const plot::RefLine& l) {
     return l.vertical && l.value == rc.lift_off_time && l.label.find("lift-off") != std::string::npos;
@@ -270,7 +277,8 @@ TEST_CASE("a chain without elastic ropes has no rope page", "[rope-packet][repor
 }
 
 TEST_CASE("plot bands shade their x interval under the data", "[rope-packet][plots]") {
-  plot::Plot p = plot::line_chart("bands", {"time", "s"}, {"force", "kN"}, {{"f", {0, 10}, {1, 1}, true, false, 0}});
+  plot::Plot p =
+      plot::line_chart("bands", {"time", "s"}, {"force", "kN"}, {{"f", {0, 10}, {1, 1}, true, false, 0}});
   p.bands.push_back({2, 4});
   p.band_label = "slack";
   const std::string with = plot::to_png(p, 1);
@@ -281,7 +289,6 @@ TEST_CASE("plot bands shade their x interval under the data", "[rope-packet][plo
   p.bands.push_back({20, 30});
   CHECK(plot::to_png(p, 1) == without);
 }
-
 
 namespace {
 
@@ -303,19 +310,21 @@ std::string scope_text(const report_doc::Document& d) {
 TEST_CASE("model notes: the elastic rope law, the drum's length profile and the ground of a lift-off",
           "[rope-packet][report]") {
   const Recorded& r = snatching();
-  const std::string text = scope_text(report_doc::build_document(r.spec, r.report, {"2025-02-03", "", ""}, nullptr));
+  const std::string text =
+      scope_text(report_doc::build_document(r.spec, r.report, {"2025-02-03", "", ""}, nullptr));
   INFO(text);
-  for (const char* needle : {"Kelvin-Voigt", "only pulls", "k = n EA / ℓ", "no bending stiffness", "no wave travels",
-                             "mass is stretched uniformly", "ℓ(t) = ℓ0 - s(t) / n", "ground's upward force",
-                             "reaches zero", "neither lets the load slide nor tip", "touching down again ends the case",
-                             "'l0' 1 part(s) of EA = 20,000,000 N"})
+  for (const char* needle : {"Kelvin-Voigt", "only pulls", "k = n EA / ℓ", "no bending stiffness",
+                             "no wave travels", "mass is stretched uniformly", "ℓ(t) = ℓ0 - s(t) / n",
+                             "ground's upward force", "reaches zero", "neither lets the load slide nor tip",
+                             "touching down again ends the case", "'l0' 1 part(s) of EA = 20,000,000 N"})
     CHECK(text.find(needle) != std::string::npos);
   // What no longer holds for this chain is not claimed.
   CHECK(text.find("the rope length is fixed") == std::string::npos);
   CHECK(text.find("a case ends when a rope goes slack") == std::string::npos);
   // A chain without them keeps the rigid-rope notes.
   const Spec still = snatch_spec(false, 1);
-  CHECK(scope_text(report_doc::build_document(still, r.report, {}, nullptr)).find("Lift-off") == std::string::npos);
+  CHECK(scope_text(report_doc::build_document(still, r.report, {}, nullptr)).find("Lift-off") ==
+        std::string::npos);
 }
 
 namespace {
@@ -365,7 +374,8 @@ WrittenPacket write_packet(Spec spec, const std::string& name) {
   fs::remove_all(w.dir);
   spec.source_text = "# in-memory test spec: " + spec.name + "\n";
   {
-    CheckPacket packet(spec, spec.source_text, PacketOptions{w.dir.string(), false, false, "2025-02-03T10:00:00Z"});
+    CheckPacket packet(spec, spec.source_text,
+                       PacketOptions{w.dir.string(), false, false, "2025-02-03T10:00:00Z"});
     CheckOptions options;
     options.audit = false;
     options.on_case = [&](const CaseMetrics& m) { w.cases.push_back(m); };
@@ -419,13 +429,15 @@ TEST_CASE("rope packet: results.json and cases.csv carry the rope figures of the
   CHECK(total == Approx(m.slack_time[0]).epsilon(1e-9));
   CHECK(rope["snatch_peaks"].size() == rope["slack_intervals_s"].size());
   // cases.csv: the rope kinds' columns for the rope link only, in SI units, and the counts.
-  for (const char* column : {"peak_rope_tension(l0) [N]", "peak_line_pull(l0) [N]", "slack_time(l0) [s]",
-                             "snatch_load(l0) [N]", "slack_count(l0) [-]", "switches [-]", "lift_off_time [s]"})
+  for (const char* column :
+       {"peak_rope_tension(l0) [N]", "peak_line_pull(l0) [N]", "slack_time(l0) [s]", "snatch_load(l0) [N]",
+        "slack_count(l0) [-]", "switches [-]", "lift_off_time [s]"})
     CHECK(w.row.count(column) == 1);
   for (const char* column : {"peak_rope_tension(l1) [N]", "slack_time(l1) [s]", "slack_count(l1) [-]"})
     CHECK(w.row.count(column) == 0);
   CHECK(std::stod(w.row.at("peak_rope_tension(l0) [N]")) == Approx(m.peak_rope_force[0].value).epsilon(1e-9));
-  CHECK(std::stod(w.row.at("peak_line_pull(l0) [N]")) == Approx(m.peak_rope_force[0].value).epsilon(1e-9));  // one part
+  CHECK(std::stod(w.row.at("peak_line_pull(l0) [N]")) ==
+        Approx(m.peak_rope_force[0].value).epsilon(1e-9));  // one part
   CHECK(std::stod(w.row.at("slack_time(l0) [s]")) == Approx(m.slack_time[0]).epsilon(1e-9));
   CHECK(std::stod(w.row.at("snatch_load(l0) [N]")) == Approx(m.snatch[0].value).epsilon(1e-9));
   CHECK(std::stol(w.row.at("slack_count(l0) [-]")) == m.slack_count[0]);
@@ -471,11 +483,12 @@ TEST_CASE("rope recordings keep at most kMaxRecordedPoints per series", "[rope-p
   const RecordedCase& rc = r.recorded[0];
   CHECK(rc.stride >= 6);
   CHECK(static_cast<long>(rc.t.size()) <= kMaxRecordedPoints);
-  for (const auto* series : {&rc.ropes[0].force, &rc.ropes[0].length, &rc.ropes[0].unstretched, &rc.ropes[0].stretch,
-                             &rc.hoist_length, &rc.drum_travel, &rc.drum_speed})
+  for (const auto* series : {&rc.ropes[0].force, &rc.ropes[0].length, &rc.ropes[0].unstretched,
+                             &rc.ropes[0].stretch, &rc.hoist_length, &rc.drum_travel, &rc.drum_speed})
     CHECK(series->size() == rc.t.size());
   // The intervals do not depend on the sampling: the same switches as at 100 samples/s.
   const RecordedCase& coarse = snatching().report.recorded[0];
   REQUIRE(coarse.ropes[0].slack.size() >= rc.ropes[0].slack.size());
-  for (std::size_t k = 0; k < rc.ropes[0].slack.size(); ++k) CHECK(rc.ropes[0].slack[k].from == coarse.ropes[0].slack[k].from);
+  for (std::size_t k = 0; k < rc.ropes[0].slack.size(); ++k)
+    CHECK(rc.ropes[0].slack[k].from == coarse.ropes[0].slack[k].from);
 }

@@ -19,7 +19,11 @@ inline Spec snatch_spec(bool hoist = true, double duration = 4) {
   RopeChain d;
   d.g = 9.81;
   const double L = kSnatchRope, m = kSnatchLoad, k = kSnatchStiffness;
-  d.links = {{.m = kSnatchRopeMass, .L = L, .c = L / 2, .I = kSnatchRopeMass * L * L / 12, .ea = k * L,
+  d.links = {{.m = kSnatchRopeMass,
+              .L = L,
+              .c = L / 2,
+              .I = kSnatchRopeMass * L * L / 12,
+              .ea = k * L,
               .c_axial = 0.02 * 2 * std::sqrt(k * m)},
              {.m = m, .L = 1.0, .c = 1.0, .I = 0}};
   d.duration = duration;

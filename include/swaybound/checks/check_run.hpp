@@ -60,16 +60,17 @@ struct RecordedRope {
   /// The slack intervals, from the located switches (not the samples); the last ends at the end
   /// of the run when the rope stays slack. The first kMaxRecordedIntervals.
   std::vector<Interval> slack;
-  long slack_intervals = 0;         ///< how many there were (> slack.size() when capped)
-  std::vector<SnatchPeak> snatches; ///< one per taut interval after a slack one (first kMaxRecordedIntervals)
+  long slack_intervals = 0;  ///< how many there were (> slack.size() when capped)
+  std::vector<SnatchPeak>
+      snatches;  ///< one per taut interval after a slack one (first kMaxRecordedIntervals)
   /// The tension of the fall hanging at rest: g (mass below the rope + the rope's mass x its
   /// centre of mass / its length; the rope's own weight acts at its centre of mass) [N].
   double static_force = 0;
   // The re-run's metrics (as CaseMetrics names them).
-  Extreme peak_force;               ///< peak_rope_force [N]
-  double slack_time = 0;            ///< [s]
+  Extreme peak_force;     ///< peak_rope_force [N]
+  double slack_time = 0;  ///< [s]
   long slack_count = 0;
-  Extreme snatch;                   ///< largest tension after it first went slack [N] (0: never slack)
+  Extreme snatch;  ///< largest tension after it first went slack [N] (0: never slack)
 };
 
 /// A governing case re-run at the spec's tolerance with its time series recorded (for plots).
@@ -90,15 +91,15 @@ struct RecordedCase {
   /// max |theta|, max pivot load and the least rope tension (NaN for rigid links).
   std::vector<Extreme> peak_angle, peak_load, min_tension;
   // Ropes of variable length: empty / NaN / -1 for a chain without them.
-  std::vector<RecordedRope> ropes;          ///< per elastic rope
-  int hoist_link = -1;                      ///< the rope link the scenario's drum winds, -1 for none
-  std::vector<double> hoist_length;         ///< that link's length, per sample [m] (when it hoists)
-  std::vector<double> drum_travel;          ///< rope hauled in at the drum since t = 0, per sample [m]
-  std::vector<double> drum_speed;           ///< drum rope speed, + hauls in, per sample [m/s]
-  double lift_off_time = std::nan("");      ///< when the load left the ground [s] (lift-off scenarios)
-  long switches = 0;                        ///< located switches of contact laws (ropes, ground)
-  double t_end = 0;                         ///< where the run ended [s]
-  std::string status = "ok";                ///< the run's status (status_name)
+  std::vector<RecordedRope> ropes;      ///< per elastic rope
+  int hoist_link = -1;                  ///< the rope link the scenario's drum winds, -1 for none
+  std::vector<double> hoist_length;     ///< that link's length, per sample [m] (when it hoists)
+  std::vector<double> drum_travel;      ///< rope hauled in at the drum since t = 0, per sample [m]
+  std::vector<double> drum_speed;       ///< drum rope speed, + hauls in, per sample [m/s]
+  double lift_off_time = std::nan("");  ///< when the load left the ground [s] (lift-off scenarios)
+  long switches = 0;                    ///< located switches of contact laws (ropes, ground)
+  double t_end = 0;                     ///< where the run ended [s]
+  std::string status = "ok";            ///< the run's status (status_name)
 };
 
 struct CheckOptions {

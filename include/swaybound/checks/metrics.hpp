@@ -72,7 +72,8 @@ class CaseExtremes {
   /// same finder (one finder per run: each finder's probes re-evaluate the workspace, so a second
   /// finder observing the same view would read a workspace that no longer describes it). They are
   /// quantities `first_extra()` .. `first_extra() + extra - 1` of `finder()`.
-  CaseExtremes(const Model& model, const Spec& spec, int extra = 0, ExtremeFinder::Quantities extra_quantities = {});
+  CaseExtremes(const Model& model, const Spec& spec, int extra = 0,
+               ExtremeFinder::Quantities extra_quantities = {});
   /// The on_step observer.
   void observe(const StepView& v);
   /// Writes the extremes into m (peak_*, min_tension, support_force_x, residual).
