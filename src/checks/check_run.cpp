@@ -7,6 +7,7 @@
 
 #include <fmt/format.h>
 
+#include "rope_recording.hpp"
 #include "swaybound/spec/loader.hpp"
 
 namespace swaybound {
@@ -184,10 +185,13 @@ std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vec
     rc.tension.assign(static_cast<std::size_t>(n), {});
     rc.wind_x.assign(model.wind.size(), {});
     rc.stride = record_stride(recording);
+    checks_detail::RopeRecorder ropes(model, def.scenario);
+    ropes.start(rc);
     long sample = 0;
     const Observer on_sample = [&](const StepView& v) {
       if (sample++ % rc.stride != 0) return;
       rc.t.push_back(v.t);
+      ropes.sample(v, rc);
       rc.support_x.push_back(-v.ws->reaction_x[0]);
       rc.support_y.push_back(-v.ws->reaction_y[0]);
       rc.base_vx.push_back(v.ws->base_vx);
@@ -208,14 +212,26 @@ std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vec
         rc.tension[k].push_back(i + 1 < n ? std::min(top, bottom) : top);
       }
     };
-    CaseExtremes extremes(model, spec);
-    const Observer on_step = [&](const StepView& v) { extremes.observe(v); };
-    simulate_case(model, ws, def.scenario, def.initial, recording, on_step, on_sample);
+    // One finder for the case's extremes and the ropes' snatch peaks (its probes re-evaluate the
+    // workspace, so the ropes read their slack flags from each view first).
+    CaseExtremes extremes(model, spec, ropes.count(),
+                          [&ropes](const StepView& v, double* q) { ropes.quantities(v, q); });
+    const Observer on_step = [&](const StepView& v) {
+      ropes.step(v);
+      extremes.observe(v);
+    };
+    const RunOutcome out = simulate_case(model, ws, def.scenario, def.initial, recording, on_step, on_sample);
     CaseMetrics located;
     extremes.write(located);
     rc.peak_angle = located.peak_angle;
     rc.peak_load = located.peak_load;
     rc.min_tension = located.min_tension;
+    rc.switches = out.switches;
+    rc.t_end = out.t_reached;
+    rc.status = std::string(status_name(out.status));
+    for (const ModeEvent& e : out.events)
+      if (e.kind == ModeEventKind::lift_off && std::isnan(rc.lift_off_time)) rc.lift_off_time = e.time;
+    ropes.finish(extremes, located, out.t_reached, rc);
     recorded.push_back(std::move(rc));
   }
   return recorded;

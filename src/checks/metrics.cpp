@@ -16,17 +16,22 @@ enum Block { kAngle, kRelative, kRate, kLoad, kTensionTop, kTensionBottom, kRope
 /// Quantities of the whole chain, after the blocks: |horizontal force on the support|.
 enum Chain { kSupportX, kChain };
 
-std::vector<double> residual_windows(const Model& model, const Spec& spec) {
+/// The window start of every quantity: 0, or a residual_sway limit's time; then `extra` zeros.
+std::vector<double> residual_windows(const Model& model, const Spec& spec, int extra = 0) {
   std::vector<double> from(static_cast<std::size_t>(kBlocks * model.n + kChain), 0.0);
   for (const auto& l : spec.limits)
     if (limit_kind(l.kind).options.after) from.push_back(l.after);
+  from.resize(from.size() + static_cast<std::size_t>(extra), 0.0);
   return from;
 }
 }  // namespace
 
-CaseExtremes::CaseExtremes(const Model& model, const Spec& spec)
+CaseExtremes::CaseExtremes(const Model& model, const Spec& spec, int extra,
+                           ExtremeFinder::Quantities extra_quantities)
     : model_(model),
-      finder_(static_cast<int>(residual_windows(model, spec).size()),
+      first_extra_(static_cast<int>(residual_windows(model, spec).size())),
+      extra_quantities_(extra > 0 ? std::move(extra_quantities) : ExtremeFinder::Quantities{}),
+      finder_(static_cast<int>(residual_windows(model, spec, std::max(extra, 0)).size()),
               [this](const StepView& v, double* q) {
                 const int n = model_.n;
                 const double* x = v.x;
@@ -53,8 +58,9 @@ CaseExtremes::CaseExtremes(const Model& model, const Spec& spec)
                     if (residual_links_[r] < 0 || residual_links_[r] == i) worst = std::max(worst, std::fabs(x[i]));
                   q[kBlocks * n + kChain + static_cast<int>(r)] = worst;
                 }
+                if (extra_quantities_) extra_quantities_(v, q + first_extra_);
               },
-              residual_windows(model, spec)) {
+              residual_windows(model, spec, std::max(extra, 0))) {
   for (const auto& l : spec.limits)
     if (limit_kind(l.kind).options.after) residual_links_.push_back(l.link);
   slack_time_.assign(model.elastic_links.size(), 0.0);

@@ -9,6 +9,7 @@
 //   document_build_loads.cpp      4 (cont.) loads of the hanging equilibrium
 //   document_build_modes.cpp      5 modes
 //   document_build_governing.cpp  6 governing cases
+//   document_build_ropes.cpp      6 (cont.) rope tension, slack, snatches, hoist
 //   document_build_chaos.cpp      7 chaotic onset
 //   document_build_envelope.cpp   8 envelope
 //   document_build_trust.cpp      9 numerical trust, 10 cautions
@@ -70,6 +71,11 @@ std::vector<double> scaled(const std::vector<double>& v, double factor);
 void add_ref(std::vector<plot::RefLine>& refs, plot::RefLine r);
 /// " (link name)" for a limit on one link, else empty (document_build_governing.cpp).
 std::string link_scope(const Spec& spec, const LimitSpec& l);
+/// The rope figures of a recorded governing case: per elastic rope the tension of its fall with
+/// the slack intervals shaded and the snatch peaks marked; the rope length and drum when the
+/// scenario hoists; the contact switches and lift-off (document_build_ropes.cpp). Empty for a case
+/// without ropes of variable length.
+std::vector<Block> rope_blocks(const Spec& spec, const RecordedCase& rc, const std::string& id);
 
 // --- One builder per section -------------------------------------------------------------------
 

@@ -59,17 +59,72 @@ Section scope_section(const Spec& spec, const CheckReport& r, const Document& d)
   std::vector<Rich> model;
   model.push_back({Span{"Planar motion. ", true},
                    Span{"Every link swings in one vertical plane; the angles are absolute, from the downward vertical."}});
-  std::string ropes;
-  for (const auto& l : spec.links)
-    if (l.kind == LinkKind::rope) ropes += (ropes.empty() ? "" : ", ") + ("'" + l.name + "'");
-  model.push_back({Span{"Rigid links. ", true},
-                   Span{"Every link is a rigid body of fixed length. " +
-                        (ropes.empty() ? std::string("The chain has no rope links.")
-                                       : "The rope link(s) " + ropes +
-                                             " are treated as rigid links of fixed length while taut; their axial tension "
-                                             "is computed and checked at both ends. A case in which it goes below "
-                                             "zero ends there with status rope_slack (the rigid model does not hold "
-                                             "once a rope is slack) and fails every check it touches.")}});
+  // Ropes: inextensible ones are rigid while taut; elastic ones, hoisting and lift-off have their own notes.
+  std::string ropes, elastic;
+  for (const auto& l : spec.links) {
+    if (l.kind != LinkKind::rope) continue;
+    std::string& list = l.elastic ? elastic : ropes;
+    list += (list.empty() ? "'" : ", '") + l.name + "'";
+  }
+  std::vector<std::string> hoisting, lifting;
+  for (const auto& sc : spec.scenarios) {
+    if (sc.hoist) hoisting.push_back("'" + sc.name + "'");
+    if (sc.lift_off) lifting.push_back("'" + sc.name + "'");
+  }
+  const bool variable = !elastic.empty() || !hoisting.empty();
+  std::string rigid =
+      variable ? "Every link other than an elastic or hoisted rope is a rigid body of fixed length. "
+               : "Every link is a rigid body of fixed length. ";
+  if (ropes.empty())
+    rigid += elastic.empty() ? "The chain has no rope links." : "The chain has no inextensible rope links.";
+  else
+    rigid += "The rope link(s) " + ropes +
+             " are treated as rigid links of fixed length while taut; their axial tension "
+             "is computed and checked at both ends. A case in which it goes below "
+             "zero ends there with status rope_slack (the rigid model does not hold "
+             "once a rope is slack) and fails every check it touches.";
+  model.push_back({Span{"Rigid links. ", true}, Span{rigid}});
+  if (!elastic.empty()) {
+    std::vector<std::string> laws;
+    for (const auto& l : spec.links)
+      if (l.elastic)
+        laws.push_back(
+            l.elastic->ea > 0
+                ? fmt::format("'{}' {} part(s) of EA = {} N", l.name, l.parts_of_line, amount(l.elastic->ea))
+                : fmt::format("'{}' {} part(s), stiffness {} N/m at its length", l.name, l.parts_of_line,
+                              amount(l.elastic->stiffness)));
+    model.push_back(
+        {Span{"Elastic ropes. ", true},
+         Span{"The rope link(s) " + elastic +
+              " are elastic. Each fall is a Kelvin-Voigt element, a spring and a damper side by side, "
+              "that only pulls: its tension is k δ + c δ' while that is positive and zero otherwise "
+              "(the rope is slack), δ being the stretch (length less the unstretched length ℓ) and k = "
+              "n EA / ℓ for n parts of line of axial stiffness EA each, so a rope stiffens as it is "
+              "hauled in. The rope has no bending stiffness and no wave travels along it: it stays "
+              "straight between its ends, slack or taut, and its mass is stretched uniformly along it "
+              "(its centre of mass keeps its fraction of the length). The instants a rope goes slack "
+              "or taut again are located to the solver's accuracy and the run continues across them. " +
+              fmt::format("Ropes: {}.", fmt::join(laws, "; "))}});
+  }
+  if (!hoisting.empty())
+    model.push_back(
+        {Span{"Hoisting. ", true},
+         Span{fmt::format(
+             "In scenario(s) {} a drum winds a rope: the rope's length (an elastic rope's unstretched "
+             "length) is ℓ(t) = ℓ0 - s(t) / n, s the rope hauled in at the drum since t = 0 and n the "
+             "parts of line. The drum's speed follows the scenario's profile (moves of limited "
+             "acceleration, and jerk where given, between commanded speeds): the drum is driven, its "
+             "speed does not depend on the load.",
+             fmt::join(hoisting, ", "))}});
+  if (!lifting.empty())
+    model.push_back(
+        {Span{"Lift-off. ", true},
+         Span{fmt::format(
+             "In scenario(s) {} the load starts resting on the ground: the links below the rope are "
+             "held at rest until the ground's upward force on them reaches zero, and leave the ground "
+             "then. The ground neither lets the load slide nor tip; touching down again ends the case "
+             "(status touch_down), as setting a load down is not modelled.",
+             fmt::join(lifting, ", "))}});
   std::string friction = "Friction at a pivot is a constant Coulomb torque plus pin friction mu r |R|, regularised "
                          "as tanh(w / w_t), so it never sticks exactly: below the transition rate w_t it acts like a "
                          "stiff viscous damper.";
@@ -97,13 +152,31 @@ Section scope_section(const Spec& spec, const CheckReport& r, const Document& d)
   s.blocks.push_back(subheading("Model"));
   s.blocks.push_back(bullets(model));
   s.blocks.push_back(subheading("Not modelled"));
-  s.blocks.push_back(bullets(std::vector<std::string>{
-      "rope stretch (elastic ropes) and the motion of a slack rope (a case ends when a rope goes slack);",
-      "hoisting or lowering during travel (the rope length is fixed);",
-      "three-dimensional (spherical) swing and twisting of the load;",
-      "flexibility of the crane structure, boom, trolley and supports, and any feedback of the sway on the base "
-      "motion;",
-      "impacts, contact with obstacles, and true stick-slip friction."}));
+  std::vector<std::string> left_out;
+  if (elastic.empty())
+    left_out.push_back(
+        "rope stretch (elastic ropes) and the motion of a slack rope (a case ends when a rope goes slack);");
+  else
+    left_out.push_back(
+        "the ropes' bending stiffness, waves travelling along a rope, the sag of a slack rope and the "
+        "friction of sheaves" +
+        std::string(ropes.empty()
+                        ? ";"
+                        : "; stretch of the inextensible rope link(s) (a case ends when one goes slack);"));
+  if (hoisting.empty())
+    left_out.push_back("hoisting or lowering during travel (the rope length is fixed);");
+  else
+    left_out.push_back(
+        "the inertia and drive of the hoist drum (it follows its speed profile whatever the load);");
+  if (!lifting.empty())
+    left_out.push_back(
+        "sliding or tipping of a grounded load and setting it down again (touching down ends the case);");
+  left_out.push_back("three-dimensional (spherical) swing and twisting of the load;");
+  left_out.push_back(
+      "flexibility of the crane structure, boom, trolley and supports, and any feedback of the sway on "
+      "the base motion;");
+  left_out.push_back("impacts, contact with obstacles, and true stick-slip friction.");
+  s.blocks.push_back(bullets(left_out));
   s.blocks.push_back(subheading("Units in this packet"));
   s.blocks.push_back(paragraph(
       "The spec and results.json are in SI units. Tables show angles in degrees (3 decimals in the verdict table), "

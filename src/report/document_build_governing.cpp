@@ -149,7 +149,12 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
     return ra < rb;
   });
   // Figures per case: angles, loads, inputs, and the angle-angle plots two to a row.
-  const int per_case = 3 + static_cast<int>(spec.links.size()) / 2;
+  int ropes = 0;  // rope figures per case: a tension plot per elastic rope, a row for the hoist
+  for (const auto& l : spec.links) ropes += l.elastic.has_value();
+  if (std::any_of(spec.scenarios.begin(), spec.scenarios.end(),
+                  [](const ScenarioSpec& s) { return s.hoist.has_value(); }))
+    ++ropes;
+  const int per_case = 3 + static_cast<int>(spec.links.size()) / 2 + ropes;
   const std::size_t max_cases = static_cast<std::size_t>(std::max(1, kMaxGoverningPlots / per_case));
   std::vector<long> chosen;
   for (const CheckResult* c : order) {
@@ -254,6 +259,7 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
                        240);
     s.blocks.push_back(figures({fa}));
     s.blocks.push_back(figures({fl}));
+    for (Block& b : rope_blocks(spec, *rc, id)) s.blocks.push_back(std::move(b));
     s.blocks.push_back(figures(input_figures(spec, *rc, id)));
     // Angle against angle for every pair of adjacent links (configuration space, not a phase
     // portrait: no rates), two to a row.

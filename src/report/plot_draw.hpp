@@ -30,6 +30,7 @@ inline constexpr Rgb kSoftInk{0.35, 0.35, 0.38};
 inline constexpr Rgb kGrid{0.87, 0.87, 0.89};
 inline constexpr Rgb kMinorGrid{0.94, 0.94, 0.95};
 inline constexpr Rgb kRef{0.15, 0.15, 0.15};
+inline constexpr Rgb kBandFill{0.86, 0.86, 0.90};  ///< shaded x intervals (Plot::bands)
 
 enum class Marker { circle, square, triangle, diamond, triangle_down, plus, cross };
 inline constexpr int kMarkers = 7;
@@ -98,7 +99,7 @@ Ticks resolve_axis(const Axis& a, double data_lo, double data_hi, double length_
 // --- Legend (plot_legend.cpp) ------------------------------------------------------------------
 
 struct LegendEntry {
-  enum Kind { series, ref, outline, missing, mark, point, note } kind = series;
+  enum Kind { series, ref, outline, missing, mark, point, note, band } kind = series;
   int style = 0;
   bool line = true, markers = false;
   std::string text;

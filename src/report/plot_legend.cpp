@@ -91,6 +91,14 @@ void draw_legend(cairo_t* cr, const std::vector<LegendEntry>& entries, const Leg
         // a light box behind so the white casing shows
         break;
       case LegendEntry::note: break;
+      case LegendEntry::band:
+        cairo_rectangle(cr, x + 4, cy - 4.5, kSampleWidth - 8, 9);
+        set_colour(cr, kBandFill);
+        cairo_fill_preserve(cr);
+        set_colour(cr, kSoftInk);
+        cairo_set_line_width(cr, 0.5);
+        cairo_stroke(cr);
+        break;
       case LegendEntry::point:
         draw_marker(cr, e.marker, x + kSampleWidth / 2, cy, 3.2, kInk);
         break;

@@ -40,13 +40,19 @@ void data_range(const Plot& p, bool for_x, double& lo, double& hi) {
 }
 
 /// Labelled points: a marker in the series' colour and the label beside it, kept inside the frame;
-/// a label that would overlap one already placed moves down (or up) a line at a time, with a thin
-/// leader to its point.
+/// a label that would overlap one already placed, or another point's marker, moves down (or up) a
+/// line at a time, with a thin leader to its point.
 void draw_marks(cairo_t* cr, const Frame& f, const Plot& p) {
   struct Box {
     double x0, y0, x1, y1;
   };
   std::vector<Box> placed;
+  constexpr double kMarkRadius = 4.2;
+  for (const auto& m : p.marks)
+    if (finite_for(p.x, m.x) && finite_for(p.y, m.y)) {
+      const double x = f.sx.map(m.x), y = f.sy.map(m.y);
+      placed.push_back({x - kMarkRadius, y - kMarkRadius, x + kMarkRadius, y + kMarkRadius});
+    }
   const auto overlaps = [&](const Box& b) {
     for (const Box& o : placed)
       if (b.x0 < o.x1 && o.x0 < b.x1 && b.y0 < o.y1 && o.y0 < b.y1) return true;
@@ -55,7 +61,7 @@ void draw_marks(cairo_t* cr, const Frame& f, const Plot& p) {
   for (const auto& m : p.marks) {
     if (!finite_for(p.x, m.x) || !finite_for(p.y, m.y)) continue;
     const double x = f.sx.map(m.x), y = f.sy.map(m.y);
-    draw_marker(cr, Marker::circle, x, y, 4.2, series_colour(m.style));
+    draw_marker(cr, Marker::circle, x, y, kMarkRadius, series_colour(m.style));
     if (m.label.empty()) continue;
     Text t = make_text(cr, report_text::escape(m.label), kRefFont);
     const bool right = x + 6 + t.w <= f.x1 - 2;
@@ -83,6 +89,29 @@ void draw_marks(cairo_t* cr, const Frame& f, const Plot& p) {
     }
     put_halo(cr, t, box.x0, box.y0, 0, 0, kInk);
   }
+}
+
+/// The shaded x intervals, clipped to the frame, under everything else of the data area.
+void draw_bands(cairo_t* cr, const Frame& f, const Plot& p) {
+  cairo_save(cr);
+  cairo_rectangle(cr, f.x0, f.y0, f.x1 - f.x0, f.y1 - f.y0);
+  cairo_clip(cr);
+  set_colour(cr, kBandFill);
+  for (const Band& b : p.bands) {
+    if (!finite_for(p.x, b.from) || !finite_for(p.x, b.to) || b.to < f.sx.lo || b.from > f.sx.hi) continue;
+    const double a = std::clamp(f.sx.map(b.from), f.x0, f.x1), c = std::clamp(f.sx.map(b.to), f.x0, f.x1);
+    // At least half a point wide, so a short interval still shows.
+    const double w = std::max(std::fabs(c - a), 0.5);
+    cairo_rectangle(cr, std::min(a, c), f.y0, w, f.y1 - f.y0);
+  }
+  cairo_fill(cr);
+  cairo_restore(cr);
+}
+
+/// Whether some band lies (partly) within the x range [lo, hi].
+bool bands_show(const Plot& p, double lo, double hi) {
+  return std::any_of(p.bands.begin(), p.bands.end(),
+                     [&](const Band& b) { return b.to >= lo && b.from <= hi; });
 }
 
 bool has_data(const Plot& p) {
@@ -260,6 +289,8 @@ void draw_xy(cairo_t* cr, const Plot& p, double W, double H) {
   double xlo, xhi, ylo, yhi;
   data_range(p, true, xlo, xhi);
   data_range(p, false, ylo, yhi);
+  if (has_data(p) && !p.band_label.empty() && bands_show(p, xlo, xhi))
+    legend.push_back({LegendEntry::band, 0, false, false, p.band_label});
   // Headroom, so neither data nor a limit line lies on the frame: always on y, on x for scatter
   // plots and phase portraits (a time axis keeps its exact ends). Zero stays an end when it is one.
   const auto headroom = [](const Axis& a, double& lo, double& hi) {
@@ -274,6 +305,7 @@ void draw_xy(cairo_t* cr, const Plot& p, double W, double H) {
   if (markers) headroom(p.x, xlo, xhi);
   Chrome chrome;
   const Frame f = layout_frame(cr, p, W, H, legend, xlo, xhi, ylo, yhi, 0, chrome);
+  if (has_data(p)) draw_bands(cr, f, p);
   draw_grid(cr, f);
   if (has_data(p)) {
     draw_series(cr, f, p);

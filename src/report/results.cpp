@@ -1,5 +1,6 @@
 #include "swaybound/report/results.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <string_view>
 
@@ -25,6 +26,53 @@ Json vector_json(const std::vector<double>& v) {
 }
 
 const char* stepper_name(Stepper s) { return s == Stepper::dopri5 ? "dopri5" : "rkf78"; }
+
+/// Whether some link is an elastic rope.
+bool has_elastic_rope(const Spec& spec) {
+  return std::any_of(spec.links.begin(), spec.links.end(),
+                     [](const LinkSpec& l) { return l.elastic.has_value(); });
+}
+
+/// Whether some scenario starts with the load on the ground.
+bool has_lift_off(const Spec& spec) {
+  return std::any_of(spec.scenarios.begin(), spec.scenarios.end(),
+                     [](const ScenarioSpec& s) { return s.lift_off.has_value(); });
+}
+
+/// The ropes, switches and lift-off of a recorded governing case (results.json).
+Json governing_case_json(const Spec& spec, const RecordedCase& rc) {
+  Json ropes = Json::array();
+  for (const RecordedRope& rope : rc.ropes) {
+    const LinkSpec& link = spec.links[static_cast<std::size_t>(rope.link)];
+    Json slack = Json::array();
+    for (const Interval& s : rope.slack) slack.push_back({number(s.from), number(s.to)});
+    Json snatches = Json::array();
+    for (const SnatchPeak& p : rope.snatches)
+      snatches.push_back({{"tension_n", number(p.peak.value)},
+                          {"time_s", number(p.peak.time)},
+                          {"taut_from_s", number(p.taut.from)},
+                          {"taut_to_s", number(p.taut.to)},
+                          {"located", p.located}});
+    ropes.push_back({{"link", link.name},
+                     {"parts_of_line", link.parts_of_line},
+                     {"static_tension_n", number(rope.static_force)},
+                     {"peak_rope_tension_n", number(rope.peak_force.value)},
+                     {"peak_rope_tension_time_s", number(rope.peak_force.time)},
+                     {"slack_time_s", number(rope.slack_time)},
+                     {"slack_count", rope.slack_count},
+                     {"snatch_load_n", number(rope.snatch.value)},
+                     {"snatch_load_time_s", number(rope.snatch.time)},
+                     {"slack_intervals_s", slack},
+                     {"slack_intervals_listed", static_cast<long>(rope.slack.size()) == rope.slack_intervals},
+                     {"snatch_peaks", snatches}});
+  }
+  return {{"case", rc.id},
+          {"status", rc.status},
+          {"end_s", number(rc.t_end)},
+          {"switches", rc.switches},
+          {"lift_off_time_s", number(rc.lift_off_time)},
+          {"ropes", ropes}};
+}
 
 std::string csv_quote(const std::string& s) {
   std::string out = "\"";
@@ -93,6 +141,12 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
     checks.push_back(cj);
   }
   j["checks"] = checks;
+  // Chains with elastic ropes or a lift-off: per recorded governing case its ropes' figures.
+  if (has_elastic_rope(spec) || has_lift_off(spec)) {
+    Json governing = Json::array();
+    for (const RecordedCase& rc : r.recorded) governing.push_back(governing_case_json(spec, rc));
+    j["governing_cases"] = governing;
+  }
 
   Json modes = Json::array();
   for (const auto& m : r.modes.modes)
@@ -196,6 +250,11 @@ std::string cases_csv_header(const Spec& spec) {
     for (std::size_t i = 0; i < spec.limits.size(); ++i)
       if (spec.limits[i].kind == info.kind) column(fmt::format("{}(limits[{}]) [{}]", info.csv, i, csv_unit(info)));
   }
+  // Chains with elastic ropes or a lift-off: the contact switches of each case.
+  for (const auto& l : spec.links)
+    if (l.elastic) column(fmt::format("slack_count({}) [-]", l.name));
+  if (has_elastic_rope(spec) || has_lift_off(spec)) column("switches [-]");
+  if (has_lift_off(spec)) column("lift_off_time [s]");
   h += ",\"settling_time [s]\",\"ftle [1/s]\",\"energy_audit_relative [-]\",\"steps\",\"reason\"\n";
   return h;
 }
@@ -236,6 +295,12 @@ std::string cases_csv_row(const Spec& spec, const CaseMetrics& m) {
       slot += limit_kind(l.kind).options.after;
     }
   }
+  // Counts and instants of what happened before the run ended, written for failed runs too.
+  for (std::size_t k = 0; k < n; ++k)
+    if (spec.links[k].elastic)
+      add_field(row, std::to_string(k < m.slack_count.size() ? m.slack_count[k] : 0));
+  if (has_elastic_rope(spec) || has_lift_off(spec)) add_field(row, std::to_string(m.switches));
+  if (has_lift_off(spec)) add_field(row, csv_number(m.lift_off_time));
   measured(m.settling_time);
   add_field(row, csv_number(m.ftle));
   add_field(row, csv_number(m.audit_relative));

@@ -6,6 +6,7 @@
 //   audit_governing   each governing case again at a 100x tighter tolerance
 //   record_governing  each governing case again with its time series recorded (for plots)
 // run_check composes them over every case of the spec.
+#include <cmath>
 #include <functional>
 #include <string>
 #include <vector>
@@ -25,8 +26,52 @@ struct FailedCase {
 
 /// Most points kept per recorded time series (per plot line): a longer run is decimated to every
 /// k-th output sample, k = ceil(samples / kMaxRecordedPoints), so a recording costs at most
-/// (1 + 3 x links) x kMaxRecordedPoints doubles whatever duration x output_rate is.
+/// (1 + 3 x links + 4 x elastic ropes + 3) x kMaxRecordedPoints doubles whatever duration x
+/// output_rate is, plus the slack and taut intervals (at most kMaxRecordedIntervals per rope).
 inline constexpr long kMaxRecordedPoints = 4000;
+
+/// Most slack intervals (and as many taut intervals after them) kept per rope of a recording.
+inline constexpr long kMaxRecordedIntervals = 1000;
+
+/// Snatch peaks located between the samples per rope of a recording (by the run's ExtremeFinder):
+/// those of the first kLocatedSnatches re-tensionings; a later one is the largest recorded sample.
+inline constexpr int kLocatedSnatches = 24;
+
+/// A time interval [s].
+struct Interval {
+  double from = 0, to = 0;
+};
+
+/// The tension peak between a re-tensioning of an elastic rope (taut again after being slack) and
+/// the next slack or the end of the run.
+struct SnatchPeak {
+  Interval taut;         ///< the taut interval [s]
+  Extreme peak;          ///< the largest tension of the fall in it [N] and when [s]
+  bool located = false;  ///< located between the samples; else the largest recorded sample
+};
+
+/// One elastic rope of a recorded case (model.elastic_links order).
+struct RecordedRope {
+  int link = -1;                    ///< its link
+  std::vector<double> force;        ///< tension of the fall by the rope law, per sample [N]
+  std::vector<double> length;       ///< the rope link's length, per sample [m]
+  std::vector<double> unstretched;  ///< its unstretched length ell, per sample [m]
+  std::vector<double> stretch;      ///< length - ell, per sample [m] (negative while slack)
+  /// The slack intervals, from the located switches (not the samples); the last ends at the end
+  /// of the run when the rope stays slack. The first kMaxRecordedIntervals.
+  std::vector<Interval> slack;
+  long slack_intervals = 0;  ///< how many there were (> slack.size() when capped)
+  std::vector<SnatchPeak>
+      snatches;  ///< one per taut interval after a slack one (first kMaxRecordedIntervals)
+  /// The tension of the fall hanging at rest: g (mass below the rope + the rope's mass x its
+  /// centre of mass / its length; the rope's own weight acts at its centre of mass) [N].
+  double static_force = 0;
+  // The re-run's metrics (as CaseMetrics names them).
+  Extreme peak_force;     ///< peak_rope_force [N]
+  double slack_time = 0;  ///< [s]
+  long slack_count = 0;
+  Extreme snatch;  ///< largest tension after it first went slack [N] (0: never slack)
+};
 
 /// A governing case re-run at the spec's tolerance with its time series recorded (for plots).
 struct RecordedCase {
@@ -45,6 +90,16 @@ struct RecordedCase {
   /// Extremes of the run located between samples and steps (as the checks find them): per link
   /// max |theta|, max pivot load and the least rope tension (NaN for rigid links).
   std::vector<Extreme> peak_angle, peak_load, min_tension;
+  // Ropes of variable length: empty / NaN / -1 for a chain without them.
+  std::vector<RecordedRope> ropes;      ///< per elastic rope
+  int hoist_link = -1;                  ///< the rope link the scenario's drum winds, -1 for none
+  std::vector<double> hoist_length;     ///< that link's length, per sample [m] (when it hoists)
+  std::vector<double> drum_travel;      ///< rope hauled in at the drum since t = 0, per sample [m]
+  std::vector<double> drum_speed;       ///< drum rope speed, + hauls in, per sample [m/s]
+  double lift_off_time = std::nan("");  ///< when the load left the ground [s] (lift-off scenarios)
+  long switches = 0;                    ///< located switches of contact laws (ropes, ground)
+  double t_end = 0;                     ///< where the run ended [s]
+  std::string status = "ok";            ///< the run's status (status_name)
 };
 
 struct CheckOptions {

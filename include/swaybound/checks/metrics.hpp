@@ -68,15 +68,24 @@ struct CaseOptions {
 /// links after its time.
 class CaseExtremes {
  public:
-  CaseExtremes(const Model& model, const Spec& spec);
+  /// With `extra` > 0, `extra_quantities` adds that many quantities of the caller's, located by the
+  /// same finder (one finder per run: each finder's probes re-evaluate the workspace, so a second
+  /// finder observing the same view would read a workspace that no longer describes it). They are
+  /// quantities `first_extra()` .. `first_extra() + extra - 1` of `finder()`.
+  CaseExtremes(const Model& model, const Spec& spec, int extra = 0,
+               ExtremeFinder::Quantities extra_quantities = {});
   /// The on_step observer.
   void observe(const StepView& v);
   /// Writes the extremes into m (peak_*, min_tension, support_force_x, residual).
   void write(CaseMetrics& m) const;
   const ExtremeFinder& finder() const { return finder_; }
+  /// Index of the first of the caller's quantities in `finder()`.
+  int first_extra() const { return first_extra_; }
 
  private:
   const Model& model_;
+  int first_extra_ = 0;                         ///< the caller's quantities start here
+  ExtremeFinder::Quantities extra_quantities_;  ///< the caller's, or empty
   std::vector<int> residual_links_;  ///< per residual_sway limit: its link, or -1 for every link
   // Per elastic rope (model.elastic_links order); declared before finder_, whose quantities read them.
   std::vector<double> slack_time_;   ///< total time slack so far [s]

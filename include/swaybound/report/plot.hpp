@@ -79,6 +79,12 @@ struct PointMark {
   int style = 0;      ///< colour index of the series it belongs to
 };
 
+/// A shaded interval of the x axis across the whole plot area (e.g. while a rope is slack), drawn
+/// under the grid's data: the series, reference lines and marks stay on top.
+struct Band {
+  double from = 0, to = 0;
+};
+
 struct HeatMap {
   std::vector<double> x, y;   ///< cell centres, ascending
   std::vector<double> z;      ///< row-major, y outer: z[j * x.size() + i]; NaN: no value
@@ -106,6 +112,8 @@ struct Plot {
   std::vector<Series> series;
   std::vector<RefLine> refs;
   std::vector<PointMark> marks;  ///< xy: labelled points (drawn above the series)
+  std::vector<Band> bands;       ///< xy: shaded x intervals (they do not widen the axes)
+  std::string band_label;        ///< xy: legend text of the bands (one entry, shown when any band shows)
   HeatMap heat;
   ChainSketch chain;
   bool mark_ends = false;   ///< xy: mark the first point (circle) and last point (square) of series 0
