@@ -53,10 +53,16 @@ void RopeRecorder::step(const StepView& v) {
     Rope& s = state_[r];
     const bool slack = v.ws->rope_slack[r] != 0;
     const bool was = s.seen && s.slack;
-    if (slack && !was) {
+    // A rope that starts slack (a lift-off) is taken up, not going slack: that interval is kept
+    // apart, as the metrics count slack only once the rope was taut.
+    if (slack && !s.seen) {
+      s.take_up = {v.t, std::nan("")};
+    } else if (slack && !was) {
       if (s.taut_index >= 0) close_interval(s.taut_intervals, s.taut_total, v.t);
       s.taut_index = -1;
       open_interval(s.slack_intervals, s.slack_total, v.t);
+    } else if (!slack && was && !s.ever_taut) {
+      s.take_up.to = v.t;
     } else if (!slack && was) {
       close_interval(s.slack_intervals, s.slack_total, v.t);
       s.taut_index = static_cast<int>(std::min<long>(s.taut_total, std::numeric_limits<int>::max()));
@@ -64,6 +70,7 @@ void RopeRecorder::step(const StepView& v) {
     }
     s.seen = true;
     s.slack = slack;
+    s.ever_taut |= !slack;
   }
 }
 
@@ -97,10 +104,12 @@ void RopeRecorder::finish(const CaseExtremes& extremes, const CaseMetrics& m, do
                           RecordedCase& rc) {
   for (std::size_t r = 0; r < state_.size(); ++r) {
     Rope& s = state_[r];
-    if (s.seen && s.slack) close_interval(s.slack_intervals, s.slack_total, t_end);
+    if (s.seen && s.slack && s.ever_taut) close_interval(s.slack_intervals, s.slack_total, t_end);
+    if (s.seen && s.slack && !s.ever_taut) s.take_up.to = t_end;
     if (s.taut_index >= 0) close_interval(s.taut_intervals, s.taut_total, t_end);
     RecordedRope& rope = rc.ropes[r];
     rope.slack = s.slack_intervals;
+    rope.take_up = s.take_up;
     rope.slack_intervals = s.slack_total;
     for (std::size_t j = 0; j < s.taut_intervals.size(); ++j) {
       SnatchPeak p;

@@ -36,6 +36,8 @@ class RopeRecorder {
   struct Rope {
     bool seen = false;    ///< a view was observed
     bool slack = false;   ///< slack at the last view
+    bool ever_taut = false;  ///< taut at some view: before that, slack is slack being taken up
+    Interval take_up{std::nan(""), std::nan("")};
     int taut_index = -1;  ///< index of the current taut interval after a slack one, -1 for none
     long slack_total = 0, taut_total = 0;
     std::vector<Interval> slack_intervals, taut_intervals;  ///< capped at kMaxRecordedIntervals

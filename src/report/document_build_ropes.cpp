@@ -46,6 +46,7 @@ Figure tension_figure(const Spec& spec, const RecordedCase& rc, const RecordedRo
   plot::Plot p = plot::line_chart(fmt::format("Rope {}: tension, slack and snatches", name), {"time", "s"}, y,
                                   series, refs);
   for (const Interval& s : rope.slack) p.bands.push_back({s.from, s.to});
+  if (!std::isnan(rope.take_up.from)) p.bands.push_back({rope.take_up.from, rope.take_up.to});
   p.band_label = "slack (no tension)";
   // Every snatch peak is marked; the largest few carry their value and time.
   std::vector<std::size_t> order;
@@ -73,9 +74,14 @@ Figure tension_figure(const Spec& spec, const RecordedCase& rc, const RecordedRo
                                      fmt::format("peak {:.2f} kN at {}", rope.peak_force.value / 1000,
                                                  time_text(rope.peak_force.time)),
                                      style});
+  const std::string take_up =
+      std::isnan(rope.take_up.from)
+          ? ""
+          : fmt::format(" The rope started slack and was taken up by t = {:.4g} s (shaded too; not counted as slack).",
+                        rope.take_up.to);
   std::string slack_text =
       rope.slack_intervals == 0
-          ? "The rope stayed taut."
+          ? (take_up.empty() ? std::string("The rope stayed taut.") : "The rope stayed taut once taken up." + take_up)
           : fmt::format(
                 "Shaded: the {} slack interval(s){}, {:.3g} s in all, bounded by the located switches, not "
                 "by the samples.",
@@ -83,7 +89,8 @@ Figure tension_figure(const Spec& spec, const RecordedCase& rc, const RecordedRo
                 static_cast<long>(rope.slack.size()) < rope.slack_intervals
                     ? fmt::format(" (the first {} shown)", rope.slack.size())
                     : "",
-                rope.slack_time);
+                rope.slack_time) +
+            take_up;
   std::string snatch_text =
       rope.snatches.empty()
           ? ""

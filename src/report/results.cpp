@@ -63,6 +63,9 @@ Json governing_case_json(const Spec& spec, const RecordedCase& rc) {
                      {"snatch_load_n", number(rope.snatch.value)},
                      {"snatch_load_time_s", number(rope.snatch.time)},
                      {"slack_intervals_s", slack},
+                     {"take_up_s", std::isnan(rope.take_up.from) ? nlohmann::json(nullptr)
+                                                                  : nlohmann::json::array({number(rope.take_up.from),
+                                                                                           number(rope.take_up.to)})},
                      {"slack_intervals_listed", static_cast<long>(rope.slack.size()) == rope.slack_intervals},
                      {"snatch_peaks", snatches}});
   }

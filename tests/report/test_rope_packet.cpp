@@ -86,6 +86,11 @@ TEST_CASE("recorded rope: slack intervals at the run's located switches, lift-of
   }
   if (std::isnan(expected.back().to)) expected.back().to = out.t_reached;
   REQUIRE(expected.size() >= 3);  // slack at the start and at least twice after lift-off
+  // The first interval is the initial slack being taken up: kept apart from the slack intervals,
+  // which count once the rope was taut (as the metrics do).
+  CHECK(rope.take_up.from == expected[0].from);
+  CHECK(rope.take_up.to == expected[0].to);
+  expected.erase(expected.begin());
   REQUIRE(rope.slack.size() == expected.size());
   CHECK(rope.slack_intervals == static_cast<long>(expected.size()));
   double total = 0;
@@ -94,16 +99,16 @@ TEST_CASE("recorded rope: slack intervals at the run's located switches, lift-of
     CHECK(rope.slack[k].to == expected[k].to);
     total += rope.slack[k].to - rope.slack[k].from;
   }
-  // The drum hauls in 5 cm of slack at 0.6 m/s before the rope is taut again.
-  CHECK(rope.slack[0].to == Approx(0.05 / 0.6).epsilon(1e-6));
+  // The drum hauls in 5 cm of slack at 0.6 m/s before the rope is taut.
+  CHECK(rope.take_up.to == Approx(0.05 / 0.6).epsilon(1e-6));
   // Located, not sampled: the recording's samples are 10 ms apart, the switches fall between them.
-  CHECK(std::fmod(rope.slack[1].from * 100, 1.0) > 1e-6);
+  CHECK(std::fmod(rope.slack[0].from * 100, 1.0) > 1e-6);
   // The metrics of the re-run agree with the intervals.
   CHECK(rope.slack_count == rope.slack_intervals);
   CHECK(rope.slack_time == Approx(total).epsilon(1e-12));
   CHECK(rc.switches == out.switches);
   CHECK(rc.lift_off_time == lift_off);
-  CHECK(rc.lift_off_time > rope.slack[0].to);  // the rope takes the weight after it is taut
+  CHECK(rc.lift_off_time > rope.take_up.to);  // the rope takes the weight after it is taut
 }
 
 TEST_CASE("recorded rope: one snatch peak per re-tensioning, located between the samples", "[rope-packet]") {
@@ -206,13 +211,15 @@ TEST_CASE("rope page: tension with the slack intervals shaded, snatch peaks mark
   const auto tension = figures_titled(d, "Rope l0: tension");
   REQUIRE(tension.size() == 1);
   const plot::Plot& p = tension[0]->plot;
-  // One band per slack interval, exactly the located interval.
-  REQUIRE(p.bands.size() == rope.slack.size());
-  REQUIRE(!p.bands.empty());
-  for (std::size_t k = 0; k < p.bands.size(); ++k) {
+  // One band per slack interval, exactly the located interval, then the initial slack taken up.
+  REQUIRE(p.bands.size() == rope.slack.size() + 1);
+  REQUIRE(!rope.slack.empty());
+  for (std::size_t k = 0; k < rope.slack.size(); ++k) {
     CHECK(p.bands[k].from == rope.slack[k].from);
     CHECK(p.bands[k].to == rope.slack[k].to);
   }
+  CHECK(p.bands.back().from == rope.take_up.from);
+  CHECK(p.bands.back().to == rope.take_up.to);
   CHECK(!p.band_label.empty());
   // A mark on every snatch peak at its located time and value; the largest carries both.
   for (const SnatchPeak& s : rope.snatches) {

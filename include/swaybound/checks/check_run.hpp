@@ -61,6 +61,9 @@ struct RecordedRope {
   /// of the run when the rope stays slack. The first kMaxRecordedIntervals.
   std::vector<Interval> slack;
   long slack_intervals = 0;  ///< how many there were (> slack.size() when capped)
+  /// A rope that starts slack (a lift-off) being taken up, from t = 0 until it is first taut; not a
+  /// slack interval (slack counts once the rope was taut). NaN when the rope started taut.
+  Interval take_up{std::nan(""), std::nan("")};
   std::vector<SnatchPeak>
       snatches;  ///< one per taut interval after a slack one (first kMaxRecordedIntervals)
   /// The tension of the fall hanging at rest: g (mass below the rope + the rope's mass x its
