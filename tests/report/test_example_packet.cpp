@@ -1,5 +1,5 @@
-// reports/gantry_hook_block/ is the committed example packet of the demo spec. This test makes the
-// packet again and compares it with the committed one through `swaybound diff` and the numbers of
+// reports/gantry_hook_block/ and reports/hoist_lift_off/ are the committed example packets of the
+// demo specs. This test makes each packet again and compares it with the committed one through `swaybound diff` and the numbers of
 // results.json, so any change in the figures is noticed (and the example must then be regenerated
 // and the change explained in the commit).
 #include <catch2/catch.hpp>
@@ -20,14 +20,16 @@ using namespace swaybound;
 namespace fs = std::filesystem;
 
 TEST_CASE("the committed example packet matches a fresh check of the demo spec", "[packet][example]") {
+  const std::string name = GENERATE(as<std::string>{}, "gantry_hook_block", "hoist_lift_off");
+  INFO("example " << name);
   const fs::path source(SWAYBOUND_SOURCE_DIR);
-  const fs::path committed = source / "reports/gantry_hook_block";
+  const fs::path committed = source / "reports" / name;
   REQUIRE(fs::exists(committed / "results.json"));
   CHECK(verify_manifest(committed.string()).empty());
   // Per process: two test runs at once (two build trees) must not share the folder.
-  const fs::path fresh = fs::temp_directory_path() / ("swaybound-example-packet-" + std::to_string(::getpid()));
+  const fs::path fresh = fs::temp_directory_path() / ("swaybound-example-packet-" + std::to_string(::getpid()) + name);
   fs::remove_all(fresh);
-  const std::string cmd = std::string(SWAYBOUND_CLI) + " check " + (source / "specs/gantry_hook_block.yaml").string() +
+  const std::string cmd = std::string(SWAYBOUND_CLI) + " check " + (source / "specs" / (name + ".yaml")).string() +
                           " --out " + fresh.string() + " --quiet >/dev/null 2>&1";
   const int status = std::system(cmd.c_str());
   REQUIRE(WIFEXITED(status));
