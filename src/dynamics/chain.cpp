@@ -242,13 +242,7 @@ void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const Phas
       !ws.lazy_reactions || model.any_pin_friction || ws.base_vx != 0.0 || ws.base_vy != 0.0;
   const auto solve = [&](const double* reaction) {
     sc.rhs = sc.bias;
-    if (model.any_pivot_torque) {
-      pivot_torques(model, ws, reaction);
-      for (int i = 0; i < n; ++i) {
-        sc.rhs(i) += ws.tau[i];
-        if (i > 0) sc.rhs(i - 1) -= ws.tau[i];
-      }
-    }
+    add_pivot_torques(model, ws, reaction, sc.rhs.data());
     if constexpr (N == Eigen::Dynamic)
       sc.alpha = sc.llt.solve(sc.rhs);
     else

@@ -196,13 +196,7 @@ void evaluate_general(const Model& model, Workspace& ws, const Phase& phase, con
                               ws.base_vy != 0.0 || ws.grounded || f < e;
   const auto solve = [&](const double* reaction) {
     ws.rhs_x = ws.bias_x;
-    if (model.any_pivot_torque) {
-      pivot_torques(model, ws, reaction);
-      for (int i = 0; i < n; ++i) {
-        ws.rhs_x(i) += ws.tau[i];
-        if (i > 0) ws.rhs_x(i - 1) -= ws.tau[i];
-      }
-    }
+    add_pivot_torques(model, ws, reaction, ws.rhs_x.data());
     if (ws.grounded) {
       grounded_accelerations(model, ws);
       // The ground's force acts on the held links below the rope (their resultant, at link 1).

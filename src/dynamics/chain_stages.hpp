@@ -27,6 +27,17 @@ void general_reactions(const Model& model, Workspace& ws);
 /// external forces ws.force_* (Newton's second law for the sub-chain below each pivot).
 void sub_chain_reactions(const Model& model, Workspace& ws);
 
+/// Stage 3b into generalised forces: the pivot torques at the reactions (nullptr: without pin
+/// friction) added to q: tau_p on link p, its reaction -tau_p on link p-1.
+inline void add_pivot_torques(const Model& model, Workspace& ws, const double* reaction, double* q) {
+  if (!model.any_pivot_torque) return;
+  pivot_torques(model, ws, reaction);
+  for (int i = 0; i < model.n; ++i) {
+    q[i] += ws.tau[i];
+    if (i > 0) q[i - 1] -= ws.tau[i];
+  }
+}
+
 inline constexpr int kMaxFrictionIterations = 50;
 
 /// Load-dependent pin friction: the fixed point R = reactions(accelerations(tau_pin(R))), started

@@ -21,6 +21,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "../support/componentwise.hpp"
 #include "../support/process.hpp"
 #include "../support/rope.hpp"
 #include "swaybound/dynamics/chain.hpp"
@@ -28,6 +29,7 @@
 
 using namespace swaybound;
 using swaybound::testing::RopeChain;
+using swaybound::testing::check_close;
 
 namespace {
 
@@ -82,21 +84,6 @@ std::vector<Reference> sympy_reference(const RopeChain& d, const std::vector<dou
     out[s].energy_rate = res["energy_rate"][s].get<double>();
   }
   return out;
-}
-
-double max_abs(const std::vector<double>& v) {
-  double s = 0;
-  for (double x : v) s = std::max(s, std::fabs(x));
-  return s;
-}
-
-void check_close(const std::vector<double>& got, const std::vector<double>& want, double rel, const char* what) {
-  REQUIRE(got.size() == want.size());
-  const double scale = max_abs(want);
-  for (std::size_t i = 0; i < got.size(); ++i) {
-    INFO(what << "[" << i << "]: engine " << got[i] << ", reference " << want[i]);
-    CHECK(std::fabs(got[i] - want[i]) <= rel * std::max(std::fabs(want[i]), scale));
-  }
 }
 
 void compare_with_reference(const RopeChain& d, std::uint64_t seed) {

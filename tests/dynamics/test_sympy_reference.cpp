@@ -24,10 +24,12 @@
 
 #include "swaybound/dynamics/chain.hpp"
 #include "../support/process.hpp"
+#include "../support/componentwise.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/spec.hpp"
 
 using namespace swaybound;
+using swaybound::testing::check_close;
 
 namespace {
 
@@ -80,25 +82,6 @@ Result engine(const Model& model, Workspace& ws, const std::vector<double>& stat
     r.reaction.push_back(ws.reaction_y[static_cast<std::size_t>(i)]);
   }
   return r;
-}
-
-double max_abs(const std::vector<double>& v) {
-  double s = 0;
-  for (double x : v) s = std::max(s, std::fabs(x));
-  return s;
-}
-
-/// Component-wise comparison: |a - b| <= rel * max(|b|, scale), scale = the largest magnitude of
-/// the reference quantity at this state. The floor keeps a component that is small only because of
-/// cancellation (e.g. a reaction component near zero while the others are ~100 N) from demanding
-/// more than relative accuracy of the quantity as a whole.
-void check_close(const std::vector<double>& got, const std::vector<double>& want, double rel, const char* what) {
-  REQUIRE(got.size() == want.size());
-  const double scale = max_abs(want);
-  for (std::size_t i = 0; i < got.size(); ++i) {
-    INFO(what << "[" << i << "]: engine " << got[i] << ", reference " << want[i] << ", scale " << scale);
-    CHECK(std::fabs(got[i] - want[i]) <= rel * std::max(std::fabs(want[i]), scale));
-  }
 }
 
 std::string read_file(const std::filesystem::path& p) {
