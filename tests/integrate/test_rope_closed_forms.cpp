@@ -180,10 +180,10 @@ TEST_CASE("slow hoisting and lowering: sway amplitude scales as L^(-3/4)", "[rop
     CHECK(audit < 1e-8);
     // A L^(3/4) is the adiabatic invariant; compare the first and the last turning points.
     const auto invariant = [](const std::pair<double, double>& t) { return t.second * std::pow(t.first, 0.75); };
-    CHECK_THAT(invariant(turns.back()), IsCloseTo(invariant(turns.front()), 0, 3e-3));
+    CHECK_THAT(invariant(turns.back()), IsCloseTo(invariant(turns.front()), 0, 5e-4));
     // ... while the amplitude itself changed by (to/from)^(-3/4): 68 % up hoisting, 41 % down lowering.
     CHECK_THAT(turns.back().second / turns.front().second,
-               IsCloseTo(std::pow(turns.back().first / turns.front().first, -0.75), 0, 3e-3));
+               IsCloseTo(std::pow(turns.back().first / turns.front().first, -0.75), 0, 5e-4));
   }
 }
 
@@ -234,9 +234,10 @@ TEST_CASE("modes of a load on an elastic rope: the bounce sqrt(k/m) and the sway
   const Mode& bounce = modes.modes[1];
   CHECK_FALSE(sway.axial);
   CHECK(bounce.axial);
-  CHECK_THAT(bounce.frequency_hz, IsCloseTo(std::sqrt(k / m) / (2 * M_PI), 0, 1e-7));
-  CHECK_THAT(bounce.damping_ratio, IsCloseTo(c / (2 * std::sqrt(k * m)), 0, 1e-6));
-  CHECK_THAT(sway.frequency_hz, IsCloseTo(std::sqrt(kG / (length + m * kG / k)) / (2 * M_PI), 0, 1e-7));
+  // Central differences of the right-hand side: agreement to about 1e-11 measured, 1e-9 required.
+  CHECK_THAT(bounce.frequency_hz, IsCloseTo(std::sqrt(k / m) / (2 * M_PI), 0, 1e-9));
+  CHECK_THAT(bounce.damping_ratio, IsCloseTo(c / (2 * std::sqrt(k * m)), 0, 1e-9));
+  CHECK_THAT(sway.frequency_hz, IsCloseTo(std::sqrt(kG / (length + m * kG / k)) / (2 * M_PI), 0, 1e-9));
   REQUIRE(bounce.stretch_shape.size() == 1);
   CHECK(bounce.stretch_shape[0] == 1.0);
 }
