@@ -262,7 +262,9 @@ TEST_CASE("rope page: tension with the slack intervals shaded, snatch peaks mark
   CHECK(drum[0]->plot.series[1].y == rc.drum_speed);
 }
 
-TEST_CASE("a chain without elastic ropes has no rope page", "[rope-packet][report]") {
+namespace {
+/// A chain whose only rope is inextensible, with a peak_angle limit (test data).
+Spec inextensible_rope_spec() {
   testing::RopeChain c;
   c.links = {{.m = 1, .L = 2, .c = 1, .I = 0.3, .rope = true}, {.m = 100, .L = 1, .c = 0.5, .I = 8}};
   c.duration = 1;
@@ -273,6 +275,12 @@ TEST_CASE("a chain without elastic ropes has no rope page", "[rope-packet][repor
   l.key = "peak_angle";
   l.value = 0.5;
   spec.limits.push_back(l);
+  return spec;
+}
+}  // namespace
+
+TEST_CASE("a chain without elastic ropes has no rope page", "[rope-packet][report]") {
+  const Spec spec = inextensible_rope_spec();
   CheckOptions o;
   o.audit = false;
   const CheckReport r = run_check(spec, o);
@@ -455,16 +463,7 @@ TEST_CASE("rope packet: results.json and cases.csv carry the rope figures of the
 
 TEST_CASE("a chain with an inextensible rope only: no rope count columns, no governing_cases in results.json",
           "[rope-packet][packet]") {
-  testing::RopeChain c;
-  c.links = {{.m = 1, .L = 2, .c = 1, .I = 0.3, .rope = true}, {.m = 100, .L = 1, .c = 0.5, .I = 8}};
-  c.duration = 1;
-  Spec spec = c.spec();
-  spec.cases.initial[0].theta = {{0.05, 0.05, 1}, {0, 0, 1}};
-  LimitSpec l;
-  l.kind = LimitKind::peak_angle;
-  l.key = "peak_angle";
-  l.value = 0.5;
-  spec.limits.push_back(l);
+  const Spec spec = inextensible_rope_spec();
   const WrittenPacket w = write_packet(spec, "rigid");
   CHECK(verify_packet(w.dir.string()).intact());
   CHECK_FALSE(w.results.contains("governing_cases"));
