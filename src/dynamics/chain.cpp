@@ -67,11 +67,11 @@ void kinematics(const Model& model, Workspace& ws, const Phase& p, const double*
     ws.omega[i] = x[model.dof + i];
   }
   const double dt = t - p.t0;
-  ws.base_ax = p.ax;
+  ws.base_ax = p.ax + p.jx * dt;
   ws.base_ay = p.ay;
-  ws.base_vx = p.vx0 + p.ax * dt;
+  ws.base_vx = p.vx0 + (p.ax + 0.5 * p.jx * dt) * dt;
   ws.base_vy = p.vy0 + p.ay * dt;
-  ws.base_x = p.x0 + p.vx0 * dt + 0.5 * p.ax * dt * dt;
+  ws.base_x = p.x0 + (p.vx0 + (0.5 * p.ax + p.jx * dt / 6.0) * dt) * dt;
   ws.base_y = p.y0 + p.vy0 * dt + 0.5 * p.ay * dt * dt;
   if (model.variable_length()) rope_kinematics(model, ws, p, x, t);
 }

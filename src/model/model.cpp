@@ -6,6 +6,7 @@
 #include <atomic>
 #include <cmath>
 #include <limits>
+#include <optional>
 
 namespace swaybound {
 
@@ -27,11 +28,30 @@ SpeedProfile drum_profile(const ScenarioSpec& s) {
   return SpeedProfile::build(s.hoist->initial_speed, moves);
 }
 
+/// The travel drive's speed profile of a scenario (empty without a travel drive).
+std::optional<SpeedProfile> travel_profile(const ScenarioSpec& s) {
+  if (!s.travel) return std::nullopt;
+  std::vector<SpeedMove> moves;
+  for (const DrumMoveSpec& m : s.travel->moves) moves.push_back(SpeedMove{m.at, m.to, m.accel, m.jerk});
+  return SpeedProfile::build(s.travel->initial_speed, moves);
+}
+
+/// The jerk of a profile's piece that holds t (every piece boundary is a phase cut).
+double jerk_at(const SpeedProfile& profile, double t) {
+  const auto& pieces = profile.pieces();
+  const auto piece = std::upper_bound(pieces.begin(), pieces.end(), t,
+                                      [](double time, const ProfilePiece& q) { return time < q.t0; });
+  return std::prev(piece)->j;
+}
+
 ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>& wind) {
-  // Breakpoints: ends of base-acceleration segments, starts/ends of gusts, and where the drum's
-  // acceleration or jerk jumps.
+  // Breakpoints: ends of base-acceleration segments, starts/ends of gusts, and where the drum's or
+  // the travel drive's acceleration or jerk jumps.
   const SpeedProfile drum = drum_profile(s);
+  const std::optional<SpeedProfile> travel = travel_profile(s);
   std::vector<double> cuts = drum.breakpoints();
+  if (travel)
+    for (double t : travel->breakpoints()) cuts.push_back(t);
   double t = 0;
   for (const auto& seg : s.accel) cuts.push_back(t += seg.duration);
   for (const auto& w : wind)
@@ -76,11 +96,14 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
       p.drum_s0 = drum.position(p.t0);
       p.drum_v0 = drum.speed(p.t0);
       p.drum_a0 = drum.accel(p.t0);
-      // The phase lies within one piece of constant jerk (every piece boundary is a cut).
-      const auto& pieces = drum.pieces();
-      const auto piece = std::upper_bound(pieces.begin(), pieces.end(), p.t0,
-                                          [](double t, const ProfilePiece& q) { return t < q.t0; });
-      p.drum_jerk = std::prev(piece)->j;
+      p.drum_jerk = jerk_at(drum, p.t0);
+    }
+    if (travel) {
+      // The drive's profile gives x exactly (a cubic within the phase); y keeps its segments.
+      p.x0 = travel->position(p.t0);
+      p.vx0 = travel->speed(p.t0);
+      p.ax = travel->accel(p.t0);
+      p.jx = jerk_at(*travel, p.t0);
     }
     if (std::isfinite(p.t1)) {
       const double dt = p.t1 - p.t0;

@@ -215,32 +215,42 @@ std::string normalised_yaml(const Spec& spec) {
   for (std::size_t i = 0; i < spec.scenarios.size(); ++i) {
     const ScenarioSpec& s = spec.scenarios[i];
     out << YAML::BeginMap << YAML::Key << "name" << YAML::Value << s.name;
-    out << YAML::Key << "initial_velocity" << YAML::Value << YAML::Flow << YAML::BeginMap << YAML::Key << "x"
-        << YAML::Value << fmt::format("{:.12g}", s.initial_vx) << YAML::Key << "y" << YAML::Value
-        << fmt::format("{:.12g}", s.initial_vy) << YAML::EndMap << YAML::Comment("m/s");
-    out << YAML::Key << "accel" << YAML::Value << YAML::BeginSeq;
-    for (const auto& seg : s.accel)
-      out << YAML::Flow << YAML::BeginMap << YAML::Key << "for" << YAML::Value << fmt::format("{:.12g}", seg.duration)
-          << YAML::Key << "x" << YAML::Value << fmt::format("{:.12g}", seg.ax) << YAML::Key << "y" << YAML::Value
-          << fmt::format("{:.12g}", seg.ay) << YAML::EndMap << YAML::Comment("s, m/s^2");
-    out << YAML::EndSeq;
+    // Speed moves of a drum or a travel drive, one flow map each.
+    const auto write_moves = [&](const std::vector<DrumMoveSpec>& moves) {
+      if (moves.empty()) return;
+      out << YAML::Key << "moves" << YAML::Value << YAML::BeginSeq;
+      for (const auto& m : moves) {
+        out << YAML::Flow << YAML::BeginMap << YAML::Key << "at" << YAML::Value << fmt::format("{:.12g}", m.at)
+            << YAML::Key << "to" << YAML::Value << fmt::format("{:.12g}", m.to) << YAML::Key << "accel"
+            << YAML::Value << fmt::format("{:.12g}", m.accel);
+        if (m.jerk > 0) out << YAML::Key << "jerk" << YAML::Value << fmt::format("{:.12g}", m.jerk);
+        out << YAML::EndMap << YAML::Comment(m.jerk > 0 ? "s, m/s, m/s^2, m/s^3" : "s, m/s, m/s^2");
+      }
+      out << YAML::EndSeq;
+    };
+    if (!s.travel) {
+      out << YAML::Key << "initial_velocity" << YAML::Value << YAML::Flow << YAML::BeginMap << YAML::Key << "x"
+          << YAML::Value << fmt::format("{:.12g}", s.initial_vx) << YAML::Key << "y" << YAML::Value
+          << fmt::format("{:.12g}", s.initial_vy) << YAML::EndMap << YAML::Comment("m/s");
+      out << YAML::Key << "accel" << YAML::Value << YAML::BeginSeq;
+      for (const auto& seg : s.accel)
+        out << YAML::Flow << YAML::BeginMap << YAML::Key << "for" << YAML::Value << fmt::format("{:.12g}", seg.duration)
+            << YAML::Key << "x" << YAML::Value << fmt::format("{:.12g}", seg.ax) << YAML::Key << "y" << YAML::Value
+            << fmt::format("{:.12g}", seg.ay) << YAML::EndMap << YAML::Comment("s, m/s^2");
+      out << YAML::EndSeq;
+    }
     w.at(fmt::format("base.scenarios[{}]", i));
+    if (const auto& t = s.travel) {
+      w.begin("travel");
+      w.value("speed", t->initial_speed, u::speed);
+      write_moves(t->moves);
+      w.end();
+    }
     if (const auto& h = s.hoist) {
       w.begin("hoist");
       if (h->link >= 0) w.text("rope", spec.links[static_cast<std::size_t>(h->link)].name);
       w.value("drum_speed", h->initial_speed, u::speed);
-      if (!h->moves.empty()) {
-        out << YAML::Key << "moves" << YAML::Value << YAML::BeginSeq;
-        for (const auto& m : h->moves) {
-          out << YAML::Flow << YAML::BeginMap << YAML::Key << "at" << YAML::Value
-              << fmt::format("{:.12g}", m.at) << YAML::Key << "to" << YAML::Value
-              << fmt::format("{:.12g}", m.to) << YAML::Key << "accel" << YAML::Value
-              << fmt::format("{:.12g}", m.accel);
-          if (m.jerk > 0) out << YAML::Key << "jerk" << YAML::Value << fmt::format("{:.12g}", m.jerk);
-          out << YAML::EndMap << YAML::Comment(m.jerk > 0 ? "s, m/s, m/s^2, m/s^3" : "s, m/s, m/s^2");
-        }
-        out << YAML::EndSeq;
-      }
+      write_moves(h->moves);
       w.end();
     }
     if (const auto& l = s.lift_off) {

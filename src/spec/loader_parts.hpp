@@ -24,6 +24,9 @@ void read_rope_keys(const MapView& link_map, bool kind_read, LinkSpec& link);
 void check_elastic_ropes(Context& ctx, const YAML::Node& links_node, const Spec& spec);
 /// Reads a scenario's `hoist` and `lift_off` (the links are read).
 void read_scenario_rope_keys(const MapView& scenario, const Spec& spec, ScenarioSpec& sc);
+/// Reads a scenario's `travel` drive (speed and moves; loader_rope.cpp, which shares the moves'
+/// reader with the drum). A scenario with a travel drive gives neither `accel` nor `initial_velocity`.
+void read_travel(const MapView& scenario, ScenarioSpec& sc);
 /// After cases.duration is read: every hoisted rope's length, length - s(t) / parts_of_line with s
 /// the rope the drum hauled in, stays within [kMinHoistedShare, kMaxHoistedFactor] x its length
 /// over [0, duration].

@@ -64,7 +64,8 @@ struct WindModel {
 /// constant (the drum's acceleration is continuous or jumps only at a phase boundary).
 struct Phase {
   double t0 = 0, t1 = 0;            ///< [s]; the last phase ends at infinity
-  double ax = 0, ay = 0;            ///< base acceleration [m/s^2]
+  double ax = 0, ay = 0;            ///< base acceleration at t0 [m/s^2]
+  double jx = 0;                    ///< base jerk along x within the phase (a travel drive's S-curve) [m/s^3]
   double x0 = 0, y0 = 0, vx0 = 0, vy0 = 0;  ///< base position [m] and velocity [m/s] at t0
   std::vector<double> wind_speed;   ///< per wind load [m/s]
   /// Rope hauled in at the drum since t = 0 [m], its speed [m/s], acceleration [m/s^2] at t0 and

@@ -103,8 +103,9 @@ struct AccelSegment {
   double ax = 0, ay = 0;///< [m/s^2]
 };
 
-/// One drum speed command: from `at`, change the drum speed to `to` with |acceleration| <= accel
-/// and |jerk| <= jerk (0: no jerk limit). Speeds are rope speed at the drum, + hauls in (hoists).
+/// One speed command (a drum's or a travel drive's): from `at`, change the speed to `to` with
+/// |acceleration| <= accel and |jerk| <= jerk (0: no jerk limit). A drum's speed is rope speed at
+/// the drum, + hauls in (hoists); a travel drive's is the base's speed along x.
 struct DrumMoveSpec {
   double at = 0, to = 0, accel = 0, jerk = 0;  ///< [s], [m/s], [m/s^2], [m/s^3]
   Mark mark;
@@ -132,6 +133,14 @@ struct ScenarioSpec {
   double initial_vx = 0, initial_vy = 0;  ///< base velocity at t = 0 [m/s]
   std::vector<AccelSegment> accel;        ///< after the last segment the base acceleration is 0
   std::optional<HoistSpec> hoist;         ///< drum motion; absent = rope lengths stay fixed
+  /// The base's travel along x as a drive's speed commands (instead of `accel` and the x part of
+  /// the initial velocity): speed at t = 0 [m/s] and moves with acceleration and jerk limits.
+  struct Travel {
+    double initial_speed = 0;
+    std::vector<DrumMoveSpec> moves;
+    Mark mark;
+  };
+  std::optional<Travel> travel;
   std::optional<LiftOffSpec> lift_off;    ///< the load starts on the ground
   Mark mark;
 };
