@@ -441,7 +441,7 @@ void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& s
   if (!spec.sizing) return;
   bool any_rope_check = false;
   for (const auto& l : spec.links) any_rope_check |= l.kind == LinkKind::rope && l.elastic;
-  for (const auto& sc : spec.scenarios) any_rope_check |= sc.hoist && sc.hoist->link >= 0;
+  for (const auto& sc : spec.scenarios) any_rope_check |= (sc.hoist && sc.hoist->link >= 0) || sc.travel;
   if (!any_rope_check) return;
   const auto& variables = spec.sizing->variables;
   for (std::size_t i = 0; i < variables.size(); ++i) {
@@ -465,8 +465,14 @@ void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& s
       Context probe;
       check_elastic_ropes(probe, links_node, design);
       try {
-        for (const auto& sc : design.scenarios)
+        for (const auto& sc : design.scenarios) {
           if (sc.hoist) (void)drum_profile(*sc.hoist);
+          if (sc.travel) {
+            std::vector<SpeedMove> moves;
+            for (const DrumMoveSpec& m : sc.travel->moves) moves.push_back(SpeedMove{m.at, m.to, m.accel, m.jerk});
+            (void)SpeedProfile::build(sc.travel->initial_speed, moves);
+          }
+        }
         check_hoisted_lengths(probe, design);
       } catch (const ProfileError& e) {
         const auto [message, fix] = split_profile_error(e);

@@ -61,29 +61,35 @@ std::optional<SpecPath> parse_scenario_path(const Spec& spec, const std::string&
     error = fmt::format("no scenario is named '{}'", name);
     return std::nullopt;
   }
-  const auto& hoist = spec.scenarios[static_cast<std::size_t>(index)].hoist;
-  if (!hoist) {
-    error = fmt::format("scenario '{}' has no hoist to vary", name);
+  const ScenarioSpec& scenario = spec.scenarios[static_cast<std::size_t>(index)];
+  const bool travel = field.rfind("travel.", 0) == 0;
+  const std::vector<DrumMoveSpec>* moves = nullptr;
+  if (travel && scenario.travel) moves = &scenario.travel->moves;
+  if (!travel && scenario.hoist) moves = &scenario.hoist->moves;
+  if (moves == nullptr) {
+    error = fmt::format("scenario '{}' has no {} to vary", name, travel ? "travel drive" : "hoist");
     return std::nullopt;
   }
-  if (field == "hoist.drum_speed") return SpecPath{Field::drum_speed, index, 0};
-  if (field.rfind("hoist.moves[", 0) == 0) {
+  if (field == (travel ? "travel.speed" : "hoist.drum_speed")) return SpecPath{Field::drum_speed, index, 0, travel};
+  const std::string_view prefix = travel ? "travel.moves[" : "hoist.moves[";
+  if (field.rfind(prefix, 0) == 0) {
     const auto end = field.find(']');
-    const std::string digits(field.substr(12, end == std::string_view::npos ? 0 : end - 12));
+    const std::string digits(field.substr(prefix.size(), end == std::string_view::npos ? 0 : end - prefix.size()));
     if (end != std::string_view::npos && !digits.empty() && digits.size() <= 3 &&
         digits.find_first_not_of("0123456789") == std::string::npos && end + 1 < field.size() && field[end + 1] == '.') {
       const int move = std::stoi(digits);
-      if (move >= static_cast<int>(hoist->moves.size())) {
-        error = fmt::format("scenario '{}' has {} drum move(s); K runs from 0", name, hoist->moves.size());
+      if (move >= static_cast<int>(moves->size())) {
+        error = fmt::format("scenario '{}' has {} {} move(s); K runs from 0", name, moves->size(),
+                            travel ? "travel" : "drum");
         return std::nullopt;
       }
       const std::string_view what = field.substr(end + 2);
       for (const auto& f : kDrumFields)
-        if (f.name == what && f.field != Field::drum_speed) return SpecPath{f.field, index, move};
+        if (f.name == what && f.field != Field::drum_speed) return SpecPath{f.field, index, move, travel};
     }
   }
-  error = fmt::format("unknown field '{}' (a scenario's hoist has: hoist.drum_speed, hoist.moves[K].to, "
-                      "hoist.moves[K].accel, hoist.moves[K].jerk)",
+  error = fmt::format("unknown field '{}' (a scenario has: hoist.drum_speed, hoist.moves[K].to | accel | jerk, "
+                      "travel.speed, travel.moves[K].to | accel | jerk)",
                       field);
   return std::nullopt;
 }
@@ -204,9 +210,11 @@ template <class SpecT>
 auto& value_ref(SpecT& spec, const SpecPath& p) {
   if (p.field == Field::dashpot_coefficient) return spec.dashpots.at(static_cast<std::size_t>(p.index)).coefficient;
   if (p.field >= Field::drum_speed) {
-    auto& hoist = spec.scenarios.at(static_cast<std::size_t>(p.index)).hoist.value();
-    if (p.field == Field::drum_speed) return hoist.initial_speed;
-    auto& move = hoist.moves.at(static_cast<std::size_t>(p.damper));
+    auto& scenario = spec.scenarios.at(static_cast<std::size_t>(p.index));
+    if (p.field == Field::drum_speed)
+      return p.travel ? scenario.travel.value().initial_speed : scenario.hoist.value().initial_speed;
+    auto& moves = p.travel ? scenario.travel.value().moves : scenario.hoist.value().moves;
+    auto& move = moves.at(static_cast<std::size_t>(p.damper));
     return p.field == Field::drum_move_to ? move.to : p.field == Field::drum_move_accel ? move.accel : move.jerk;
   }
   auto& link = spec.links.at(static_cast<std::size_t>(p.index));

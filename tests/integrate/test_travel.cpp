@@ -19,6 +19,7 @@
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/spec.hpp"
+#include "swaybound/spec/paths.hpp"
 
 using namespace swaybound;
 using swaybound::testing::IsCloseTo;
@@ -129,5 +130,49 @@ limits: [{peak_angle: 30 deg}]
     CHECK(again.scenarios[0].travel->moves[k].to == t.moves[k].to);
     CHECK(again.scenarios[0].travel->moves[k].accel == t.moves[k].accel);
     CHECK(again.scenarios[0].travel->moves[k].jerk == t.moves[k].jerk);
+  }
+}
+
+TEST_CASE("sizing paths address a travel drive, and a range must build its profile at both ends", "[travel][sizing]") {
+  const std::string text = R"(swaybound: 1
+name: travel sizing
+links:
+  - {name: rope, kind: rope, length: 6 m, mass: 30 kg}
+base:
+  scenarios:
+    - name: move
+      travel: {speed: 0.2 m/s, moves: [{at: 1 s, to: 1 m/s, accel: 0.4 m/s^2, jerk: 1 m/s^3}, {at: 6 s, to: 0, accel: 0.4 m/s^2}]}
+cases: {duration: 12 s, initial: [{single: {theta: [5 deg]}}]}
+limits: [{peak_angle: 30 deg}]
+sizing:
+  variables: [VARIABLE]
+  objective: min_cost
+)";
+  const auto with = [&](const std::string& variable) {
+    std::string t = text;
+    t.replace(t.find("VARIABLE"), 8, variable);
+    return t;
+  };
+  Spec spec = load_spec_text(with("{path: 'scenarios[move].travel.moves[0].accel', range: [0.3 m/s^2, 1 m/s^2]}"),
+                             "sized.yaml");
+  std::string why;
+  const auto accel = parse_spec_path(spec, "scenarios[move].travel.moves[0].accel", why);
+  REQUIRE(accel);
+  CHECK(get_spec_value(spec, *accel) == 0.4);
+  set_spec_value(spec, *accel, 0.8);
+  CHECK(spec.scenarios[0].travel->moves[0].accel == 0.8);
+  const auto speed = parse_spec_path(spec, "scenarios[move].travel.speed", why);
+  REQUIRE(speed);
+  CHECK(get_spec_value(spec, *speed) == 0.2);
+  CHECK_FALSE(parse_spec_path(spec, "scenarios[move].hoist.drum_speed", why));
+  CHECK(why.find("no hoist") != std::string::npos);
+  // At 0.1 m/s^2 the first move would still run at 6 s, when the second starts: refused at load.
+  try {
+    load_spec_text(with("{path: 'scenarios[move].travel.moves[0].accel', range: [0.1 m/s^2, 1 m/s^2]}"), "bad.yaml");
+    FAIL("a range whose low end overlaps the moves was accepted");
+  } catch (const SpecError& e) {
+    REQUIRE(e.diagnostics().size() == 1);
+    CHECK(e.diagnostics()[0].path == "sizing.variables[0]");
+    CHECK(e.diagnostics()[0].message.find("low end") != std::string::npos);
   }
 }

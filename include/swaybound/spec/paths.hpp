@@ -7,6 +7,7 @@
 //   links[NAME].parts_of_line | elastic.ea | elastic.stiffness | elastic.damping | elastic.damping_ratio  (ropes)
 //   dashpots[NAME].coefficient
 //   scenarios[NAME].hoist.drum_speed | hoist.moves[K].to | hoist.moves[K].accel | hoist.moves[K].jerk
+//   scenarios[NAME].travel.speed | travel.moves[K].to | travel.moves[K].accel | travel.moves[K].jerk
 #include <optional>
 #include <string>
 #include <string_view>
@@ -28,6 +29,7 @@ struct SpecPath {
   Field field{};
   int index = 0;  ///< link or dashpot index
   int damper = 0; ///< damper fields: which damper of the pivot; drum moves: which move
+  bool travel = false;  ///< drum fields: of the scenario's travel drive instead of its hoist
 };
 
 /// Parses `text` against `spec`; on failure returns nullopt and a sentence in `error`.
