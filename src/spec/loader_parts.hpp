@@ -1,6 +1,7 @@
 #pragma once
 // Private: the parts of the loader, shared between loader.cpp and loader_cases.cpp.
 #include "reader.hpp"
+#include "swaybound/model/profile.hpp"
 #include "swaybound/spec/loader.hpp"
 
 namespace swaybound::spec_detail {
@@ -24,6 +25,12 @@ void read_rope_keys(const MapView& link_map, bool kind_read, LinkSpec& link);
 void check_elastic_ropes(Context& ctx, const YAML::Node& links_node, const Spec& spec);
 /// Reads a scenario's `hoist` and `lift_off` (the links are read).
 void read_scenario_rope_keys(const MapView& scenario, const Spec& spec, ScenarioSpec& sc);
+/// A speed profile's error as (message, fix) (loader_moves.cpp).
+std::pair<std::string, std::string> split_profile_error(const ProfileError& e);
+/// Reads one speed move {at, to, accel, jerk} at `path` into `move` (`drum` picks the words of the
+/// messages: a drum's or a travel drive's); false when it could not be read (loader_moves.cpp).
+bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& path, DrumMoveSpec& move, bool drum);
+
 /// Reads a scenario's `travel` drive (speed and moves; loader_rope.cpp, which shares the moves'
 /// reader with the drum). A scenario with a travel drive gives neither `accel` nor `initial_velocity`.
 void read_travel(const MapView& scenario, ScenarioSpec& sc);
