@@ -14,6 +14,13 @@ namespace {
 
 constexpr double kSampleWidth = 24;
 
+/// The horizontal sample stroke of a legend entry, in the current colour, width and dash.
+void sample_line(cairo_t* cr, double x, double cy) {
+  cairo_move_to(cr, x, cy);
+  cairo_line_to(cr, x + kSampleWidth, cy);
+  cairo_stroke(cr);
+}
+
 }  // namespace
 
 LegendLayout layout_legend(cairo_t* cr, const std::vector<LegendEntry>& entries, double width) {
@@ -50,9 +57,7 @@ void draw_legend(cairo_t* cr, const std::vector<LegendEntry>& entries, const Leg
           set_colour(cr, c);
           cairo_set_line_width(cr, 1.5);
           set_dash(cr, series_dash(e.style));
-          cairo_move_to(cr, x, cy);
-          cairo_line_to(cr, x + kSampleWidth, cy);
-          cairo_stroke(cr);
+          sample_line(cr, x, cy);
         }
         draw_marker(cr, series_marker(e.style), x + kSampleWidth / 2, cy, 2.6, c);
         break;
@@ -72,22 +77,16 @@ void draw_legend(cairo_t* cr, const std::vector<LegendEntry>& entries, const Leg
         set_colour(cr, kRef);
         cairo_set_line_width(cr, 1.1);
         set_dash(cr, {5, 2.5});
-        cairo_move_to(cr, x, cy);
-        cairo_line_to(cr, x + kSampleWidth, cy);
-        cairo_stroke(cr);
+        sample_line(cr, x, cy);
         break;
       case LegendEntry::outline:
         cairo_set_source_rgb(cr, 1, 1, 1);
         cairo_set_line_width(cr, 3.2);
-        cairo_move_to(cr, x, cy);
-        cairo_line_to(cr, x + kSampleWidth, cy);
-        cairo_stroke(cr);
+        sample_line(cr, x, cy);
         set_colour(cr, kInk);
         cairo_set_line_width(cr, 1.4);
         set_dash(cr, {4, 2});
-        cairo_move_to(cr, x, cy);
-        cairo_line_to(cr, x + kSampleWidth, cy);
-        cairo_stroke(cr);
+        sample_line(cr, x, cy);
         // a light box behind so the white casing shows
         break;
       case LegendEntry::note: break;
