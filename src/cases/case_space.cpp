@@ -19,16 +19,29 @@ std::uint64_t splitmix64(std::uint64_t x) {
   return x ^ (x >> 31);
 }
 
-/// Dimensions of a set: its theta ranges then its rate ranges.
-std::size_t dimensions(const InitialSetSpec& set) { return set.theta.size() + set.rate.size(); }
+/// Dimensions of a set: its theta ranges, then rate, phi and phi_rate ranges (start_lists).
+std::size_t dimensions(const InitialSetSpec& set) {
+  std::size_t d = 0;
+  for (const auto* list : start_lists(set)) d += list->size();
+  return d;
+}
 const Range& dimension(const InitialSetSpec& set, std::size_t d) {
-  return d < set.theta.size() ? set.theta[d] : set.rate[d - set.theta.size()];
+  for (const auto* list : start_lists(set)) {
+    if (d < list->size()) return (*list)[d];
+    d -= list->size();
+  }
+  throw ArgumentError(fmt::format("start dimension {} out of range", d));
 }
 void assign(InitialState& out, const InitialSetSpec& set, std::size_t d, double value) {
-  if (d < set.theta.size())
-    out.theta[d] = value;
-  else
-    out.omega[d - set.theta.size()] = value;
+  std::vector<double>* targets[] = {&out.theta, &out.omega, &out.phi, &out.phi_rate};
+  const auto lists = start_lists(set);
+  for (std::size_t k = 0; k < lists.size(); ++k) {
+    if (d < lists[k]->size()) {
+      (*targets[k])[d] = value;
+      return;
+    }
+    d -= lists[k]->size();
+  }
 }
 
 }  // namespace
@@ -156,6 +169,10 @@ CaseDef CaseSpace::at(long index) const {
   const std::size_t n = spec_->links.size();
   c.initial.theta.assign(n, 0.0);
   c.initial.omega.assign(n, 0.0);
+  if (spec_->motion == Motion::spatial) {
+    c.initial.phi.assign(n, 0.0);
+    c.initial.phi_rate.assign(n, 0.0);
+  }
   fill_start(set, c.set, c.start, c.initial);
   const int width = static_cast<int>(std::to_string(initial_set_size(set)).size());
   c.id = fmt::format("{}/{}-{:0{}}", slugs_[static_cast<std::size_t>(c.scenario)], set_slugs_[static_cast<std::size_t>(c.set)], c.start + 1,

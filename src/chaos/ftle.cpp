@@ -23,6 +23,7 @@ FtleResult chain_ftle(const Model& model, Workspace& ws, int scenario, const Ini
   SWAYBOUND_REQUIRE(model.elastic_links.empty(),
                     "the FTLE does not follow an elastic rope's slack/taut switches; the chain has {} elastic rope(s)",
                     model.elastic_links.size());
+  SWAYBOUND_REQUIRE(!model.spatial, "the FTLE is not yet computed for a spatial chain");
 
   std::vector<double> x0(static_cast<std::size_t>(model.state_size()), 0.0);
   std::copy(start.theta.begin(), start.theta.end(), x0.begin());

@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "rope_recording.hpp"
+#include "swaybound/dynamics/posture.hpp"
 #include "swaybound/spec/loader.hpp"
 
 namespace swaybound {
@@ -207,7 +208,8 @@ std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vec
         const auto k = static_cast<std::size_t>(i);
         double top, bottom;
         link_tension(model, *v.ws, i, top, bottom);
-        rc.theta[k].push_back(v.x[i]);
+        // The angle a plot shows: theta (planar), the cone angle from the vertical (spatial).
+        rc.theta[k].push_back(model.spatial ? swing_angle(model, v.x, i) : v.x[i]);
         rc.load[k].push_back(v.ws->reaction[k]);
         rc.tension[k].push_back(i + 1 < n ? std::min(top, bottom) : top);
       }

@@ -5,6 +5,7 @@
 
 #include "swaybound/chaos/ftle.hpp"
 #include "swaybound/checks/limit_kinds.hpp"
+#include "swaybound/dynamics/posture.hpp"
 
 namespace swaybound {
 
@@ -37,9 +38,9 @@ CaseExtremes::CaseExtremes(const Model& model, const Spec& spec, int extra,
                 const double* x = v.x;
                 for (int i = 0; i < n; ++i) {
                   const auto k = static_cast<std::size_t>(i);
-                  q[kAngle * n + i] = std::fabs(x[i]);
-                  q[kRelative * n + i] = std::fabs(x[i] - (i > 0 ? x[i - 1] : 0.0));
-                  q[kRate * n + i] = std::fabs(x[n + i]);
+                  q[kAngle * n + i] = swing_angle(model_, x, i);
+                  q[kRelative * n + i] = relative_swing(model_, x, i);
+                  q[kRate * n + i] = swing_rate(model_, x, i);
                   q[kLoad * n + i] = v.ws->reaction[k];
                   double top = 0, bottom = 0;
                   if (model_.kind[k] == LinkKind::rope) link_tension(model_, *v.ws, i, top, bottom);
@@ -51,11 +52,13 @@ CaseExtremes::CaseExtremes(const Model& model, const Spec& spec, int extra,
                   q[kRopeForce * n + i] = model_.kind[k] == LinkKind::rope ? force : 0.0;
                   q[kSnatch * n + i] = r >= 0 && slack_count_[static_cast<std::size_t>(r)] > 0 ? force : 0.0;
                 }
-                q[kBlocks * n + kSupportX] = std::fabs(v.ws->reaction_x[0]);
+                // Horizontal: along x for a planar chain, in the x-z plane for a spatial one.
+                q[kBlocks * n + kSupportX] = model_.spatial ? std::hypot(v.ws->reaction_x[0], v.ws->reaction_z[0])
+                                                            : std::fabs(v.ws->reaction_x[0]);
                 for (std::size_t r = 0; r < residual_links_.size(); ++r) {
                   double worst = 0;
                   for (int i = 0; i < n; ++i)
-                    if (residual_links_[r] < 0 || residual_links_[r] == i) worst = std::max(worst, std::fabs(x[i]));
+                    if (residual_links_[r] < 0 || residual_links_[r] == i) worst = std::max(worst, swing_angle(model_, x, i));
                   q[kBlocks * n + kChain + static_cast<int>(r)] = worst;
                 }
                 if (extra_quantities_) extra_quantities_(v, q + first_extra_);
@@ -159,7 +162,7 @@ CaseMetrics run_case(const Model& model, const Spec& spec, Workspace& ws, const 
 
   const Observer on_step = [&](const StepView& v) {
     bool outside = false;
-    for (int i = 0; i < n; ++i) outside |= std::fabs(v.x[i]) > band;
+    for (int i = 0; i < n; ++i) outside |= swing_angle(model, v.x, i) > band;
     if (outside) last_outside = v.t;
     outside_now = outside;
     extremes.observe(v);

@@ -13,6 +13,7 @@
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/checks/metrics.hpp"
 #include "swaybound/core/units.hpp"
+#include "swaybound/dynamics/posture.hpp"
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/spec.hpp"
@@ -116,7 +117,17 @@ std::string describe_start(const Model& model, const InitialState& start) {
     theta += fmt::format("{}{:.6g} deg", i ? ", " : "", (k < start.theta.size() ? start.theta[k] : 0.0) * 180 / M_PI);
     omega += fmt::format("{}{:.6g} deg/s", i ? ", " : "", (k < start.omega.size() ? start.omega[k] : 0.0) * 180 / M_PI);
   }
-  return "theta = [" + theta + "], omega = [" + omega + "]";
+  std::string out = "theta = [" + theta + "], omega = [" + omega + "]";
+  if (model.spatial) {
+    std::string phi, phi_rate;
+    for (int i = 0; i < model.n; ++i) {
+      const auto k = static_cast<std::size_t>(i);
+      phi += fmt::format("{}{:.6g} deg", i ? ", " : "", (k < start.phi.size() ? start.phi[k] : 0.0) * 180 / M_PI);
+      phi_rate += fmt::format("{}{:.6g} deg/s", i ? ", " : "", (k < start.phi_rate.size() ? start.phi_rate[k] : 0.0) * 180 / M_PI);
+    }
+    out += ", phi = [" + phi + "], phi_rate = [" + phi_rate + "]";
+  }
+  return out;
 }
 
 }  // namespace
@@ -213,16 +224,28 @@ Action add_simulate(CLI::App& app) {
     for (const char* name : {"base_x [m]", "base_y [m]", "base_vx [m/s]", "base_vy [m/s]", "base_ax [m/s^2]",
                              "base_ay [m/s^2]"})
       csv << ',' << csv_quote(name);
+    if (model.spatial)
+      for (const char* name : {"base_z (across the travel) [m]", "base_vz [m/s]", "base_az [m/s^2]"})
+        csv << ',' << csv_quote(name);
     for (int i = 0; i < n; ++i) {
       const std::string& name = model.names[static_cast<std::size_t>(i)];
-      csv << ',' << csv_quote(fmt::format("theta({}) [rad]", name)) << ','
-          << csv_quote(fmt::format("omega({}) [rad/s]", name)) << ','
-          << csv_quote(fmt::format("relative_angle({}) [rad]", name));
+      if (model.spatial)
+        csv << ',' << csv_quote(fmt::format("travel_plane_angle({}) (projection on x-y from the vertical) [rad]", name))
+            << ',' << csv_quote(fmt::format("cross_plane_angle({}) (projection on z-y from the vertical) [rad]", name))
+            << ',' << csv_quote(fmt::format("swing_angle({}) (from the vertical, any direction) [rad]", name)) << ','
+            << csv_quote(fmt::format("swing_rate({}) [rad/s]", name)) << ','
+            << csv_quote(fmt::format("relative_angle({}) (to the link above) [rad]", name));
+      else
+        csv << ',' << csv_quote(fmt::format("theta({}) [rad]", name)) << ','
+            << csv_quote(fmt::format("omega({}) [rad/s]", name)) << ','
+            << csv_quote(fmt::format("relative_angle({}) [rad]", name));
     }
     for (int i = 0; i < n; ++i) {
       const std::string& name = model.names[static_cast<std::size_t>(i)];
       csv << ',' << csv_quote(fmt::format("pivot_x({}) [N]", name)) << ','
-          << csv_quote(fmt::format("pivot_y({}) [N]", name)) << ',' << csv_quote(fmt::format("pivot_load({}) [N]", name))
+          << csv_quote(fmt::format("pivot_y({}) [N]", name));
+      if (model.spatial) csv << ',' << csv_quote(fmt::format("pivot_z({}) [N]", name));
+      csv << ',' << csv_quote(fmt::format("pivot_load({}) [N]", name))
           << ',' << csv_quote(fmt::format("tension_top({}) [N]", name)) << ','
           << csv_quote(fmt::format("tension_bottom({}) [N]", name));
     }
@@ -258,13 +281,19 @@ Action add_simulate(CLI::App& app) {
       const Workspace& w = *v.ws;
       csv << ',' << w.base_x << ',' << w.base_y << ',' << w.base_vx << ',' << w.base_vy << ',' << w.base_ax << ','
           << w.base_ay;
+      if (model.spatial) csv << ',' << w.base_z << ',' << w.base_vz << ',' << w.base_az;
       for (int i = 0; i < n; ++i)
-        csv << ',' << v.x[i] << ',' << v.x[model.dof + i] << ',' << v.x[i] - (i > 0 ? v.x[i - 1] : 0.0);
+        if (model.spatial)
+          csv << ',' << travel_plane_angle(model, v.x, i) << ',' << cross_plane_angle(model, v.x, i) << ','
+              << swing_angle(model, v.x, i) << ',' << swing_rate(model, v.x, i) << ',' << relative_swing(model, v.x, i);
+        else
+          csv << ',' << v.x[i] << ',' << v.x[model.dof + i] << ',' << v.x[i] - (i > 0 ? v.x[i - 1] : 0.0);
       for (int i = 0; i < n; ++i) {
         double top, bottom;
         link_tension(model, *v.ws, i, top, bottom);
-        csv << ',' << v.ws->reaction_x[i] << ',' << v.ws->reaction_y[i] << ',' << v.ws->reaction[i] << ',' << top << ','
-            << bottom + 0.0;
+        csv << ',' << v.ws->reaction_x[i] << ',' << v.ws->reaction_y[i];
+        if (model.spatial) csv << ',' << v.ws->reaction_z[i];
+        csv << ',' << v.ws->reaction[i] << ',' << top << ',' << bottom + 0.0;
       }
       for (std::size_t k = 0; k < model.wind.size(); ++k) {
         double fx, fy, vx, vy;

@@ -41,6 +41,15 @@ Workspace::Workspace(const Model& model) : model_id(model.id), links(model.n) {
   s2.resize(2);
   s3.resize(3);
   sn.resize(model.n);
+  if (model.spatial) {
+    for (auto* v : {&dir, &dir_rate, &spin, &torque, &torque_fixed}) v->assign(3 * n, 0.0);
+    tangent.assign(6 * n, 0.0);
+    for (auto* v : {&force_z, &acc_z, &reaction_z}) v->assign(n, 0.0);
+    const auto m2 = static_cast<Eigen::Index>(2 * n);
+    mass_s = Eigen::MatrixXd::Identity(m2, m2);
+    bias_s = rhs_s = accel_s = Eigen::VectorXd::Zero(m2);
+    llt_s.compute(mass_s);  // sizes the factor (see Scratch::resize)
+  }
   if (model.variable_length()) {
     const auto e = static_cast<Eigen::Index>(model.extended), f = static_cast<Eigen::Index>(model.dof);
     mass_x = Eigen::MatrixXd::Zero(e, e);
@@ -60,6 +69,10 @@ void require_built_for(const Model& model, const Workspace& ws) {
 }
 
 void kinematics(const Model& model, Workspace& ws, const Phase& p, const double* x, double t) {
+  if (model.spatial) {
+    spatial_kinematics(model, ws, p, x, t);
+    return;
+  }
   const int n = model.n;
   for (int i = 0; i < n; ++i) {
     ws.sin_t[i] = std::sin(x[i]);
@@ -77,6 +90,15 @@ void kinematics(const Model& model, Workspace& ws, const Phase& p, const double*
 }
 
 void point_state(const Model& model, const Workspace& ws, const PointRef& p, double& px, double& py, double& vx, double& vy) {
+  if (model.spatial) {
+    double pos[3], vel[3];
+    spatial_point_state(model, ws, p, pos, vel);
+    px = pos[0];
+    py = pos[1];
+    vx = vel[0];
+    vy = vel[1];
+    return;
+  }
   px = ws.base_x;
   py = ws.base_y;
   vx = ws.base_vx;
@@ -117,6 +139,15 @@ void apply_point_force(const Model& model, Workspace& ws, int k, double s, doubl
 
 void wind_load_force(const Model& model, const Workspace& ws, const Phase& phase, std::size_t w, double& fx,
                      double& fy, double& vx, double& vy) {
+  if (model.spatial) {
+    double force[3], velocity[3];
+    spatial_wind_force(model, ws, phase, w, force, velocity);
+    fx = force[0];
+    fy = force[1];
+    vx = velocity[0];
+    vy = velocity[1];
+    return;
+  }
   double px, py;
   point_state(model, ws, model.wind[w].point, px, py, vx, vy);
   drag_force(model.wind[w].drag_factor, phase.wind_speed[w], vx, vy, fx, fy);
@@ -275,6 +306,10 @@ void evaluate_impl(const Model& model, Workspace& ws, Scratch<N>& sc, const Phas
 
 void evaluate(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt) {
   require_built_for(model, ws);
+  if (model.spatial) {
+    evaluate_spatial(model, ws, phase, x, t, dxdt);
+    return;
+  }
   if (model.variable_length()) {
     evaluate_general(model, ws, phase, x, t, dxdt);
     return;
@@ -289,7 +324,9 @@ void evaluate(const Model& model, Workspace& ws, const Phase& phase, const doubl
 
 void finish_reactions(const Model& model, Workspace& ws) {
   if (ws.reactions_current) return;
-  if (model.variable_length())
+  if (model.spatial)
+    spatial_reactions(model, ws);
+  else if (model.variable_length())
     general_reactions(model, ws);
   else
     pivot_reactions(model, ws, ws.alpha.data());
@@ -297,6 +334,7 @@ void finish_reactions(const Model& model, Workspace& ws) {
 }
 
 double mechanical_energy(const Model& model, const Workspace& ws) {
+  if (model.spatial) return spatial_energy(model, ws);
   double energy = ws.strain_energy;
   double py = ws.base_y, vx = ws.base_vx, vy = ws.base_vy;  // x positions do not enter the energy
   for (int k = 0; k < model.n; ++k) {
@@ -315,6 +353,10 @@ double mechanical_energy(const Model& model, const Workspace& ws) {
 }
 
 void link_tension(const Model& model, const Workspace& ws, int i, double& top, double& bottom) {
+  if (model.spatial) {
+    spatial_link_tension(model, ws, i, top, bottom);
+    return;
+  }
   const double ex = ws.sin_t[i], ey = -ws.cos_t[i];
   top = -(ws.reaction_x[i] * ex + ws.reaction_y[i] * ey);
   bottom = i + 1 < model.n ? -(ws.reaction_x[i + 1] * ex + ws.reaction_y[i + 1] * ey) : 0.0;

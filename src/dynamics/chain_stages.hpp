@@ -27,6 +27,19 @@ void general_reactions(const Model& model, Workspace& ws);
 /// external forces ws.force_* (Newton's second law for the sub-chain below each pivot).
 void sub_chain_reactions(const Model& model, Workspace& ws);
 
+// Spatial chains (chain_spatial.cpp): the stages of chain.cpp for model.spatial.
+void spatial_kinematics(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t);
+void evaluate_spatial(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt);
+/// Pivot reactions (3-D) from the tangent accelerations ws.accel_s.
+void spatial_reactions(const Model& model, Workspace& ws);
+double spatial_energy(const Model& model, const Workspace& ws);
+void spatial_point_state(const Model& model, const Workspace& ws, const PointRef& p, double* position, double* velocity);
+/// Quadratic drag of wind load w, F = k |u - v| (u - v) with u the wind's (horizontal) velocity
+/// along its direction and v its point's velocity; F and v into force[3], velocity[3].
+void spatial_wind_force(const Model& model, const Workspace& ws, const Phase& phase, std::size_t w, double* force,
+                        double* velocity);
+void spatial_link_tension(const Model& model, const Workspace& ws, int i, double& top, double& bottom);
+
 /// Stage 3b into generalised forces: the pivot torques at the reactions (nullptr: without pin
 /// friction) added to q: tau_p on link p, its reaction -tau_p on link p-1.
 inline void add_pivot_torques(const Model& model, Workspace& ws, const double* reaction, double* q) {

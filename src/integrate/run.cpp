@@ -10,6 +10,7 @@
 #include <boost/numeric/odeint.hpp>
 
 #include "swaybound/core/cancel.hpp"
+#include "swaybound/dynamics/posture.hpp"
 #include "swaybound/integrate/extremes.hpp"
 #include "methods.hpp"
 #include "mode_watch.hpp"
@@ -415,15 +416,10 @@ RunOutcome simulate_case(const Model& model, Workspace& ws, int scenario, const 
                          const RunSettings& settings, const Observer& on_step, const Observer& on_sample) {
   SWAYBOUND_REQUIRE(scenario >= 0 && scenario < static_cast<int>(model.scenarios.size()),
                     "scenario index {} out of range (model has {})", scenario, model.scenarios.size());
-  SWAYBOUND_REQUIRE(start.theta.size() <= static_cast<std::size_t>(model.n) &&
-                        start.omega.size() <= static_cast<std::size_t>(model.n),
-                    "initial state has {} angles and {} rates for {} links", start.theta.size(), start.omega.size(),
-                    model.n);
   SWAYBOUND_REQUIRE(settings.duration > 0, "duration must be > 0, got {}", settings.duration);
   require_built_for(model, ws);
   State x(static_cast<std::size_t>(model.state_size()), 0.0);
-  std::copy(start.theta.begin(), start.theta.end(), x.begin());
-  std::copy(start.omega.begin(), start.omega.end(), x.begin() + model.dof);
+  write_start(model, start, x);
   const ScenarioModel& s = model.scenarios[static_cast<std::size_t>(scenario)];
   ws.grounded = false;
   rope_start(model, ws, s.phases.front(), s.lift_off, s.lift_off_slack, x);

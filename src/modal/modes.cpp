@@ -165,7 +165,10 @@ LinearSystem linear_system(const Model& model) {
 
 ModalResult modal_analysis(const Model& model) {
   SWAYBOUND_REQUIRE(model.n >= 1, "modal analysis needs at least one link, got {}", model.n);
-  const int n = model.dof;  // coordinates: the link angles, then the elastic rope lengths
+  // Coordinates: the link angles, then the elastic rope lengths. A spatial chain hanging at rest
+  // with isotropic pivots linearises to two copies of the planar system, one per swing plane: its
+  // travel-plane modes are computed here, and the notes say what holds across the travel.
+  const int n = model.spatial ? model.n : model.dof;
   ModalResult result;
 
   const LinearSystem system = linear_system(model);
@@ -296,6 +299,13 @@ ModalResult modal_analysis(const Model& model) {
 
   // --- Notes: what the linearisation leaves out or approximates.
   auto& notes = result.notes;
+  if (model.spatial)
+    notes.push_back(model.dashpots.empty()
+                        ? "spatial chain: the modes of swing in the travel plane (x-y); with isotropic pivots the swing "
+                          "across the travel has the same modes (each a degenerate pair)"
+                        : "spatial chain: the modes of swing in the travel plane (x-y); across the travel the "
+                          "frequencies are the same but the dashpots (in the travel plane) add no damping to first "
+                          "order, so those modes are less damped than listed (not computed here)");
   notes.push_back("linearised about the hanging rest position (all angles 0) with the base at rest; "
                   "valid for small swings only");
   for (int i = 0; i < model.n; ++i) {

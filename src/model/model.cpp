@@ -68,7 +68,7 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
   out.hoist_link = s.hoist ? s.hoist->link : -1;
   out.lift_off = s.lift_off.has_value();
   out.lift_off_slack = s.lift_off ? s.lift_off->slack : 0.0;
-  double x = 0, y = 0, vx = s.initial_vx, vy = s.initial_vy;
+  double x = 0, y = 0, z = 0, vx = s.initial_vx, vy = s.initial_vy, vz = s.initial_vz;
   for (std::size_t k = 0; k < cuts.size(); ++k) {
     Phase p;
     p.t0 = cuts[k];
@@ -79,6 +79,7 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
       if (p.t0 >= seg_start && p.t0 < seg_start + seg.duration) {
         p.ax = seg.ax;
         p.ay = seg.ay;
+        p.az = seg.az;
         break;
       }
       seg_start += seg.duration;
@@ -87,6 +88,8 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
     p.y0 = y;
     p.vx0 = vx;
     p.vy0 = vy;
+    p.z0 = z;
+    p.vz0 = vz;
     for (const auto& w : wind) {
       const bool gusting = w.gust && p.t0 >= w.gust->start && p.t0 < w.gust->start + w.gust->duration;
       p.wind_speed.push_back(w.speed + (gusting ? w.gust->speed : 0.0));
@@ -109,8 +112,10 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
       const double dt = p.t1 - p.t0;
       x += vx * dt + 0.5 * p.ax * dt * dt;
       y += vy * dt + 0.5 * p.ay * dt * dt;
+      z += vz * dt + 0.5 * p.az * dt * dt;
       vx += p.ax * dt;
       vy += p.ay * dt;
+      vz += p.az * dt;
     }
     out.phases.push_back(std::move(p));
   }
@@ -209,9 +214,15 @@ Model build_model(const Spec& spec) {
   for (const auto& d : spec.dashpots)
     m.dashpots.push_back(DashpotModel{d.name, point_of(d.from), point_of(d.to), d.coefficient});
   for (const auto& w : spec.wind)
-    m.wind.push_back(WindModel{PointRef{w.link, w.at, 0, 0}, 0.5 * w.air_density * w.drag_coefficient * w.drag_area});
+    m.wind.push_back(WindModel{PointRef{w.link, w.at, 0, 0}, 0.5 * w.air_density * w.drag_coefficient * w.drag_area,
+                               std::cos(w.direction), std::sin(w.direction)});
   for (const auto& s : spec.scenarios) m.scenarios.push_back(build_scenario(s, spec.wind));
   assign_length_coordinates(spec, m);
+  if (spec.motion == Motion::spatial) {
+    SWAYBOUND_REQUIRE(!m.variable_length(), "a spatial chain cannot have ropes of variable length yet");
+    m.spatial = true;
+    m.dof = m.extended = 3 * m.n;
+  }
   return m;
 }
 

@@ -4,6 +4,10 @@
 
 namespace swaybound {
 
+std::array<const std::vector<Range>*, 4> start_lists(const InitialSetSpec& set) {
+  return {&set.theta, &set.rate, &set.phi, &set.phi_rate};
+}
+
 namespace {
 
 constexpr long kCap = 1'000'000'001L;  // "over 1e9": the case cap refuses it long before
@@ -14,21 +18,21 @@ long ladder_size(const InitialSetSpec& set) { return 1 + static_cast<long>(set.s
 /// The product of the counts of every range.
 long grid_size(const InitialSetSpec& set) {
   long n = 1;
-  for (const auto* list : {&set.theta, &set.rate})
+  for (const auto* list : start_lists(set))
     for (const auto& r : *list) n = n > 1'000'000'000L / std::max(1, r.count) ? kCap : n * r.count;
   return n;
 }
 /// Two starts per range that is not a single value.
 long corners_size(const InitialSetSpec& set) {
   long n = 1;
-  for (const auto* list : {&set.theta, &set.rate})
+  for (const auto* list : start_lists(set))
     for (const auto& r : *list)
       if (r.hi > r.lo) n = std::min(2 * n, kCap);
   return n;
 }
 
-constexpr std::string_view kValueKeys[] = {"theta", "rate"};
-constexpr std::string_view kRandomKeys[] = {"count", "seed", "method", "theta", "rate"};
+constexpr std::string_view kValueKeys[] = {"theta", "rate", "phi", "phi_rate"};
+constexpr std::string_view kRandomKeys[] = {"count", "seed", "method", "theta", "rate", "phi", "phi_rate"};
 constexpr std::string_view kLadderKeys[] = {"from", "relative", "absolute", "link"};
 
 constexpr InitialKindInfo kKinds[] = {

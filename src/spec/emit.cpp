@@ -96,6 +96,7 @@ std::string normalised_yaml(const Spec& spec) {
   out << YAML::BeginMap;
   out << YAML::Key << "swaybound" << YAML::Value << spec.version;
   w.text("name", spec.name);
+  if (spec.motion == Motion::spatial) w.text("motion", "spatial");
   w.value("gravity", spec.gravity, u::acceleration);
   out << YAML::Key << "links" << YAML::Value << YAML::BeginSeq;
   for (std::size_t i = 0; i < spec.links.size(); ++i) {
@@ -195,6 +196,7 @@ std::string normalised_yaml(const Spec& spec) {
       w.value("drag_area", wd.drag_area, u::area);
       w.value("drag_coefficient", wd.drag_coefficient, u::dimensionless);
       w.value("air_density", wd.air_density, u::density);
+      if (spec.motion == Motion::spatial) w.value("direction", wd.direction, u::angle);
       if (wd.gust) {
         w.begin("gust");
         w.value("start", wd.gust->start, u::duration);
@@ -231,12 +233,17 @@ std::string normalised_yaml(const Spec& spec) {
     if (!s.travel) {
       out << YAML::Key << "initial_velocity" << YAML::Value << YAML::Flow << YAML::BeginMap << YAML::Key << "x"
           << YAML::Value << fmt::format("{:.12g}", s.initial_vx) << YAML::Key << "y" << YAML::Value
-          << fmt::format("{:.12g}", s.initial_vy) << YAML::EndMap << YAML::Comment("m/s");
+          << fmt::format("{:.12g}", s.initial_vy);
+      if (spec.motion == Motion::spatial) out << YAML::Key << "z" << YAML::Value << fmt::format("{:.12g}", s.initial_vz);
+      out << YAML::EndMap << YAML::Comment("m/s");
       out << YAML::Key << "accel" << YAML::Value << YAML::BeginSeq;
-      for (const auto& seg : s.accel)
+      for (const auto& seg : s.accel) {
         out << YAML::Flow << YAML::BeginMap << YAML::Key << "for" << YAML::Value << fmt::format("{:.12g}", seg.duration)
             << YAML::Key << "x" << YAML::Value << fmt::format("{:.12g}", seg.ax) << YAML::Key << "y" << YAML::Value
-            << fmt::format("{:.12g}", seg.ay) << YAML::EndMap << YAML::Comment("s, m/s^2");
+            << fmt::format("{:.12g}", seg.ay);
+        if (spec.motion == Motion::spatial) out << YAML::Key << "z" << YAML::Value << fmt::format("{:.12g}", seg.az);
+        out << YAML::EndMap << YAML::Comment("s, m/s^2");
+      }
       out << YAML::EndSeq;
     }
     w.at(fmt::format("base.scenarios[{}]", i));
@@ -286,8 +293,11 @@ std::string normalised_yaml(const Spec& spec) {
       const bool counted = kind.shape == StartShape::counted_ranges;
       emit_ranges(out, "theta", set.theta, counted, u::angle);
       emit_ranges(out, "rate", set.rate, counted, u::angular_rate);
+      emit_ranges(out, "phi", set.phi, counted, u::angle);
+      emit_ranges(out, "phi_rate", set.phi_rate, counted, u::angular_rate);
     } else {
-      for (auto [key, list, dim] : {std::tuple{"theta", &set.theta, u::angle}, {"rate", &set.rate, u::angular_rate}}) {
+      for (auto [key, list, dim] : {std::tuple{"theta", &set.theta, u::angle}, {"rate", &set.rate, u::angular_rate},
+                                    {"phi", &set.phi, u::angle}, {"phi_rate", &set.phi_rate, u::angular_rate}}) {
         if (list->empty()) continue;
         out << YAML::Key << key << YAML::Value << YAML::Flow << YAML::BeginSeq;
         for (const auto& r : *list) out << number(r.lo, dim);

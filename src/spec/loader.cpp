@@ -297,7 +297,7 @@ void read_dashpots(Context& ctx, const YAML::Node& node, Spec& spec) {
 
 void read_wind_one(Context& ctx, const YAML::Node& node, const std::string& path, Spec& spec) {
   MapView m(ctx, node, path,
-            {"speed", "link", "at", "drag_area", "drag_coefficient", "air_density", "gust"});
+            {"speed", "link", "at", "drag_area", "drag_coefficient", "air_density", "gust", "direction"});
   if (!m.ok()) return;
   WindSpec w;
   w.mark = m.mark();
@@ -313,6 +313,8 @@ void read_wind_one(Context& ctx, const YAML::Node& node, const std::string& path
                                Bounds::non_negative()))
       w.drag_coefficient = *v;
   read_optional(m, "air_density", w.air_density, u::density, Bounds::positive());
+  if (m.has("direction") && require_spatial(m, "direction", spec, "a wind direction in the horizontal plane"))
+    if (auto v = read_quantity(ctx, m.get("direction"), m.path("direction"), u::angle)) w.direction = *v;
   if (m.has("at")) {
     if (auto v = read_quantity(ctx, m.get("at"), m.path("at"), u::length, Bounds::non_negative())) {
       w.at = *v;
@@ -351,12 +353,15 @@ void read_wind(Context& ctx, const YAML::Node& node, Spec& spec) {
   }
 }
 
-void read_xy(Context& ctx, const YAML::Node& node, const std::string& path, const u::Dim& dim,
-             double& x, double& y) {
-  MapView m(ctx, node, path, {"x", "y"});
+/// Reads {x, y, z} (z across the travel: spatial chains only).
+void read_xyz(Context& ctx, const YAML::Node& node, const std::string& path, const u::Dim& dim, const Spec& spec,
+              double& x, double& y, double& z) {
+  MapView m(ctx, node, path, {"x", "y", "z"});
   if (!m.ok()) return;
   if (m.has("x")) if (auto v = read_quantity(ctx, m.get("x"), m.path("x"), dim)) x = *v;
   if (m.has("y")) if (auto v = read_quantity(ctx, m.get("y"), m.path("y"), dim)) y = *v;
+  if (m.has("z") && require_spatial(m, "z", spec, "a motion across the travel"))
+    if (auto v = read_quantity(ctx, m.get("z"), m.path("z"), dim)) z = *v;
 }
 
 void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
@@ -382,12 +387,13 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
                    "give every scenario a unique name");
       }
     if (s.has("initial_velocity"))
-      read_xy(ctx, s.get("initial_velocity"), s.path("initial_velocity"), u::speed, sc.initial_vx, sc.initial_vy);
+      read_xyz(ctx, s.get("initial_velocity"), s.path("initial_velocity"), u::speed, spec, sc.initial_vx, sc.initial_vy,
+               sc.initial_vz);
     if (s.has("accel") && expect_sequence(ctx, s.get("accel"), s.path("accel"), "segments {for, x, y}")) {
       const YAML::Node segs = s.get("accel");
       for (std::size_t k = 0; k < segs.size(); ++k) {
         const std::string sp = fmt::format("{}.accel[{}]", path, k);
-        MapView g(ctx, segs[k], sp, {"for", "x", "y"});
+        MapView g(ctx, segs[k], sp, {"for", "x", "y", "z"});
         if (!g.ok()) continue;
         AccelSegment seg;
         if (g.require("for", "the segment's duration, e.g. '1.5 s'"))
@@ -395,6 +401,8 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
             seg.duration = *v;
         if (g.has("x")) if (auto v = read_quantity(ctx, g.get("x"), g.path("x"), u::acceleration)) seg.ax = *v;
         if (g.has("y")) if (auto v = read_quantity(ctx, g.get("y"), g.path("y"), u::acceleration)) seg.ay = *v;
+        if (g.has("z") && require_spatial(g, "z", spec, "a motion across the travel"))
+          if (auto v = read_quantity(ctx, g.get("z"), g.path("z"), u::acceleration)) seg.az = *v;
         sc.accel.push_back(seg);
       }
     }
@@ -597,7 +605,7 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   spec.source_file = file_label;
   spec.source_text = std::string(text);
   MapView top(ctx, root, "",
-              {"swaybound", "name", "gravity", "links", "dashpots", "wind", "base", "cases", "limits",
+              {"swaybound", "name", "motion", "gravity", "links", "dashpots", "wind", "base", "cases", "limits",
                "chaos", "sizing", "solver", "report"});
   if (!top.ok()) throw SpecError(file_label, ctx.diagnostics);
 
@@ -611,6 +619,7 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   }
   if (top.require("name", "a name for the mechanism"))
     if (auto s = read_string(ctx, top.get("name"), "name")) spec.name = *s;
+  read_motion(top, spec);
   read_optional(top, "gravity", spec.gravity, u::acceleration,
                 Bounds{kMinGravity, kMaxGravity, false, false,
                        "the tool takes gravity from 0.1 to 100 m/s^2 (Earth 9.81 m/s^2, the Moon 1.62 m/s^2)"});
@@ -647,6 +656,7 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   read_sizing(top, spec);
   if (ctx.diagnostics.empty()) check_sized_ropes(ctx, top.get("links"), spec);
   refuse_ftle_with_elastic_ropes(ctx, spec);
+  refuse_with_spatial(ctx, spec);
   read_solver_and_report(top, spec);
 
   if (!ctx.diagnostics.empty()) throw SpecError(file_label, ctx.diagnostics);

@@ -9,6 +9,8 @@
 
 #include <fmt/format.h>
 
+#include <tuple>
+
 #include "loader_parts.hpp"
 #include "swaybound/checks/limit_kinds.hpp"
 #include "swaybound/spec/case_set_kinds.hpp"
@@ -108,6 +110,29 @@ void read_range_list(Context& ctx, const YAML::Node& node, const std::string& pa
   }
 }
 
+/// Reads a set's out-of-plane lists phi [angle] and phi_rate [angular rate] per link, as values
+/// (`ranges` false) or ranges (`counted`: with counts, for a grid); refused on a planar chain.
+void read_out_of_plane(const MapView& s, const Spec& spec, bool ranges, bool counted, InitialSetSpec& set) {
+  Context& ctx = s.ctx();
+  const std::size_t n = spec.links.size();
+  for (const auto& [key, dim, list] : {std::tuple{"phi", &u::angle, &set.phi}, {"phi_rate", &u::angular_rate, &set.phi_rate}}) {
+    if (!s.has(key)) continue;
+    if (spec.motion != Motion::spatial) {
+      ctx.error(s.key_mark(key), s.path(key),
+                fmt::format("'{}' is a swing out of the travel plane, which a planar chain does not have", key),
+                "add 'motion: spatial' at the top of the spec, or remove this key");
+      continue;
+    }
+    if (ranges)
+      read_range_list(ctx, s.get(key), s.path(key), *dim, n, counted, *list);
+    else
+      read_value_list(ctx, s.get(key), s.path(key), *dim, n, *list);
+  }
+}
+
+/// True when the set's body gives some start quantity.
+bool has_start_key(const MapView& s) { return s.has("theta") || s.has("rate") || s.has("phi") || s.has("phi_rate"); }
+
 void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& path, const Spec& spec,
                       InitialSetSpec& set) {
   std::vector<std::string_view> keys{"name"};
@@ -144,6 +169,7 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
       if (!s.ok()) return;
       if (s.has("theta")) read_value_list(ctx, s.get("theta"), s.path("theta"), u::angle, n, set.theta);
       if (s.has("rate")) read_value_list(ctx, s.get("rate"), s.path("rate"), u::angular_rate, n, set.rate);
+      read_out_of_plane(s, spec, false, false, set);
       break;
     }
     case InitialKind::grid:
@@ -151,10 +177,11 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
       const bool grid = info->shape == StartShape::counted_ranges;
       MapView s(ctx, m.get(kind), kp, body);
       if (!s.ok()) return;
-      if (!s.has("theta") && !s.has("rate"))
+      if (!has_start_key(s))
         ctx.error(s.mark(), kp, "no ranges given", "give 'theta' and/or 'rate' ranges per link");
       if (s.has("theta")) read_range_list(ctx, s.get("theta"), s.path("theta"), u::angle, n, grid, set.theta);
       if (s.has("rate")) read_range_list(ctx, s.get("rate"), s.path("rate"), u::angular_rate, n, grid, set.rate);
+      read_out_of_plane(s, spec, true, grid, set);
       break;
     }
     case InitialKind::random: {
@@ -170,10 +197,11 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
       } else {
         ctx.defaults_filled.push_back(s.path("method"));
       }
-      if (!s.has("theta") && !s.has("rate"))
+      if (!has_start_key(s))
         ctx.error(s.mark(), kp, "no ranges given", "give 'theta' and/or 'rate' ranges per link");
       if (s.has("theta")) read_range_list(ctx, s.get("theta"), s.path("theta"), u::angle, n, false, set.theta);
       if (s.has("rate")) read_range_list(ctx, s.get("rate"), s.path("rate"), u::angular_rate, n, false, set.rate);
+      read_out_of_plane(s, spec, true, false, set);
       break;
     }
     case InitialKind::ladder: {

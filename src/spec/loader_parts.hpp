@@ -47,6 +47,13 @@ void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& s
 /// switches, so its figure would not describe the rope's motion.
 void refuse_ftle_with_elastic_ropes(Context& ctx, const Spec& spec);
 
+/// Spatial chains (loader_spatial.cpp): reads `motion`; reports `key` of `map` (a quantity that is
+/// `what`) unless the chain is spatial, and returns whether it is; refuses what a spatial chain
+/// does not model yet (elastic ropes, hoists, lift-off, FTLE and modal limits, a chaos section).
+void read_motion(const MapView& top, Spec& spec);
+bool require_spatial(const MapView& map, std::string_view key, const Spec& spec, std::string_view what);
+void refuse_with_spatial(Context& ctx, const Spec& spec);
+
 void read_cases(const MapView& top, Spec& spec, const LoadOptions& options);
 void read_limits(const MapView& top, Spec& spec);
 void read_chaos(const MapView& top, Spec& spec);

@@ -120,6 +120,20 @@ struct Workspace {
   Eigen::MatrixXd jac_x, jac_y;          ///< com Jacobians d r_k / d q, per link row (N x extended)
   std::vector<double> acc0_x, acc0_y;    ///< com accelerations without the unknown q'' [m/s^2] (N)
 
+  // Spatial chains (chain_spatial.cpp; model.spatial). Vectors of 3 per link are stored x, y, z
+  // link after link; for these models sin_t/cos_t/omega are not used.
+  std::vector<double> dir;            ///< unit vector e_i along link i, from the state normalised [-] (3N)
+  std::vector<double> dir_rate;       ///< e_i', the part perpendicular to e_i [1/s] (3N)
+  std::vector<double> tangent;        ///< basis t_i1, t_i2 of the plane perpendicular to e_i, t_i1 x t_i2 = e_i [-] (6N)
+  std::vector<double> spin;           ///< angular velocity w_i = e_i x e_i' [rad/s] (3N)
+  std::vector<double> torque;         ///< pivot torque vector on link i from above [N m] (3N)
+  std::vector<double> torque_fixed;   ///< of which dampers and constant friction [N m] (3N)
+  std::vector<double> force_z, acc_z, reaction_z;  ///< across the travel, as force_x etc. (N)
+  double base_z = 0, base_vz = 0, base_az = 0;     ///< base across the travel [m], [m/s], [m/s^2]
+  Eigen::MatrixXd mass_s;             ///< mass matrix of the tangent rates (2N x 2N) [kg m^2]
+  Eigen::VectorXd bias_s, rhs_s, accel_s;  ///< generalised forces [N m] and tangent accelerations [1/s^2] (2N)
+  Eigen::LLT<Eigen::MatrixXd> llt_s;  ///< Cholesky factor of mass_s
+
   // Energy audit (`external_forces`, `evaluate`): the last two components of dx/dt.
   double dissipated_power = 0;       ///< by dampers, friction, dashpots [W] (>= 0)
   double input_power = 0;            ///< into the chain by the base and the wind [W]
@@ -132,12 +146,14 @@ void require_built_for(const Model& model, const Workspace& ws);
 /// Stage 1: sin/cos of the angles, rates, and the base state at time t within `phase`.
 void kinematics(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t);
 
-/// Position [m] and velocity [m/s] of a point of the chain (after `kinematics`).
+/// Position [m] and velocity [m/s] of a point of the chain (after `kinematics`); for a spatial
+/// chain their x and y components.
 void point_state(const Model& model, const Workspace& ws, const PointRef& p, double& px, double& py,
                  double& vx, double& vy);
 
 /// Drag force of wind load w [N] (x horizontal, y up) at the state of the last `kinematics`, with
-/// the wind speed of `phase`; also its point's velocity (vx, vy) [m/s].
+/// the wind speed of `phase`; also its point's velocity (vx, vy) [m/s]. For a spatial chain the x
+/// and y components of the 3-D force and velocity.
 void wind_load_force(const Model& model, const Workspace& ws, const Phase& phase, std::size_t w, double& fx,
                      double& fy, double& vx, double& vy);
 

@@ -47,6 +47,7 @@ struct PointRef {
   int link = -1;
   double at = 0;
   double base_x = 0, base_y = 0;
+  double base_z = 0;  ///< across the travel (spatial chains)
 };
 
 struct DashpotModel {
@@ -58,6 +59,7 @@ struct DashpotModel {
 struct WindModel {
   PointRef point;
   double drag_factor = 0;  ///< 1/2 rho Cd A [kg/m]
+  double dir_x = 1, dir_z = 0;  ///< horizontal unit vector the wind blows towards (spatial chains; planar: +x)
 };
 
 /// A time interval in which the base acceleration, the wind speeds and the drum's jerk are
@@ -67,6 +69,7 @@ struct Phase {
   double ax = 0, ay = 0;            ///< base acceleration at t0 [m/s^2]
   double jx = 0;                    ///< base jerk along x within the phase (a travel drive's S-curve) [m/s^3]
   double x0 = 0, y0 = 0, vx0 = 0, vy0 = 0;  ///< base position [m] and velocity [m/s] at t0
+  double az = 0, z0 = 0, vz0 = 0;   ///< across the travel (spatial chains): acceleration, position, velocity at t0
   std::vector<double> wind_speed;   ///< per wind load [m/s]
   /// Rope hauled in at the drum since t = 0 [m], its speed [m/s], acceleration [m/s^2] at t0 and
   /// the jerk [m/s^3] within the phase (all 0 without a hoist).
@@ -113,7 +116,10 @@ struct Model {
   std::vector<int> elastic_links;       ///< links with an elastic length, in link order
   int dof = 0;                          ///< coordinates in the state: n angles + elastic lengths
   int extended = 0;                     ///< dof + prescribed lengths
-  bool variable_length() const { return extended > n; }
+  bool variable_length() const { return !elastic_links.empty() || extended > dof; }
+  /// Spatial chain (chain_spatial.cpp): the coordinates are the link directions e_i (3 per link,
+  /// dof = 3N), their rates e_i' follow; no rope of variable length.
+  bool spatial = false;
   Eigen::MatrixXd mu;              ///< mass-matrix constants mu_ij [kg m^2]
   std::vector<double> h;           ///< first moments h_i [kg m]
   std::vector<double> mass_below;  ///< sum_{k>=i} m_k [kg]
@@ -125,7 +131,8 @@ struct Model {
   bool any_pivot_torque = false;   ///< some pivot has friction or a damper
   double energy_scale = 0;         ///< g sum_k m_k depth_k at rest [J]: scale for audit residuals
 
-  /// State layout: coordinates q[0..dof) (angles, then elastic rope lengths [m]), their rates
+  /// State layout: coordinates q[0..dof) (angles, then elastic rope lengths [m]; for a spatial
+  /// chain the unit vectors e_0, e_1, ... [-]), their rates
   /// [dof..2 dof), dissipated energy [J], work done on the chain by the base, the wind and the drum [J].
   int state_size() const { return 2 * dof + 2; }
 };

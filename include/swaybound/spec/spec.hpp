@@ -2,6 +2,7 @@
 // Plain structs of a design spec, all in SI (angles in rad). Built and validated by the loader
 // (spec/loader.hpp); nothing past the loader sees YAML or units. `specs/README.md` is the
 // reference for every key, its unit, default and allowed range.
+#include <array>
 #include <cstdint>
 #include <limits>
 #include <optional>
@@ -86,7 +87,8 @@ struct WindSpec {
   int link = 0;
   double at = 0;               ///< point on the link [m] from its upper pivot (default: com)
   bool at_given = false;
-  double speed = 0;            ///< steady wind [m/s], + is towards +x
+  double speed = 0;            ///< steady wind [m/s], + is towards +x (planar) or along `direction`
+  double direction = 0;        ///< spatial chains: the way it blows in the horizontal plane, from +x towards +z [rad]
   double drag_area = 0;        ///< A [m^2]
   double drag_coefficient = 0; ///< Cd [-]
   double air_density = 1.225;  ///< rho [kg/m^3] (ISO 2533 standard sea-level air)
@@ -101,6 +103,7 @@ struct WindSpec {
 struct AccelSegment {
   double duration = 0;  ///< [s]
   double ax = 0, ay = 0;///< [m/s^2]
+  double az = 0;        ///< across the travel (spatial chains only) [m/s^2]
 };
 
 /// One speed command (a drum's or a travel drive's): from `at`, change the speed to `to` with
@@ -131,6 +134,7 @@ struct LiftOffSpec {
 struct ScenarioSpec {
   std::string name;
   double initial_vx = 0, initial_vy = 0;  ///< base velocity at t = 0 [m/s]
+  double initial_vz = 0;                  ///< across the travel (spatial chains only) [m/s]
   std::vector<AccelSegment> accel;        ///< after the last segment the base acceleration is 0
   std::optional<HoistSpec> hoist;         ///< drum motion; absent = rope lengths stay fixed
   /// The base's travel along x as a drive's speed commands (instead of `accel` and the x part of
@@ -151,6 +155,11 @@ struct Range {
   int count = 1;
 };
 
+/// The start quantities of an initial set in their order as dimensions of the case space: theta,
+/// rate, phi, phi_rate (each a list per link, possibly empty).
+struct InitialSetSpec;
+std::array<const std::vector<Range>*, 4> start_lists(const InitialSetSpec& set);
+
 enum class InitialKind { single, grid, random, corners, ladder };
 enum class SamplingMethod { uniform, latin_hypercube };
 
@@ -161,6 +170,7 @@ struct InitialSetSpec {
   InitialKind kind = InitialKind::single;
   std::string name;                ///< label used in case ids (defaults to the kind)
   std::vector<Range> theta, rate;  ///< per link (single and ladder use lo only)
+  std::vector<Range> phi, phi_rate;  ///< spatial chains: out-of-plane angles and rates per link
   int count = 0;                   ///< random
   std::uint64_t seed = 0;          ///< random
   SamplingMethod method = SamplingMethod::uniform;
@@ -275,9 +285,14 @@ struct ReportSpec {
   Paper paper = Paper::a4;
 };
 
+/// Planar: every link swings in the x-y plane (one angle per link). Spatial: each link hangs from a
+/// spherical pivot and swings in any direction (x along the travel, y up, z = x cross y across it).
+enum class Motion { planar, spatial };
+
 struct Spec {
   int version = kSpecFormatVersion;
   std::string name;
+  Motion motion = Motion::planar;
   std::string source_file;   ///< the path the spec was read from
   std::string source_text;   ///< the bytes the loader parsed (empty for a spec built in memory)
   double gravity = 9.80665;  ///< [m/s^2] standard gravity (CGPM 1901), default

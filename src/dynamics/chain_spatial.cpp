@@ -1,0 +1,334 @@
+// Equations of motion of a spatial chain: N links on spherical pivots, hung from a base that moves
+// in x (travel), y (up) and z (across the travel). Each link is a straight axisymmetric body along
+// its unit vector e_i; its spin about its own axis is not modelled (its angular velocity is
+// w_i = e_i x e_i', perpendicular to e_i), so it has two degrees of freedom, the tangent rates.
+//
+// Coordinates: the unit vectors e_i themselves (no angles, so no orientation is singular). At each
+// evaluation an orthonormal basis t_i1, t_i2 of the plane perpendicular to e_i (t_i1 x t_i2 = e_i)
+// is built; e_i' = T_i u_i with u_i = T_i^T e_i' the tangent rates, and since |e_i| = 1,
+//   e_i'' = T_i u_i' - |e_i'|^2 e_i.
+// The basis is used only inside one evaluation (the state holds e_i, e_i'), so it may jump from
+// one evaluation to the next without harm.
+//
+// With the centre of mass r_k = p_base + sum_{j<k} L_j e_j + c_k e_k (a_kj = L_j for j < k, c_k for
+// j = k) and the constants mu_jl, h_j of model.hpp, Kane's equations for the tangent rates read,
+// for link j and direction a = 1, 2,
+//   sum_l mu_jl (t_ja . t_lb) u_lb' = t_ja . [ -h_j (a_base + g y) + sum_{l != j} mu_jl |e_l'|^2 e_l ] + Q_ja,
+// the spatial form of the planar equations of chain.hpp (with T_i = n_i they are the same: the
+// travel-plane block equals the planar mass matrix, and a planar motion stays planar exactly).
+// Generalised forces: a point force F at distance s on link k adds lever_j t_ja . F for j <= k
+// (lever L_j above k, s on k); a pivot torque tau_i (on link i, -tau_i on link i-1) adds
+// tau_i . dw_i/du_ia: dw/du_1 = e x t_1 = t_2, dw/du_2 = e x t_2 = -t_1. The part of a torque along a
+// link's own axis does no work on the constrained motion (no twist) and drops out.
+//
+// Pivot torques are isotropic in the swing: the planar laws of forces.hpp applied to the magnitude
+// of the relative angular velocity w_rel = w_i - w_{i-1} (w_{-1} = 0), acting against it:
+//   tau_i = tau(|w_rel|) w_rel / |w_rel|   (tau(s) <= 0 the planar torque at rate s >= 0),
+// pin friction with |R_i| the magnitude of the 3-D pivot reaction.
+#include <cmath>
+
+#include "swaybound/dynamics/chain.hpp"
+#include "swaybound/dynamics/forces.hpp"
+#include "chain_stages.hpp"
+
+namespace swaybound {
+
+namespace {
+
+struct Vec3 {
+  double x = 0, y = 0, z = 0;
+};
+inline Vec3 operator+(Vec3 a, Vec3 b) { return {a.x + b.x, a.y + b.y, a.z + b.z}; }
+inline Vec3 operator-(Vec3 a, Vec3 b) { return {a.x - b.x, a.y - b.y, a.z - b.z}; }
+inline Vec3 operator*(double s, Vec3 a) { return {s * a.x, s * a.y, s * a.z}; }
+inline double dot(Vec3 a, Vec3 b) { return a.x * b.x + a.y * b.y + a.z * b.z; }
+inline Vec3 cross(Vec3 a, Vec3 b) { return {a.y * b.z - a.z * b.y, a.z * b.x - a.x * b.z, a.x * b.y - a.y * b.x}; }
+inline double norm(Vec3 a) { return std::sqrt(dot(a, a)); }
+
+inline Vec3 load(const std::vector<double>& v, int i) {
+  const auto k = static_cast<std::size_t>(3 * i);
+  return {v[k], v[k + 1], v[k + 2]};
+}
+inline void store(std::vector<double>& v, int i, Vec3 a) {
+  const auto k = static_cast<std::size_t>(3 * i);
+  v[k] = a.x;
+  v[k + 1] = a.y;
+  v[k + 2] = a.z;
+}
+inline Vec3 tangent(const Workspace& ws, int i, int a) {
+  const auto k = static_cast<std::size_t>(6 * i + 3 * a);
+  return {ws.tangent[k], ws.tangent[k + 1], ws.tangent[k + 2]};
+}
+
+Vec3 base_velocity(const Workspace& ws) { return {ws.base_vx, ws.base_vy, ws.base_vz}; }
+
+/// Position and velocity of a point of the chain (after spatial_kinematics).
+void point_state_3d(const Model& model, const Workspace& ws, const PointRef& p, Vec3& pos, Vec3& vel) {
+  pos = {ws.base_x, ws.base_y, ws.base_z};
+  vel = base_velocity(ws);
+  if (p.link < 0) {
+    pos = pos + Vec3{p.base_x, p.base_y, p.base_z};
+    return;
+  }
+  for (int j = 0; j <= p.link; ++j) {
+    const double r = j < p.link ? model.length[j] : p.at;
+    pos = pos + r * load(ws.dir, j);
+    vel = vel + r * load(ws.dir_rate, j);
+  }
+}
+
+/// Adds a point force F on link k at distance s to the generalised forces q (2 per link) and ws.force_*.
+void apply_point_force_3d(const Model& model, Workspace& ws, int k, double s, Vec3 f, Eigen::VectorXd& q) {
+  ws.force_x[k] += f.x;
+  ws.force_y[k] += f.y;
+  ws.force_z[k] += f.z;
+  for (int j = 0; j <= k; ++j) {
+    const double lever = j < k ? model.length[j] : s;
+    q(2 * j) += lever * dot(tangent(ws, j, 0), f);
+    q(2 * j + 1) += lever * dot(tangent(ws, j, 1), f);
+  }
+}
+
+/// Wind and dashpot forces into ws.force_* and q; their powers into ws.
+void spatial_external_forces(const Model& model, Workspace& ws, const Phase& phase, Eigen::VectorXd& q) {
+  for (int k = 0; k < model.n; ++k) ws.force_x[k] = ws.force_y[k] = ws.force_z[k] = 0.0;
+  for (std::size_t w = 0; w < model.wind.size(); ++w) {
+    double force[3], velocity[3];
+    spatial_wind_force(model, ws, phase, w, force, velocity);
+    const Vec3 f{force[0], force[1], force[2]};
+    apply_point_force_3d(model, ws, model.wind[w].point.link, model.wind[w].point.at, f, q);
+    ws.input_power += dot(f, Vec3{velocity[0], velocity[1], velocity[2]});
+  }
+  for (const DashpotModel& d : model.dashpots) {
+    Vec3 pa, va, pb, vb;
+    point_state_3d(model, ws, d.a, pa, va);
+    point_state_3d(model, ws, d.b, pb, vb);
+    const double length = norm(pa - pb);
+    if (length <= 0) continue;  // coincident ends: no defined axis (validated against at rest)
+    const Vec3 axis = (1.0 / length) * (pa - pb);
+    const double stretch_rate = dot(axis, va - vb);
+    const Vec3 f = (-d.coefficient * stretch_rate) * axis;  // on end a; end b gets -f
+    if (d.a.link >= 0) apply_point_force_3d(model, ws, d.a.link, d.a.at, f, q);
+    else ws.input_power -= dot(f, va);
+    if (d.b.link >= 0) apply_point_force_3d(model, ws, d.b.link, d.b.at, -1.0 * f, q);
+    else ws.input_power += dot(f, vb);
+    ws.dissipated_power += d.coefficient * stretch_rate * stretch_rate;
+  }
+}
+
+/// The relative angular velocity at pivot i: w_i - w_{i-1} (w_{-1} = 0).
+Vec3 relative_spin(const Workspace& ws, int i) {
+  return i > 0 ? load(ws.spin, i) - load(ws.spin, i - 1) : load(ws.spin, i);
+}
+
+/// Pivot torque vectors into ws.torque: with reaction == nullptr the dampers and constant friction
+/// (kept in ws.torque_fixed, with the sliding factor in ws.slide), else those plus pin friction at
+/// the reaction magnitudes [N].
+void spatial_pivot_torques(const Model& model, Workspace& ws, const double* reaction) {
+  for (int i = 0; i < model.n; ++i) {
+    const PivotModel& p = model.pivots[i];
+    const Vec3 w = relative_spin(ws, i);
+    const double s = norm(w);
+    if (reaction == nullptr) {
+      ws.slide[i] = friction_slide(p, s);
+      ws.tau_fixed[i] = damper_torque(p, s) + constant_friction_torque(p, ws.slide[i]);
+      ws.tau_pin[i] = 0.0;
+    } else {
+      ws.tau_pin[i] = pin_friction_torque(p, ws.slide[i], reaction[i]);
+    }
+    ws.tau[i] = ws.tau_fixed[i] + ws.tau_pin[i];  // the magnitude along w_rel (<= 0)
+    store(ws.torque, i, s > 0 ? (ws.tau[i] / s) * w : Vec3{});
+  }
+}
+
+/// The pivot torques' generalised forces added to q.
+void add_spatial_pivot_torques(const Model& model, Workspace& ws, const double* reaction, Eigen::VectorXd& q) {
+  if (!model.any_pivot_torque) return;
+  spatial_pivot_torques(model, ws, reaction);
+  for (int i = 0; i < model.n; ++i) {
+    const Vec3 tau = load(ws.torque, i);
+    q(2 * i) += dot(tau, tangent(ws, i, 1));
+    q(2 * i + 1) -= dot(tau, tangent(ws, i, 0));
+    if (i > 0) {
+      q(2 * (i - 1)) -= dot(tau, tangent(ws, i - 1, 1));
+      q(2 * (i - 1) + 1) += dot(tau, tangent(ws, i - 1, 0));
+    }
+  }
+}
+
+/// e_i'' from the tangent accelerations u'.
+Vec3 direction_accel(const Workspace& ws, int i, const Eigen::VectorXd& u_rate) {
+  const Vec3 r = load(ws.dir_rate, i);
+  return u_rate(2 * i) * tangent(ws, i, 0) + u_rate(2 * i + 1) * tangent(ws, i, 1) - dot(r, r) * load(ws.dir, i);
+}
+
+}  // namespace
+
+void spatial_kinematics(const Model& model, Workspace& ws, const Phase& p, const double* x, double t) {
+  const double dt = t - p.t0;
+  ws.base_ax = p.ax + p.jx * dt;
+  ws.base_ay = p.ay;
+  ws.base_az = p.az;
+  ws.base_vx = p.vx0 + (p.ax + 0.5 * p.jx * dt) * dt;
+  ws.base_vy = p.vy0 + p.ay * dt;
+  ws.base_vz = p.vz0 + p.az * dt;
+  ws.base_x = p.x0 + (p.vx0 + (0.5 * p.ax + p.jx * dt / 6.0) * dt) * dt;
+  ws.base_y = p.y0 + p.vy0 * dt + 0.5 * p.ay * dt * dt;
+  ws.base_z = p.z0 + p.vz0 * dt + 0.5 * p.az * dt * dt;
+  for (int i = 0; i < model.n; ++i) {
+    const Vec3 raw{x[3 * i], x[3 * i + 1], x[3 * i + 2]};
+    const Vec3 e = (1.0 / norm(raw)) * raw;
+    const Vec3 r_raw{x[model.dof + 3 * i], x[model.dof + 3 * i + 1], x[model.dof + 3 * i + 2]};
+    const Vec3 r = r_raw - dot(e, r_raw) * e;
+    store(ws.dir, i, e);
+    store(ws.dir_rate, i, r);
+    store(ws.spin, i, cross(e, r));
+    // t1 = z x e (the planar engine's n_i for a link in the travel plane), or x x e where e is
+    // within about 18 degrees of the z axis; t2 = e x t1.
+    Vec3 t1 = e.x * e.x + e.y * e.y > 0.1 ? Vec3{-e.y, e.x, 0.0} : Vec3{0.0, -e.z, e.y};
+    t1 = (1.0 / norm(t1)) * t1;
+    const Vec3 t2 = cross(e, t1);
+    const auto k = static_cast<std::size_t>(6 * i);
+    for (const auto& [offset, v] : {std::pair{0, t1}, std::pair{3, t2}}) {
+      ws.tangent[k + offset] = v.x;
+      ws.tangent[k + offset + 1] = v.y;
+      ws.tangent[k + offset + 2] = v.z;
+    }
+    ws.omega[i] = norm(r);
+  }
+}
+
+void spatial_reactions(const Model& model, Workspace& ws) {
+  // Forward: centre-of-mass accelerations; backward: Newton's second law for each sub-chain.
+  Vec3 pivot{ws.base_ax, ws.base_ay, ws.base_az};
+  for (int k = 0; k < model.n; ++k) {
+    const Vec3 a = direction_accel(ws, k, ws.accel_s);
+    const Vec3 com = pivot + model.com[k] * a;
+    ws.acc_x[k] = com.x;
+    ws.acc_y[k] = com.y;
+    ws.acc_z[k] = com.z;
+    pivot = pivot + model.length[k] * a;
+  }
+  Vec3 f;
+  for (int k = model.n - 1; k >= 0; --k) {
+    f = f + Vec3{model.mass[k] * ws.acc_x[k] - ws.force_x[k], model.mass[k] * (ws.acc_y[k] + model.gravity) - ws.force_y[k],
+                 model.mass[k] * ws.acc_z[k] - ws.force_z[k]};
+    ws.reaction_x[k] = f.x;
+    ws.reaction_y[k] = f.y;
+    ws.reaction_z[k] = f.z;
+    ws.reaction[k] = norm(f);
+  }
+}
+
+void evaluate_spatial(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt) {
+  const int n = model.n;
+  ++ws.evaluations;
+  ws.dissipated_power = 0;
+  ws.input_power = 0;
+  spatial_kinematics(model, ws, phase, x, t);
+
+  // Mass matrix: blocks mu_jl T_j^T T_l (T_j^T T_j = identity on the diagonal).
+  for (int j = 0; j < n; ++j)
+    for (int l = j; l < n; ++l)
+      for (int a = 0; a < 2; ++a)
+        for (int b = 0; b < 2; ++b) {
+          const double v = j == l ? (a == b ? model.mu(j, j) : 0.0) : model.mu(j, l) * dot(tangent(ws, j, a), tangent(ws, l, b));
+          ws.mass_s(2 * j + a, 2 * l + b) = v;
+          ws.mass_s(2 * l + b, 2 * j + a) = v;
+        }
+  ws.llt_s.compute(ws.mass_s);
+
+  // Gravity, base inertia and velocity products, then external point forces.
+  const Vec3 g_eff{ws.base_ax, ws.base_ay + model.gravity, ws.base_az};
+  for (int j = 0; j < n; ++j) {
+    Vec3 v = -model.h[j] * g_eff;
+    for (int l = 0; l < n; ++l) {
+      if (l == j) continue;
+      const Vec3 r = load(ws.dir_rate, l);
+      v = v + (model.mu(j, l) * dot(r, r)) * load(ws.dir, l);
+    }
+    ws.bias_s(2 * j) = dot(tangent(ws, j, 0), v);
+    ws.bias_s(2 * j + 1) = dot(tangent(ws, j, 1), v);
+  }
+  if (!model.wind.empty() || !model.dashpots.empty()) spatial_external_forces(model, ws, phase, ws.bias_s);
+
+  const Vec3 base_v = base_velocity(ws);
+  const bool moving = base_v.x != 0.0 || base_v.y != 0.0 || base_v.z != 0.0;
+  const bool need_reactions = !ws.lazy_reactions || model.any_pin_friction || moving;
+  const auto solve = [&](const double* reaction) {
+    ws.rhs_s = ws.bias_s;
+    add_spatial_pivot_torques(model, ws, reaction, ws.rhs_s);
+    ws.accel_s = ws.llt_s.solve(ws.rhs_s);
+    if (need_reactions) spatial_reactions(model, ws);
+  };
+  solve(nullptr);
+  ws.reactions_current = need_reactions;
+  pin_friction_fixed_point(model, ws, solve);
+
+  if (model.any_pivot_torque)
+    for (int i = 0; i < n; ++i) ws.dissipated_power -= dot(load(ws.torque, i), relative_spin(ws, i));
+  if (moving) ws.input_power += dot(Vec3{ws.reaction_x[0], ws.reaction_y[0], ws.reaction_z[0]}, base_v);
+
+  const int f = model.dof;
+  for (int i = 0; i < n; ++i) {
+    const Vec3 r = load(ws.dir_rate, i), a = direction_accel(ws, i, ws.accel_s);
+    dxdt[3 * i] = r.x;
+    dxdt[3 * i + 1] = r.y;
+    dxdt[3 * i + 2] = r.z;
+    dxdt[f + 3 * i] = a.x;
+    dxdt[f + 3 * i + 1] = a.y;
+    dxdt[f + 3 * i + 2] = a.z;
+    ws.alpha[i] = std::hypot(ws.accel_s(2 * i), ws.accel_s(2 * i + 1));
+  }
+  dxdt[2 * f] = ws.dissipated_power;
+  dxdt[2 * f + 1] = ws.input_power;
+}
+
+double spatial_energy(const Model& model, const Workspace& ws) {
+  double energy = 0;
+  Vec3 pivot{ws.base_x, ws.base_y, ws.base_z}, v = base_velocity(ws);
+  for (int k = 0; k < model.n; ++k) {
+    const Vec3 e = load(ws.dir, k), r = load(ws.dir_rate, k);
+    const Vec3 com = pivot + model.com[k] * e, com_v = v + model.com[k] * r;
+    energy += 0.5 * model.mass[k] * dot(com_v, com_v) + 0.5 * model.inertia[k] * dot(r, r) +
+              model.mass[k] * model.gravity * com.y;
+    pivot = pivot + model.length[k] * e;
+    v = v + model.length[k] * r;
+  }
+  return energy;
+}
+
+void spatial_link_tension(const Model& model, const Workspace& ws, int i, double& top, double& bottom) {
+  const Vec3 e = load(ws.dir, i);
+  top = -dot(Vec3{ws.reaction_x[i], ws.reaction_y[i], ws.reaction_z[i]}, e);
+  bottom = i + 1 < model.n ? -dot(Vec3{ws.reaction_x[i + 1], ws.reaction_y[i + 1], ws.reaction_z[i + 1]}, e) : 0.0;
+}
+
+void spatial_wind_force(const Model& model, const Workspace& ws, const Phase& phase, std::size_t w, double* force,
+                        double* velocity) {
+  const WindModel& wind = model.wind[w];
+  Vec3 pos, vel;
+  point_state_3d(model, ws, wind.point, pos, vel);
+  const double u = phase.wind_speed[w];
+  const Vec3 rel = Vec3{u * wind.dir_x, 0.0, u * wind.dir_z} - vel;
+  const Vec3 f = (wind.drag_factor * norm(rel)) * rel;
+  force[0] = f.x;
+  force[1] = f.y;
+  force[2] = f.z;
+  velocity[0] = vel.x;
+  velocity[1] = vel.y;
+  velocity[2] = vel.z;
+}
+
+void spatial_point_state(const Model& model, const Workspace& ws, const PointRef& p, double* position, double* velocity) {
+  Vec3 pos, vel;
+  point_state_3d(model, ws, p, pos, vel);
+  position[0] = pos.x;
+  position[1] = pos.y;
+  position[2] = pos.z;
+  velocity[0] = vel.x;
+  velocity[1] = vel.y;
+  velocity[2] = vel.z;
+}
+
+}  // namespace swaybound
