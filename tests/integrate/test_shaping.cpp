@@ -23,6 +23,7 @@
 #include "swaybound/model/model.hpp"
 #include "swaybound/model/shaper.hpp"
 #include "swaybound/spec.hpp"
+#include "swaybound/spec/paths.hpp"
 
 using namespace swaybound;
 using swaybound::testing::IsCloseTo;
@@ -154,4 +155,72 @@ cases: {duration: 12 s, initial: [{single: {theta: [0 deg]}}]}
   CHECK_THAT(starts[5], IsCloseTo(5.5 + 0.8125 / 0.8, 1e-14, 0));
   CHECK(phases[5].ax == 0);
   CHECK(phases[5].vx0 == 0);
+}
+
+TEST_CASE("a travel drive's shaper and stop are read into SI, written back and sized", "[travel][shaper][spec][sizing]") {
+  const std::string text = R"(swaybound: 1
+name: shaper keys
+links:
+  - {name: rope, kind: rope, length: 6 m, mass: 30 kg}
+base:
+  scenarios:
+    - name: move
+      travel:
+        moves: [{at: 1 s, to: 1 m/s, accel: 0.3 m/s^2}]
+        shaper: {kind: ei, period: 4 s, damping_ratio: 0.05, vibration_tolerance: 8 %}
+        stop: {at: 5 s, decel: 0.9 m/s^2, jerk: 2 m/s^3}
+    - name: plain
+      travel:
+        moves: [{at: 1 s, to: 1 m/s, accel: 0.3 m/s^2}]
+        shaper: {kind: zv, frequency: 300 mHz}
+cases: {duration: 12 s, initial: [{single: {theta: [5 deg]}}]}
+limits: [{peak_angle: 30 deg}]
+)";
+  std::string with_unit = text;
+  // mHz is not a unit the loader knows: the bare SI number is 1/s (= Hz).
+  with_unit.replace(with_unit.find("300 mHz"), 7, "0.3");
+  const Spec spec = load_spec_text(with_unit, "keys.yaml");
+  const auto& t = spec.scenarios[0].travel.value();
+  REQUIRE(t.shaper);
+  CHECK(t.shaper->kind == ShaperKind::ei);
+  CHECK(t.shaper->frequency == 0.25);
+  CHECK(t.shaper->damping_ratio == 0.05);
+  CHECK(t.shaper->vibration_tolerance == 0.08);
+  REQUIRE(t.stop);
+  CHECK(t.stop->at == 5);
+  CHECK(t.stop->decel == 0.9);
+  CHECK(t.stop->jerk == 2);
+  const auto& plain = spec.scenarios[1].travel.value();
+  REQUIRE(plain.shaper);
+  CHECK(plain.shaper->frequency == 0.3);
+  CHECK(plain.shaper->damping_ratio == 0);           // default
+  CHECK(plain.shaper->vibration_tolerance == 0.05);  // default, not read by zv
+  CHECK_FALSE(plain.stop);
+
+  const Spec again = load_spec_text(normalised_yaml(spec), "normalised.yaml");
+  const auto& u = again.scenarios[0].travel.value();
+  REQUIRE(u.shaper);
+  REQUIRE(u.stop);
+  CHECK(u.shaper->kind == t.shaper->kind);
+  CHECK(u.shaper->frequency == t.shaper->frequency);
+  CHECK(u.shaper->damping_ratio == t.shaper->damping_ratio);
+  CHECK(u.shaper->vibration_tolerance == t.shaper->vibration_tolerance);
+  CHECK(u.stop->at == t.stop->at);
+  CHECK(u.stop->decel == t.stop->decel);
+  CHECK(u.stop->jerk == t.stop->jerk);
+  CHECK(again.scenarios[1].travel->shaper->kind == ShaperKind::zv);
+
+  std::string why;
+  const auto frequency = parse_spec_path(spec, "scenarios[move].travel.shaper.frequency", why);
+  REQUIRE(frequency);
+  CHECK(get_spec_value(spec, *frequency) == 0.25);
+  Spec sized = spec;
+  set_spec_value(sized, *frequency, 0.4);
+  CHECK(sized.scenarios[0].travel->shaper->frequency == 0.4);
+  const auto decel = parse_spec_path(spec, "scenarios[move].travel.stop.decel", why);
+  REQUIRE(decel);
+  CHECK(get_spec_value(spec, *decel) == 0.9);
+  REQUIRE(parse_spec_path(spec, "scenarios[move].travel.shaper.damping_ratio", why));
+  CHECK_FALSE(parse_spec_path(spec, "scenarios[plain].travel.stop.decel", why));
+  CHECK(why.find("no travel stop") != std::string::npos);
 }
