@@ -1,6 +1,7 @@
 #include "swaybound/model/model.hpp"
 
 #include "swaybound/model/profile.hpp"
+#include "swaybound/model/shaper.hpp"
 
 #include <algorithm>
 #include <atomic>
@@ -28,20 +29,11 @@ SpeedProfile drum_profile(const ScenarioSpec& s) {
   return SpeedProfile::build(s.hoist->initial_speed, moves);
 }
 
-/// The travel drive's speed profile of a scenario (empty without a travel drive).
+/// The travel drive's speed profile of a scenario, shaped and stopped as its spec says (empty
+/// without a travel drive).
 std::optional<SpeedProfile> travel_profile(const ScenarioSpec& s) {
   if (!s.travel) return std::nullopt;
-  std::vector<SpeedMove> moves;
-  for (const DrumMoveSpec& m : s.travel->moves) moves.push_back(SpeedMove{m.at, m.to, m.accel, m.jerk});
-  return SpeedProfile::build(s.travel->initial_speed, moves);
-}
-
-/// The jerk of a profile's piece that holds t (every piece boundary is a phase cut).
-double jerk_at(const SpeedProfile& profile, double t) {
-  const auto& pieces = profile.pieces();
-  const auto piece = std::upper_bound(pieces.begin(), pieces.end(), t,
-                                      [](double time, const ProfilePiece& q) { return time < q.t0; });
-  return std::prev(piece)->j;
+  return travel_drive_profile(*s.travel);
 }
 
 ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>& wind) {
@@ -99,14 +91,14 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
       p.drum_s0 = drum.position(p.t0);
       p.drum_v0 = drum.speed(p.t0);
       p.drum_a0 = drum.accel(p.t0);
-      p.drum_jerk = jerk_at(drum, p.t0);
+      p.drum_jerk = drum.jerk(p.t0);
     }
     if (travel) {
       // The drive's profile gives x exactly (a cubic within the phase); y keeps its segments.
       p.x0 = travel->position(p.t0);
       p.vx0 = travel->speed(p.t0);
       p.ax = travel->accel(p.t0);
-      p.jx = jerk_at(*travel, p.t0);
+      p.jx = travel->jerk(p.t0);
     }
     if (std::isfinite(p.t1)) {
       const double dt = p.t1 - p.t0;

@@ -138,6 +138,22 @@ SpeedProfile SpeedProfile::build(double initial_speed, const std::vector<SpeedMo
   return profile;
 }
 
+SpeedProfile SpeedProfile::from_pieces(std::vector<ProfilePiece> pieces, double end_of_moves) {
+  SWAYBOUND_REQUIRE(!pieces.empty() && pieces.front().t0 == 0 && pieces.back().t1 == kInfinity,
+                    "pieces must run from t = 0 to infinity ({} pieces)", pieces.size());
+  for (std::size_t k = 0; k < pieces.size(); ++k) {
+    SWAYBOUND_REQUIRE(pieces[k].t1 > pieces[k].t0, "piece {} has no duration ({} to {})", k, pieces[k].t0,
+                      pieces[k].t1);
+    SWAYBOUND_REQUIRE(k == 0 || pieces[k].t0 == pieces[k - 1].t1, "piece {} does not start where piece {} ends", k,
+                      k - 1);
+  }
+  SWAYBOUND_REQUIRE(std::isfinite(end_of_moves) && end_of_moves >= 0, "end of moves {} s", end_of_moves);
+  SpeedProfile profile;
+  profile.pieces_ = std::move(pieces);
+  profile.end_of_moves_ = end_of_moves;
+  return profile;
+}
+
 const ProfilePiece& SpeedProfile::piece_at(double t) const {
   // The first piece whose start is after t, less one; pieces_[0].t0 = 0 <= t.
   const auto after = std::upper_bound(pieces_.begin(), pieces_.end(), t,
@@ -161,6 +177,11 @@ double SpeedProfile::accel(double t) const {
   if (t < 0) return 0;
   const ProfilePiece& q = piece_at(t);
   return piece_accel(q, t - q.t0);
+}
+
+double SpeedProfile::jerk(double t) const {
+  if (t < 0) return 0;
+  return piece_at(t).j;
 }
 
 std::vector<double> SpeedProfile::breakpoints() const {

@@ -251,6 +251,21 @@ std::string normalised_yaml(const Spec& spec) {
       w.begin("travel");
       w.value("speed", t->initial_speed, u::speed);
       write_moves(t->moves);
+      if (const auto& sh = t->shaper) {
+        w.begin("shaper");
+        w.text("kind", sh->kind == ShaperKind::zv ? "zv" : sh->kind == ShaperKind::zvd ? "zvd" : "ei");
+        w.value("frequency", sh->frequency, u::rate);
+        w.value("damping_ratio", sh->damping_ratio, u::dimensionless);
+        if (sh->kind == ShaperKind::ei) w.value("vibration_tolerance", sh->vibration_tolerance, u::dimensionless);
+        w.end();
+      }
+      if (const auto& stop = t->stop) {
+        w.begin("stop");
+        w.value("at", stop->at, u::duration);
+        w.value("decel", stop->decel, u::acceleration);
+        w.value("jerk", stop->jerk, u::jerk);
+        w.end();
+      }
       w.end();
     }
     if (const auto& h = s.hoist) {

@@ -9,6 +9,7 @@
 
 #include "loader_parts.hpp"
 #include "swaybound/model/profile.hpp"
+#include "swaybound/model/shaper.hpp"
 #include "swaybound/spec/paths.hpp"
 
 namespace swaybound::spec_detail {
@@ -382,16 +383,18 @@ void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& s
       try {
         for (const auto& sc : design.scenarios) {
           if (sc.hoist) (void)drum_profile(*sc.hoist);
-          if (sc.travel) {
-            std::vector<SpeedMove> moves;
-            for (const DrumMoveSpec& m : sc.travel->moves) moves.push_back(SpeedMove{m.at, m.to, m.accel, m.jerk});
-            (void)SpeedProfile::build(sc.travel->initial_speed, moves);
-          }
+          if (sc.travel) (void)travel_drive_profile(*sc.travel);  // moves, shaper and stop
         }
         check_hoisted_lengths(probe, design);
       } catch (const ProfileError& e) {
         const auto [message, fix] = split_profile_error(e);
         probe.error(v.mark, fmt::format("hoist.moves[{}]", e.move_index()), message, fix);
+      } catch (const ArgumentError& e) {
+        // A travel drive's shaper or stop (model/shaper.hpp) that cannot be built with this value.
+        const std::string text = e.what();
+        const auto cut = text.find("failed: ");
+        probe.error(v.mark, "travel", cut == std::string::npos ? text : text.substr(cut + 8),
+                    "keep a shaper's damping ratio below 1 (and an EI shaper's below about 0.6)");
       }
       if (probe.diagnostics.empty()) continue;
       const Diagnostic& d = probe.diagnostics.front();

@@ -41,12 +41,19 @@ const FieldInfo kDrumFields[] = {
     {"accel", Field::drum_move_accel, units::acceleration, 0, true},
     {"jerk", Field::drum_move_jerk, units::jerk, 0, false},
 };
+const FieldInfo kTravelFields[] = {
+    {"travel.shaper.frequency", Field::shaper_frequency, units::rate, 0, true},
+    {"travel.shaper.damping_ratio", Field::shaper_damping_ratio, units::dimensionless, 0, false},
+    {"travel.stop.decel", Field::stop_decel, units::acceleration, 0, true},
+};
 const FieldInfo kDashpotField{"coefficient", Field::dashpot_coefficient, units::linear_damping, 0, false};
 
 const FieldInfo& info(Field f) {
   for (const auto& i : kLinkFields)
     if (i.field == f) return i;
   for (const auto& i : kDrumFields)
+    if (i.field == f) return i;
+  for (const auto& i : kTravelFields)
     if (i.field == f) return i;
   return kDashpotField;
 }
@@ -63,6 +70,17 @@ std::optional<SpecPath> parse_scenario_path(const Spec& spec, const std::string&
   }
   const ScenarioSpec& scenario = spec.scenarios[static_cast<std::size_t>(index)];
   const bool travel = field.rfind("travel.", 0) == 0;
+  for (const auto& f : kTravelFields)
+    if (field == f.name) {
+      const bool present = scenario.travel && (f.field == Field::stop_decel ? scenario.travel->stop.has_value()
+                                                                             : scenario.travel->shaper.has_value());
+      if (!present) {
+        error = fmt::format("scenario '{}' has no travel {} to vary", name,
+                            f.field == Field::stop_decel ? "stop" : "shaper");
+        return std::nullopt;
+      }
+      return SpecPath{f.field, index, 0, true};
+    }
   const std::vector<DrumMoveSpec>* moves = nullptr;
   if (travel && scenario.travel) moves = &scenario.travel->moves;
   if (!travel && scenario.hoist) moves = &scenario.hoist->moves;
@@ -89,7 +107,8 @@ std::optional<SpecPath> parse_scenario_path(const Spec& spec, const std::string&
     }
   }
   error = fmt::format("unknown field '{}' (a scenario has: hoist.drum_speed, hoist.moves[K].to | accel | jerk, "
-                      "travel.speed, travel.moves[K].to | accel | jerk)",
+                      "travel.speed, travel.moves[K].to | accel | jerk, travel.shaper.frequency | damping_ratio, "
+                      "travel.stop.decel)",
                       field);
   return std::nullopt;
 }
@@ -211,6 +230,9 @@ auto& value_ref(SpecT& spec, const SpecPath& p) {
   if (p.field == Field::dashpot_coefficient) return spec.dashpots.at(static_cast<std::size_t>(p.index)).coefficient;
   if (p.field >= Field::drum_speed) {
     auto& scenario = spec.scenarios.at(static_cast<std::size_t>(p.index));
+    if (p.field == Field::shaper_frequency) return scenario.travel.value().shaper.value().frequency;
+    if (p.field == Field::shaper_damping_ratio) return scenario.travel.value().shaper.value().damping_ratio;
+    if (p.field == Field::stop_decel) return scenario.travel.value().stop.value().decel;
     if (p.field == Field::drum_speed)
       return p.travel ? scenario.travel.value().initial_speed : scenario.hoist.value().initial_speed;
     auto& moves = p.travel ? scenario.travel.value().moves : scenario.hoist.value().moves;

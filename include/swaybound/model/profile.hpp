@@ -59,9 +59,15 @@ class SpeedProfile {
   /// speed is an ArgumentError.
   static SpeedProfile build(double initial_speed, const std::vector<SpeedMove>& moves);
 
+  /// A profile made of given pieces (a shaped or stopped command, model/shaper.hpp): contiguous from
+  /// t = 0, each of positive duration, the last ending at +infinity; `end_of_moves` as below.
+  /// Throws ArgumentError when the pieces are not so.
+  static SpeedProfile from_pieces(std::vector<ProfilePiece> pieces, double end_of_moves);
+
   double position(double t) const;  ///< [m], 0 at t = 0
   double speed(double t) const;     ///< [m/s]
   double accel(double t) const;     ///< [m/s^2]; right-continuous at a jump
+  double jerk(double t) const;      ///< [m/s^3]; of the piece holding t (0 before t = 0)
 
   /// Contiguous from t = 0, each of positive duration; the last has t1 = +infinity.
   const std::vector<ProfilePiece>& pieces() const { return pieces_; }

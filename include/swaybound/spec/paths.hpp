@@ -8,6 +8,7 @@
 //   dashpots[NAME].coefficient
 //   scenarios[NAME].hoist.drum_speed | hoist.moves[K].to | hoist.moves[K].accel | hoist.moves[K].jerk
 //   scenarios[NAME].travel.speed | travel.moves[K].to | travel.moves[K].accel | travel.moves[K].jerk
+//   scenarios[NAME].travel.shaper.frequency | travel.shaper.damping_ratio | travel.stop.decel
 #include <optional>
 #include <string>
 #include <string_view>
@@ -25,6 +26,7 @@ struct SpecPath {
     dashpot_coefficient,
     parts_of_line, rope_ea, rope_stiffness, rope_damping, rope_damping_ratio,
     drum_speed, drum_move_to, drum_move_accel, drum_move_jerk,
+    shaper_frequency, shaper_damping_ratio, stop_decel,  // a travel drive's
   };
   Field field{};
   int index = 0;  ///< link or dashpot index

@@ -17,6 +17,10 @@ inline constexpr int kSpecFormatVersion = 1;
 
 enum class LinkKind { rigid, rope };
 
+/// Input shapers of a travel drive (model/shaper.hpp): zero vibration, zero vibration and
+/// derivative, extra-insensitive.
+enum class ShaperKind { zv, zvd, ei };
+
 /// Power-law rotary damper at a pivot: tau = -C w_ref (|w|/w_ref)^alpha sign(w), w_ref = 1 rad/s,
 /// so C is the torque per unit rate at 1 rad/s for every alpha (alpha = 1 is a linear damper).
 struct DamperSpec {
@@ -142,6 +146,22 @@ struct ScenarioSpec {
   struct Travel {
     double initial_speed = 0;
     std::vector<DrumMoveSpec> moves;
+    /// The moves convolved with an input shaper designed for one mode (model/shaper.hpp).
+    struct Shaper {
+      ShaperKind kind = ShaperKind::zv;
+      double frequency = 0;              ///< design frequency [Hz]
+      double damping_ratio = 0;          ///< [-], in [0, 1)
+      double vibration_tolerance = 0.05; ///< EI only [-], in (0, 1)
+      Mark mark;
+    };
+    std::optional<Shaper> shaper;
+    /// An emergency or service stop: at `at` the drive leaves its (shaped) command and stops at
+    /// `decel`, jerk-limited when jerk > 0.
+    struct Stop {
+      double at = 0, decel = 0, jerk = 0;  ///< [s], [m/s^2], [m/s^3]
+      Mark mark;
+    };
+    std::optional<Stop> stop;
     Mark mark;
   };
   std::optional<Travel> travel;
