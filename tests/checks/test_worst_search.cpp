@@ -1,0 +1,185 @@
+// The search for the worst case between the samples (checks/worst_search.hpp): it finds a worst
+// start that the samples miss, to a closed form where one exists, and a design that passes on the
+// samples but fails on the searched worst fails the check.
+#include <catch2/catch.hpp>
+#include <chrono>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <numbers>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+
+#include "swaybound/checks/check_run.hpp"
+#include "swaybound/checks/worst_search.hpp"
+#include "swaybound/report/results.hpp"
+#include "swaybound/spec.hpp"
+#include "../support/close_to.hpp"
+
+using namespace swaybound;
+using swaybound::testing::IsCloseTo;
+namespace fs = std::filesystem;
+
+namespace {
+
+constexpr double kPi = std::numbers::pi;
+constexpr double kG = 9.81;
+
+CheckOptions searching() {
+  CheckOptions o;
+  o.audit = false;
+  o.record = false;
+  o.search = search_worst;
+  return o;
+}
+
+/// A point mass m = 250 kg on a rope of L = 4 m (massless: all the mass at its end), released from
+/// starts in `initial`, with a pivot-load limit of `limit` newtons.
+std::string released_pendulum(const std::string& initial, double limit, const std::string& search) {
+  return fmt::format(R"(
+swaybound: 1
+name: released pendulum
+gravity: 9.81
+links:
+  - {{name: rope, kind: rope, length: 4, mass: 250, com: 4, inertia: 0}}
+cases:
+  duration: 3 s
+  search: {}
+  initial:
+    - {}
+limits:
+  - {{pivot_load: {} N, link: rope}}
+solver: {{rtol: 1e-12, atol: 1e-13}}
+)",
+                     search, initial, limit);
+}
+
+/// Peak rope tension of a point pendulum started at theta0 with rate omega0 (|theta0| < 90 deg, so it
+/// passes the bottom): energy from the start to the bottom, v^2 = L^2 omega0^2 + 2 g L (1 - cos
+/// theta0), and the normal equation there, T - m g = m v^2 / L, give T = m g (3 - 2 cos theta0) +
+/// m L omega0^2; T(theta) = m g (3 cos theta - 2 cos theta0) + m L omega0^2 along the swing is
+/// largest at the bottom (Meriam & Kraige, Engineering Mechanics: Dynamics, ch. 3, work-energy and
+/// normal-tangential coordinates).
+double peak_tension(double m, double length, double theta0, double omega0) {
+  return m * kG * (3 - 2 * std::cos(theta0)) + m * length * omega0 * omega0;
+}
+
+}  // namespace
+
+TEST_CASE("the search finds the peak rope tension at the edge of the start box that random samples miss",
+          "[checks][search][reference]") {
+  const double m = 250, length = 4;
+  SECTION("angle and rate: BOBYQA in two dimensions") {
+    // Box theta0 in [20, 60] deg, omega0 in [0.1, 0.5] rad/s: T rises with theta0 and omega0^2, so
+    // the worst start is the corner (60 deg, 0.5 rad/s); 4 random starts do not reach it.
+    const Spec spec = load_spec_text(
+        released_pendulum("random: {count: 4, seed: 11, theta: [[20 deg, 60 deg]], rate: [[0.1 rad/s, 0.5 rad/s]]}",
+                          1e6, "{evaluations: 40, starts: 1}"),
+        "pendulum.yaml");
+    const CheckReport r = run_check(spec, searching());
+    REQUIRE(r.search.size() == 1);
+    const LimitSearch& s = r.search[0];
+    const double expected = peak_tension(m, length, 60 * kPi / 180, 0.5);
+    CHECK(s.searched);
+    CHECK(s.sampled_worst < expected * (1 - 1e-3));  // the samples miss the corner
+    CHECK(s.found_worse);
+    CHECK_THAT(s.searched_worst, IsCloseTo(expected, 0, 1e-6));
+    CHECK_THAT(s.theta[0], IsCloseTo(60 * kPi / 180, 0, 1e-6));
+    CHECK_THAT(s.omega[0], IsCloseTo(0.5, 0, 1e-6));
+    CHECK(s.evaluations <= 40);
+    CHECK(s.evaluations > 0);
+    REQUIRE(s.methods.size() == 1);
+    CHECK(s.methods[0] == "BOBYQA");
+    CHECK_THAT(s.raise, IsCloseTo(s.searched_worst - s.sampled_worst, 1e-9, 0));
+    CHECK_THAT(s.raise_of_margin, IsCloseTo(s.raise / (1e6 - s.sampled_worst), 0, 1e-12));
+    CHECK(s.pass);
+    CHECK(r.checks[0].worst == s.sampled_worst);  // the sampled figures stay as they were
+  }
+  SECTION("angle only (released from rest): a one-dimensional box") {
+    const Spec spec = load_spec_text(
+        released_pendulum("random: {count: 4, seed: 11, theta: [[20 deg, 60 deg]]}", 1e6, "{evaluations: 30, starts: 1}"),
+        "pendulum.yaml");
+    const CheckReport r = run_check(spec, searching());
+    REQUIRE(r.search.size() == 1);
+    const LimitSearch& s = r.search[0];
+    const double expected = peak_tension(m, length, 60 * kPi / 180, 0);  // 2 m g
+    CHECK(s.sampled_worst < expected * (1 - 1e-3));
+    CHECK_THAT(s.searched_worst, IsCloseTo(expected, 0, 1e-6));
+    CHECK_THAT(s.theta[0], IsCloseTo(60 * kPi / 180, 0, 1e-6));
+    CHECK(s.omega[0] == 0);  // no set gives rates: they stay at 0
+    CHECK(s.evaluations <= 30);
+  }
+}
+
+TEST_CASE("the search finds the vertex peak of a linear damped pendulum's free response", "[checks][search][reference]") {
+  // A point mass m on a massless arm L with a linear pivot damper c, at amplitudes of 1e-3 rad
+  // where sin(theta) = theta to 2e-7: m L^2 theta'' + c theta' + m g L theta = 0, omega_n = sqrt(g / L),
+  // zeta = c / (2 m L^2 omega_n). Free response (Rao, Mechanical Vibrations, ch. 2, underdamped free
+  // vibration with viscous damping): theta(t) = exp(-zeta omega_n t) (theta0 cos(omega_d t) +
+  // (omega0 + zeta omega_n theta0) / omega_d sin(omega_d t)), omega_d = omega_n sqrt(1 - zeta^2).
+  // It is linear in the start, so max over t of |theta| is convex in (theta0, omega0) and its
+  // largest value over a box of starts is at a vertex.
+  const double m = 10, length = 2, zeta = 0.1;
+  const double wn = std::sqrt(kG / length), wd = wn * std::sqrt(1 - zeta * zeta);
+  const double c = 2 * zeta * m * length * length * wn;
+  const double duration = 6;
+  const auto theta_at = [&](double theta0, double omega0, double t) {
+    return std::exp(-zeta * wn * t) * (theta0 * std::cos(wd * t) + (omega0 + zeta * wn * theta0) / wd * std::sin(wd * t));
+  };
+  // Peak |theta| over [0, duration]: a scan at 1e-3 s, then golden-section on the bracket around the
+  // largest sample.
+  const auto peak = [&](double theta0, double omega0) {
+    double best_t = 0, best = 0;
+    for (double t = 0; t <= duration; t += 1e-3)
+      if (std::fabs(theta_at(theta0, omega0, t)) > best) best = std::fabs(theta_at(theta0, omega0, best_t = t));
+    double a = std::max(0.0, best_t - 1e-3), b = std::min(duration, best_t + 1e-3);
+    const double r = (std::sqrt(5.0) - 1) / 2;
+    for (int k = 0; k < 80; ++k) {
+      const double x1 = b - r * (b - a), x2 = a + r * (b - a);
+      if (std::fabs(theta_at(theta0, omega0, x1)) > std::fabs(theta_at(theta0, omega0, x2)))
+        b = x2;
+      else
+        a = x1;
+    }
+    return std::max(best, std::fabs(theta_at(theta0, omega0, 0.5 * (a + b))));
+  };
+  const double theta_lo = -0.5e-3, theta_hi = 1e-3, rate_lo = -1e-3, rate_hi = 2e-3;
+  double reference = 0, ref_theta = 0, ref_rate = 0;
+  for (double th : {theta_lo, theta_hi})
+    for (double w : {rate_lo, rate_hi})
+      if (peak(th, w) > reference) {
+        reference = peak(th, w);
+        ref_theta = th;
+        ref_rate = w;
+      }
+  const Spec spec = load_spec_text(fmt::format(R"(
+swaybound: 1
+name: linear damped pendulum
+gravity: 9.81
+links:
+  - {{name: arm, length: {}, mass: {}, com: {}, inertia: 0, pivot: {{damper: {{coefficient: {} N m s/rad}}}}}}
+cases:
+  duration: {} s
+  search: {{evaluations: 40, starts: 2}}
+  initial:
+    - random: {{count: 6, seed: 3, theta: [[{} rad, {} rad]], rate: [[{} rad/s, {} rad/s]]}}
+limits:
+  - {{peak_angle: 1 deg}}
+solver: {{rtol: 1e-12, atol: 1e-16}}
+)",
+                                                   length, m, length, c, duration, theta_lo, theta_hi, rate_lo,
+                                                   rate_hi),
+                                       "linear.yaml");
+  const CheckReport r = run_check(spec, searching());
+  REQUIRE(r.search.size() == 1);
+  const LimitSearch& s = r.search[0];
+  CHECK(s.sampled_worst < reference * (1 - 1e-3));  // no random start is at the vertex
+  CHECK_THAT(s.searched_worst, IsCloseTo(reference, 0, 1e-6));
+  CHECK_THAT(s.theta[0], IsCloseTo(ref_theta, 1e-12, 0));
+  CHECK_THAT(s.omega[0], IsCloseTo(ref_rate, 1e-12, 0));
+  CHECK(s.evaluations <= 40);
+}
