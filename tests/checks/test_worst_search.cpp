@@ -183,3 +183,186 @@ solver: {{rtol: 1e-12, atol: 1e-16}}
   CHECK_THAT(s.omega[0], IsCloseTo(ref_rate, 1e-12, 0));
   CHECK(s.evaluations <= 40);
 }
+
+TEST_CASE("from a 5 x 5 grid the search reaches the worst of a 100 x 100 reference grid with a tenth of its runs",
+          "[checks][search]") {
+  // A rope and a hook load under a braking trolley; the residual sway after 3 s is smooth in the
+  // start angles and largest on an edge of the box, between the nodes of a 5 x 5 grid. The
+  // reference is the worst of 10^4 starts (a 100 x 100 grid, about 6 s on 2 threads).
+  const auto spec_text = [](int count, const std::string& search) {
+    return fmt::format(R"(
+swaybound: 1
+name: two links under a braking trolley
+gravity: 9.81
+links:
+  - {{name: upper, kind: rope, length: 3, mass: 20}}
+  - {{name: lower, length: 1.2, mass: 300, com: 0.8, inertia: 30}}
+base: {{scenarios: [{{name: brake, initial_velocity: {{x: 1}}, accel: [{{for: 1.0 s, x: -1}}]}}]}}
+cases:
+  duration: 4 s
+  search: {}
+  initial:
+    - grid: {{theta: [[-10 deg, 10 deg, {}], [-20 deg, 20 deg, {}]]}}
+limits:
+  - {{residual_sway: 60 deg, after: 3 s}}
+solver: {{rtol: 1e-9, atol: 1e-11}}
+)",
+                       search, count, count);
+  };
+  CheckOptions reference_options;
+  reference_options.audit = false;
+  reference_options.record = false;
+  const Spec dense = load_spec_text(spec_text(100, "false"), "dense.yaml");
+  const CheckReport reference = run_check(dense, reference_options);
+  REQUIRE(reference.case_count == 10000);
+  const double worst = reference.checks[0].worst;
+
+  const Spec coarse = load_spec_text(spec_text(5, "{evaluations: 60, starts: 3}"), "coarse.yaml");
+  const CheckReport r = run_check(coarse, searching());
+  REQUIRE(r.search.size() == 1);
+  const LimitSearch& s = r.search[0];
+  INFO("reference " << worst << " rad, sampled " << s.sampled_worst << " rad, searched " << s.searched_worst
+                    << " rad after " << s.evaluations << " evaluations");
+  CHECK(s.sampled_worst < worst * (1 - 1e-3));  // the 5 x 5 grid misses it
+  CHECK(s.searched_worst >= worst * (1 - 1e-4));
+  CHECK(s.searched_worst <= worst * (1 + 1e-3));  // and what it found is a start of the same box
+  CHECK(r.case_count + s.evaluations < reference.case_count / 10);
+}
+
+namespace {
+
+fs::path temp_folder(const std::string& name) {
+  const fs::path dir = fs::temp_directory_path() / fmt::format("swaybound-test-search-{}-{}", name, ::getpid());
+  fs::remove_all(dir);
+  fs::create_directories(dir);
+  return dir;
+}
+
+int run_cli(const std::string& args, const fs::path& output) {
+  const int status = std::system(fmt::format("{} {} >{} 2>&1", SWAYBOUND_CLI, args, output.string()).c_str());
+  return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+}
+
+std::string read_text(const fs::path& path) {
+  std::ifstream in(path);
+  return {std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
+}
+
+}  // namespace
+
+TEST_CASE("a design that passes on the samples but fails on the searched worst fails the check",
+          "[checks][search][cli]") {
+  // The pendulum of the first test with a pivot-load limit between its sampled worst and its
+  // closed-form worst over the box, m g (3 - 2 cos 60 deg) + m L (0.5 rad/s)^2.
+  const double expected = peak_tension(250, 4, 60 * kPi / 180, 0.5);
+  const double limit = expected * (1 - 5e-4);
+  const std::string initial = "random: {count: 4, seed: 11, theta: [[20 deg, 60 deg]], rate: [[0.1 rad/s, 0.5 rad/s]]}";
+  const std::string text = released_pendulum(initial, limit, "{evaluations: 40, starts: 2}");
+  const Spec spec = load_spec_text(text, "pendulum.yaml");
+  const CheckReport r = run_check(spec, searching());
+  REQUIRE(r.search.size() == 1);
+  CHECK(r.checks[0].margin > 0);  // the samples pass
+  CHECK(r.search[0].sampled_pass);
+  CHECK_FALSE(r.search[0].pass);
+  CHECK(r.search[0].sampling_missed());
+  CHECK(r.search[0].margin < 0);
+  CHECK_FALSE(r.checks[0].pass);
+  CHECK_FALSE(r.pass);
+
+  // The CLI: exit 1, the statement in the summary and in results.json, a packet verify accepts;
+  // --no-search passes it, as sampling alone does.
+  const fs::path dir = temp_folder("missed");
+  std::ofstream(dir / "spec.yaml") << text;
+  CHECK(run_cli(fmt::format("check {} --out {} --quiet --jobs 2", (dir / "spec.yaml").string(), (dir / "packet").string()),
+                dir / "out.txt") == 1);
+  CHECK(read_text(dir / "out.txt").find("sampling alone would have passed this check") != std::string::npos);
+  const auto j = nlohmann::json::parse(read_text(dir / "packet" / "results.json"));
+  CHECK(j["verdict"] == "fail");
+  CHECK(j["checks"][0]["verdict"] == "fail");
+  CHECK(j["checks"][0]["search"]["verdict"] == "fail");
+  CHECK(j["checks"][0]["search"]["sampling_alone_would_pass"] == true);
+  CHECK(run_cli(fmt::format("verify {}", (dir / "packet").string()), dir / "verify.txt") == 0);
+  INFO(read_text(dir / "verify.txt"));
+  CHECK(run_cli(fmt::format("check {} --out {} --quiet --jobs 2 --no-search", (dir / "spec.yaml").string(),
+                            (dir / "sampled").string()),
+                dir / "out2.txt") == 0);
+  fs::remove_all(dir);
+}
+
+TEST_CASE("--no-search writes the results of the check without the search; with it, results.json has a search "
+          "section per per-case check",
+          "[checks][search][cli]") {
+  std::string text = released_pendulum(
+      "random: {count: 4, seed: 11, theta: [[20 deg, 60 deg]], rate: [[0.1 rad/s, 0.5 rad/s]]}", 1e6,
+      "{evaluations: 12, starts: 2}");
+  text.replace(text.find("limits:\n"), 8, "limits:\n  - {modal_damping_min: 0}\n");  // a global check first
+  const fs::path dir = temp_folder("keys");
+  std::ofstream(dir / "spec.yaml") << text;
+  const std::string spec_path = (dir / "spec.yaml").string();
+  REQUIRE(run_cli(fmt::format("check {} --out {} --quiet --no-search", spec_path, (dir / "plain").string()),
+                  dir / "out.txt") == 0);
+  REQUIRE(run_cli(fmt::format("check {} --out {} --quiet", spec_path, (dir / "searched").string()), dir / "out.txt") == 0);
+
+  // --no-search: what run_check gives without a search stage, key for key.
+  const Spec spec = load_spec(spec_path);
+  CheckOptions plain;
+  const auto expected = nlohmann::json::parse(results_json(spec, run_check(spec, plain)));
+  const auto without = nlohmann::json::parse(read_text(dir / "plain" / "results.json"));
+  CHECK(without == expected);
+  CHECK_FALSE(without.contains("search"));
+  CHECK_FALSE(without["checks"][1].contains("search"));
+
+  const auto with = nlohmann::json::parse(read_text(dir / "searched" / "results.json"));
+  REQUIRE(with.contains("search"));
+  CHECK(with["search"]["evaluations_per_limit"] == 12);
+  CHECK(with["search"]["starts_per_limit"] == 2);
+  // The keys of the check without the search are all there, unchanged in meaning.
+  for (const auto& [key, value] : without["checks"][1].items()) CHECK(with["checks"][1].contains(key));
+  CHECK(with["checks"][1]["worst"] == without["checks"][1]["worst"]);
+  const auto& search = with["checks"][1]["search"];
+  for (const char* key : {"searched", "sampled_worst", "searched_worst", "found_worse", "start", "raise",
+                          "raise_of_margin", "margin", "evaluations", "methods", "failed_run",
+                          "local_worst_statistical_not_a_bound", "ftle_per_s", "verdict", "sampling_alone_would_pass"})
+    CHECK(search.contains(key));
+  for (const char* key : {"scenario", "theta_rad", "rate_rad_per_s", "from_case"}) CHECK(search["start"].contains(key));
+  CHECK(search["sampled_worst"] == without["checks"][1]["worst"]);
+  CHECK(search["searched_worst"].get<double>() > search["sampled_worst"].get<double>());
+  CHECK(search["evaluations"].get<int>() <= 12);
+  CHECK(search["start"]["scenario"] == "still");  // the scenario of a spec without a base
+  CHECK_FALSE(with["checks"][0].contains("search"));  // modal damping is not per case
+  fs::remove_all(dir);
+}
+
+TEST_CASE("a searched worst whose FTLE is above chaos.threshold is marked a local worst, not a bound",
+          "[checks][search][chaos]") {
+  // The flag follows the FTLE of the case the search ends on: a threshold below every FTLE of the
+  // box marks it, one above every FTLE does not.
+  const auto text = [](const std::string& threshold) {
+    return fmt::format(R"(
+swaybound: 1
+name: flagged pendulum
+links:
+  - {{name: rope, kind: rope, length: 4, mass: 250, com: 4, inertia: 0}}
+cases:
+  duration: 3 s
+  search: {{evaluations: 8, starts: 1}}
+  initial:
+    - random: {{count: 3, seed: 2, theta: [[20 deg, 60 deg]]}}
+limits:
+  - {{pivot_load: 1 MN, link: rope}}
+  - {{ftle_max: 100 /s, horizon: 3 s}}
+chaos: {{threshold: {}}}
+)",
+                       threshold);
+  };
+  const Spec low = load_spec_text(text("-100 /s"), "low.yaml");
+  const Spec high = load_spec_text(text("100 /s"), "high.yaml");
+  const CheckReport a = run_check(low, searching());
+  const CheckReport b = run_check(high, searching());
+  REQUIRE(a.search.size() == 2);
+  REQUIRE(b.search.size() == 2);
+  CHECK(a.search[0].chaotic);
+  CHECK_FALSE(std::isnan(a.search[0].ftle));
+  CHECK_FALSE(b.search[0].chaotic);
+  CHECK(results_json(low, a).find("\"local_worst_statistical_not_a_bound\": true") != std::string::npos);
+}
