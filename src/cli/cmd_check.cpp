@@ -19,30 +19,31 @@ namespace swaybound::cli {
 namespace {
 
 /// The search's lines under a check: what it found between the samples, if anything.
-void print_search(const CheckReport& r, const CheckResult& c, std::ostream& out) {
+void print_search(const Spec& spec, const CheckReport& r, const CheckResult& c, std::ostream& out) {
   const auto it = std::find_if(r.search.begin(), r.search.end(), [&](const LimitSearch& s) { return s.limit == c.limit; });
   if (it == r.search.end() || !it->searched) return;
   const LimitSearch& s = *it;
+  const std::string scenario = s.scenario >= 0 ? spec.scenarios[static_cast<std::size_t>(s.scenario)].name : "";
   std::string start;
   for (std::size_t i = 0; i < s.theta.size(); ++i)
     start += fmt::format("{}{:.6g} deg", i ? ", " : "", s.theta[i] * 180 / 3.141592653589793);
-  start += " / rate ";
+  start += ", rate ";
   for (std::size_t i = 0; i < s.omega.size(); ++i)
     start += fmt::format("{}{:.6g} deg/s", i ? ", " : "", s.omega[i] * 180 / 3.141592653589793);
   if (s.failed_run)
-    out << fmt::format("    search: a run failed between the samples ({}) from theta {}, scenario {} ({} runs)\n",
-                       s.failure, start, s.scenario, s.evaluations);
+    out << fmt::format("    search: a run failed between the samples ({}) from theta {} under '{}' ({} runs)\n",
+                       s.failure, start, scenario, s.evaluations);
   else if (s.found_worse)
-    out << fmt::format("    search: worst between the samples {} (raised by {}, {} of the margin), theta {}, "
-                       "scenario {} ({} runs)\n",
+    out << fmt::format("    search: worst between the samples {} (raised by {}, {} of the margin) from theta {} "
+                       "under '{}' ({} runs)\n",
                        engineering(s.searched_worst, c.unit), engineering(s.raise, c.unit),
-                       ratio_percent(s.raise_of_margin), start, s.scenario, s.evaluations);
+                       ratio_percent(s.raise_of_margin), start, scenario, s.evaluations);
   if (s.sampling_missed())
     out << "    FAIL on the searched worst: sampling alone would have passed this check\n";
   if (s.chaotic) out << "    search: local worst, statistical, not a bound (FTLE above chaos.threshold)\n";
 }
 
-void print_summary(const CheckReport& r, std::ostream& out) {
+void print_summary(const Spec& spec, const CheckReport& r, std::ostream& out) {
   out << fmt::format("{:<46} {:>14} {:>14} {:>14} {:>8}  {:<8} {}\n", "check", "limit", "worst", "margin", "ratio",
                      "verdict", "governing case");
   for (const auto& c : r.checks) {
@@ -54,7 +55,7 @@ void print_summary(const CheckReport& r, std::ostream& out) {
                        c.pass ? "pass" : "FAIL", c.governing_id);
     if (c.failed_cases > 0)
       out << fmt::format("    {} case(s) failed to run; first: {}\n", c.failed_cases, c.first_failure);
-    if (r.searched) print_search(r, c, out);
+    if (r.searched) print_search(spec, r, c, out);
     if (c.audit_warning)
       out << fmt::format("    warning: at a 100x tighter tolerance the worst value moves by {}, more than the margin\n",
                          engineering(c.audit_change, c.unit));
@@ -113,7 +114,7 @@ Action add_check(CLI::App& app) {
     const CheckReport report = run_check(spec, options);
     packet.finish(report);
     print_notices(packet.take_notices());
-    print_summary(report, std::cout);
+    print_summary(spec, report, std::cout);
     std::cerr << fmt::format(
         "wrote the packet {} (cases {:.1f} s, modes and chaos {:.1f} s, search {:.1f} s, accuracy audit {:.1f} s)\n",
         packet.target(), report.seconds_cases, report.seconds_chaos, report.seconds_search, report.seconds_audit);
