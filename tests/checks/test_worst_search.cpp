@@ -289,8 +289,8 @@ TEST_CASE("a design that passes on the samples but fails on the searched worst f
   fs::remove_all(dir);
 }
 
-TEST_CASE("--no-search writes the results of the check without the search; with it, results.json has a search "
-          "section per per-case check",
+TEST_CASE("--no-search writes the results of the check without the search and the search adds a section per "
+          "per-case check to results.json",
           "[checks][search][cli]") {
   std::string text = released_pendulum(
       "random: {count: 4, seed: 11, theta: [[20 deg, 60 deg]], rate: [[0.1 rad/s, 0.5 rad/s]]}", 1e6,
@@ -333,7 +333,7 @@ TEST_CASE("--no-search writes the results of the check without the search; with 
   fs::remove_all(dir);
 }
 
-TEST_CASE("a searched worst whose FTLE is above chaos.threshold is marked a local worst, not a bound",
+TEST_CASE("a searched worst whose FTLE is above chaos.threshold is marked a local worst and not a bound",
           "[checks][search][chaos]") {
   // The flag follows the FTLE of the case the search ends on: a threshold below every FTLE of the
   // box marks it, one above every FTLE does not.
@@ -365,4 +365,30 @@ chaos: {{threshold: {}}}
   CHECK_FALSE(std::isnan(a.search[0].ftle));
   CHECK_FALSE(b.search[0].chaotic);
   CHECK(results_json(low, a).find("\"local_worst_statistical_not_a_bound\": true") != std::string::npos);
+}
+
+TEST_CASE("the search gives the same results.json on 1 and 2 threads", "[checks][search][determinism]") {
+  // Two limits share their starts (and so the runs cached between their searches); the result must
+  // not depend on which thread ran a point first.
+  std::string text = released_pendulum(
+      "random: {count: 5, seed: 4, theta: [[20 deg, 60 deg]], rate: [[-0.2 rad/s, 0.5 rad/s]]}", 1e6,
+      "{evaluations: 20, starts: 3}");
+  text.replace(text.find("limits:\n"), 8, "limits:\n  - {peak_angle: 80 deg}\n  - {peak_rate: 100 deg/s}\n");
+  const Spec spec = load_spec_text(text, "threads.yaml");
+  CheckOptions one = searching(), two = searching();
+  one.jobs = 1;
+  two.jobs = 2;
+  const CheckReport a = run_check(spec, one);
+  CHECK(a.search.size() == 3);
+  CHECK(results_json(spec, a) == results_json(spec, run_check(spec, two)));
+}
+
+TEST_CASE("check --no-search takes no value", "[checks][search][cli][usage]") {
+  const fs::path dir = temp_folder("usage");
+  std::ofstream(dir / "spec.yaml") << released_pendulum("single: {theta: [10 deg]}", 1e6, "true");
+  CHECK(run_cli(fmt::format("check {} --out {} --no-search=maybe", (dir / "spec.yaml").string(),
+                            (dir / "packet").string()),
+                dir / "out.txt") == 2);
+  CHECK_FALSE(fs::exists(dir / "packet"));
+  fs::remove_all(dir);
 }
