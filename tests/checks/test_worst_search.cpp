@@ -289,7 +289,7 @@ TEST_CASE("a design that passes on the samples but fails on the searched worst f
   fs::remove_all(dir);
 }
 
-TEST_CASE("--no-search writes the results of the check without the search and the search adds a section per "
+TEST_CASE("check --no-search writes the results of the check without the search and the search adds a section per "
           "per-case check to results.json",
           "[checks][search][cli]") {
   std::string text = released_pendulum(
