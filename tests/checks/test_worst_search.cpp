@@ -392,3 +392,70 @@ TEST_CASE("check --no-search takes no value", "[checks][search][cli][usage]") {
   CHECK_FALSE(fs::exists(dir / "packet"));
   fs::remove_all(dir);
 }
+
+TEST_CASE("a run that fails during the search fails the limit and is reported with its start",
+          "[checks][search][faults]") {
+  // A point mass on an inextensible rope (L = 4 m) started between 60 and 80 deg with an outward
+  // rate of 0 to 1.2 rad/s. Along the swing theta'^2 = omega0^2 - 2 g / L (cos theta0 - cos theta) and
+  // the tension is T = m g (3 cos theta - 2 cos theta0) + m L omega0^2 (energy and the normal
+  // equation, Meriam & Kraige, Dynamics, ch. 3). At (80 deg, 1.2 rad/s) the swing reaches 97 deg and
+  // T = 0 at 94.6 deg: the rope goes slack, which fails the run. The two sampled starts, (60 deg,
+  // 0.6 rad/s) and (80 deg, 0.6 rad/s), swing to 84 deg at most and stay taut.
+  const Spec spec = load_spec_text(R"(
+swaybound: 1
+name: a rope that goes slack between the samples
+gravity: 9.81
+links:
+  - {name: rope, kind: rope, length: 4, mass: 250, com: 4, inertia: 0}
+cases:
+  duration: 4 s
+  search: {evaluations: 30, starts: 1}
+  initial:
+    - grid: {theta: [[60 deg, 80 deg, 2]], rate: [[0, 1.2 rad/s, 1]]}
+limits:
+  - {peak_angle: 120 deg}
+solver: {rtol: 1e-10, atol: 1e-12}
+)",
+                                   "slack.yaml");
+  const CheckReport r = run_check(spec, searching());
+  CHECK(r.failed_total == 0);  // every sampled case ran
+  REQUIRE(r.search.size() == 1);
+  const LimitSearch& s = r.search[0];
+  CHECK(s.sampled_pass);
+  CHECK(s.failed_run);
+  CHECK(s.failure.find("rope_slack") != std::string::npos);
+  CHECK_FALSE(s.pass);
+  CHECK(s.sampling_missed());
+  CHECK_FALSE(r.checks[0].pass);
+  CHECK_FALSE(r.pass);
+  // The reported start fails when run again.
+  const CheckPlan plan = plan_check(spec);
+  CaseDef def = plan.space.at(0);
+  def.initial.theta = s.theta;
+  def.initial.omega = s.omega;
+  Workspace ws(plan.model);
+  const CaseMetrics m = run_case(plan.model, spec, ws, def, plan.streaming, plan.case_options);
+  CHECK_FALSE(m.ok());
+  const auto j = nlohmann::json::parse(results_json(spec, r));
+  CHECK(j["checks"][0]["search"]["failed_run"] == true);
+  CHECK(j["checks"][0]["search"]["searched_worst"].is_null());
+}
+
+TEST_CASE("cases.search loads as false, true or a budget, and round-trips through the normalised spec", "[spec][search]") {
+  const auto with = [](const std::string& search) {
+    return load_spec_text(released_pendulum("single: {theta: [10 deg]}", 1e6, search), "search.yaml");
+  };
+  const Spec off = with("false"), on = with("true"), budget = with("{evaluations: 7, starts: 2}");
+  CHECK_FALSE(off.cases.search.enabled);
+  CHECK(on.cases.search.enabled);
+  CHECK(on.cases.search.evaluations == 40);
+  CHECK(on.cases.search.starts == 3);
+  CHECK(budget.cases.search.evaluations == 7);
+  CHECK(budget.cases.search.starts == 2);
+  const Spec again = load_spec_text(normalised_yaml(budget), "again.yaml");
+  CHECK(again.cases.search.evaluations == 7);
+  CHECK(again.cases.search.starts == 2);
+  CHECK_FALSE(load_spec_text(normalised_yaml(off), "again.yaml").cases.search.enabled);
+  // Off in the spec, run_check does not search even with the stage given.
+  CHECK_FALSE(run_check(off, searching()).searched);
+}
