@@ -54,7 +54,8 @@ struct TaskResult {
 /// a task's result and its count of evaluations do not.
 class SharedRuns {
  public:
-  using Key = std::pair<int, std::vector<double>>;  ///< scenario, then the angles and rates
+  /// Scenario (negated and less one when the run computed the FTLE), then the angles and rates.
+  using Key = std::pair<int, std::vector<double>>;
   std::shared_ptr<const CaseMetrics> find(const Key& key) const {
     const std::lock_guard<std::mutex> lock(mutex_);
     const auto it = runs_.find(key);
@@ -77,6 +78,7 @@ struct Problem {
   const WorstStarts* starts = nullptr;
   Workspace* ws = nullptr;
   SharedRuns* shared = nullptr;
+  CaseOptions options;  ///< the plan's, with the FTLE only where the limit is ftle_max
   int limit = 0;
   Bound bound = Bound::upper;
   CaseDef base;  ///< the sampled start's case: scenario, set, rope lengths
@@ -110,12 +112,12 @@ struct Problem {
       return start_utilisation;
     }
     const CaseDef def = case_at(key.data());
-    SharedRuns::Key shared_key{def.scenario, def.initial.theta};
+    SharedRuns::Key shared_key{options.ftle ? -1 - def.scenario : def.scenario, def.initial.theta};
     shared_key.second.insert(shared_key.second.end(), def.initial.omega.begin(), def.initial.omega.end());
     std::shared_ptr<const CaseMetrics> run = shared->find(shared_key);
     if (!run) {
       run = std::make_shared<const CaseMetrics>(
-          run_case(plan->model, *plan->spec, *ws, def, plan->streaming, plan->case_options));
+          run_case(plan->model, *plan->spec, *ws, def, plan->streaming, options));
       shared->add(std::move(shared_key), run);
     }
     const CaseMetrics& m = *run;
@@ -181,6 +183,11 @@ TaskResult run_task(const CheckPlan& plan, const StartBox& box, const WorstStart
   p.starts = &starts;
   p.ws = &ws;
   p.shared = &shared;
+  // The FTLE doubles a run's cost: only an ftle_max limit's search computes it at every point (the
+  // others get it for the case they end on, for the chaos flag).
+  p.options = plan.case_options;
+  p.options.ftle = plan.case_options.ftle &&
+                   plan.spec->limits[static_cast<std::size_t>(task.limit)].kind == LimitKind::ftle_max;
   p.limit = task.limit;
   p.bound = bound;
   p.base = plan.space.at(start.index);
@@ -310,6 +317,12 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
     s.margin = bound == Bound::upper ? c.limit_value - s.searched_worst : s.searched_worst - c.limit_value;
     s.raise_of_margin = std::isfinite(c.margin) && c.margin != 0 ? s.raise / std::fabs(c.margin) : std::nan("");
     s.pass = c.failed_cases == 0 && s.margin >= 0;
+    if (plan.case_options.ftle && std::isnan(s.ftle) && winner) {
+      // The search ran without the FTLE: compute it for the case it ended on.
+      CaseDef def = winner->best_case;
+      Workspace ws(plan.model);
+      s.ftle = run_case(plan.model, spec, ws, def, plan.streaming, plan.case_options).ftle;
+    }
     s.chaotic = plan.case_options.ftle && !std::isnan(s.ftle) && s.ftle > spec.chaos.threshold;
   }
   return out;
