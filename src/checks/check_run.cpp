@@ -251,7 +251,15 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   RunnerOptions runner;
   runner.jobs = options.jobs;
   runner.progress = options.progress;
-  stream_cases(plan, CaseList::all(plan.space.size()), runner, checks, totals, options.on_case);
+  const bool search = options.search && spec.cases.search.enabled;
+  WorstStarts starts(spec, spec.cases.search.starts);
+  std::function<void(const CaseMetrics&)> on_case = options.on_case;
+  if (search)
+    on_case = [&](const CaseMetrics& m) {
+      starts.offer(m);
+      if (options.on_case) options.on_case(m);
+    };
+  stream_cases(plan, CaseList::all(plan.space.size()), runner, checks, totals, on_case);
   report.failed = std::move(totals.failed);
   report.failed_total = totals.failed_total;
   report.time_budget_total = totals.time_budget_total;
@@ -271,6 +279,15 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   run_global_checks(plan, options.jobs > 0 ? options.jobs : default_jobs(), checks, report.modes, report.chaos);
   checks.finish();
   report.seconds_chaos = seconds_since(chaos_start);
+
+  if (search) {
+    const auto search_start = std::chrono::steady_clock::now();
+    report.search_budget = {spec.cases.search.evaluations, spec.cases.search.starts};
+    report.search = options.search(plan, starts, checks.results(), report.search_budget, options.jobs);
+    report.searched = true;
+    apply_search(report.search, checks.results());
+    report.seconds_search = seconds_since(search_start);
+  }
 
   const auto audit_start = std::chrono::steady_clock::now();
   if (options.audit) report.time_budget_total += audit_governing(plan, options.jobs, checks.results());

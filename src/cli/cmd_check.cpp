@@ -9,6 +9,7 @@
 
 #include "commands.hpp"
 #include "swaybound/cases/case_space.hpp"
+#include "swaybound/checks/worst_search.hpp"
 #include "swaybound/report/check_packet.hpp"
 #include "swaybound/report/format.hpp"
 #include "swaybound/spec.hpp"
@@ -17,7 +18,32 @@ namespace swaybound::cli {
 
 namespace {
 
-void print_summary(const CheckReport& r, std::ostream& out) {
+/// The search's lines under a check: what it found between the samples, if anything.
+void print_search(const Spec& spec, const CheckReport& r, const CheckResult& c, std::ostream& out) {
+  const auto it = std::find_if(r.search.begin(), r.search.end(), [&](const LimitSearch& s) { return s.limit == c.limit; });
+  if (it == r.search.end() || !it->searched) return;
+  const LimitSearch& s = *it;
+  const std::string scenario = s.scenario >= 0 ? spec.scenarios[static_cast<std::size_t>(s.scenario)].name : "";
+  std::string start;
+  for (std::size_t i = 0; i < s.theta.size(); ++i)
+    start += fmt::format("{}{:.6g} deg", i ? ", " : "", s.theta[i] * 180 / 3.141592653589793);
+  start += ", rate ";
+  for (std::size_t i = 0; i < s.omega.size(); ++i)
+    start += fmt::format("{}{:.6g} deg/s", i ? ", " : "", s.omega[i] * 180 / 3.141592653589793);
+  if (s.failed_run)
+    out << fmt::format("    search: a run failed between the samples ({}) from theta {} under '{}' ({} runs)\n",
+                       s.failure, start, scenario, s.evaluations);
+  else if (s.found_worse)
+    out << fmt::format("    search: worst between the samples {} (raised by {}, {} of the margin) from theta {} "
+                       "under '{}' ({} runs)\n",
+                       engineering(s.searched_worst, c.unit), engineering(s.raise, c.unit),
+                       ratio_percent(s.raise_of_margin), start, scenario, s.evaluations);
+  if (s.sampling_missed())
+    out << "    FAIL on the searched worst: sampling alone would have passed this check\n";
+  if (s.chaotic) out << "    search: local worst, statistical, not a bound (FTLE above chaos.threshold)\n";
+}
+
+void print_summary(const Spec& spec, const CheckReport& r, std::ostream& out) {
   out << fmt::format("{:<46} {:>14} {:>14} {:>14} {:>8}  {:<8} {}\n", "check", "limit", "worst", "margin", "ratio",
                      "verdict", "governing case");
   for (const auto& c : r.checks) {
@@ -29,6 +55,7 @@ void print_summary(const CheckReport& r, std::ostream& out) {
                        c.pass ? "pass" : "FAIL", c.governing_id);
     if (c.failed_cases > 0)
       out << fmt::format("    {} case(s) failed to run; first: {}\n", c.failed_cases, c.first_failure);
+    if (r.searched) print_search(spec, r, c, out);
     if (c.audit_warning)
       out << fmt::format("    warning: at a 100x tighter tolerance the worst value moves by {}, more than the margin\n",
                          engineering(c.audit_change, c.unit));
@@ -58,7 +85,10 @@ Action add_check(CLI::App& app) {
                 "Replace the packet of another design (a spec with another name); never deletes files "
                 "swaybound did not write");
   cmd->add_flag("--quiet", o->quiet, "No progress on stderr");
-  return [cmd, o]() {
+  auto no_search = std::make_shared<bool>(false);
+  cmd->add_flag("--no-search", *no_search,
+                "Skip the search for the worst case between the samples (the checks are the samples' alone)");
+  return [cmd, o, no_search]() {
     if (!cmd->parsed()) return -1;
     std::string spec_text = read_input_file("SPEC", o->spec);
     const Spec spec = load_spec(o->spec, LoadOptions{o->max_cases, o->max_samples});
@@ -72,6 +102,7 @@ Action add_check(CLI::App& app) {
     CheckOptions options;
     options.jobs = o->jobs;
     options.audit = !o->no_audit;
+    if (!*no_search) options.search = search_worst;
     packet.attach(options);
     if (!o->quiet && ::isatty(2))
       options.progress = [](const Progress& p) {
@@ -83,9 +114,10 @@ Action add_check(CLI::App& app) {
     const CheckReport report = run_check(spec, options);
     packet.finish(report);
     print_notices(packet.take_notices());
-    print_summary(report, std::cout);
-    std::cerr << fmt::format("wrote the packet {} (cases {:.1f} s, modes and chaos {:.1f} s, accuracy audit {:.1f} s)\n",
-                             packet.target(), report.seconds_cases, report.seconds_chaos, report.seconds_audit);
+    print_summary(spec, report, std::cout);
+    std::cerr << fmt::format(
+        "wrote the packet {} (cases {:.1f} s, modes and chaos {:.1f} s, search {:.1f} s, accuracy audit {:.1f} s)\n",
+        packet.target(), report.seconds_cases, report.seconds_chaos, report.seconds_search, report.seconds_audit);
     return report.pass ? kExitPass : kExitFail;
   };
 }

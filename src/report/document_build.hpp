@@ -7,6 +7,7 @@
 //   document_build_design.cpp     3 design summary
 //   document_build_verdict.cpp    4 verdict, with the definitions of its figures
 //   document_build_loads.cpp      4 (cont.) loads of the hanging equilibrium
+//   document_build_search.cpp     4b the worst case between the samples (when the search ran)
 //   document_build_modes.cpp      5 modes
 //   document_build_governing.cpp  6 governing cases
 //   document_build_ropes.cpp      6 (cont.) rope tension, slack, snatches, hoist
@@ -84,6 +85,7 @@ Section sizing_section(const Spec& input, const SizingResult& r);
 Section scope_section(const Spec& spec, const CheckReport& r, const Document& d);
 Section design_section(const Spec& spec, const CheckReport& r);
 Section verdict_section(const Spec& spec, const CheckReport& r, const std::vector<CaseEnvelopeRow>* cases);
+Section search_section(const Spec& spec, const CheckReport& r);
 Section modal_section(const Spec& spec, const CheckReport& r);
 Section governing_section(const Spec& spec, const CheckReport& r);
 Section chaos_section(const Spec& spec, const CheckReport& r);

@@ -39,6 +39,31 @@ bool has_lift_off(const Spec& spec) {
                      [](const ScenarioSpec& s) { return s.lift_off.has_value(); });
 }
 
+/// The search for the worst case between the samples of one per-case check (results.json).
+Json search_json(const Spec& spec, const LimitSearch& s) {
+  Json j;
+  j["searched"] = s.searched;
+  j["sampled_worst"] = number(s.sampled_worst);
+  j["searched_worst"] = number(s.searched_worst);
+  j["found_worse"] = s.found_worse;
+  j["start"] = {{"scenario", s.scenario >= 0 ? Json(spec.scenarios[static_cast<std::size_t>(s.scenario)].name) : Json(nullptr)},
+                {"theta_rad", vector_json(s.theta)},
+                {"rate_rad_per_s", vector_json(s.omega)},
+                {"from_case", s.from_case}};
+  j["raise"] = number(s.raise);
+  j["raise_of_margin"] = number(s.raise_of_margin);
+  j["margin"] = number(s.margin);
+  j["evaluations"] = s.evaluations;
+  j["methods"] = s.methods;
+  j["failed_run"] = s.failed_run;
+  if (s.failed_run) j["failure"] = s.failure;
+  j["local_worst_statistical_not_a_bound"] = s.chaotic;
+  j["ftle_per_s"] = number(s.ftle);
+  j["verdict"] = s.pass ? "pass" : "fail";
+  j["sampling_alone_would_pass"] = s.sampling_missed();
+  return j;
+}
+
 /// The ropes, switches and lift-off of a recorded governing case (results.json).
 Json governing_case_json(const Spec& spec, const RecordedCase& rc) {
   Json ropes = Json::array();
@@ -141,9 +166,18 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
       cj["accuracy_audit"] = {{"value", number(c.audit_value)}, {"change", number(c.audit_change)},
                               {"warning", c.audit_warning}};
     cj["verdict"] = c.pass ? "pass" : "fail";
+    if (r.searched)
+      for (const LimitSearch& ls : r.search)
+        if (ls.limit == c.limit) cj["search"] = search_json(spec, ls);
     checks.push_back(cj);
   }
   j["checks"] = checks;
+  // Only when the search ran, so a check without it (--no-search) writes what it wrote before.
+  if (r.searched)
+    j["search"] = {{"evaluations_per_limit", r.search_budget.evaluations},
+                 {"starts_per_limit", r.search_budget.starts},
+                 {"method", "bounded local search of the start box (NLopt BOBYQA; Nelder-Mead, COBYLA fallbacks) "
+                            "from the worst sampled cases: a local worst, not a bound"}};
   // Chains with elastic ropes or a lift-off: per recorded governing case its ropes' figures.
   if (has_elastic_rope(spec) || has_lift_off(spec)) {
     Json governing = Json::array();

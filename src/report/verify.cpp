@@ -339,10 +339,16 @@ class Verifier {
         !std::isnan(expected_margin) && std::fabs(expected_margin) <= kRelativeTolerance * scale;
     bool pass = failed_here == 0 && !std::isnan(expected_margin) && expected_margin >= 0;
     if (near_zero && failed_here == 0) pass = recorded_verdict == "pass";
+    // The search for the worst case between the samples fails a check the samples pass.
+    const bool search_fails = pass && c.contains("search") && c["search"].is_object() &&
+                              text(c["search"], "verdict") == "fail";
+    if (search_fails) pass = false;
     if ((recorded_verdict == "pass") != pass && (recorded_verdict == "pass" || recorded_verdict == "fail")) {
       std::string why;
       if (std::isnan(expected_margin))
         why = "no worst value was computed";
+      else if (search_fails)
+        why = "the search found a worst case between the samples that fails it";
       else if (failed_here != 0)
         why = fmt::format("failed_cases is {:g}, and a case that failed to run fails the check", failed_here);
       else

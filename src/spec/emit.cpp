@@ -289,6 +289,13 @@ std::string normalised_yaml(const Spec& spec) {
   w.value("duration", spec.cases.duration, u::duration);
   w.value("output_rate", spec.cases.output_rate, u::rate);
   w.value("settling_band", spec.cases.settling_band, u::angle);
+  out << YAML::Key << "search" << YAML::Value;
+  if (spec.cases.search.enabled)
+    out << YAML::Flow << YAML::BeginMap << YAML::Key << "evaluations" << YAML::Value << spec.cases.search.evaluations
+        << YAML::Key << "starts" << YAML::Value << spec.cases.search.starts << YAML::EndMap;
+  else
+    out << "false";
+  w.mark_default("search");
   out << YAML::Key << "initial" << YAML::Value << YAML::BeginSeq;
   for (std::size_t i = 0; i < spec.cases.initial.size(); ++i) {
     const auto& set = spec.cases.initial[i];

@@ -247,12 +247,45 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
   }
 }
 
+/// cases.search: `false`, `true`, or {evaluations, starts} (the search for the worst case between
+/// the samples, checks/worst_search.hpp).
+void read_search(const MapView& cases, SearchSpec& search) {
+  Context& ctx = cases.ctx();
+  if (!cases.has("search")) {
+    ctx.defaults_filled.push_back("cases.search");
+    return;
+  }
+  const YAML::Node node = cases.get("search");
+  search.mark = mark_of(node);
+  if (node.IsScalar()) {
+    if (auto c = read_choice(ctx, node, "cases.search", {"true", "false"})) search.enabled = *c == "true";
+    return;
+  }
+  MapView m(ctx, node, "cases.search", {"evaluations", "starts"});
+  if (!m.ok()) return;
+  if (m.has("evaluations")) {
+    if (auto v = read_integer(ctx, m.get("evaluations"), m.path("evaluations"), 1, 100'000))
+      search.evaluations = static_cast<int>(*v);
+  } else {
+    ctx.defaults_filled.push_back(m.path("evaluations"));
+  }
+  if (m.has("starts")) {
+    if (auto v = read_integer(ctx, m.get("starts"), m.path("starts"), 1, 100)) search.starts = static_cast<int>(*v);
+  } else {
+    ctx.defaults_filled.push_back(m.path("starts"));
+  }
+  if (search.evaluations < search.starts)
+    ctx.error(m.has("evaluations") ? m.get("evaluations") : node, "cases.search.evaluations",
+              fmt::format("{} evaluations cannot give each of {} starts a run", search.evaluations, search.starts),
+              fmt::format("give at least {} evaluations (one per start), or fewer starts", search.starts));
+}
+
 }  // namespace
 
 void read_cases(const MapView& top, Spec& spec, const LoadOptions& options) {
   Context& ctx = top.ctx();
   if (!top.require("cases", "the duration and the initial-condition sets")) return;
-  MapView m(ctx, top.get("cases"), "cases", {"duration", "output_rate", "settling_band", "initial"});
+  MapView m(ctx, top.get("cases"), "cases", {"duration", "output_rate", "settling_band", "initial", "search"});
   if (!m.ok()) return;
   spec.cases.mark = m.mark();
   if (m.require("duration", "the simulated time per case, e.g. '30 s'"))
@@ -261,6 +294,7 @@ void read_cases(const MapView& top, Spec& spec, const LoadOptions& options) {
   read_optional(m, "output_rate", spec.cases.output_rate, u::rate, Bounds{0, 1e5, true, false});
   read_optional(m, "settling_band", spec.cases.settling_band, u::angle, Bounds{0, 3.2, true, false});
   check_sample_cap(m, spec, options);
+  read_search(m, spec.cases.search);
   if (!m.require("initial", "a list of initial-condition sets (" + kind_list() + ")")) return;
   const YAML::Node list = m.get("initial");
   if (!expect_sequence(ctx, list, "cases.initial", "initial-condition sets")) return;

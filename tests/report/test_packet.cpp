@@ -78,7 +78,9 @@ TEST_CASE("a packet of another design is replaced only with --force", "[packet]"
   CHECK(run_cli(fmt::format("check {} --out {}", other.string(), out.string())) == 2);
   CHECK(packet_spec_sha256(out.string()) == first);
   CHECK(verify_manifest(out.string()).empty());
-  CHECK(run_cli(fmt::format("check {} --out {} --force", other.string(), out.string())) == 0);
+  // --no-search: the search finds a start of this lighter damper past the residual-sway limit
+  // (corner -5 deg, -5 deg, between its 6 random samples); what is tested here is the replacement.
+  CHECK(run_cli(fmt::format("check {} --out {} --force --no-search", other.string(), out.string())) == 0);
   CHECK(packet_spec_sha256(out.string()) != first);
   // A folder that is not a packet is not replaced, with or without --force.
   const fs::path plain = temp("plain-folder");

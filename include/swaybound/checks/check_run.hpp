@@ -3,6 +3,7 @@
 //   plan_check        spec -> CheckPlan (model, case space, run settings, what to compute)
 //   stream_cases      a list of cases, in parallel, into the checks and the running totals
 //   run_global_checks modal analysis and chaotic-onset indicators, into the global checks
+//   search_worst      the worst case between the samples, per per-case limit (worst_search.hpp)
 //   audit_governing   each governing case again at a 100x tighter tolerance
 //   record_governing  each governing case again with its time series recorded (for plots)
 // run_check composes them over every case of the spec.
@@ -15,6 +16,7 @@
 #include "swaybound/cases/runner.hpp"
 #include "swaybound/chaos/indicators.hpp"
 #include "swaybound/checks/checks.hpp"
+#include "swaybound/checks/worst_search.hpp"
 #include "swaybound/modal/modes.hpp"
 #include "swaybound/spec/spec.hpp"
 
@@ -111,6 +113,12 @@ struct CheckOptions {
   bool record = true;             ///< re-run governing cases with recording (for the packet's plots)
   std::function<void(const Progress&)> progress;
   std::function<void(const CaseMetrics&)> on_case;  ///< every case, in case order
+  /// The search for the worst case between the samples (checks/worst_search.hpp), run after the
+  /// global checks when set and spec.cases.search is on. Set it to `search_worst`, which is in
+  /// swaybound::sizing (it uses NLopt); unset, the check is the samples' alone.
+  std::function<std::vector<LimitSearch>(const CheckPlan&, const WorstStarts&, const std::vector<CheckResult>&,
+                                         const SearchBudget&, int jobs)>
+      search;
 };
 
 struct CheckReport {
@@ -133,8 +141,13 @@ struct CheckReport {
   long slack_cases = 0;
   std::string first_slack_case;
   bool pass = false;
+  /// The search for the worst case between the samples: one per per-case check, in limit order
+  /// (empty when it did not run); `search_budget` is what it was given.
+  std::vector<LimitSearch> search;
+  bool searched = false;
+  SearchBudget search_budget;
   // Wall time of the stages [s] (not written to results.json, which must not depend on the host).
-  double seconds_cases = 0, seconds_chaos = 0, seconds_audit = 0;
+  double seconds_cases = 0, seconds_chaos = 0, seconds_audit = 0, seconds_search = 0;
 };
 
 /// What a check run of a spec computes, decided before any case runs. Refers to the spec it was
@@ -214,8 +227,8 @@ long audit_governing(const CheckPlan& plan, int jobs, std::vector<CheckResult>& 
 /// most kMaxRecordedPoints per line), in case order.
 std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vector<CheckResult>& checks);
 
-/// The whole check of `spec`: every case, the global checks, the audit and the recordings as
-/// `options` asks.
+/// The whole check of `spec`: every case, the global checks, the search for the worst case between
+/// the samples, the audit and the recordings as `options` asks.
 CheckReport run_check(const Spec& spec, const CheckOptions& options);
 
 }  // namespace swaybound

@@ -200,11 +200,20 @@ struct InitialSetSpec {
   Mark mark;
 };
 
+/// The search for the worst case between the samples (cases.search; checks/worst_search.hpp).
+struct SearchSpec {
+  bool enabled = true;   ///< `search: false` switches it off
+  int evaluations = 40;  ///< case runs per per-case limit, shared by its starts
+  int starts = 3;        ///< worst sampled cases each search starts from
+  Mark mark;
+};
+
 struct CasesSpec {
   double duration = 0;            ///< [s]
   double output_rate = 50;        ///< samples per second for recorded time series [1/s]
   double settling_band = 0.017453292519943295;  ///< |theta| band for the settling time [rad] (1 deg)
   std::vector<InitialSetSpec> initial;
+  SearchSpec search;
   Mark mark;
 };
 

@@ -1,0 +1,117 @@
+#pragma once
+// The worst case between the samples. The sampled cases give each per-case limit its worst value
+// over a finite set of starts; the true worst over the starts the case sets declare can lie
+// between them. For each per-case limit this stage takes the few worst sampled cases and moves
+// each one's initial angles and rates through the box the case sets declare (their union
+// bounding box, the same for every scenario), with a derivative-free bounded local optimiser
+// (NLopt's BOBYQA; Nelder-Mead, then COBYLA, when BOBYQA refuses, e.g. in one dimension) that
+// maximises the limit's utilisation (larger is worse for an upper bound, smaller for a lower one),
+// each evaluation one case run with the plan's model and streaming settings.
+//
+// The searched worst is the worse of the sampled worst and the best found: a local optimum, so
+// a lower bound on the true worst, never a proof that nothing worse exists. A run that fails
+// during the search fails the limit and is reported with its start. Where the worst case's FTLE
+// is computed and above chaos.threshold, the result is flagged "local worst, statistical, not a
+// bound": the metric is not smooth there and a local search means little.
+//
+// Library split: `WorstStarts` and `apply_search` are engine code (src/checks/worst_starts.cpp);
+// `search_worst` uses NLopt and so lives in swaybound::sizing (src/checks/worst_search.cpp, built
+// into that target). run_check calls it through CheckOptions::search, which a caller linking
+// sizing sets to `search_worst` (the CLI does, unless --no-search).
+#include <cmath>
+#include <string>
+#include <vector>
+
+#include "swaybound/checks/checks.hpp"
+#include "swaybound/checks/metrics.hpp"
+#include "swaybound/spec/spec.hpp"
+
+namespace swaybound {
+
+struct CheckPlan;  // checks/check_run.hpp
+
+/// The box of starts the case sets declare: per link, the least and largest initial angle [rad] and
+/// rate [rad/s] over every set (a set's ranges, a single or ladder start's values and the ladder's
+/// perturbed angles; a link a set does not list starts at 0 there, so 0 is in its box).
+struct StartBox {
+  std::vector<double> theta_lo, theta_hi;  ///< per link [rad]
+  std::vector<double> rate_lo, rate_hi;    ///< per link [rad/s]
+  /// Dimensions of positive width, in the order theta 0..n-1 then rate 0..n-1 (index d < n: theta of
+  /// link d, else the rate of link d - n). The others stay at the start's value.
+  std::vector<int> free;
+};
+
+/// The union bounding box of the starts of `spec`'s case sets.
+StartBox start_box(const Spec& spec);
+
+/// The utilisation of a per-case limit's value: the value for an upper bound, its negative for a
+/// lower one (larger is always worse).
+inline double utilisation(Bound bound, double value) { return bound == Bound::upper ? value : -value; }
+
+/// Collects, as the sampled cases stream past (in case order), the `starts` worst successful cases
+/// of each per-case limit (ties keep the earlier case), with their metrics.
+class WorstStarts {
+ public:
+  WorstStarts(const Spec& spec, int starts);
+  void offer(const CaseMetrics& m);
+  /// The kept cases of limit `limit` (index into Spec::limits), worst first; empty for a global
+  /// limit or when no case gave the limit a value.
+  const std::vector<CaseMetrics>& of(int limit) const { return kept_[static_cast<std::size_t>(limit)]; }
+  /// The value of limit `limit` in `m` (worst over its links), NaN when none.
+  double value(int limit, const CaseMetrics& m) const;
+
+ private:
+  const Spec* spec_;
+  int starts_;
+  std::vector<int> slots_;  ///< per limit: its residual_sway slot
+  std::vector<std::vector<CaseMetrics>> kept_;
+};
+
+/// The search of one per-case limit.
+struct LimitSearch {
+  int limit = -1;                        ///< index into Spec::limits
+  bool searched = false;                 ///< false: no sampled value to start from, or the box is a point
+  double sampled_worst = std::nan("");   ///< the sampled cases' worst value (CheckResult::worst), SI
+  double searched_worst = std::nan("");  ///< the worse of it and the best found, SI (NaN after a failed run)
+  /// The start that gives searched_worst (the sampled governing case when the search found nothing
+  /// worse), or the start whose run failed.
+  int scenario = -1;
+  std::vector<double> theta, omega;  ///< per link [rad], [rad/s]
+  std::string from_case;             ///< id of the sampled case the winning search started from
+  bool found_worse = false;          ///< the search found a value worse than the sampled worst
+  double raise = 0;                  ///< |searched_worst - sampled_worst|, in the worse direction, SI
+  double raise_of_margin = std::nan("");  ///< raise / |sampled margin| (NaN when the margin is 0)
+  double margin = std::nan("");      ///< limit - searched (upper) or searched - limit (lower), SI
+  bool pass = false;                 ///< the verdict on the searched worst
+  bool sampled_pass = false;         ///< the check's verdict on the samples alone
+  /// The samples pass and the searched worst fails: sampling alone would have passed the design.
+  bool sampling_missed() const { return sampled_pass && !pass; }
+  /// Points the search evaluated, each a case run (the sampled starts cost none; a run another
+  /// limit's search made at the same start is shared, so the runs made may be fewer)
+  long evaluations = 0;
+  std::vector<std::string> methods;  ///< the optimiser of each start ("BOBYQA", "Nelder-Mead", "COBYLA")
+  bool failed_run = false;           ///< a run failed during the search (the limit fails)
+  std::string failure;               ///< its status and reason
+  /// The worst case's FTLE is computed and above chaos.threshold: a local worst, statistical, not a bound.
+  bool chaotic = false;
+  double ftle = std::nan("");        ///< that FTLE [1/s] (NaN: not computed)
+};
+
+/// The search's settings for one run: spec.cases.search, or off.
+struct SearchBudget {
+  int evaluations = 40;  ///< evaluations (case runs) per per-case limit, shared by its starts
+  int starts = 3;
+};
+
+/// Searches the worst case between the samples of every per-case limit of `checks` (finished, so
+/// their margins are set) from the cases `starts` kept, on `jobs` threads (0: all); one result per
+/// per-case check, in limit order. Deterministic: the same on every thread count. In swaybound::sizing.
+std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& starts,
+                                      const std::vector<CheckResult>& checks, const SearchBudget& budget,
+                                      int jobs);
+
+/// Fails every check whose searched worst fails (the sampled worst may pass: then
+/// LimitSearch::sampling_missed says sampling alone would have passed it). Engine code.
+void apply_search(const std::vector<LimitSearch>& searches, std::vector<CheckResult>& checks);
+
+}  // namespace swaybound

@@ -1,0 +1,87 @@
+// The engine half of the worst-case search (checks/worst_search.hpp): the box of starts the case
+// sets declare, the worst sampled cases per limit, and the verdicts the search changes. The
+// optimiser itself (NLopt) is in worst_search.cpp, built into swaybound::sizing.
+#include <algorithm>
+#include <cmath>
+
+#include "swaybound/checks/worst_search.hpp"
+
+namespace swaybound {
+
+StartBox start_box(const Spec& spec) {
+  const std::size_t n = spec.links.size();
+  StartBox box;
+  box.theta_lo.assign(n, INFINITY);
+  box.theta_hi.assign(n, -INFINITY);
+  box.rate_lo.assign(n, INFINITY);
+  box.rate_hi.assign(n, -INFINITY);
+  const auto widen = [](double& lo, double& hi, double a, double b) {
+    lo = std::min(lo, a);
+    hi = std::max(hi, b);
+  };
+  for (const InitialSetSpec& set : spec.cases.initial) {
+    const bool ranged = set.kind == InitialKind::grid || set.kind == InitialKind::corners ||
+                        set.kind == InitialKind::random;
+    for (std::size_t i = 0; i < n; ++i) {
+      // A link the set does not list starts at 0 angle and 0 rate.
+      const Range theta = i < set.theta.size() ? set.theta[i] : Range{};
+      const Range rate = i < set.rate.size() ? set.rate[i] : Range{};
+      widen(box.theta_lo[i], box.theta_hi[i], theta.lo, ranged ? theta.hi : theta.lo);
+      widen(box.rate_lo[i], box.rate_hi[i], rate.lo, ranged ? rate.hi : rate.lo);
+    }
+    if (set.kind == InitialKind::ladder && set.perturb_link >= 0 && static_cast<std::size_t>(set.perturb_link) < n) {
+      const auto k = static_cast<std::size_t>(set.perturb_link);
+      const double base = k < set.theta.size() ? set.theta[k].lo : 0.0;
+      for (double step : set.steps) {
+        const double theta = set.relative ? base * (1 + step) : base + step;
+        widen(box.theta_lo[k], box.theta_hi[k], theta, theta);
+      }
+    }
+  }
+  for (std::size_t i = 0; i < n; ++i)
+    if (box.theta_hi[i] > box.theta_lo[i]) box.free.push_back(static_cast<int>(i));
+  for (std::size_t i = 0; i < n; ++i)
+    if (box.rate_hi[i] > box.rate_lo[i]) box.free.push_back(static_cast<int>(n + i));
+  return box;
+}
+
+WorstStarts::WorstStarts(const Spec& spec, int starts) : spec_(&spec), starts_(std::max(starts, 1)) {
+  int slot = 0;
+  for (const LimitSpec& l : spec.limits) {
+    slots_.push_back(slot);
+    slot += limit_kind(l.kind).options.after;
+  }
+  kept_.resize(spec.limits.size());
+}
+
+double WorstStarts::value(int limit, const CaseMetrics& m) const {
+  int link;
+  double time;
+  const auto k = static_cast<std::size_t>(limit);
+  return limit_value_in_case(spec_->limits[k], slots_[k], m, link, time);
+}
+
+void WorstStarts::offer(const CaseMetrics& m) {
+  if (!m.ok()) return;
+  for (std::size_t k = 0; k < spec_->limits.size(); ++k) {
+    const LimitKindInfo& info = limit_kind(spec_->limits[k].kind);
+    if (!info.per_case) continue;
+    const double v = value(static_cast<int>(k), m);
+    if (std::isnan(v)) continue;
+    const double u = utilisation(info.bound, v);
+    std::vector<CaseMetrics>& kept = kept_[k];
+    // Worst first; a tie goes after the cases kept before it (case order).
+    auto at = kept.begin();
+    while (at != kept.end() && utilisation(info.bound, value(static_cast<int>(k), *at)) >= u) ++at;
+    if (at - kept.begin() >= starts_) continue;
+    kept.insert(at, m);
+    if (static_cast<int>(kept.size()) > starts_) kept.pop_back();
+  }
+}
+
+void apply_search(const std::vector<LimitSearch>& searches, std::vector<CheckResult>& checks) {
+  for (const LimitSearch& s : searches)
+    if (s.searched && !s.pass) checks.at(static_cast<std::size_t>(s.limit)).pass = false;
+}
+
+}  // namespace swaybound

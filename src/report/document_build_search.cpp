@@ -1,0 +1,80 @@
+// Section 4b, the worst case between the samples: per per-case check the sampled worst, the
+// searched worst, the start that gives it, the raise and the verdict on it (checks/worst_search.hpp).
+#include "document_build.hpp"
+
+#include <fmt/format.h>
+
+#include "swaybound/report/format.hpp"
+
+namespace swaybound::report_doc::build {
+
+namespace {
+
+/// "theta 3 deg, -6 deg; rate 2 deg/s, 0 deg/s" for a start.
+std::string start_text(const LimitSearch& s) {
+  std::vector<std::string> theta, rate;
+  for (double v : s.theta) theta.push_back(deg(v) + " deg");
+  for (double v : s.omega) rate.push_back(num(v * kDeg) + " deg/s");
+  return fmt::format("theta {}; rate {}", fmt::join(theta, ", "), fmt::join(rate, ", "));
+}
+
+}  // namespace
+
+Section search_section(const Spec& spec, const CheckReport& r) {
+  Section s{"search", "4b", "Worst case between the samples", {}, false};
+  s.blocks.push_back(paragraph(fmt::format(
+      "For each per-case check, the {} worst sampled cases were moved through the box of starts the case sets "
+      "declare (each link's least to largest initial angle and rate) by a bounded local search (NLopt BOBYQA), "
+      "at most {} case runs per check, each under the scenario of its start. The searched worst is the worse of "
+      "the sampled worst and the best found: a local worst, so a lower bound on the true worst over the box, not "
+      "a proof that nothing worse exists. A check fails when its searched worst fails.",
+      r.search_budget.starts, r.search_budget.evaluations)));
+  Table t{"search-table",
+          {col("#", 0.3, Align::right, "index"), col("check", 1.3, Align::left, "check"),
+           col("sampled worst", 1, Align::right, "sampled"), col("searched worst", 1, Align::right, "searched"),
+           col("raise (of margin)", 1.1, Align::right, "raise"), col("start", 2.2, Align::left, "start", true),
+           col("runs", 0.5, Align::right, "runs"), col("verdict", 0.62, Align::center, "verdict")},
+          {},
+          "raise: searched worst - sampled worst in the direction that uses up the margin, and as a share of the "
+          "sampled margin; start: the scenario and start angles and rates that give the searched worst (of the run "
+          "that failed, where one did); runs: evaluations the search made for the check.",
+          7.6};
+  std::vector<Rich> remarks;
+  for (const LimitSearch& ls : r.search) {
+    const CheckResult& c = r.checks[static_cast<std::size_t>(ls.limit)];
+    const std::string scenario =
+        ls.scenario >= 0 ? spec.scenarios[static_cast<std::size_t>(ls.scenario)].name + ": " : std::string();
+    Row row;
+    row.cells = {std::to_string(ls.limit + 1),
+                 c.key,
+                 engineering(ls.sampled_worst, c.unit),
+                 ls.failed_run ? "run failed" : engineering(ls.searched_worst, c.unit),
+                 !ls.searched ? "not searched"
+                 : ls.failed_run ? "-"
+                                 : fmt::format("{} ({})", engineering(ls.raise, c.unit), ratio_percent(ls.raise_of_margin)),
+                 ls.searched ? scenario + start_text(ls) : "-",
+                 std::to_string(ls.evaluations),
+                 ls.pass ? "pass" : "FAIL"};
+    row.tone = ls.pass ? Tone::normal : Tone::fail;
+    row.cell_tone.assign(row.cells.size(), Tone::normal);
+    row.cell_tone[7] = ls.pass ? Tone::pass : Tone::fail;
+    t.rows.push_back(row);
+    const std::string label = fmt::format("Check {} ({}): ", ls.limit + 1, c.key);
+    if (ls.sampling_missed())
+      remarks.push_back({Span{label, true}, Span{"the sampled cases pass, but the searched worst fails: sampling "
+                                                 "alone would have passed this check."}});
+    if (ls.failed_run)
+      remarks.push_back({Span{label, true}, Span{fmt::format("a run failed during the search ({}); it fails the check.",
+                                                             ls.failure)}});
+    if (ls.chaotic)
+      remarks.push_back({Span{label, true},
+                         Span{fmt::format("the searched worst's FTLE ({} 1/s) is above chaos.threshold: a local "
+                                          "worst, statistical, not a bound.",
+                                          num(ls.ftle))}});
+  }
+  s.blocks.push_back(table_block(t));
+  if (!remarks.empty()) s.blocks.push_back(bullets(remarks));
+  return s;
+}
+
+}  // namespace swaybound::report_doc::build
