@@ -91,14 +91,10 @@ struct Problem {
   /// The case at scaled point `u` (clamped to the box).
   CaseDef case_at(const double* u) const {
     CaseDef def = base;
-    const std::size_t n = box->theta_lo.size();
     for (std::size_t k = 0; k < box->free.size(); ++k) {
       const auto d = static_cast<std::size_t>(box->free[k]);
       const double s = std::clamp(u[k], 0.0, 1.0);
-      if (d < n)
-        def.initial.theta[d] = box->theta_lo[d] + s * (box->theta_hi[d] - box->theta_lo[d]);
-      else
-        def.initial.omega[d - n] = box->rate_lo[d - n] + s * (box->rate_hi[d - n] - box->rate_lo[d - n]);
+      start_quantity(def.initial, box->free[k], box->links) = box->lo[d] + s * (box->hi[d] - box->lo[d]);
     }
     return def;
   }
@@ -113,7 +109,8 @@ struct Problem {
     }
     const CaseDef def = case_at(key.data());
     SharedRuns::Key shared_key{options.ftle ? -1 - def.scenario : def.scenario, def.initial.theta};
-    shared_key.second.insert(shared_key.second.end(), def.initial.omega.begin(), def.initial.omega.end());
+    for (const auto* list : {&def.initial.omega, &def.initial.phi, &def.initial.phi_rate})
+      shared_key.second.insert(shared_key.second.end(), list->begin(), list->end());
     std::shared_ptr<const CaseMetrics> run = shared->find(shared_key);
     if (!run) {
       run = std::make_shared<const CaseMetrics>(
@@ -202,14 +199,12 @@ TaskResult run_task(const CheckPlan& plan, const StartBox& box, const WorstStart
   result.from_case = start.id;
 
   // The start, scaled; its value is the sampled one (no run).
-  const std::size_t n = box.theta_lo.size();
   std::vector<double> x;
+  InitialState initial = start.initial;
   for (int d : box.free) {
     const auto k = static_cast<std::size_t>(d);
-    const double lo = k < n ? box.theta_lo[k] : box.rate_lo[k - n];
-    const double hi = k < n ? box.theta_hi[k] : box.rate_hi[k - n];
-    const double v = k < n ? start.initial.theta[k] : start.initial.omega[k - n];
-    x.push_back(std::clamp((v - lo) / (hi - lo), 0.0, 1.0));
+    const double v = start_quantity(initial, d, box.links);
+    x.push_back(std::clamp((v - box.lo[k]) / (box.hi[k] - box.lo[k]), 0.0, 1.0));
   }
   p.seen.emplace(x, p.start_utilisation);
 
@@ -249,6 +244,8 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
       s.scenario = governing.scenario;
       s.theta = governing.initial.theta;
       s.omega = governing.initial.omega;
+      s.phi = governing.initial.phi;
+      s.phi_rate = governing.initial.phi_rate;
       s.from_case = governing.id;
       s.ftle = kept.front().ftle;
     }
@@ -297,6 +294,8 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
       s.scenario = failed->failed_case.scenario;
       s.theta = failed->failed_case.initial.theta;
       s.omega = failed->failed_case.initial.omega;
+      s.phi = failed->failed_case.initial.phi;
+      s.phi_rate = failed->failed_case.initial.phi_rate;
       s.from_case = failed->from_case;
       s.searched_worst = std::nan("");
       s.margin = std::nan("");
@@ -310,6 +309,8 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
       s.scenario = winner->best_case.scenario;
       s.theta = winner->best_case.initial.theta;
       s.omega = winner->best_case.initial.omega;
+      s.phi = winner->best_case.initial.phi;
+      s.phi_rate = winner->best_case.initial.phi_rate;
       s.from_case = winner->from_case;
       s.ftle = winner->best_ftle;
       s.raise = best - sampled;

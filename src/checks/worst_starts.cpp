@@ -8,40 +8,43 @@
 
 namespace swaybound {
 
+double& start_quantity(InitialState& start, int d, int n) {
+  std::vector<double>* lists[] = {&start.theta, &start.omega, &start.phi, &start.phi_rate};
+  return (*lists[d / n])[static_cast<std::size_t>(d % n)];
+}
+
 StartBox start_box(const Spec& spec) {
   const std::size_t n = spec.links.size();
+  const std::size_t blocks = spec.motion == Motion::spatial ? 4 : 2;
   StartBox box;
-  box.theta_lo.assign(n, INFINITY);
-  box.theta_hi.assign(n, -INFINITY);
-  box.rate_lo.assign(n, INFINITY);
-  box.rate_hi.assign(n, -INFINITY);
-  const auto widen = [](double& lo, double& hi, double a, double b) {
-    lo = std::min(lo, a);
-    hi = std::max(hi, b);
+  box.links = static_cast<int>(n);
+  box.lo.assign(blocks * n, INFINITY);
+  box.hi.assign(blocks * n, -INFINITY);
+  const auto widen = [&](std::size_t d, double a, double b) {
+    box.lo[d] = std::min(box.lo[d], a);
+    box.hi[d] = std::max(box.hi[d], b);
   };
   for (const InitialSetSpec& set : spec.cases.initial) {
     const bool ranged = set.kind == InitialKind::grid || set.kind == InitialKind::corners ||
                         set.kind == InitialKind::random;
-    for (std::size_t i = 0; i < n; ++i) {
-      // A link the set does not list starts at 0 angle and 0 rate.
-      const Range theta = i < set.theta.size() ? set.theta[i] : Range{};
-      const Range rate = i < set.rate.size() ? set.rate[i] : Range{};
-      widen(box.theta_lo[i], box.theta_hi[i], theta.lo, ranged ? theta.hi : theta.lo);
-      widen(box.rate_lo[i], box.rate_hi[i], rate.lo, ranged ? rate.hi : rate.lo);
-    }
+    const auto lists = start_lists(set);
+    for (std::size_t q = 0; q < blocks; ++q)
+      for (std::size_t i = 0; i < n; ++i) {
+        // A link the set does not list starts at 0 there.
+        const Range r = i < lists[q]->size() ? (*lists[q])[i] : Range{};
+        widen(q * n + i, r.lo, ranged ? r.hi : r.lo);
+      }
     if (set.kind == InitialKind::ladder && set.perturb_link >= 0 && static_cast<std::size_t>(set.perturb_link) < n) {
       const auto k = static_cast<std::size_t>(set.perturb_link);
       const double base = k < set.theta.size() ? set.theta[k].lo : 0.0;
       for (double step : set.steps) {
         const double theta = set.relative ? base * (1 + step) : base + step;
-        widen(box.theta_lo[k], box.theta_hi[k], theta, theta);
+        widen(k, theta, theta);
       }
     }
   }
-  for (std::size_t i = 0; i < n; ++i)
-    if (box.theta_hi[i] > box.theta_lo[i]) box.free.push_back(static_cast<int>(i));
-  for (std::size_t i = 0; i < n; ++i)
-    if (box.rate_hi[i] > box.rate_lo[i]) box.free.push_back(static_cast<int>(n + i));
+  for (std::size_t d = 0; d < box.lo.size(); ++d)
+    if (box.hi[d] > box.lo[d]) box.free.push_back(static_cast<int>(d));
   return box;
 }
 

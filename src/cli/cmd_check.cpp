@@ -30,6 +30,14 @@ void print_search(const Spec& spec, const CheckReport& r, const CheckResult& c, 
   start += ", rate ";
   for (std::size_t i = 0; i < s.omega.size(); ++i)
     start += fmt::format("{}{:.6g} deg/s", i ? ", " : "", s.omega[i] * 180 / 3.141592653589793);
+  if (!s.phi.empty()) {
+    start += ", phi ";
+    for (std::size_t i = 0; i < s.phi.size(); ++i)
+      start += fmt::format("{}{:.6g} deg", i ? ", " : "", s.phi[i] * 180 / 3.141592653589793);
+    start += ", phi rate ";
+    for (std::size_t i = 0; i < s.phi_rate.size(); ++i)
+      start += fmt::format("{}{:.6g} deg/s", i ? ", " : "", s.phi_rate[i] * 180 / 3.141592653589793);
+  }
   if (s.failed_run)
     out << fmt::format("    search: a run failed between the samples ({}) from theta {} under '{}' ({} runs)\n",
                        s.failure, start, scenario, s.evaluations);

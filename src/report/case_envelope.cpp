@@ -28,7 +28,11 @@ CaseEnvelopeRow case_envelope_row(const Spec& spec, const CaseMetrics& metrics) 
   r.status = std::string(status_name(metrics.status));
   r.ok = metrics.ok();
   for (std::size_t k = 0; k < spec.links.size(); ++k) {
-    const double t = as_recorded(k < metrics.initial.theta.size() ? metrics.initial.theta[k] : 0.0);
+    // The start's swing from the vertical: |theta|, or for a spatial start the cone angle
+    // acos(cos theta cos phi) (dynamics/posture.hpp).
+    const double theta0 = k < metrics.initial.theta.size() ? metrics.initial.theta[k] : 0.0;
+    const double phi0 = k < metrics.initial.phi.size() ? metrics.initial.phi[k] : 0.0;
+    const double t = as_recorded(phi0 != 0.0 ? std::acos(std::cos(theta0) * std::cos(phi0)) : theta0);
     if (std::isfinite(t)) r.amplitude = std::max(r.amplitude, std::fabs(t));
     r.peak_angle.push_back(r.ok ? as_recorded(metrics.peak_angle[k].value) : std::nan(""));
     r.peak_load.push_back(r.ok ? as_recorded(metrics.peak_load[k].value) : std::nan(""));

@@ -143,7 +143,7 @@ Document build_document(const Spec& spec, const CheckReport& r, const ReportMeta
   d.sections.push_back(chaos_section(spec, r));
   d.sections.push_back(envelope_section(spec, r, cases));
   d.sections.push_back(trust_section(spec, r));
-  d.sections.push_back(caution_section());
+  d.sections.push_back(caution_section(spec));
   return d;
 }
 

@@ -91,6 +91,6 @@ Section governing_section(const Spec& spec, const CheckReport& r);
 Section chaos_section(const Spec& spec, const CheckReport& r);
 Section envelope_section(const Spec& spec, const CheckReport& r, const std::vector<CaseEnvelopeRow>* cases);
 Section trust_section(const Spec& spec, const CheckReport& r);
-Section caution_section();
+Section caution_section(const Spec& spec);
 
 }  // namespace swaybound::report_doc::build

@@ -51,14 +51,22 @@ Section title_section(const Document& d, const Spec& spec, const CheckReport& r)
 Section scope_section(const Spec& spec, const CheckReport& r, const Document& d) {
   Section s{"scope", "2", "Scope and assumptions", {}, true};
   s.blocks.push_back(paragraph(fmt::format(
-      "This packet reports a design check of the planar pendulum chain \"{}\" ({} link(s)) made with swaybound {}. "
+      "This packet reports a design check of the {} pendulum chain \"{}\" ({} link(s)) made with swaybound {}. "
       "Every initial condition of the case set was run under every base-motion scenario ({} cases of {:g} s) with "
       "the full nonlinear equations of motion, and each limit of the spec was checked against the worst value over "
       "the cases.",
-      spec.name, spec.links.size(), d.tool_version, r.case_count, spec.cases.duration)));
+      spec.motion == Motion::spatial ? "spatial" : "planar", spec.name, spec.links.size(), d.tool_version,
+      r.case_count, spec.cases.duration)));
   std::vector<Rich> model;
-  model.push_back({Span{"Planar motion. ", true},
-                   Span{"Every link swings in one vertical plane; the angles are absolute, from the downward vertical."}});
+  if (spec.motion == Motion::spatial)
+    model.push_back({Span{"Spatial motion. ", true},
+                     Span{"Every link hangs from a spherical pivot and swings in any direction (x along the travel, y "
+                          "up, z across the travel); its rotation about its own axis (twist) is not modelled. Angles "
+                          "are from the downward vertical in any direction (cone angles); pivot dampers and friction "
+                          "act on the swing in any direction alike."}});
+  else
+    model.push_back({Span{"Planar motion. ", true},
+                     Span{"Every link swings in one vertical plane; the angles are absolute, from the downward vertical."}});
   // Ropes: inextensible ones are rigid while taut; elastic ones, hoisting and lift-off have their own notes.
   std::string ropes, elastic;
   for (const auto& l : spec.links) {

@@ -102,9 +102,18 @@ std::string start_text(const Spec& spec, const CaseSpace& space, long index) {
     omega.push_back(deg(i < def.initial.omega.size() ? def.initial.omega[i] : 0.0));
   }
   const auto scenario = static_cast<std::size_t>(def.scenario);
-  return fmt::format("scenario '{}', θ0 = ({}) deg, ω0 = ({}) deg/s",
-                     scenario < spec.scenarios.size() ? spec.scenarios[scenario].name : "-", fmt::join(theta, ", "),
-                     fmt::join(omega, ", "));
+  std::string text = fmt::format("scenario '{}', θ0 = ({}) deg, ω0 = ({}) deg/s",
+                                 scenario < spec.scenarios.size() ? spec.scenarios[scenario].name : "-",
+                                 fmt::join(theta, ", "), fmt::join(omega, ", "));
+  if (spec.motion == Motion::spatial) {
+    std::vector<std::string> phi, phi_rate;
+    for (std::size_t i = 0; i < spec.links.size(); ++i) {
+      phi.push_back(deg(i < def.initial.phi.size() ? def.initial.phi[i] : 0.0));
+      phi_rate.push_back(deg(i < def.initial.phi_rate.size() ? def.initial.phi_rate[i] : 0.0));
+    }
+    text += fmt::format(", φ0 = ({}) deg, φ'0 = ({}) deg/s", fmt::join(phi, ", "), fmt::join(phi_rate, ", "));
+  }
+  return text;
 }
 
 }  // namespace
@@ -203,7 +212,10 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
         add_ref(arefs, {-l.value * kDeg, "", false, l.after});
       }
     }
-    plot::Plot pa = plot::line_chart("Link angles", {"time", "s"}, {"angle θ from vertical", "deg"}, angles, arefs);
+    const bool spatial = spec.motion == Motion::spatial;  // the recorded angle is the cone angle (>= 0)
+    plot::Plot pa = plot::line_chart("Link angles", {"time", "s"},
+                                     {spatial ? "cone angle θ from vertical, any direction" : "angle θ from vertical", "deg"},
+                                     angles, arefs);
     // Each link's peak |theta| where the run located it (between samples), on the side it swung to.
     for (std::size_t i = 0; i < rc->peak_angle.size() && i < rc->theta.size(); ++i) {
       const Extreme& e = rc->peak_angle[i];

@@ -15,7 +15,14 @@ std::string start_text(const LimitSearch& s) {
   std::vector<std::string> theta, rate;
   for (double v : s.theta) theta.push_back(deg(v) + " deg");
   for (double v : s.omega) rate.push_back(num(v * kDeg) + " deg/s");
-  return fmt::format("theta {}; rate {}", fmt::join(theta, ", "), fmt::join(rate, ", "));
+  std::string text = fmt::format("theta {}; rate {}", fmt::join(theta, ", "), fmt::join(rate, ", "));
+  if (!s.phi.empty()) {
+    std::vector<std::string> phi, phi_rate;
+    for (double v : s.phi) phi.push_back(deg(v) + " deg");
+    for (double v : s.phi_rate) phi_rate.push_back(num(v * kDeg) + " deg/s");
+    text += fmt::format("; phi {}; phi rate {}", fmt::join(phi, ", "), fmt::join(phi_rate, ", "));
+  }
+  return text;
 }
 
 }  // namespace

@@ -60,7 +60,16 @@ Section trust_section(const Spec& spec, const CheckReport& r) {
 // ---------------------------------------------------------------------------------------------
 // 10 Cautions
 
-Section caution_section() {
+Section caution_section(const Spec& spec) {
+  bool elastic = false;
+  for (const auto& l : spec.links) elastic |= l.kind == LinkKind::rope && l.elastic.has_value();
+  const std::string model =
+      std::string(spec.motion == Motion::spatial
+                      ? "The model is spatial, but no link turns about its own axis (twist is not modelled)"
+                      : "The model is planar: no swing out of the plane of the travel (a spatial spec models it)") +
+      (elastic ? "; ropes stretch by their elastic law where the spec gives one, every other link is rigid"
+               : "; ropes are inextensible and links rigid (no rope stretch)") +
+      "; no structural flexibility; regularised (smooth) friction instead of true stick-slip (section 2).";
   Section s{"cautions", "10", "Cautions", {}, false};
   s.blocks.push_back(callout({Span{"Loads that fail can kill. ", true},
                               Span{"This packet is a screening and design aid, not a certification."}},
@@ -69,8 +78,7 @@ Section caution_section() {
       "The results do not replace the design checks required by the applicable crane and lifting-equipment design "
       "standards and by local regulations; verify the design against them.",
       "The final design must be reviewed and signed off by a licensed professional engineer.",
-      "The model is planar with rigid links: no rope stretch, no hoisting during travel, no 3-D swing, no structural "
-      "flexibility, regularised (smooth) friction instead of true stick-slip (section 2).",
+      model,
       "Results are only as good as the spec's masses, inertias, damper laws, friction data, wind data and base "
       "motions, and only cover the cases that were run; conditions outside the case set are not checked.",
       "Check the accuracy audit and the energy audit (section 9) before relying on a figure, and treat a check "

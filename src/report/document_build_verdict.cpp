@@ -33,6 +33,12 @@ std::vector<Rich> figure_definitions(const Spec& spec) {
   for (const auto& info : limit_kinds())
     if (kinds.contains(info.kind))
       out.push_back({Span{std::string(info.key), true, false, true}, Span{": " + std::string(info.definition)}});
+  if (spec.motion == Motion::spatial)
+    out.push_back({Span{"Spatial chain: ", true},
+                   Span{"θ above is a link's angle from the downward vertical in any direction (the cone angle), "
+                        "|θ_i - θ_(i-1)| the angle between a link and the link above, |ω| the magnitude of a link's "
+                        "angular velocity; a load is the magnitude of the 3-D force, the horizontal support force the "
+                        "magnitude of its part in the horizontal plane (x-z)."}});
   out.push_back({Span{"Source: ", true}, Span{"every figure is computed by this tool from the spec (simulation, "
                                               "linearisation or FTLE); none is taken from a design standard."}});
   return out;

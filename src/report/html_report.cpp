@@ -187,7 +187,7 @@ class HtmlWriter {
                       css_string(footer_left));
     o_ += "</style>\n</head>\n<body>\n<div class=\"sheet\">\n";
     o_ += "<header class=\"running\"><b>" + esc(header_left) + "</b><span>" + esc(header_right) + "</span></header>\n";
-    o_ += "<main>\n<div class=\"kicker\">DESIGN CHECK OF A PLANAR PENDULUM CHAIN · REVIEW PACKET</div>\n";
+    o_ += "<main>\n<div class=\"kicker\">DESIGN CHECK OF A PENDULUM CHAIN · REVIEW PACKET</div>\n";
     o_ += "<h1>" + esc(d_.title) + "</h1>\n";
     if (d_.title != d_.mechanism) o_ += "<p class=\"mechanism\">" + esc(d_.mechanism) + "</p>\n";
     o_ += "<div class=\"bar\"></div>\n<nav class=\"toc\"><strong>Contents</strong>\n<ol>\n";

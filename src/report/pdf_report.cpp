@@ -170,7 +170,7 @@ class Composer {
   // ---- title
 
   void title() {
-    auto kicker = text(esc("DESIGN CHECK OF A PLANAR PENDULUM CHAIN  ·  REVIEW PACKET"), Font{7.8, true});
+    auto kicker = text(esc("DESIGN CHECK OF A PENDULUM CHAIN  ·  REVIEW PACKET"), Font{7.8, true});
     show(kicker.get(), left_, y_, kAccent);
     y_ += report_text::height_of(kicker.get()) + 6;
     auto t = text(esc(d_.title), Font{20, true}, width());

@@ -50,6 +50,10 @@ Json search_json(const Spec& spec, const LimitSearch& s) {
                 {"theta_rad", vector_json(s.theta)},
                 {"rate_rad_per_s", vector_json(s.omega)},
                 {"from_case", s.from_case}};
+  if (spec.motion == Motion::spatial) {
+    j["start"]["phi_rad"] = vector_json(s.phi);
+    j["start"]["phi_rate_rad_per_s"] = vector_json(s.phi_rate);
+  }
   j["raise"] = number(s.raise);
   j["raise_of_margin"] = number(s.raise_of_margin);
   j["margin"] = number(s.margin);
@@ -266,6 +270,10 @@ std::string cases_csv_header(const Spec& spec) {
   const auto column = [&h](const std::string& name) { add_field(h, csv_quote(name)); };
   for (const auto& l : spec.links) column(fmt::format("theta0({}) [rad]", l.name));
   for (const auto& l : spec.links) column(fmt::format("omega0({}) [rad/s]", l.name));
+  if (spec.motion == Motion::spatial) {
+    for (const auto& l : spec.links) column(fmt::format("phi0({}) [rad]", l.name));
+    for (const auto& l : spec.links) column(fmt::format("phi_rate0({}) [rad/s]", l.name));
+  }
   // Per link, the per-link kinds in the order of the table.
   for (std::size_t k = 0; k < spec.links.size(); ++k)
     for (const auto& info : limit_kinds()) {
@@ -304,6 +312,9 @@ std::string cases_csv_row(const Spec& spec, const CaseMetrics& m) {
   const std::size_t n = spec.links.size();
   for (std::size_t i = 0; i < n; ++i) add_field(row, csv_number(i < m.initial.theta.size() ? m.initial.theta[i] : 0.0));
   for (std::size_t i = 0; i < n; ++i) add_field(row, csv_number(i < m.initial.omega.size() ? m.initial.omega[i] : 0.0));
+  if (spec.motion == Motion::spatial)
+    for (const auto* list : {&m.initial.phi, &m.initial.phi_rate})
+      for (std::size_t i = 0; i < n; ++i) add_field(row, csv_number(i < list->size() ? (*list)[i] : 0.0));
   // A failed run has no peaks: its measured fields stay empty.
   const bool ok = m.ok();
   const auto measured = [&row, ok](double x) { add_field(row, ok ? csv_number(x) : std::string()); };

@@ -34,12 +34,17 @@ struct CheckPlan;  // checks/check_run.hpp
 /// rate [rad/s] over every set (a set's ranges, a single or ladder start's values and the ladder's
 /// perturbed angles; a link a set does not list starts at 0 there, so 0 is in its box).
 struct StartBox {
-  std::vector<double> theta_lo, theta_hi;  ///< per link [rad]
-  std::vector<double> rate_lo, rate_hi;    ///< per link [rad/s]
-  /// Dimensions of positive width, in the order theta 0..n-1 then rate 0..n-1 (index d < n: theta of
-  /// link d, else the rate of link d - n). The others stay at the start's value.
+  int links = 0;  ///< n
+  /// Per start quantity d = q n + i (q = 0 theta, 1 rate, 2 phi, 3 phi_rate of link i; phi and
+  /// phi_rate only for a spatial chain): the least and largest value [rad] or [rad/s].
+  std::vector<double> lo, hi;
+  /// Dimensions d of positive width; the others stay at the start's value.
   std::vector<int> free;
 };
+
+/// Start quantity d of `start` in the order of StartBox (theta, rate, phi, phi_rate per link of n);
+/// the lists must hold n entries each (CaseSpace::at fills them).
+double& start_quantity(InitialState& start, int d, int n);
 
 /// The union bounding box of the starts of `spec`'s case sets.
 StartBox start_box(const Spec& spec);
@@ -77,6 +82,7 @@ struct LimitSearch {
   /// worse), or the start whose run failed.
   int scenario = -1;
   std::vector<double> theta, omega;  ///< per link [rad], [rad/s]
+  std::vector<double> phi, phi_rate; ///< spatial chains: per link [rad], [rad/s] (empty for planar)
   std::string from_case;             ///< id of the sampled case the winning search started from
   bool found_worse = false;          ///< the search found a value worse than the sampled worst
   double raise = 0;                  ///< |searched_worst - sampled_worst|, in the worse direction, SI
