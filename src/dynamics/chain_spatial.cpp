@@ -158,8 +158,7 @@ void add_spatial_pivot_torques(const Model& model, Workspace& ws, const double* 
 
 /// e_i'' from the tangent accelerations u'.
 Vec3 direction_accel(const Workspace& ws, int i, const Eigen::VectorXd& u_rate) {
-  const Vec3 r = load(ws.dir_rate, i);
-  return u_rate(2 * i) * tangent(ws, i, 0) + u_rate(2 * i + 1) * tangent(ws, i, 1) - dot(r, r) * load(ws.dir, i);
+  return u_rate(2 * i) * tangent(ws, i, 0) + u_rate(2 * i + 1) * tangent(ws, i, 1) - ws.omega[i] * load(ws.dir, i);
 }
 
 }  // namespace
@@ -194,7 +193,7 @@ void spatial_kinematics(const Model& model, Workspace& ws, const Phase& p, const
       ws.tangent[k + offset + 1] = v.y;
       ws.tangent[k + offset + 2] = v.z;
     }
-    ws.omega[i] = norm(r);
+    ws.omega[i] = dot(r, r);  // the swing rate squared |e_i'|^2 [1/s^2] (the velocity-product terms read it)
   }
 }
 
@@ -220,33 +219,78 @@ void spatial_reactions(const Model& model, Workspace& ws) {
   }
 }
 
+namespace {
+
+/// Mass matrix: blocks mu_jl T_j^T T_l (T_j^T T_j = identity on the diagonal), into `m`.
+template <class Matrix>
+void fill_mass(const Model& model, const Workspace& ws, Matrix& m) {
+  const int n = model.n;
+  for (int j = 0; j < n; ++j) {
+    m(2 * j, 2 * j) = m(2 * j + 1, 2 * j + 1) = model.mu(j, j);
+    m(2 * j, 2 * j + 1) = m(2 * j + 1, 2 * j) = 0.0;
+    const Vec3 tj[2] = {tangent(ws, j, 0), tangent(ws, j, 1)};
+    for (int l = j + 1; l < n; ++l) {
+      const Vec3 tl[2] = {tangent(ws, l, 0), tangent(ws, l, 1)};
+      const double mu = model.mu(j, l);
+      for (int a = 0; a < 2; ++a)
+        for (int b = 0; b < 2; ++b) m(2 * j + a, 2 * l + b) = m(2 * l + b, 2 * j + a) = mu * dot(tj[a], tl[b]);
+    }
+  }
+}
+
+/// Solves the mass-matrix system with a fixed-size Cholesky factor (2, 4, 6 tangent rates for
+/// N = 1, 2, 3: no heap, unrolled), or with the workspace's dynamic one.
+template <int M>
+struct FixedFactor {
+  Eigen::LLT<Eigen::Matrix<double, M, M>> llt;
+  FixedFactor(const Model& model, Workspace& ws) {
+    Eigen::Matrix<double, M, M> m;
+    fill_mass(model, ws, m);
+    llt.compute(m);
+  }
+  void solve(const Eigen::VectorXd& rhs, Eigen::VectorXd& out) const { out = llt.solve(Eigen::Matrix<double, M, 1>(rhs)); }
+};
+struct DynamicFactor {
+  Workspace* ws;
+  DynamicFactor(const Model& model, Workspace& w) : ws(&w) {
+    fill_mass(model, w, w.mass_s);
+    w.llt_s.compute(w.mass_s);
+  }
+  void solve(const Eigen::VectorXd& rhs, Eigen::VectorXd& out) const { out = ws->llt_s.solve(rhs); }
+};
+
+template <class Factor>
+void evaluate_spatial_with(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt);
+
+}  // namespace
+
 void evaluate_spatial(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt) {
+  switch (model.n) {
+    case 1: evaluate_spatial_with<FixedFactor<2>>(model, ws, phase, x, t, dxdt); break;
+    case 2: evaluate_spatial_with<FixedFactor<4>>(model, ws, phase, x, t, dxdt); break;
+    case 3: evaluate_spatial_with<FixedFactor<6>>(model, ws, phase, x, t, dxdt); break;
+    default: evaluate_spatial_with<DynamicFactor>(model, ws, phase, x, t, dxdt); break;
+  }
+}
+
+namespace {
+
+template <class Factor>
+void evaluate_spatial_with(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt) {
   const int n = model.n;
   ++ws.evaluations;
   ws.dissipated_power = 0;
   ws.input_power = 0;
   spatial_kinematics(model, ws, phase, x, t);
 
-  // Mass matrix: blocks mu_jl T_j^T T_l (T_j^T T_j = identity on the diagonal).
-  for (int j = 0; j < n; ++j)
-    for (int l = j; l < n; ++l)
-      for (int a = 0; a < 2; ++a)
-        for (int b = 0; b < 2; ++b) {
-          const double v = j == l ? (a == b ? model.mu(j, j) : 0.0) : model.mu(j, l) * dot(tangent(ws, j, a), tangent(ws, l, b));
-          ws.mass_s(2 * j + a, 2 * l + b) = v;
-          ws.mass_s(2 * l + b, 2 * j + a) = v;
-        }
-  ws.llt_s.compute(ws.mass_s);
+  const Factor factor(model, ws);
 
   // Gravity, base inertia and velocity products, then external point forces.
   const Vec3 g_eff{ws.base_ax, ws.base_ay + model.gravity, ws.base_az};
   for (int j = 0; j < n; ++j) {
     Vec3 v = -model.h[j] * g_eff;
-    for (int l = 0; l < n; ++l) {
-      if (l == j) continue;
-      const Vec3 r = load(ws.dir_rate, l);
-      v = v + (model.mu(j, l) * dot(r, r)) * load(ws.dir, l);
-    }
+    for (int l = 0; l < n; ++l)
+      if (l != j) v = v + (model.mu(j, l) * ws.omega[l]) * load(ws.dir, l);
     ws.bias_s(2 * j) = dot(tangent(ws, j, 0), v);
     ws.bias_s(2 * j + 1) = dot(tangent(ws, j, 1), v);
   }
@@ -258,7 +302,7 @@ void evaluate_spatial(const Model& model, Workspace& ws, const Phase& phase, con
   const auto solve = [&](const double* reaction) {
     ws.rhs_s = ws.bias_s;
     add_spatial_pivot_torques(model, ws, reaction, ws.rhs_s);
-    ws.accel_s = ws.llt_s.solve(ws.rhs_s);
+    factor.solve(ws.rhs_s, ws.accel_s);
     if (need_reactions) spatial_reactions(model, ws);
   };
   solve(nullptr);
@@ -278,11 +322,13 @@ void evaluate_spatial(const Model& model, Workspace& ws, const Phase& phase, con
     dxdt[f + 3 * i] = a.x;
     dxdt[f + 3 * i + 1] = a.y;
     dxdt[f + 3 * i + 2] = a.z;
-    ws.alpha[i] = std::hypot(ws.accel_s(2 * i), ws.accel_s(2 * i + 1));
+    ws.alpha[i] = std::sqrt(ws.accel_s(2 * i) * ws.accel_s(2 * i) + ws.accel_s(2 * i + 1) * ws.accel_s(2 * i + 1));
   }
   dxdt[2 * f] = ws.dissipated_power;
   dxdt[2 * f + 1] = ws.input_power;
 }
+
+}  // namespace
 
 double spatial_energy(const Model& model, const Workspace& ws) {
   double energy = 0;

@@ -121,7 +121,7 @@ struct Workspace {
   std::vector<double> acc0_x, acc0_y;    ///< com accelerations without the unknown q'' [m/s^2] (N)
 
   // Spatial chains (chain_spatial.cpp; model.spatial). Vectors of 3 per link are stored x, y, z
-  // link after link; for these models sin_t/cos_t/omega are not used.
+  // link after link; for these models sin_t/cos_t are not used and omega holds |e_i'|^2 [1/s^2].
   std::vector<double> dir;            ///< unit vector e_i along link i, from the state normalised [-] (3N)
   std::vector<double> dir_rate;       ///< e_i', the part perpendicular to e_i [1/s] (3N)
   std::vector<double> tangent;        ///< basis t_i1, t_i2 of the plane perpendicular to e_i, t_i1 x t_i2 = e_i [-] (6N)
