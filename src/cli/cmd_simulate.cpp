@@ -135,7 +135,7 @@ std::string describe_start(const Model& model, const InitialState& start) {
 Action add_simulate(CLI::App& app) {
   auto* cmd = app.add_subcommand("simulate", "Simulate one case and write its time series as CSV");
   struct Options {
-    std::string spec, case_id, scenario, theta, rate, duration, output_rate, out;
+    std::string spec, case_id, scenario, theta, rate, phi, phi_rate, duration, output_rate, out;
     bool ftle = false;
     long max_samples = kDefaultMaxSamples;
   };
@@ -148,6 +148,9 @@ Action add_simulate(CLI::App& app) {
   cmd->add_option("--theta", o->theta,
                   "A start of your own instead of a case: link angles, top first, e.g. \"10 deg, -5 deg\" (missing: 0)");
   cmd->add_option("--rate", o->rate, "With --theta: angular rates, e.g. \"0, 5 deg/s\" (missing: 0)");
+  cmd->add_option("--phi", o->phi,
+                  "Spatial chains, a start of your own: angles out of the travel plane, e.g. \"3 deg, 0\" (missing: 0)");
+  cmd->add_option("--phi-rate", o->phi_rate, "Spatial chains: rates of --phi, e.g. \"0, 2 deg/s\" (missing: 0)");
   cmd->add_option("--duration", o->duration, "Simulated time, e.g. \"20 s\" (default: cases.duration)");
   cmd->add_option("--output-rate", o->output_rate, "Samples per second, e.g. 100 (default: cases.output_rate)");
   cmd->add_option("-o,--output", o->out, "CSV file to write (default: standard output)");
@@ -188,18 +191,26 @@ Action add_simulate(CLI::App& app) {
       if (scenario < 0) throw UsageError("--scenario", fmt::format("no scenario '{}' (have {})", o->scenario, names));
     }
     InitialState start;
-    const bool own_start = !o->theta.empty() || !o->rate.empty();
+    const bool own_start = !o->theta.empty() || !o->rate.empty() || !o->phi.empty() || !o->phi_rate.empty();
     if (!o->case_id.empty() && (own_start || !o->scenario.empty()))
-      throw UsageError("--case", "names both the start and the scenario, so it conflicts with --theta, --rate and --scenario",
-                       "leave out --theta, --rate and --scenario, or leave out --case");
+      throw UsageError("--case",
+                       "names both the start and the scenario, so it conflicts with --theta, --rate, --phi, --phi-rate "
+                       "and --scenario",
+                       "leave out --theta, --rate, --phi, --phi-rate and --scenario, or leave out --case");
+    if (!model.spatial && (!o->phi.empty() || !o->phi_rate.empty()))
+      throw UsageError(o->phi.empty() ? "--phi-rate" : "--phi", "a planar chain has no swing out of its plane",
+                       "leave it out, or give the spec 'motion: spatial'");
     std::string start_label;
     if (own_start) {
       if (!o->theta.empty()) start.theta = parse_list("--theta", o->theta, units::angle);
       if (!o->rate.empty()) start.omega = parse_list("--rate", o->rate, units::angular_rate);
-      if (start.theta.size() > static_cast<std::size_t>(model.n) || start.omega.size() > static_cast<std::size_t>(model.n))
-        throw UsageError(start.theta.size() > static_cast<std::size_t>(model.n) ? "--theta" : "--rate",
-                         fmt::format("at most {} values (one per link)", model.n));
-      start_label = "your start (--theta/--rate)";
+      if (!o->phi.empty()) start.phi = parse_list("--phi", o->phi, units::angle);
+      if (!o->phi_rate.empty()) start.phi_rate = parse_list("--phi-rate", o->phi_rate, units::angular_rate);
+      const auto n_links = static_cast<std::size_t>(model.n);
+      for (const auto& [option, list] : {std::pair{"--theta", &start.theta}, {"--rate", &start.omega},
+                                         {"--phi", &start.phi}, {"--phi-rate", &start.phi_rate}})
+        if (list->size() > n_links) throw UsageError(option, fmt::format("at most {} values (one per link)", model.n));
+      start_label = model.spatial ? "your start (--theta/--rate/--phi/--phi-rate)" : "your start (--theta/--rate)";
     } else {
       const CaseDef def = pick_case(CaseSpace(spec), o->case_id, o->scenario.empty() ? -1 : scenario);
       start = def.initial;
@@ -232,7 +243,7 @@ Action add_simulate(CLI::App& app) {
       if (model.spatial)
         csv << ',' << csv_quote(fmt::format("travel_plane_angle({}) (projection on x-y from the vertical) [rad]", name))
             << ',' << csv_quote(fmt::format("cross_plane_angle({}) (projection on z-y from the vertical) [rad]", name))
-            << ',' << csv_quote(fmt::format("swing_angle({}) (from the vertical, any direction) [rad]", name)) << ','
+            << ',' << csv_quote(fmt::format("swing_angle({}) (from the vertical in any direction) [rad]", name)) << ','
             << csv_quote(fmt::format("swing_rate({}) [rad/s]", name)) << ','
             << csv_quote(fmt::format("relative_angle({}) (to the link above) [rad]", name));
       else

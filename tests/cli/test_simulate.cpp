@@ -137,3 +137,31 @@ TEST_CASE("simulate refuses an unknown case id and a case mixed with a start of 
   REQUIRE(own.status == 0);
   CHECK(own.err.find("start: your start (--theta/--rate), scenario 'brake'") != std::string::npos);
 }
+
+TEST_CASE("simulate --phi: a spatial start of one's own, refused on a planar chain", "[cli][simulate][spatial]") {
+  const Run planar = simulate("--theta \"2 deg\" --phi \"1 deg\"");
+  CHECK(planar.status == 2);
+  CHECK(planar.err.find("--phi: a planar chain has no swing out of its plane") != std::string::npos);
+  CHECK(planar.out.empty());
+
+  // The same chain, spatial: the first sample is the start, e = (sin t cos p, -cos t cos p, sin p),
+  // so its cone angle is acos(cos t cos p) and its projections atan(tan t) and atan(tan p / cos t).
+  const fs::path dir = fs::temp_directory_path() / ("swaybound-test-simulate-spatial-" + std::to_string(::getpid()));
+  fs::create_directories(dir);
+  std::string spatial_spec = kSpec;
+  spatial_spec.replace(spatial_spec.find("gravity:"), 0, "motion: spatial\n");
+  const fs::path spec = dir / "spec.yaml";
+  std::ofstream(spec) << spatial_spec;
+  const CommandResult r = run_command(std::string(SWAYBOUND_CLI) + " simulate " + spec.string() +
+                                      " --theta \"3 deg, 0\" --phi \"2 deg, 4 deg\" --output-rate 10 2>/dev/null");
+  fs::remove_all(dir);
+  REQUIRE((r.exited && r.status == 0));
+  const Csv csv = parse(r.out);
+  const auto at0 = [&](const std::string& col) { return csv.rows[0][static_cast<std::size_t>(csv.column(col))]; };
+  const double t = 3 * M_PI / 180, p = 2 * M_PI / 180;
+  CHECK(at0("swing_angle(rope)") == Approx(std::acos(std::cos(t) * std::cos(p))).epsilon(1e-9));
+  CHECK(at0("travel_plane_angle(rope)") == Approx(t).epsilon(1e-9));
+  CHECK(at0("cross_plane_angle(rope)") == Approx(std::atan(std::tan(p) / std::cos(t))).epsilon(1e-9));
+  CHECK(at0("swing_angle(block)") == Approx(4 * M_PI / 180).epsilon(1e-9));
+  CHECK(csv.column("pivot_z(rope)") > 0);
+}
