@@ -222,6 +222,18 @@ TaskResult run_task(const CheckPlan& plan, const StartBox& box, const WorstStart
 
 }  // namespace
 
+namespace {
+/// Records in `s` the start of `def` (scenario, angles, rates) and the sampled case it came from.
+void set_start(LimitSearch& s, const CaseDef& def, const std::string& from_case) {
+  s.scenario = def.scenario;
+  s.theta = def.initial.theta;
+  s.omega = def.initial.omega;
+  s.phi = def.initial.phi;
+  s.phi_rate = def.initial.phi_rate;
+  s.from_case = from_case;
+}
+}  // namespace
+
 std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& starts,
                                       const std::vector<CheckResult>& checks, const SearchBudget& budget,
                                       int jobs) {
@@ -241,12 +253,7 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
     const std::vector<CaseMetrics>& kept = starts.of(c.limit);
     if (!kept.empty()) {
       const CaseDef governing = plan.space.at(kept.front().index);
-      s.scenario = governing.scenario;
-      s.theta = governing.initial.theta;
-      s.omega = governing.initial.omega;
-      s.phi = governing.initial.phi;
-      s.phi_rate = governing.initial.phi_rate;
-      s.from_case = governing.id;
+      set_start(s, governing, governing.id);
       s.ftle = kept.front().ftle;
     }
     s.searched = !kept.empty() && !box.free.empty();
@@ -291,12 +298,7 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
     if (failed) {
       s.failed_run = true;
       s.failure = failed->failure;
-      s.scenario = failed->failed_case.scenario;
-      s.theta = failed->failed_case.initial.theta;
-      s.omega = failed->failed_case.initial.omega;
-      s.phi = failed->failed_case.initial.phi;
-      s.phi_rate = failed->failed_case.initial.phi_rate;
-      s.from_case = failed->from_case;
+      set_start(s, failed->failed_case, failed->from_case);
       s.searched_worst = std::nan("");
       s.margin = std::nan("");
       s.ftle = std::nan("");
@@ -306,12 +308,7 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
     if (winner) {
       s.found_worse = true;
       s.searched_worst = winner->best_value;
-      s.scenario = winner->best_case.scenario;
-      s.theta = winner->best_case.initial.theta;
-      s.omega = winner->best_case.initial.omega;
-      s.phi = winner->best_case.initial.phi;
-      s.phi_rate = winner->best_case.initial.phi_rate;
-      s.from_case = winner->from_case;
+      set_start(s, winner->best_case, winner->from_case);
       s.ftle = winner->best_ftle;
       s.raise = best - sampled;
     }

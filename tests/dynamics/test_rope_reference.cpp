@@ -23,6 +23,7 @@
 
 #include "../support/componentwise.hpp"
 #include "../support/process.hpp"
+#include "../support/python_reference.hpp"
 #include "../support/rope.hpp"
 #include "swaybound/dynamics/chain.hpp"
 #include "swaybound/model/model.hpp"
@@ -38,16 +39,12 @@ struct Reference {
   double energy = 0, energy_rate = 0;
 };
 
-const std::string kPython = SWAYBOUND_PYTHON;
-const std::string kScript = std::string(SWAYBOUND_SOURCE_DIR) + "/tests/reference/sympy_rope_chain.py";
 
-/// Runs the SymPy reference; FAILs (not skips) when it cannot run. `ell`, `ell_rate`: per link (used
+/// Runs the SymPy reference (tests/reference/sympy_rope_chain.py); FAILs (not skips) when it cannot run. `ell`, `ell_rate`: per link (used
 /// for elastic links).
 std::vector<Reference> sympy_reference(const RopeChain& d, const std::vector<double>& ell,
                                        const std::vector<double>& ell_rate,
                                        const std::vector<std::vector<double>>& states) {
-  if (std::system((kPython + " -c 'import sympy, numpy' > /dev/null 2>&1").c_str()) != 0)
-    FAIL(kPython << " cannot import sympy and numpy: this test needs python3-sympy and python3-numpy");
   nlohmann::json in;
   in["g"] = d.g;
   in["ax"] = d.ax;
@@ -64,17 +61,7 @@ std::vector<Reference> sympy_reference(const RopeChain& d, const std::vector<dou
     in["links"].push_back(j);
   }
   in["states"] = states;
-  const auto input = std::filesystem::temp_directory_path() / ("swaybound_rope_" + std::to_string(::getpid()) + ".json");
-  {
-    std::ofstream f(input);
-    f << in.dump();
-  }
-  const auto run = swaybound::testing::run_command(kPython + " '" + kScript + "' < '" + input.string() + "'");
-  std::filesystem::remove(input);
-  REQUIRE(run.started);
-  REQUIRE(run.exited);
-  REQUIRE(run.status == 0);
-  const nlohmann::json res = nlohmann::json::parse(run.out);
+  const nlohmann::json res = swaybound::testing::run_python_reference("sympy_rope_chain.py", in);
   std::vector<Reference> out(states.size());
   for (std::size_t s = 0; s < states.size(); ++s) {
     out[s].qdd = res["qdd"][s].get<std::vector<double>>();

@@ -5,21 +5,15 @@
 #include <catch2/catch.hpp>
 
 #include <cmath>
-#include <cstdio>
-#include <cstdlib>
-#include <filesystem>
-#include <fstream>
 #include <random>
 #include <sstream>
 #include <string>
 #include <vector>
 
-#include <unistd.h>
-
 #include <nlohmann/json.hpp>
 
 #include "../support/componentwise.hpp"
-#include "../support/process.hpp"
+#include "../support/python_reference.hpp"
 #include "swaybound/dynamics/chain.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/spec.hpp"
@@ -92,13 +86,6 @@ Result engine(const Model& model, Workspace& ws, const std::vector<double>& stat
   return r;
 }
 
-std::string read_file(const std::filesystem::path& p) {
-  std::ifstream in(p);
-  std::stringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
 /// Random states inside the reference's chart (cone angle < 75 deg): e from two angles, e' any
 /// tangent vector with |e'| up to 3 /s.
 std::vector<std::vector<double>> random_states(int n, int count, std::uint64_t seed) {
@@ -122,12 +109,8 @@ std::vector<std::vector<double>> random_states(int n, int count, std::uint64_t s
   return states;
 }
 
-/// Runs tests/reference/sympy_spatial_chain.py; FAILs (not skips) when it cannot run.
+/// The SymPy reference (tests/reference/sympy_spatial_chain.py) at `states`.
 std::vector<Result> sympy_reference(const ChainData& d, const std::vector<std::vector<double>>& states) {
-  const std::string python = SWAYBOUND_PYTHON;
-  const std::string script = std::string(SWAYBOUND_SOURCE_DIR) + "/tests/reference/sympy_spatial_chain.py";
-  if (std::system((python + " -c 'import sympy, numpy' > /dev/null 2>&1").c_str()) != 0)
-    FAIL(python << " cannot import sympy and numpy: this test needs python3-sympy and python3-numpy");
   nlohmann::json in;
   in["g"] = d.g;
   in["a_base"] = {d.a[0], d.a[1], d.a[2]};
@@ -135,25 +118,7 @@ std::vector<Result> sympy_reference(const ChainData& d, const std::vector<std::v
   for (const LinkData& l : d.links)
     in["links"].push_back({{"m", l.m}, {"L", l.L}, {"c", l.c}, {"I", l.I}, {"C", l.C}, {"T", l.T}, {"wt", l.wt}});
   in["states"] = states;
-  const auto tmp = std::filesystem::temp_directory_path();
-  const std::string tag = "swaybound_spatial_" + std::to_string(::getpid());
-  const auto input = tmp / (tag + "_in.json");
-  const auto errors = tmp / (tag + "_err.txt");
-  // The wind as a constant force is the reference's model; the engine's drag depends on the
-  // point's velocity, so the wind is compared separately (see the test below).
-  {
-    std::ofstream f(input);
-    f << in.dump();
-  }
-  const std::string command = python + " '" + script + "' < '" + input.string() + "' 2> '" + errors.string() + "'";
-  const auto run = swaybound::testing::run_command(command);
-  REQUIRE(run.started);
-  const std::string err = read_file(errors);
-  std::filesystem::remove(input);
-  std::filesystem::remove(errors);
-  INFO("command: " << command << "\nstderr:\n" << err);
-  REQUIRE((run.exited && run.status == 0));
-  const nlohmann::json res = nlohmann::json::parse(run.out);
+  const nlohmann::json res = swaybound::testing::run_python_reference("sympy_spatial_chain.py", in);
   REQUIRE(res.at("accel").size() == states.size());
   std::vector<Result> r(states.size());
   for (std::size_t s = 0; s < states.size(); ++s) {

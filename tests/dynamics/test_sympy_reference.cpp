@@ -23,7 +23,7 @@
 #include <nlohmann/json.hpp>
 
 #include "swaybound/dynamics/chain.hpp"
-#include "../support/process.hpp"
+#include "../support/python_reference.hpp"
 #include "../support/componentwise.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/spec.hpp"
@@ -84,22 +84,8 @@ Result engine(const Model& model, Workspace& ws, const std::vector<double>& stat
   return r;
 }
 
-std::string read_file(const std::filesystem::path& p) {
-  std::ifstream in(p);
-  std::stringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
-const std::string kPython = SWAYBOUND_PYTHON;
-const std::string kScript = std::string(SWAYBOUND_SOURCE_DIR) + "/tests/reference/sympy_chain.py";
-
-/// Runs the SymPy reference on `states`; FAILs (not skips) when it cannot run.
+/// Runs the SymPy reference (tests/reference/sympy_chain.py) on `states`.
 std::vector<Result> sympy_reference(const ChainData& d, const std::vector<std::vector<double>>& states, double& seconds) {
-  if (std::system((kPython + " -c 'import sympy, numpy' > /dev/null 2>&1").c_str()) != 0)
-    FAIL(kPython << " cannot import sympy and numpy: this test needs python3-sympy and python3-numpy "
-                    "(apt-get install python3-sympy python3-numpy); it is not optional");
-
   nlohmann::json in;
   in["g"] = d.g;
   in["ax"] = d.ax;
@@ -108,29 +94,7 @@ std::vector<Result> sympy_reference(const ChainData& d, const std::vector<std::v
   for (const LinkData& l : d.links)
     in["links"].push_back({{"m", l.m}, {"L", l.L}, {"c", l.c}, {"I", l.I}, {"C", l.C}, {"T", l.T}, {"wt", l.wt}});
   in["states"] = states;
-
-  const auto tmp = std::filesystem::temp_directory_path();
-  const std::string tag = "swaybound_sympy_" + std::to_string(::getpid());
-  const auto input = tmp / (tag + "_in.json");
-  const auto errors = tmp / (tag + "_err.txt");
-  {
-    std::ofstream f(input);
-    f << in.dump();
-  }
-  const std::string command = kPython + " '" + kScript + "' < '" + input.string() + "' 2> '" + errors.string() + "'";
-  const auto t0 = std::chrono::steady_clock::now();
-  const auto run = swaybound::testing::run_command(command);
-  REQUIRE(run.started);
-  const std::string& out = run.out;
-  const int status = run.exited ? run.status : -1;
-  seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
-  const std::string err = read_file(errors);
-  std::filesystem::remove(input);
-  std::filesystem::remove(errors);
-  INFO("command: " << command << "\nstderr:\n" << err);
-  REQUIRE(status == 0);
-
-  const nlohmann::json res = nlohmann::json::parse(out);
+  const nlohmann::json res = swaybound::testing::run_python_reference("sympy_chain.py", in, &seconds);
   REQUIRE(res.at("alpha").size() == states.size());
   REQUIRE(res.at("reaction").size() == states.size());
   std::vector<Result> r(states.size());
