@@ -179,6 +179,8 @@ std::string dim_name(const Dim& d) {
       {moment_of_inertia, "moment of inertia"},
       {rate, "rate (per time)"},
       {angular_rate, "angular rate"},
+      {angular_acceleration, "angular acceleration"},
+      {angular_jerk, "angular jerk"},
       {area, "area"},
       {density, "density"},
   };
@@ -206,6 +208,7 @@ std::string si_unit(const Dim& d) {
       {moment_of_inertia, "kg m^2"}, {rate, "1/s"},         {angular_rate, "rad/s"},
       {area, "m^2"},                {density, "kg/m^3"},
       {jerk, "m/s^3"},              {stiffness, "N/m"},
+      {angular_acceleration, "rad/s^2"}, {angular_jerk, "rad/s^3"},
   };
   for (const auto& n : kUnits)
     if (n.dim == d) return std::string(n.unit);

@@ -116,9 +116,15 @@ void spatial_external_forces(const Model& model, Workspace& ws, const Phase& pha
   }
 }
 
-/// The relative angular velocity at pivot i: w_i - w_{i-1} (w_{-1} = 0).
+/// The relative angular velocity at pivot i: w_i - w_{i-1}. At pivot 0 the base's: w_0 when the
+/// base does not turn; on a slewing boom (angular velocity W y) the swing relative to the boom,
+/// w_0 - W y without its part along e_0 (turning about its own axis relative to the boom is free:
+/// no twist), so a load swung out steadily with the boom meets no damper torque.
 Vec3 relative_spin(const Workspace& ws, int i) {
-  return i > 0 ? load(ws.spin, i) - load(ws.spin, i - 1) : load(ws.spin, i);
+  if (i > 0) return load(ws.spin, i) - load(ws.spin, i - 1);
+  if (ws.base_spin == 0.0) return load(ws.spin, 0);
+  const Vec3 e = load(ws.dir, 0), w = load(ws.spin, 0) - Vec3{0.0, ws.base_spin, 0.0};
+  return w - dot(w, e) * e;
 }
 
 /// Pivot torque vectors into ws.torque: with reaction == nullptr the dampers and constant friction
@@ -174,6 +180,25 @@ void spatial_kinematics(const Model& model, Workspace& ws, const Phase& p, const
   ws.base_x = p.x0 + (p.vx0 + (0.5 * p.ax + p.jx * dt / 6.0) * dt) * dt;
   ws.base_y = p.y0 + p.vy0 * dt + 0.5 * p.ay * dt * dt;
   ws.base_z = p.z0 + p.vz0 * dt + 0.5 * p.az * dt * dt;
+  if (p.slew_radius > 0) {
+    // Slewing: the pivot on a circle of radius R about the vertical axis through (-R, y, 0), at
+    // slewing angle psi(t) (a cubic within the phase): p = (R (cos psi - 1), y, R sin psi),
+    // p' = R psi' (-sin psi, 0, cos psi), p'' = R psi'' (-sin psi, 0, cos psi) - R psi'^2 (cos psi, 0, sin psi).
+    const double r = p.slew_radius;
+    const double psi = p.slew_angle0 + (p.slew_rate0 + (0.5 * p.slew_accel0 + p.slew_jerk * dt / 6.0) * dt) * dt;
+    const double rate = p.slew_rate0 + (p.slew_accel0 + 0.5 * p.slew_jerk * dt) * dt;
+    const double accel = p.slew_accel0 + p.slew_jerk * dt;
+    const double c = std::cos(psi), s = std::sin(psi);
+    ws.base_x = r * (c - 1.0);
+    ws.base_z = r * s;
+    ws.base_vx = -r * rate * s;
+    ws.base_vz = r * rate * c;
+    ws.base_ax = -r * accel * s - r * rate * rate * c;
+    ws.base_az = r * accel * c - r * rate * rate * s;
+    ws.base_spin = -rate;  // turning from +x towards +z is a rotation about -y
+  } else {
+    ws.base_spin = 0.0;
+  }
   for (int i = 0; i < model.n; ++i) {
     const Vec3 raw{x[3 * i], x[3 * i + 1], x[3 * i + 2]};
     const Vec3 e = (1.0 / norm(raw)) * raw;
@@ -309,8 +334,11 @@ void evaluate_spatial_with(const Model& model, Workspace& ws, const Phase& phase
   ws.reactions_current = need_reactions;
   pin_friction_fixed_point(model, ws, solve);
 
-  if (model.any_pivot_torque)
+  if (model.any_pivot_torque) {
     for (int i = 0; i < n; ++i) ws.dissipated_power -= dot(load(ws.torque, i), relative_spin(ws, i));
+    // A slewing boom turns the upper side of pivot 0: the work its torque does on the chain.
+    ws.input_power += ws.base_spin * ws.torque[1];
+  }
   if (moving) ws.input_power += dot(Vec3{ws.reaction_x[0], ws.reaction_y[0], ws.reaction_z[0]}, base_v);
 
   const int f = model.dof;

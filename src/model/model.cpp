@@ -29,6 +29,14 @@ SpeedProfile drum_profile(const ScenarioSpec& s) {
   return SpeedProfile::build(s.hoist->initial_speed, moves);
 }
 
+/// The slewing drive's speed profile of a scenario [rad/s] (standing still without one).
+SpeedProfile slew_profile(const ScenarioSpec& s) {
+  if (!s.slew) return {};
+  std::vector<SpeedMove> moves;
+  for (const DrumMoveSpec& m : s.slew->moves) moves.push_back(SpeedMove{m.at, m.to, m.accel, m.jerk});
+  return SpeedProfile::build(s.slew->initial_rate, moves);
+}
+
 /// The travel drive's speed profile of a scenario, shaped and stopped as its spec says (empty
 /// without a travel drive).
 std::optional<SpeedProfile> travel_profile(const ScenarioSpec& s) {
@@ -41,7 +49,9 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
   // the travel drive's acceleration or jerk jumps.
   const SpeedProfile drum = drum_profile(s);
   const std::optional<SpeedProfile> travel = travel_profile(s);
+  const SpeedProfile slew = slew_profile(s);
   std::vector<double> cuts = drum.breakpoints();
+  for (double t : slew.breakpoints()) cuts.push_back(t);
   if (travel)
     for (double t : travel->breakpoints()) cuts.push_back(t);
   double t = 0;
@@ -92,6 +102,13 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
       p.drum_v0 = drum.speed(p.t0);
       p.drum_a0 = drum.accel(p.t0);
       p.drum_jerk = drum.jerk(p.t0);
+    }
+    if (s.slew) {
+      p.slew_radius = s.slew->radius;
+      p.slew_angle0 = slew.position(p.t0);
+      p.slew_rate0 = slew.speed(p.t0);
+      p.slew_accel0 = slew.accel(p.t0);
+      p.slew_jerk = slew.jerk(p.t0);
     }
     if (travel) {
       // The drive's profile gives x exactly (a cubic within the phase); y keeps its segments.

@@ -218,19 +218,22 @@ std::string normalised_yaml(const Spec& spec) {
     const ScenarioSpec& s = spec.scenarios[i];
     out << YAML::BeginMap << YAML::Key << "name" << YAML::Value << s.name;
     // Speed moves of a drum or a travel drive, one flow map each.
-    const auto write_moves = [&](const std::vector<DrumMoveSpec>& moves) {
+    // Speed moves in SI; a slewing drive's in rad/s (an angular quantity must carry its unit).
+    const auto write_moves = [&](const std::vector<DrumMoveSpec>& moves, bool angular = false) {
       if (moves.empty()) return;
+      const char* unit[3] = {angular ? " rad/s" : "", angular ? " rad/s^2" : "", angular ? " rad/s^3" : ""};
       out << YAML::Key << "moves" << YAML::Value << YAML::BeginSeq;
       for (const auto& m : moves) {
         out << YAML::Flow << YAML::BeginMap << YAML::Key << "at" << YAML::Value << fmt::format("{:.12g}", m.at)
-            << YAML::Key << "to" << YAML::Value << fmt::format("{:.12g}", m.to) << YAML::Key << "accel"
-            << YAML::Value << fmt::format("{:.12g}", m.accel);
-        if (m.jerk > 0) out << YAML::Key << "jerk" << YAML::Value << fmt::format("{:.12g}", m.jerk);
-        out << YAML::EndMap << YAML::Comment(m.jerk > 0 ? "s, m/s, m/s^2, m/s^3" : "s, m/s, m/s^2");
+            << YAML::Key << "to" << YAML::Value << fmt::format("{:.12g}{}", m.to, unit[0]) << YAML::Key << "accel"
+            << YAML::Value << fmt::format("{:.12g}{}", m.accel, unit[1]);
+        if (m.jerk > 0) out << YAML::Key << "jerk" << YAML::Value << fmt::format("{:.12g}{}", m.jerk, unit[2]);
+        out << YAML::EndMap;
+        if (!angular) out << YAML::Comment(m.jerk > 0 ? "s, m/s, m/s^2, m/s^3" : "s, m/s, m/s^2");
       }
       out << YAML::EndSeq;
     };
-    if (!s.travel) {
+    if (!s.travel && !s.slew) {
       out << YAML::Key << "initial_velocity" << YAML::Value << YAML::Flow << YAML::BeginMap << YAML::Key << "x"
           << YAML::Value << fmt::format("{:.12g}", s.initial_vx) << YAML::Key << "y" << YAML::Value
           << fmt::format("{:.12g}", s.initial_vy);
@@ -247,6 +250,13 @@ std::string normalised_yaml(const Spec& spec) {
       out << YAML::EndSeq;
     }
     w.at(fmt::format("base.scenarios[{}]", i));
+    if (const auto& sl = s.slew) {
+      w.begin("slew");
+      w.value("radius", sl->radius, u::length);
+      w.value("speed", sl->initial_rate, u::angular_rate);
+      write_moves(sl->moves, true);
+      w.end();
+    }
     if (const auto& t = s.travel) {
       w.begin("travel");
       w.value("speed", t->initial_speed, u::speed);

@@ -374,7 +374,7 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
               "give at least one scenario, or leave 'base' out for a fixed top pivot");
   for (std::size_t i = 0; i < list.size(); ++i) {
     const std::string path = fmt::format("base.scenarios[{}]", i);
-    MapView s(ctx, list[i], path, {"name", "initial_velocity", "accel", "travel", "hoist", "lift_off"});
+    MapView s(ctx, list[i], path, {"name", "initial_velocity", "accel", "travel", "slew", "hoist", "lift_off"});
     if (!s.ok()) continue;
     ScenarioSpec sc;
     sc.mark = s.mark();
@@ -408,6 +408,7 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
     }
     read_scenario_rope_keys(s, spec, sc);
     if (s.has("travel")) read_travel(s, sc);
+    if (s.has("slew")) read_slew(s, spec, sc);
     spec.scenarios.push_back(std::move(sc));
   }
 }

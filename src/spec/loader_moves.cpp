@@ -26,7 +26,8 @@ std::pair<std::string, std::string> split_profile_error(const ProfileError& e) {
 /// base.scenarios[i].hoist.moves[k] or travel.moves[k] (`drum` picks the words of the messages);
 /// false when the move could not be read.
 bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& path, DrumMoveSpec& move,
-                    bool drum) {
+                    MoveOf of) {
+  const bool drum = of == MoveOf::drum, slew = of == MoveOf::slew;
   MapView m(ctx, node, path, {"at", "to", "accel", "jerk"});
   if (!m.ok()) return false;
   move.mark = m.mark();
@@ -44,13 +45,18 @@ bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& pat
   };
   read("at", "when the move starts, e.g. '2 s'", u::duration, Bounds::non_negative(), move.at);
   read("to",
-       drum ? "the drum speed the move reaches, e.g. '0.5 m/s' (+ hauls in, - pays out)"
-            : "the travel speed the move reaches, e.g. '1.2 m/s' (+ towards +x)",
-       u::speed, Bounds::any(), move.to);
-  read("accel", drum ? "the drum's acceleration limit, e.g. '0.4 m/s^2'" : "the drive's acceleration limit, e.g. '0.3 m/s^2'",
-       u::acceleration, Bounds::positive(), move.accel);
+       slew   ? "the slewing speed the move reaches, e.g. '0.1 rad/s' (+ turns the pivot from +x towards +z)"
+       : drum ? "the drum speed the move reaches, e.g. '0.5 m/s' (+ hauls in, - pays out)"
+              : "the travel speed the move reaches, e.g. '1.2 m/s' (+ towards +x)",
+       slew ? u::angular_rate : u::speed, Bounds::any(), move.to);
+  read("accel",
+       slew   ? "the slewing acceleration limit, e.g. '0.02 rad/s^2'"
+       : drum ? "the drum's acceleration limit, e.g. '0.4 m/s^2'"
+              : "the drive's acceleration limit, e.g. '0.3 m/s^2'",
+       slew ? u::angular_acceleration : u::acceleration, Bounds::positive(), move.accel);
   if (m.has("jerk")) {
-    if (auto v = read_quantity(ctx, m.get("jerk"), m.path("jerk"), u::jerk, Bounds::non_negative()))
+    if (auto v = read_quantity(ctx, m.get("jerk"), m.path("jerk"), slew ? u::angular_jerk : u::jerk,
+                               Bounds::non_negative()))
       move.jerk = *v;
     else
       ok = false;
@@ -212,7 +218,7 @@ void read_travel(const MapView& scenario, ScenarioSpec& sc) {
     const YAML::Node list = t.get("moves");
     for (std::size_t k = 0; k < list.size(); ++k) {
       DrumMoveSpec move;
-      moves_ok &= read_drum_move(ctx, list[k], fmt::format("{}[{}]", t.path("moves"), k), move, false);
+      moves_ok &= read_drum_move(ctx, list[k], fmt::format("{}[{}]", t.path("moves"), k), move, MoveOf::travel);
       travel.moves.push_back(move);
     }
   } else if (t.has("moves")) {

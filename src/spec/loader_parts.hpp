@@ -27,9 +27,11 @@ void check_elastic_ropes(Context& ctx, const YAML::Node& links_node, const Spec&
 void read_scenario_rope_keys(const MapView& scenario, const Spec& spec, ScenarioSpec& sc);
 /// A speed profile's error as (message, fix) (loader_moves.cpp).
 std::pair<std::string, std::string> split_profile_error(const ProfileError& e);
-/// Reads one speed move {at, to, accel, jerk} at `path` into `move` (`drum` picks the words of the
-/// messages: a drum's or a travel drive's); false when it could not be read (loader_moves.cpp).
-bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& path, DrumMoveSpec& move, bool drum);
+/// Whose speed move: a hoist drum's, a travel drive's (speeds in m/s) or a slewing drive's (rad/s).
+enum class MoveOf { drum, travel, slew };
+/// Reads one speed move {at, to, accel, jerk} at `path` into `move` (`of` picks the units and the
+/// words of the messages); false when it could not be read (loader_moves.cpp).
+bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& path, DrumMoveSpec& move, MoveOf of);
 
 /// Reads a scenario's `travel` drive (speed and moves; loader_rope.cpp, which shares the moves'
 /// reader with the drum). A scenario with a travel drive gives neither `accel` nor `initial_velocity`.
@@ -53,6 +55,10 @@ void refuse_ftle_with_elastic_ropes(Context& ctx, const Spec& spec);
 void read_motion(const MapView& top, Spec& spec);
 bool require_spatial(const MapView& map, std::string_view key, const Spec& spec, std::string_view what);
 void refuse_with_spatial(Context& ctx, const Spec& spec);
+
+/// Reads a scenario's `slew` (spatial chains; loader_spatial.cpp): radius and slewing speed moves,
+/// instead of `accel`, `initial_velocity` and `travel`.
+void read_slew(const MapView& scenario, const Spec& spec, ScenarioSpec& sc);
 
 void read_cases(const MapView& top, Spec& spec, const LoadOptions& options);
 void read_limits(const MapView& top, Spec& spec);

@@ -126,7 +126,7 @@ void read_hoist(const MapView& scenario, const Spec& spec, ScenarioSpec& sc) {
     const YAML::Node list = h.get("moves");
     for (std::size_t k = 0; k < list.size(); ++k) {
       DrumMoveSpec move;
-      moves_ok &= read_drum_move(ctx, list[k], fmt::format("{}[{}]", h.path("moves"), k), move, true);
+      moves_ok &= read_drum_move(ctx, list[k], fmt::format("{}[{}]", h.path("moves"), k), move, MoveOf::drum);
       hoist.moves.push_back(move);
     }
   } else if (h.has("moves")) {

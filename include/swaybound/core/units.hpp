@@ -35,6 +35,8 @@ inline constexpr Dim stiffness{1, 0, -2, 0};        // N/m, a rope's spring rate
 inline constexpr Dim moment_of_inertia{1, 2, 0, 0};
 inline constexpr Dim rate{0, 0, -1, 0};             // 1/s, e.g. a Lyapunov exponent
 inline constexpr Dim angular_rate{0, 0, -1, 1};     // rad/s
+inline constexpr Dim angular_acceleration{0, 0, -2, 1};  // rad/s^2, a slewing move's limit
+inline constexpr Dim angular_jerk{0, 0, -3, 1};     // rad/s^3
 inline constexpr Dim area{0, 2, 0, 0};
 inline constexpr Dim density{1, -3, 0, 0};
 

@@ -130,6 +130,7 @@ struct Workspace {
   std::vector<double> torque_fixed;   ///< of which dampers and constant friction [N m] (3N)
   std::vector<double> force_z, acc_z, reaction_z;  ///< across the travel, as force_x etc. (N)
   double base_z = 0, base_vz = 0, base_az = 0;     ///< base across the travel [m], [m/s], [m/s^2]
+  double base_spin = 0;                            ///< slewing: the boom's angular velocity about +y [rad/s] (-psi')
   Eigen::MatrixXd mass_s;             ///< mass matrix of the tangent rates (2N x 2N) [kg m^2]
   Eigen::VectorXd bias_s, rhs_s, accel_s;  ///< generalised forces [N m] and tangent accelerations [1/s^2] (2N)
   Eigen::LLT<Eigen::MatrixXd> llt_s;  ///< Cholesky factor of mass_s

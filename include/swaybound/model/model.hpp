@@ -75,6 +75,10 @@ struct Phase {
   /// the jerk [m/s^3] within the phase (all 0 without a hoist).
   double drum_s0 = 0, drum_v0 = 0, drum_a0 = 0, drum_jerk = 0;
   int drum_link = -1;               ///< the rope link the drum winds, -1 for none
+  /// Slewing (spatial chains; 0 radius for none): the top pivot at `slew_radius` from a vertical axis
+  /// through (x0 - radius, ., z0) at t = 0 ... see chain_spatial.cpp; the slewing angle [rad], speed
+  /// [rad/s] and acceleration [rad/s^2] at t0 and the jerk [rad/s^3] within the phase.
+  double slew_radius = 0, slew_angle0 = 0, slew_rate0 = 0, slew_accel0 = 0, slew_jerk = 0;
 };
 
 struct ScenarioModel {

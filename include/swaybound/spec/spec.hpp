@@ -165,6 +165,17 @@ struct ScenarioSpec {
     Mark mark;
   };
   std::optional<Travel> travel;
+  /// Spatial chains: the top pivot on a boom slewing about a vertical axis at `radius` from it,
+  /// its slewing speed [rad/s] given as speed moves (rad/s, rad/s^2, rad/s^3), instead of `accel`,
+  /// `initial_velocity` and `travel`. The axis is at (-radius, 0, 0), so the pivot starts at the
+  /// origin and a positive slewing speed moves it towards +z.
+  struct Slew {
+    double radius = 0;        ///< [m]
+    double initial_rate = 0;  ///< [rad/s]
+    std::vector<DrumMoveSpec> moves;
+    Mark mark;
+  };
+  std::optional<Slew> slew;
   std::optional<LiftOffSpec> lift_off;    ///< the load starts on the ground
   Mark mark;
 };
