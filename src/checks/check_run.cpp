@@ -253,10 +253,12 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   runner.progress = options.progress;
   const bool search = options.search && spec.cases.search.enabled;
   WorstStarts starts(spec, spec.cases.search.starts);
+  ShapingCases shaping(spec);
   std::function<void(const CaseMetrics&)> on_case = options.on_case;
-  if (search)
+  if (search || shaping.any())
     on_case = [&](const CaseMetrics& m) {
-      starts.offer(m);
+      if (search) starts.offer(m);
+      shaping.offer(m);
       if (options.on_case) options.on_case(m);
     };
   stream_cases(plan, CaseList::all(plan.space.size()), runner, checks, totals, on_case);
@@ -292,6 +294,7 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   const auto audit_start = std::chrono::steady_clock::now();
   if (options.audit) report.time_budget_total += audit_governing(plan, options.jobs, checks.results());
   if (options.record) report.recorded = record_governing(plan, checks.results());
+  if (options.record) report.shaping = compare_shaping(plan, shaping);
   report.seconds_audit = seconds_since(audit_start);
   report.checks = checks.results();
   // A case that failed to run fails the check run even when no per-case limit touches it.

@@ -138,6 +138,7 @@ Document build_document(const Spec& spec, const CheckReport& r, const ReportMeta
   d.sections.push_back(design_section(spec, r));
   d.sections.push_back(verdict_section(spec, r, cases));
   if (r.searched) d.sections.push_back(search_section(spec, r));
+  if (!r.shaping.empty()) d.sections.push_back(drive_section(spec, r));
   d.sections.push_back(modal_section(spec, r));
   d.sections.push_back(governing_section(spec, r));
   d.sections.push_back(chaos_section(spec, r));

@@ -8,6 +8,7 @@
 //   document_build_verdict.cpp    4 verdict, with the definitions of its figures
 //   document_build_loads.cpp      4 (cont.) loads of the hanging equilibrium
 //   document_build_search.cpp     4b the worst case between the samples (when the search ran)
+//   document_build_drive.cpp      4c drive and command shaping (when a travel drive has a shaper)
 //   document_build_modes.cpp      5 modes
 //   document_build_governing.cpp  6 governing cases
 //   document_build_ropes.cpp      6 (cont.) rope tension, slack, snatches, hoist
@@ -86,6 +87,7 @@ Section scope_section(const Spec& spec, const CheckReport& r, const Document& d)
 Section design_section(const Spec& spec, const CheckReport& r);
 Section verdict_section(const Spec& spec, const CheckReport& r, const std::vector<CaseEnvelopeRow>* cases);
 Section search_section(const Spec& spec, const CheckReport& r);
+Section drive_section(const Spec& spec, const CheckReport& r);
 Section modal_section(const Spec& spec, const CheckReport& r);
 Section governing_section(const Spec& spec, const CheckReport& r);
 Section chaos_section(const Spec& spec, const CheckReport& r);

@@ -68,6 +68,54 @@ Json search_json(const Spec& spec, const LimitSearch& s) {
   return j;
 }
 
+/// One run of a shaping comparison (results.json): its end of moves and residual sway per link.
+Json shaping_run_json(const Spec& spec, const ShapingRun& run) {
+  Json residual = Json::array();
+  for (std::size_t i = 0; i < run.residual.size(); ++i)
+    residual.push_back({{"link", spec.links[i].name}, {"angle_rad", number(run.residual[i].value)},
+                        {"time_s", number(run.residual[i].time)}});
+  return {{"moves_end_s", number(run.move_end)},
+          {"residual_sway_rad", number(run.residual_max)},
+          {"residual_sway_link", run.residual_link >= 0 ? Json(spec.links[static_cast<std::size_t>(run.residual_link)].name)
+                                                        : Json(nullptr)},
+          {"residual_per_link", residual},
+          {"status", run.status}};
+}
+
+/// Per shaped travel drive: the governing case with and without its shaper, and the shaper's
+/// sensitivity to the actual frequency (results.json).
+Json shaping_json(const Spec& spec, const ShapingComparison& c) {
+  static const char* const kinds[] = {"zv", "zvd", "ei"};
+  Json impulses = Json::array();
+  for (const Impulse& i : c.shaper.impulses) impulses.push_back({{"time_s", i.time}, {"amplitude", i.amplitude}});
+  Json shaper = {{"kind", kinds[static_cast<int>(c.shaper.kind)]},
+                 {"frequency_hz", c.shaper.frequency_hz},
+                 {"damping_ratio", c.shaper.damping_ratio},
+                 {"duration_s", c.shaper.duration()},
+                 {"impulses", impulses}};
+  if (c.shaper.kind == ShaperKind::ei) shaper["vibration_tolerance"] = c.shaper.vibration_tolerance;
+  Json ratio = Json::array(), vibration = Json::array();
+  for (const SensitivityPoint& p : c.curve) {
+    ratio.push_back(number(p.frequency_ratio));
+    vibration.push_back(number(p.vibration));
+  }
+  Json marks = Json::array();
+  for (const SensitivityMark& m : c.marks)
+    marks.push_back({{"label", m.label}, {"lowest_frequency_hz", number(m.frequency_hz)},
+                     {"frequency_ratio", number(m.ratio)}, {"residual_vibration", number(m.vibration)}});
+  return {{"scenario", spec.scenarios[static_cast<std::size_t>(c.scenario)].name},
+          {"shaper", shaper},
+          {"case", c.case_id},
+          {"case_chosen_by", c.chosen_by},
+          {"residual_window_from_s", number(c.window_start)},
+          {"shaped", shaping_run_json(spec, c.shaped)},
+          {"unshaped", shaping_run_json(spec, c.unshaped)},
+          {"residual_reduction", number(c.reduction)},
+          {"extra_move_time_s", number(c.extra_time)},
+          {"sensitivity", {{"frequency_ratio", ratio}, {"residual_vibration", vibration}, {"marks", marks},
+                           {"sizing_range_ends_marked", c.range_ends_marked}, {"notes", c.notes}}}};
+}
+
 /// The ropes, switches and lift-off of a recorded governing case (results.json).
 Json governing_case_json(const Spec& spec, const RecordedCase& rc) {
   Json ropes = Json::array();
@@ -182,6 +230,12 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
                  {"starts_per_limit", r.search_budget.starts},
                  {"method", "bounded local search of the start box (NLopt BOBYQA; Nelder-Mead, COBYLA fallbacks) "
                             "from the worst sampled cases: a local worst, not a bound"}};
+  // Only with a shaped travel drive, so a spec without one writes what it wrote before.
+  if (!r.shaping.empty()) {
+    Json shaping = Json::array();
+    for (const ShapingComparison& c : r.shaping) shaping.push_back(shaping_json(spec, c));
+    j["shaping"] = shaping;
+  }
   // Chains with elastic ropes or a lift-off: per recorded governing case its ropes' figures.
   if (has_elastic_rope(spec) || has_lift_off(spec)) {
     Json governing = Json::array();

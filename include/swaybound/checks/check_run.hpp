@@ -16,6 +16,7 @@
 #include "swaybound/cases/runner.hpp"
 #include "swaybound/chaos/indicators.hpp"
 #include "swaybound/checks/checks.hpp"
+#include "swaybound/checks/shaping_compare.hpp"
 #include "swaybound/checks/worst_search.hpp"
 #include "swaybound/modal/modes.hpp"
 #include "swaybound/spec/spec.hpp"
@@ -146,6 +147,9 @@ struct CheckReport {
   std::vector<LimitSearch> search;
   bool searched = false;
   SearchBudget search_budget;
+  /// Per scenario whose travel drive has a shaper: its governing case with and without the shaper,
+  /// and the shaper's sensitivity curve (checks/shaping_compare.hpp); empty without shapers.
+  std::vector<ShapingComparison> shaping;
   // Wall time of the stages [s] (not written to results.json, which must not depend on the host).
   double seconds_cases = 0, seconds_chaos = 0, seconds_audit = 0, seconds_search = 0;
 };
@@ -228,7 +232,8 @@ long audit_governing(const CheckPlan& plan, int jobs, std::vector<CheckResult>& 
 std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vector<CheckResult>& checks);
 
 /// The whole check of `spec`: every case, the global checks, the search for the worst case between
-/// the samples, the audit and the recordings as `options` asks.
+/// the samples, the audit and the recordings as `options` asks, and (with `options.record`) the
+/// comparison of each shaped travel drive with its unshaped moves.
 CheckReport run_check(const Spec& spec, const CheckOptions& options);
 
 }  // namespace swaybound
