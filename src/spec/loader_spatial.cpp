@@ -1,5 +1,7 @@
 // The spec keys of spatial chains: `motion`, and the refusals of what a spatial chain does not
 // model yet (specs/README.md, "Spatial chains").
+#include <algorithm>
+
 #include <fmt/format.h>
 
 #include "loader_parts.hpp"
@@ -85,6 +87,18 @@ void refuse_with_spatial(Context& ctx, const Spec& spec) {
                 fmt::format("scenario '{}' lifts the load off the ground: {}", s.name, later),
                 "check the lift-off with 'motion: planar', or remove lift_off");
   }
+  // A dashpot anchored on the base would have to turn with a slewing boom; its anchor is fixed in
+  // the ground's directions today.
+  const auto slewing = std::find_if(spec.scenarios.begin(), spec.scenarios.end(),
+                                    [](const ScenarioSpec& sc) { return sc.slew.has_value(); });
+  if (slewing != spec.scenarios.end())
+    for (std::size_t i = 0; i < spec.dashpots.size(); ++i)
+      if (spec.dashpots[i].from.link < 0 || spec.dashpots[i].to.link < 0)
+        ctx.error(spec.dashpots[i].mark, fmt::format("dashpots[{}]", i),
+                  fmt::format("dashpot '{}' is anchored on the base, and scenario '{}' slews it: a base anchor that "
+                              "turns with the boom is not modelled yet",
+                              spec.dashpots[i].name, slewing->name),
+                  "check the slewing scenario without this dashpot, or anchor it between links");
   for (std::size_t i = 0; i < spec.limits.size(); ++i) {
     const LimitSpec& l = spec.limits[i];
     if (l.kind == LimitKind::ftle_max || l.kind == LimitKind::onset_margin || l.kind == LimitKind::modal_damping_min)
