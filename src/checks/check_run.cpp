@@ -254,14 +254,15 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   const bool search = options.search && spec.cases.search.enabled;
   WorstStarts starts(spec, spec.cases.search.starts);
   ShapingCases shaping(spec);
-  std::function<void(const CaseMetrics&)> on_case = options.on_case;
-  if (search || shaping.any())
-    on_case = [&](const CaseMetrics& m) {
-      if (search) starts.offer(m);
-      shaping.offer(m);
-      if (options.on_case) options.on_case(m);
-    };
+  ConvergenceTracker convergence(spec, plan.space.starts());
+  const std::function<void(const CaseMetrics&)> on_case = [&](const CaseMetrics& m) {
+    if (search) starts.offer(m);
+    shaping.offer(m);
+    convergence.offer(m);
+    if (options.on_case) options.on_case(m);
+  };
   stream_cases(plan, CaseList::all(plan.space.size()), runner, checks, totals, on_case);
+  report.convergence = convergence.rows();
   report.failed = std::move(totals.failed);
   report.failed_total = totals.failed_total;
   report.time_budget_total = totals.time_budget_total;

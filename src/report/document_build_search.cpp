@@ -25,6 +25,43 @@ std::string start_text(const LimitSearch& s) {
   return text;
 }
 
+/// The sampled worst of each per-case check after a quarter, a half and all of the starts, and how
+/// much the last half moved it as a share of the final margin.
+Block convergence_table(const CheckReport& r) {
+  Table t{"convergence-table",
+          {col("#", 0.3, Align::right, "index"), col("check", 1.3, Align::left, "check"),
+           col("starts", 0.6, Align::right, "starts"), col("worst, first quarter", 1, Align::right, "quarter"),
+           col("first half", 1, Align::right, "half"), col("all starts", 1, Align::right, "all"),
+           col("last half moved it (of margin)", 1.4, Align::right, "moved")},
+          {},
+          "The sampled worst over the first starts of the case sets (in their order; each start under every "
+          "scenario): what a case set of that size would have reported. A worst that still moves over the last half "
+          "of the starts says that more samples could move it again.",
+          7.6};
+  for (const ConvergenceRow& row : r.convergence) {
+    const CheckResult& c = r.checks[static_cast<std::size_t>(row.limit)];
+    const auto at = [&](long count) {
+      for (std::size_t j = 0; j < row.starts.size(); ++j)
+        if (row.starts[j] == count) return row.worst[j];
+      return std::nan("");
+    };
+    const long all = row.starts.empty() ? 0 : row.starts.back();
+    const double half = at(all / 2), whole = at(all);
+    const double moved = std::fabs(whole - half);
+    const bool has_margin = std::isfinite(c.margin) && c.margin != 0;
+    Row line;
+    line.cells = {std::to_string(row.limit + 1), c.key, std::to_string(all),
+                  all / 4 > 0 ? engineering(at(all / 4), c.unit) : "-", all / 2 > 0 ? engineering(half, c.unit) : "-",
+                  engineering(whole, c.unit),
+                  all / 2 > 0 && std::isfinite(moved)
+                      ? engineering(moved, c.unit) + (has_margin ? " (" + ratio_percent(moved / std::fabs(c.margin)) + ")" : "")
+                      : "-"};
+    line.cell_tone.assign(line.cells.size(), Tone::normal);
+    t.rows.push_back(line);
+  }
+  return table_block(t);
+}
+
 }  // namespace
 
 Section search_section(const Spec& spec, const CheckReport& r) {
@@ -81,6 +118,7 @@ Section search_section(const Spec& spec, const CheckReport& r) {
   }
   s.blocks.push_back(table_block(t));
   if (!remarks.empty()) s.blocks.push_back(bullets(remarks));
+  if (!r.convergence.empty()) s.blocks.push_back(convergence_table(r));
   return s;
 }
 

@@ -221,6 +221,12 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
     if (r.searched)
       for (const LimitSearch& ls : r.search)
         if (ls.limit == c.limit) cj["search"] = search_json(spec, ls);
+    for (const ConvergenceRow& row : r.convergence)
+      if (row.limit == c.limit) {
+        Json worst = Json::array();
+        for (double w : row.worst) worst.push_back(number(w));
+        cj["convergence"] = {{"starts", row.starts}, {"worst", worst}};
+      }
     checks.push_back(cj);
   }
   j["checks"] = checks;

@@ -16,6 +16,7 @@
 #include "swaybound/cases/runner.hpp"
 #include "swaybound/chaos/indicators.hpp"
 #include "swaybound/checks/checks.hpp"
+#include "swaybound/checks/convergence.hpp"
 #include "swaybound/checks/shaping_compare.hpp"
 #include "swaybound/checks/worst_search.hpp"
 #include "swaybound/modal/modes.hpp"
@@ -146,6 +147,8 @@ struct CheckReport {
   /// (empty when it did not run); `search_budget` is what it was given.
   std::vector<LimitSearch> search;
   bool searched = false;
+  /// The sampled worst of each per-case check against the number of starts (checks/convergence.hpp).
+  std::vector<ConvergenceRow> convergence;
   SearchBudget search_budget;
   /// Per scenario whose travel drive has a shaper: its governing case with and without the shaper,
   /// and the shaper's sensitivity curve (checks/shaping_compare.hpp); empty without shapers.
