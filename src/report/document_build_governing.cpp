@@ -67,8 +67,12 @@ std::vector<Figure> input_figures(const Spec& spec, const RecordedCase& rc, cons
   const double share = spec.wind.empty() ? 1.0 : 0.5;
   out.push_back(figure(std::move(pb),
                        fmt::format("Acceleration and speed of the trolley or boom tip in case {} (x horizontal, y up), "
-                                   "as the scenario prescribes.",
-                                   id),
+                                   "as the scenario prescribes.{}",
+                                   id,
+                                   spec.motion == Motion::spatial
+                                       ? " Spatial chain: the x and y components only; the motion across the travel "
+                                         "(z) and slewing are not plotted yet."
+                                       : ""),
                        200, share));
   if (!spec.wind.empty()) {
     std::vector<plot::Series> wind;
@@ -78,7 +82,9 @@ std::vector<Figure> input_figures(const Spec& spec, const RecordedCase& rc, cons
     plot::Axis wy{"horizontal wind force", "kN"};
     wy.include_zero = true;
     out.push_back(figure(plot::line_chart("Wind force", {"time", "s"}, wy, wind),
-                         fmt::format("Horizontal drag force of each wind load in case {}, gusts included.", id), 200,
+                         fmt::format("Horizontal drag force of each wind load in case {}, gusts included.{}", id,
+                                     spec.motion == Motion::spatial ? " Spatial chain: its x component only." : ""),
+                         200,
                          share));
   }
   return out;
@@ -201,18 +207,18 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
     std::vector<plot::Series> angles;
     for (std::size_t i = 0; i < rc->theta.size(); ++i)
       angles.push_back({fmt::format("θ {}", spec.links[i].name), rc->t, scaled(rc->theta[i], kDeg), true, false, -1});
+    const bool spatial = spec.motion == Motion::spatial;  // the recorded angle is the cone angle (>= 0)
     std::vector<plot::RefLine> arefs;
     for (const auto& l : spec.limits) {
       if (l.kind == LimitKind::peak_angle) {
         add_ref(arefs, {l.value * kDeg, fmt::format("peak_angle +{} deg{}", num(l.value * kDeg), link_scope(spec, l)), false});
-        add_ref(arefs, {-l.value * kDeg, fmt::format("-{} deg", num(l.value * kDeg)), false});
+        if (!spatial) add_ref(arefs, {-l.value * kDeg, fmt::format("-{} deg", num(l.value * kDeg)), false});
       }
       if (l.kind == LimitKind::residual_sway) {
         add_ref(arefs, {l.value * kDeg, fmt::format("residual_sway after {:g} s", l.after), false, l.after});
-        add_ref(arefs, {-l.value * kDeg, "", false, l.after});
+        if (!spatial) add_ref(arefs, {-l.value * kDeg, "", false, l.after});
       }
     }
-    const bool spatial = spec.motion == Motion::spatial;  // the recorded angle is the cone angle (>= 0)
     plot::Plot pa = plot::line_chart("Link angles", {"time", "s"},
                                      {spatial ? "cone angle θ from vertical, any direction" : "angle θ from vertical", "deg"},
                                      angles, arefs);
