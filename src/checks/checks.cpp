@@ -17,6 +17,12 @@ int residual_slot(const Spec& spec, int limit) {
 
 }  // namespace
 
+std::vector<int> residual_slots(const Spec& spec) {
+  std::vector<int> slots;
+  for (std::size_t i = 0; i < spec.limits.size(); ++i) slots.push_back(residual_slot(spec, static_cast<int>(i)));
+  return slots;
+}
+
 double limit_value_in_case(const LimitSpec& limit, int slot, const CaseMetrics& m, int& link, double& time) {
   const LimitKindInfo& info = limit_kind(limit.kind);
   link = -1;

@@ -15,10 +15,8 @@ constexpr double kNone = -std::numeric_limits<double>::infinity();
 }  // namespace
 
 ConvergenceTracker::ConvergenceTracker(const Spec& spec, long starts) : spec_(&spec), starts_(starts) {
-  int slot = 0;
+  slots_ = residual_slots(spec);
   for (const LimitSpec& l : spec.limits) {
-    slots_.push_back(slot);
-    slot += limit_kind(l.kind).options.after;
     worst_.emplace_back(limit_kind(l.kind).per_case ? static_cast<std::size_t>(starts) : 0, kNone);
   }
 }

@@ -49,11 +49,7 @@ StartBox start_box(const Spec& spec) {
 }
 
 WorstStarts::WorstStarts(const Spec& spec, int starts) : spec_(&spec), starts_(std::max(starts, 1)) {
-  int slot = 0;
-  for (const LimitSpec& l : spec.limits) {
-    slots_.push_back(slot);
-    slot += limit_kind(l.kind).options.after;
-  }
+  slots_ = residual_slots(spec);
   kept_.resize(spec.limits.size());
 }
 

@@ -60,6 +60,10 @@ class CheckSet {
 /// link and time; NaN when the case has no such value (e.g. no FTLE computed).
 double limit_value_in_case(const LimitSpec& limit, int residual_slot, const CaseMetrics& m, int& link, double& time);
 
+/// Per limit of `spec`, its slot in CaseMetrics::residual (its index among the limits with a window,
+/// `after`; the slot a limit without a window would take), the `residual_slot` of limit_value_in_case.
+std::vector<int> residual_slots(const Spec& spec);
+
 /// What a limit applies to, as the packet says it: "link 'NAME'" or its kind's scope ("every
 /// link", "every rope link", "the chain"), then its options (", after 20 s", ", top end").
 std::string check_subject(const Spec& spec, const LimitSpec& limit);
