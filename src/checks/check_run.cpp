@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "rope_recording.hpp"
+#include "swaybound/checks/case_farm.hpp"
 #include "swaybound/dynamics/posture.hpp"
 #include "swaybound/spec/loader.hpp"
 
@@ -93,16 +94,32 @@ void CaseTotals::offer(const CaseMetrics& m) {
 void stream_cases(const CheckPlan& plan, const CaseList& cases, const RunnerOptions& runner, CheckSet& checks,
                   CaseTotals& totals, const std::function<void(const CaseMetrics&)>& on_case) {
   const Spec& spec = *plan.spec;
+  const std::function<void(CaseMetrics&&)> consume = [&](CaseMetrics&& m) {
+    checks.offer(m);
+    totals.offer(m);
+    if (on_case) on_case(m);
+  };
+  if (CaseFarm* farm = case_farm(); farm && farm->stream(plan, cases, runner, consume)) return;
   run_ordered<CaseMetrics>(
       cases.size(), runner, [&] { return Workspace(plan.model); },
       [&](long k, Workspace& ws) {
         return run_case(plan.model, spec, ws, plan.space.at(cases[k]), plan.streaming, plan.case_options);
       },
-      [&](CaseMetrics&& m) {
-        checks.offer(m);
-        totals.offer(m);
-        if (on_case) on_case(m);
-      });
+      consume);
+}
+
+namespace {
+CaseFarm* g_farm = nullptr;
+}  // namespace
+
+void set_case_farm(CaseFarm* farm) { g_farm = farm; }
+
+CaseFarm* case_farm() { return g_farm; }
+
+std::string describe_execution(int jobs) {
+  if (g_farm) return g_farm->describe(jobs);
+  const int threads = jobs > 0 ? jobs : default_jobs();
+  return fmt::format("1 process x {} thread{}", threads, threads == 1 ? "" : "s");
 }
 
 void set_modal_checks(const Spec& spec, const ModalResult& modes, CheckSet& checks) {

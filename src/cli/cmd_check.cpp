@@ -9,6 +9,7 @@
 
 #include "commands.hpp"
 #include "swaybound/cases/case_space.hpp"
+#include "swaybound/checks/case_farm.hpp"
 #include "swaybound/checks/worst_search.hpp"
 #include "swaybound/report/check_packet.hpp"
 #include "swaybound/report/format.hpp"
@@ -102,7 +103,7 @@ Action add_check(CLI::App& app) {
     const Spec spec = load_spec(o->spec, LoadOptions{o->max_cases, o->max_samples});
     // Every output problem (the overwrite rule, a folder that cannot be written, another run
     // writing it) is reported here, before any work is done.
-    CheckPacket packet(spec, std::move(spec_text), PacketOptions{o->out, o->force, !o->no_audit, {}});
+    CheckPacket packet(spec, std::move(spec_text), PacketOptions{o->out, o->force, !o->no_audit, {}, describe_execution(o->jobs)});
     print_notices(packet.take_notices());
     const CaseSpace space(spec);
     std::cerr << fmt::format("{}: {} cases ({} starts x {} scenarios), {:g} s each\n", o->spec, space.size(),

@@ -11,6 +11,7 @@
 
 #include "commands.hpp"
 #include "swaybound/cases/case_space.hpp"
+#include "swaybound/checks/case_farm.hpp"
 #include "swaybound/report/size_packet.hpp"
 #include "swaybound/sizing/sizing.hpp"
 #include "swaybound/spec.hpp"
@@ -78,7 +79,7 @@ Action add_size(CLI::App& app) {
     objective_metric(spec);
     // Every output problem (the overwrite rule, a folder that cannot be written, another run
     // writing it) is reported here, before any work is done.
-    SizingPacket packet(spec, std::move(spec_text), PacketOptions{o->out, o->force, !o->no_audit, {}});
+    SizingPacket packet(spec, std::move(spec_text), PacketOptions{o->out, o->force, !o->no_audit, {}, describe_execution(o->jobs)});
     print_notices(packet.take_notices());
     const CaseSpace space(spec);
     const SizingSpec& s = *spec.sizing;

@@ -18,6 +18,10 @@ inline constexpr int kExitError = 2;
 
 using Action = std::function<int()>;
 
+/// The whole command line: parses argv, runs the subcommand, reports errors on stderr; returns the
+/// exit status.
+int run(int argc, char** argv);
+
 Action add_validate(CLI::App& app);
 Action add_simulate(CLI::App& app);
 Action add_modes(CLI::App& app);

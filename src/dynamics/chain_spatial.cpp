@@ -249,7 +249,10 @@ namespace {
 /// Mass matrix: blocks mu_jl T_j^T T_l (T_j^T T_j = identity on the diagonal), into `m`.
 template <class Matrix>
 void fill_mass(const Model& model, const Workspace& ws, Matrix& m) {
-  const int n = model.n;
+  // A fixed-size matrix holds model.n links; saying so bounds the loops for the compiler, which
+  // otherwise warns of indices past a 2 x 2 matrix on a path that never runs.
+  constexpr int kFixed = Matrix::RowsAtCompileTime;
+  const int n = kFixed > 0 ? std::min(model.n, kFixed / 2) : model.n;
   for (int j = 0; j < n; ++j) {
     m(2 * j, 2 * j) = m(2 * j + 1, 2 * j + 1) = model.mu(j, j);
     m(2 * j, 2 * j + 1) = m(2 * j + 1, 2 * j) = 0.0;

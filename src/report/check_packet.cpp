@@ -53,6 +53,7 @@ void CheckPacket::finish(const CheckReport& report) {
   info.spec_sha256 = sha256_hex(s.spec_text);
   info.date_utc = date;
   info.settings = check_manifest_settings(s.spec, report, s.options.audit);
+  info.execution = s.options.execution;
   s.packet.commit(info);
 }
 

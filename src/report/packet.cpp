@@ -339,6 +339,7 @@ void PacketWriter::commit(const ManifestInfo& info) {
   m += fmt::format("spec_name: {}\n", manifest_name(info.spec_name));
   m += fmt::format("spec_sha256: {}\n", info.spec_sha256);
   for (const auto& s : info.settings) m += s + "\n";
+  if (!info.execution.empty()) m += fmt::format("execution: {}\n", info.execution);
   m += "files:\n";
   for (const auto& name : names) m += fmt::format("{}  {}\n", sha256_file(path(name)), name);
   write(kManifest, m);

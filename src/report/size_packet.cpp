@@ -115,6 +115,7 @@ void SizingPacket::finish(const SizingResult& result) {
   info.spec_sha256 = sha256_hex(s.spec_text);
   info.date_utc = date;
   info.settings = sizing_manifest_settings(*s.spec.sizing, result, s.options.audit);
+  info.execution = s.options.execution;
   s.packet.commit(info);
 }
 

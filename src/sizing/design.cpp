@@ -112,6 +112,7 @@ std::vector<DesignVariable> design_variables(const Spec& spec) {
 void apply_design(Spec& spec, const std::vector<DesignVariable>& variables, const std::vector<double>& values) {
   SWAYBOUND_REQUIRE(values.size() == variables.size(), "{} values for {} variables", values.size(), variables.size());
   for (std::size_t i = 0; i < variables.size(); ++i) set_spec_value(spec, variables[i].target, values[i]);
+  spec.design_values = values;
   // A wind point not given explicitly sits at its link's centre of mass (the loader's default):
   // keep it there when a length or centre of mass changes.
   for (auto& w : spec.wind)

@@ -23,6 +23,7 @@ enum class RunStatus {
   rope_slack,            ///< a rope link's tension went below zero: the rigid-rope model broke down
   touch_down,            ///< a lifted load came down to the ground again (setting down is not modelled)
   mode_chatter,          ///< a rope or the ground switched branches more often than the run allows
+  // The last status: checks/case_wire.cpp reads statuses up to mode_chatter.
 };
 std::string_view status_name(RunStatus status);
 

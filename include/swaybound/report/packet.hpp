@@ -28,6 +28,7 @@ struct ManifestInfo {
   std::string spec_sha256;
   std::string date_utc;               ///< ISO 8601
   std::vector<std::string> settings;  ///< "key: value" lines (solver, seeds, cases), host-independent
+  std::string execution;  ///< how the cases ran, e.g. "2 MPI ranks x 1 thread each"; empty: not recorded
 };
 
 class PacketWriter {

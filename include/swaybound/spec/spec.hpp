@@ -347,6 +347,10 @@ struct Spec {
   SolverSpec solver;
   ReportSpec report;
   std::vector<std::string> defaults_filled;  ///< key paths whose value came from a default
+  /// The values apply_design (sizing/design.hpp) set last, one per sizing variable in order; empty
+  /// for a spec as loaded. The spec is source_text loaded and then these applied: what another
+  /// process of a distributed run rebuilds it from (checks/case_farm.hpp).
+  std::vector<double> design_values;
 
   /// Index of the link of that name, -1 if absent. Names that differ only in what cannot be seen
   /// (invisible characters, spaces at the ends, composed or decomposed accents) match.
