@@ -314,11 +314,14 @@ bool MpiFarm::stream(const CheckPlan& plan, const CaseList& cases, const RunnerO
         }
       }
       if (!ready.empty()) {
+        const auto consume_start = std::chrono::steady_clock::now();
         for (CaseMetrics& m : ready) {
           if (m.index != cases[at]) throw RunError(fmt::format("cluster: case {} came back as case {}", cases[at], m.index));
           consume(std::move(m));
           ++at;
         }
+        stats_.consume_seconds +=
+            std::chrono::duration<double>(std::chrono::steady_clock::now() - consume_start).count();
         {
           std::lock_guard lock(mutex);
           consumed = at;

@@ -33,6 +33,7 @@ struct FarmStats {
   long remote_cases = 0;     ///< of which computed by other ranks
   double bytes = 0;          ///< result bytes received from other ranks
   double gather_seconds = 0; ///< rank 0's time receiving and decoding them
+  double consume_seconds = 0;///< rank 0's time handing every case to the checks and outputs
   std::vector<long> cases_by_rank;
 };
 

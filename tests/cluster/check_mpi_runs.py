@@ -8,8 +8,8 @@
    mpirun: results.json, cases.csv (and for size sized_spec.yaml, sizing.json) byte for byte; the
    MANIFEST records how the cases ran.
 2. Exit statuses through mpirun: 1 for a failing check, 2 for a bad spec (nothing written).
-3. A rank killed in the middle of a check (SIGKILL): the job ends with a non-zero status and the
-   previous packet in the folder is untouched.
+3. A rank killed in the middle of a check (SIGKILL), and SIGTERM to mpirun: the job ends with a
+   non-zero status and the previous packet in the folder is untouched.
 """
 import hashlib
 import os
@@ -126,6 +126,25 @@ else:
         failures.append("the previous packet changed although the job that would replace it was killed")
     else:
         print(f"ok: killed rank {victim}; the job exited with {job.returncode}; the previous packet is intact")
+
+# 4. SIGTERM to mpirun (what a batch scheduler sends at the end of a job's time): the same.
+before = tree_digest(previous)
+job = subprocess.Popen(mpirun(2, "check", LONG_SPEC, "--out", previous, "--quiet", "--jobs", "1", "--force"),
+                       env=ENV, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+time.sleep(4.0)
+job.send_signal(signal.SIGTERM)
+try:
+    job.wait(timeout=120)
+except subprocess.TimeoutExpired:
+    job.kill()
+    failures.append("the job did not end after SIGTERM")
+partial = [p.name for p in WORK.iterdir() if p.name.startswith(".") and "partial" in p.name]
+if job.returncode == 0:
+    failures.append("the job ended by SIGTERM exited with status 0")
+elif tree_digest(previous) != before or partial:
+    failures.append(f"after SIGTERM: previous packet changed or a partial packet is left: {partial}")
+else:
+    print(f"ok: SIGTERM to mpirun: exit {job.returncode}; the previous packet is intact, no partial packet left")
 
 for f in failures:
     print("FAIL:", f)
