@@ -32,6 +32,34 @@ bool has_limit(const Spec& spec, LimitKind kind) {
   return std::any_of(spec.limits.begin(), spec.limits.end(), [&](const LimitSpec& l) { return l.kind == kind; });
 }
 
+/// A spatial chain's sample of a recording: sway in and across the boom frame's plane, the hook and
+/// the top pivot in plan, the support force across the travel and in the boom frame, the base's
+/// motion and the wind across the travel.
+void sample_spatial(const Model& model, const StepView& v, RecordedCase& rc) {
+  const Workspace& ws = *v.ws;
+  const BoomFrame frame = boom_frame(*v.phase, ws);
+  double hook[3] = {0, 0, 0};
+  for (int i = 0; i < model.n; ++i) {
+    const auto k = static_cast<std::size_t>(i);
+    rc.in_plane[k].push_back(in_plane_sway(model, v.x, i, frame));
+    rc.out_of_plane[k].push_back(out_of_plane_sway(model, v.x, i, frame));
+    for (std::size_t c = 0; c < 3; ++c) hook[c] += ws.len[k] * ws.dir[3 * k + c];
+  }
+  rc.pivot_x.push_back(ws.base_x);
+  rc.pivot_z.push_back(ws.base_z);
+  rc.hook_x.push_back(ws.base_x + hook[0]);
+  rc.hook_z.push_back(ws.base_z + hook[2]);
+  rc.hook_radial.push_back(hook[0] * frame.radial_x + hook[2] * frame.radial_z);
+  rc.hook_tangential.push_back(hook[0] * frame.tangential_x + hook[2] * frame.tangential_z);
+  const LoadComponents load = pivot_load_components(model, ws, 0, frame);
+  rc.support_z.push_back(-load.z);
+  rc.support_radial.push_back(-load.radial);
+  rc.support_tangential.push_back(-load.tangential);
+  rc.base_vz.push_back(ws.base_vz);
+  rc.base_az.push_back(ws.base_az);
+  for (std::size_t w = 0; w < model.wind.size(); ++w) rc.wind_z[w].push_back(wind_load_force_z(model, ws, *v.phase, w));
+}
+
 /// The distinct cases governing a per-case check, ascending.
 std::vector<long> governing_cases(const std::vector<CheckResult>& checks) {
   std::vector<long> governing;
@@ -203,6 +231,13 @@ std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vec
     rc.tension.assign(static_cast<std::size_t>(n), {});
     rc.wind_x.assign(model.wind.size(), {});
     rc.stride = record_stride(recording);
+    const bool spatial = model.spatial;
+    if (spatial) {
+      rc.slewing = spec.scenarios[static_cast<std::size_t>(def.scenario)].slew.has_value();
+      rc.in_plane.assign(static_cast<std::size_t>(n), {});
+      rc.out_of_plane.assign(static_cast<std::size_t>(n), {});
+      rc.wind_z.assign(model.wind.size(), {});
+    }
     checks_detail::RopeRecorder ropes(model, def.scenario);
     ropes.start(rc);
     long sample = 0;
@@ -221,6 +256,7 @@ std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vec
         wind_load_force(model, *v.ws, *v.phase, w, fx, fy, vx, vy);
         rc.wind_x[w].push_back(fx);
       }
+      if (spatial) sample_spatial(model, v, rc);
       for (int i = 0; i < n; ++i) {
         const auto k = static_cast<std::size_t>(i);
         double top, bottom;
@@ -234,7 +270,7 @@ std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vec
     // One finder for the case's extremes and the ropes' snatch peaks (its probes re-evaluate the
     // workspace, so the ropes read their slack flags from each view first).
     CaseExtremes extremes(model, spec, ropes.count(),
-                          [&ropes](const StepView& v, double* q) { ropes.quantities(v, q); });
+                          [&ropes](const StepView& v, double* q) { ropes.quantities(v, q); }, spatial);
     const Observer on_step = [&](const StepView& v) {
       ropes.step(v);
       extremes.observe(v);
@@ -245,6 +281,8 @@ std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vec
     rc.peak_angle = located.peak_angle;
     rc.peak_load = located.peak_load;
     rc.min_tension = located.min_tension;
+    rc.peak_in_plane = located.peak_in_plane;
+    rc.peak_out_of_plane = located.peak_out_of_plane;
     rc.switches = out.switches;
     rc.t_end = out.t_reached;
     rc.status = std::string(status_name(out.status));

@@ -12,14 +12,17 @@ namespace swaybound {
 namespace {
 /// Index blocks of the quantities of CaseExtremes: per link angle, relative angle, rate, load,
 /// negated top-end tension, negated bottom-end tension; then the chain's quantities (Chain);
-/// then one per residual_sway limit.
+/// then, on demand, the blocks of OnDemand per link; then one per residual_sway limit.
 enum Block { kAngle, kRelative, kRate, kLoad, kTensionTop, kTensionBottom, kRopeForce, kSnatch, kBlocks };
 /// Quantities of the whole chain, after the blocks: |horizontal force on the support|.
 enum Chain { kSupportX, kChain };
+/// On-demand blocks per link: |in-plane|, |out-of-plane| sway, |pivot load components|.
+enum OnDemand { kInPlane, kOutOfPlane, kLoadX, kLoadZ, kLoadVertical, kLoadRadial, kLoadTangential, kOnDemand };
 
 /// The window start of every quantity: 0, or a residual_sway limit's time; then `extra` zeros.
-std::vector<double> residual_windows(const Model& model, const Spec& spec, int extra = 0) {
-  std::vector<double> from(static_cast<std::size_t>(kBlocks * model.n + kChain), 0.0);
+std::vector<double> residual_windows(const Model& model, const Spec& spec, bool on_demand, int extra = 0) {
+  std::vector<double> from(static_cast<std::size_t>(kBlocks * model.n + kChain + (on_demand ? kOnDemand * model.n : 0)),
+                           0.0);
   for (const auto& l : spec.limits)
     if (limit_kind(l.kind).options.after) from.push_back(l.after);
   from.resize(from.size() + static_cast<std::size_t>(extra), 0.0);
@@ -28,11 +31,12 @@ std::vector<double> residual_windows(const Model& model, const Spec& spec, int e
 }  // namespace
 
 CaseExtremes::CaseExtremes(const Model& model, const Spec& spec, int extra,
-                           ExtremeFinder::Quantities extra_quantities)
+                           ExtremeFinder::Quantities extra_quantities, bool on_demand)
     : model_(model),
-      first_extra_(static_cast<int>(residual_windows(model, spec).size())),
+      on_demand_(on_demand || needs_on_demand_metrics(spec)),
+      first_extra_(static_cast<int>(residual_windows(model, spec, on_demand_).size())),
       extra_quantities_(extra > 0 ? std::move(extra_quantities) : ExtremeFinder::Quantities{}),
-      finder_(static_cast<int>(residual_windows(model, spec, std::max(extra, 0)).size()),
+      finder_(static_cast<int>(residual_windows(model, spec, on_demand_, std::max(extra, 0)).size()),
               [this](const StepView& v, double* q) {
                 const int n = model_.n;
                 const double* x = v.x;
@@ -55,15 +59,30 @@ CaseExtremes::CaseExtremes(const Model& model, const Spec& spec, int extra,
                 // Horizontal: along x for a planar chain, in the x-z plane for a spatial one.
                 q[kBlocks * n + kSupportX] = model_.spatial ? std::hypot(v.ws->reaction_x[0], v.ws->reaction_z[0])
                                                             : std::fabs(v.ws->reaction_x[0]);
+                int next = kBlocks * n + kChain;
+                if (on_demand_) {
+                  const BoomFrame frame = boom_frame(*v.phase, *v.ws);
+                  for (int i = 0; i < n; ++i) {
+                    const LoadComponents load = pivot_load_components(model_, *v.ws, i, frame);
+                    q[next + kInPlane * n + i] = std::fabs(in_plane_sway(model_, x, i, frame));
+                    q[next + kOutOfPlane * n + i] = std::fabs(out_of_plane_sway(model_, x, i, frame));
+                    q[next + kLoadX * n + i] = std::fabs(load.x);
+                    q[next + kLoadZ * n + i] = std::fabs(load.z);
+                    q[next + kLoadVertical * n + i] = std::fabs(load.vertical);
+                    q[next + kLoadRadial * n + i] = std::fabs(load.radial);
+                    q[next + kLoadTangential * n + i] = std::fabs(load.tangential);
+                  }
+                  next += kOnDemand * n;
+                }
                 for (std::size_t r = 0; r < residual_links_.size(); ++r) {
                   double worst = 0;
                   for (int i = 0; i < n; ++i)
                     if (residual_links_[r] < 0 || residual_links_[r] == i) worst = std::max(worst, swing_angle(model_, x, i));
-                  q[kBlocks * n + kChain + static_cast<int>(r)] = worst;
+                  q[next + static_cast<int>(r)] = worst;
                 }
                 if (extra_quantities_) extra_quantities_(v, q + first_extra_);
               },
-              residual_windows(model, spec, std::max(extra, 0))) {
+              residual_windows(model, spec, on_demand_, std::max(extra, 0))) {
   for (const auto& l : spec.limits)
     if (limit_kind(l.kind).options.after) residual_links_.push_back(l.link);
   slack_time_.assign(model.elastic_links.size(), 0.0);
@@ -127,9 +146,24 @@ void CaseExtremes::write(CaseMetrics& m) const {
     m.snatch[k] = peak(kSnatch, i);
   }
   m.support_force_x = finder_.max(kBlocks * n + kSupportX);
+  int next = kBlocks * n + kChain;
+  if (on_demand_) {
+    const auto block = [&](int b, std::vector<Extreme>& out) {
+      out.resize(nn);
+      for (int i = 0; i < n; ++i) out[static_cast<std::size_t>(i)] = finder_.max(next + b * n + i);
+    };
+    block(kInPlane, m.peak_in_plane);
+    block(kOutOfPlane, m.peak_out_of_plane);
+    block(kLoadX, m.peak_load_x);
+    block(kLoadZ, m.peak_load_z);
+    block(kLoadVertical, m.peak_load_vertical);
+    block(kLoadRadial, m.peak_load_radial);
+    block(kLoadTangential, m.peak_load_tangential);
+    next += kOnDemand * n;
+  }
   m.residual.assign(residual_links_.size(), 0.0);
   for (std::size_t r = 0; r < residual_links_.size(); ++r)
-    m.residual[r] = std::max(0.0, finder_.max(kBlocks * n + kChain + static_cast<int>(r)).value);
+    m.residual[r] = std::max(0.0, finder_.max(next + static_cast<int>(r)).value);
 }
 
 FtleSettings ftle_settings(const Spec& spec, const RunSettings& run) {

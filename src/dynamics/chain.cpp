@@ -153,6 +153,13 @@ void wind_load_force(const Model& model, const Workspace& ws, const Phase& phase
   drag_force(model.wind[w].drag_factor, phase.wind_speed[w], vx, vy, fx, fy);
 }
 
+double wind_load_force_z(const Model& model, const Workspace& ws, const Phase& phase, std::size_t w) {
+  if (!model.spatial) return 0.0;
+  double force[3], velocity[3];
+  spatial_wind_force(model, ws, phase, w, force, velocity);
+  return force[2];
+}
+
 void external_forces(const Model& model, Workspace& ws, const Phase& phase, double* q) {
   for (int k = 0; k < model.n; ++k) ws.force_x[k] = ws.force_y[k] = 0.0;
   for (std::size_t w = 0; w < model.wind.size(); ++w) {

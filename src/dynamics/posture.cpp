@@ -75,6 +75,44 @@ double cross_plane_angle(const Model& model, const double* x, int i) {
   return std::atan2(e[2], -e[1]);
 }
 
+BoomFrame boom_frame(const Phase& phase, const Workspace& ws) {
+  BoomFrame f;
+  if (phase.slew_radius <= 0) return f;
+  // The pivot at (R (cos psi - 1), ., R sin psi) (chain_spatial.cpp): the radial axis is (cos psi, sin psi).
+  const double c = 1.0 + ws.base_x / phase.slew_radius, s = ws.base_z / phase.slew_radius;
+  const double length = std::hypot(c, s);
+  f.radial_x = c / length;
+  f.radial_z = s / length;
+  f.tangential_x = -f.radial_z;
+  f.tangential_z = f.radial_x;
+  return f;
+}
+
+double in_plane_sway(const Model& model, const double* x, int i, const BoomFrame& frame) {
+  if (!model.spatial) return x[i];
+  double e[3];
+  direction_at(model, x, i, e, nullptr);
+  return std::atan2(e[0] * frame.radial_x + e[2] * frame.radial_z, -e[1]);
+}
+
+double out_of_plane_sway(const Model& model, const double* x, int i, const BoomFrame& frame) {
+  if (!model.spatial) return 0.0;
+  double e[3];
+  direction_at(model, x, i, e, nullptr);
+  return std::atan2(e[0] * frame.tangential_x + e[2] * frame.tangential_z, -e[1]);
+}
+
+LoadComponents pivot_load_components(const Model& model, const Workspace& ws, int i, const BoomFrame& frame) {
+  const auto k = static_cast<std::size_t>(i);
+  LoadComponents c;
+  c.x = ws.reaction_x[k];
+  c.vertical = ws.reaction_y[k];
+  c.z = model.spatial ? ws.reaction_z[k] : 0.0;
+  c.radial = c.x * frame.radial_x + c.z * frame.radial_z;
+  c.tangential = c.x * frame.tangential_x + c.z * frame.tangential_z;
+  return c;
+}
+
 void write_start(const Model& model, const InitialState& start, std::vector<double>& x) {
   const auto n = static_cast<std::size_t>(model.n);
   SWAYBOUND_REQUIRE(start.theta.size() <= n && start.omega.size() <= n && start.phi.size() <= n &&

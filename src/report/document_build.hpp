@@ -12,6 +12,7 @@
 //   document_build_modes.cpp      5 modes
 //   document_build_governing.cpp  6 governing cases
 //   document_build_ropes.cpp      6 (cont.) rope tension, slack, snatches, hoist
+//   document_build_spatial.cpp    6 (cont.) spatial chains: sway by direction, support force by component, plan views
 //   document_build_chaos.cpp      7 chaotic onset
 //   document_build_envelope.cpp   8 envelope
 //   document_build_trust.cpp      9 numerical trust, 10 cautions
@@ -78,6 +79,13 @@ std::string link_scope(const Spec& spec, const LimitSpec& l);
 /// scenario hoists; the contact switches and lift-off (document_build_ropes.cpp). Empty for a case
 /// without ropes of variable length.
 std::vector<Block> rope_blocks(const Spec& spec, const RecordedCase& rc, const std::string& id);
+/// A spatial chain's figures of a recorded governing case: in-plane and out-of-plane sway of each
+/// link, and the force on the support by component (document_build_spatial.cpp). Empty for a
+/// planar chain.
+std::vector<Block> spatial_case_blocks(const Spec& spec, const RecordedCase& rc, const std::string& id);
+/// A spatial chain's plan views (top views) of the hook path of every recorded governing case
+/// (document_build_spatial.cpp). Empty for a planar chain.
+std::vector<Block> plan_view_blocks(const Spec& spec, const CheckReport& r);
 
 // --- One builder per section -------------------------------------------------------------------
 

@@ -50,10 +50,16 @@ std::vector<Figure> input_figures(const Spec& spec, const RecordedCase& rc, cons
   const auto moves = [](const std::vector<double>& v) {
     return std::any_of(v.begin(), v.end(), [](double x) { return x != 0; });
   };
+  // Both horizontal components where the chain is spatial (z across the travel), and y.
+  const bool spatial = spec.motion == Motion::spatial && !rc.base_az.empty();
   std::vector<plot::Series> base;
   if (moves(rc.base_ax) || moves(rc.base_vx)) {
     base.push_back({"acceleration x [m/s²]", rc.t, rc.base_ax, true, false, 0});
     base.push_back({"speed x [m/s]", rc.t, rc.base_vx, true, false, 1});
+  }
+  if (spatial && (moves(rc.base_az) || moves(rc.base_vz))) {
+    base.push_back({"acceleration z [m/s²]", rc.t, rc.base_az, true, false, 4});
+    base.push_back({"speed z [m/s]", rc.t, rc.base_vz, true, false, 5});
   }
   if (moves(rc.base_ay) || moves(rc.base_vy)) {
     base.push_back({"acceleration y [m/s²]", rc.t, rc.base_ay, true, false, 2});
@@ -66,24 +72,27 @@ std::vector<Figure> input_figures(const Spec& spec, const RecordedCase& rc, cons
   std::vector<Figure> out;
   const double share = spec.wind.empty() ? 1.0 : 0.5;
   out.push_back(figure(std::move(pb),
-                       fmt::format("Acceleration and speed of the trolley or boom tip in case {} (x horizontal, y up), "
-                                   "as the scenario prescribes.{}",
-                                   id,
-                                   spec.motion == Motion::spatial
-                                       ? " Spatial chain: the x and y components only; the motion across the travel "
-                                         "(z) and slewing are not plotted yet."
-                                       : ""),
+                       fmt::format("Acceleration and speed of the trolley or boom tip in case {} ({}), as the "
+                                   "scenario prescribes{}.",
+                                   id, spatial ? "x along the travel, z across it, y up" : "x horizontal, y up",
+                                   rc.slewing ? "; on a slewing boom the tip's components over the ground" : ""),
                        200, share));
   if (!spec.wind.empty()) {
     std::vector<plot::Series> wind;
-    for (std::size_t w = 0; w < rc.wind_x.size(); ++w)
-      wind.push_back({fmt::format("wind[{}] on {}", w, spec.links[static_cast<std::size_t>(spec.wind[w].link)].name),
-                      rc.t, scaled(rc.wind_x[w], 1e-3), true, false, -1});
+    for (std::size_t w = 0; w < rc.wind_x.size(); ++w) {
+      const std::string name = spec.links[static_cast<std::size_t>(spec.wind[w].link)].name;
+      wind.push_back({fmt::format("wind[{}] on {}{}", w, name, spatial ? ", x" : ""), rc.t, scaled(rc.wind_x[w], 1e-3),
+                      true, false, -1});
+      if (spatial && w < rc.wind_z.size() && moves(rc.wind_z[w]))
+        wind.push_back({fmt::format("wind[{}] on {}, z", w, name), rc.t, scaled(rc.wind_z[w], 1e-3), true, false, -1});
+    }
     plot::Axis wy{"horizontal wind force", "kN"};
     wy.include_zero = true;
     out.push_back(figure(plot::line_chart("Wind force", {"time", "s"}, wy, wind),
-                         fmt::format("Horizontal drag force of each wind load in case {}, gusts included.{}", id,
-                                     spec.motion == Motion::spatial ? " Spatial chain: its x component only." : ""),
+                         fmt::format("Horizontal drag force of each wind load in case {}, gusts included{}.", id,
+                                     spatial ? ", by component (x along the travel, z across it; a component that "
+                                               "stays 0 is not drawn)"
+                                             : ""),
                          200,
                          share));
   }
@@ -169,7 +178,7 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
   if (std::any_of(spec.scenarios.begin(), spec.scenarios.end(),
                   [](const ScenarioSpec& s) { return s.hoist.has_value(); }))
     ++ropes;
-  const int per_case = 3 + static_cast<int>(spec.links.size()) / 2 + ropes;
+  const int per_case = 3 + static_cast<int>(spec.links.size()) / 2 + ropes + (spec.motion == Motion::spatial ? 2 : 0);
   const std::size_t max_cases = static_cast<std::size_t>(std::max(1, kMaxGoverningPlots / per_case));
   std::vector<long> chosen;
   for (const CheckResult* c : order) {
@@ -278,6 +287,7 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
     s.blocks.push_back(figures({fa}));
     s.blocks.push_back(figures({fl}));
     for (Block& b : rope_blocks(spec, *rc, id)) s.blocks.push_back(std::move(b));
+    for (Block& b : spatial_case_blocks(spec, *rc, id)) s.blocks.push_back(std::move(b));
     s.blocks.push_back(figures(input_figures(spec, *rc, id)));
     // Angle against angle for every pair of adjacent links (configuration space, not a phase
     // portrait: no rates), two to a row.
@@ -297,6 +307,7 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
       }
     }
   }
+  for (Block& b : plan_view_blocks(spec, r)) s.blocks.push_back(std::move(b));
   return s;
 }
 

@@ -313,7 +313,8 @@ std::string csv_unit(const LimitKindInfo& info) {
 bool has_link_columns(const Spec& spec, const LimitKindInfo& info, std::size_t k) {
   return info.link_value && !info.csv.empty() &&
          (info.scope != LimitScope::rope_links || spec.links[k].kind == LinkKind::rope) &&
-         (info.scope != LimitScope::elastic_rope_links || spec.links[k].elastic.has_value());
+         (info.scope != LimitScope::elastic_rope_links || spec.links[k].elastic.has_value()) &&
+         (!info.on_demand || has_limit_of(spec, info.kind));
 }
 
 /// A limit of the kind with default options and, for a kind with `end`, the end given.

@@ -328,6 +328,24 @@ std::string option_owners(bool LimitOptions::*option) {
     if (info.options.*option) all += (all.empty() ? "" : ", ") + std::string(info.key);
   return all;
 }
+
+/// Refuses a limit whose kind means nothing for this spec (LimitNeeds): a figure across the travel
+/// plane on a planar chain, a boom-frame figure with no slewing scenario.
+void check_limit_needs(const MapView& m, const LimitKindInfo& info, const Spec& spec) {
+  const bool spatial = spec.motion == Motion::spatial;
+  const bool slewing =
+      std::any_of(spec.scenarios.begin(), spec.scenarios.end(), [](const ScenarioSpec& s) { return s.slew.has_value(); });
+  if (info.needs == LimitNeeds::spatial && !spatial)
+    m.ctx().error(m.key_mark(info.key), m.path(info.key),
+                  fmt::format("'{}' reads the sway or load across the travel plane, which a planar chain does not have",
+                              info.key),
+                  "add 'motion: spatial' at the top of the spec, or remove this limit");
+  if (info.needs == LimitNeeds::slewing && !slewing)
+    m.ctx().error(m.key_mark(info.key), m.path(info.key),
+                  fmt::format("'{}' is read in the frame of a slewing boom, and no scenario slews", info.key),
+                  spatial ? "use pivot_load_x or pivot_load_z (the ground frame), or add a scenario with 'slew'"
+                          : "use pivot_load_x (the ground frame), or add 'motion: spatial' and a scenario with 'slew'");
+}
 }  // namespace
 
 void read_limits(const MapView& top, Spec& spec) {
@@ -355,6 +373,7 @@ void read_limits(const MapView& top, Spec& spec) {
                 "give exactly one of: " + all);
       continue;
     }
+    check_limit_needs(m, *found, spec);
     LimitSpec limit;
     limit.kind = found->kind;
     limit.key = std::string(found->key);

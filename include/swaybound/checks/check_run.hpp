@@ -31,7 +31,8 @@ struct FailedCase {
 /// Most points kept per recorded time series (per plot line): a longer run is decimated to every
 /// k-th output sample, k = ceil(samples / kMaxRecordedPoints), so a recording costs at most
 /// (1 + 3 x links + 4 x elastic ropes + 3) x kMaxRecordedPoints doubles whatever duration x
-/// output_rate is, plus the slack and taut intervals (at most kMaxRecordedIntervals per rope).
+/// output_rate is (a spatial chain: 2 x links + 11 more), plus the slack and taut intervals (at
+/// most kMaxRecordedIntervals per rope).
 inline constexpr long kMaxRecordedPoints = 4000;
 
 /// Most slack intervals (and as many taut intervals after them) kept per rope of a recording.
@@ -97,6 +98,19 @@ struct RecordedCase {
   /// Extremes of the run located between samples and steps (as the checks find them): per link
   /// max |theta|, max pivot load and the least rope tension (NaN for rigid links).
   std::vector<Extreme> peak_angle, peak_load, min_tension;
+  // Spatial chains (empty for a planar one): what happens across the travel, and in the boom frame
+  // (dynamics/posture.hpp BoomFrame: radial and tangential on a slewing base, else x and z).
+  bool slewing = false;                           ///< the case's scenario slews (its boom frame turns)
+  std::vector<std::vector<double>> in_plane;      ///< per link, signed in-plane sway [rad]
+  std::vector<std::vector<double>> out_of_plane;  ///< per link, signed out-of-plane sway [rad]
+  std::vector<Extreme> peak_in_plane, peak_out_of_plane;  ///< per link, max |.|, located as the checks do
+  std::vector<double> hook_x, hook_z;             ///< the lowest link's lower end (the hook), ground frame [m]
+  std::vector<double> pivot_x, pivot_z;           ///< the top pivot (trolley, boom tip), ground frame [m]
+  std::vector<double> hook_radial, hook_tangential;  ///< the hook relative to the top pivot, boom frame [m]
+  std::vector<double> support_z;                  ///< force on the support across the travel [N]
+  std::vector<double> support_radial, support_tangential;  ///< force on the support, boom frame [N]
+  std::vector<double> base_vz, base_az;           ///< base velocity [m/s], acceleration [m/s^2] across the travel
+  std::vector<std::vector<double>> wind_z;        ///< z component of each wind load's force [N]
   // Ropes of variable length: empty / NaN / -1 for a chain without them.
   std::vector<RecordedRope> ropes;      ///< per elastic rope
   int hoist_link = -1;                  ///< the rope link the scenario's drum winds, -1 for none

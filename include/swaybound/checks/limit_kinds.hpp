@@ -26,6 +26,13 @@ enum class LimitScope {
   chain,       ///< the chain as a whole (no `link` key)
 };
 
+/// What a spec needs for a limit of the kind to mean something; the loader refuses it otherwise.
+enum class LimitNeeds {
+  any,      ///< every chain
+  spatial,  ///< `motion: spatial` (the figure is 0 in the travel plane)
+  slewing,  ///< a scenario with `slew` (without one the boom frame is the ground's)
+};
+
 /// The optional keys a limit entry may carry besides `link`.
 struct LimitOptions {
   bool after = false;    ///< `after` [s], required: the value counts from that time on
@@ -67,6 +74,10 @@ struct LimitKindInfo {
   /// link (per rope link for rope_links; with `end`, also _time, _top and _bottom columns);
   /// a case_value kind with `after` gets one column per limit, one without a single column.
   std::string_view csv;
+  LimitNeeds needs;
+  /// Computed only in a spec that has a limit of an on-demand kind (each costs located quantities
+  /// per link); cases.csv has the kind's columns only when the spec has a limit of it.
+  bool on_demand;
 };
 
 /// Every limit kind, in the order of the LimitKind enum.
@@ -75,6 +86,10 @@ std::span<const LimitKindInfo> limit_kinds();
 const LimitKindInfo& limit_kind(LimitKind kind);
 /// The row whose key is `key`, or nullptr.
 const LimitKindInfo* find_limit_kind(std::string_view key);
+/// Whether `spec` has a limit of `kind`.
+bool has_limit_of(const Spec& spec, LimitKind kind);
+/// Whether `spec` has a limit of an on-demand kind (its case metrics compute those figures).
+bool needs_on_demand_metrics(const Spec& spec);
 /// "upper" or "lower".
 std::string_view bound_name(Bound bound);
 

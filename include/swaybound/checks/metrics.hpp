@@ -42,6 +42,15 @@ struct CaseMetrics {
   double lift_off_time = std::nan("");   ///< when the load left the ground [s] (lift-off scenarios)
   Extreme support_force_x;             ///< max |x component of the force of the chain on its support|
                                        ///< = |x component of the reaction at link 0's pivot| [N]
+  // On demand (needs_on_demand_metrics: a limit of such a kind; else empty), per link, read in the
+  // boom frame of the phase (dynamics/posture.hpp: the ground's x and z without slewing).
+  std::vector<Extreme> peak_in_plane;       ///< max |in-plane sway| [rad]
+  std::vector<Extreme> peak_out_of_plane;   ///< max |out-of-plane sway| [rad] (0 for a planar chain)
+  std::vector<Extreme> peak_load_x;         ///< max |x component of the pivot reaction| [N]
+  std::vector<Extreme> peak_load_z;         ///< max |z component| [N]
+  std::vector<Extreme> peak_load_vertical;  ///< max |vertical component| [N]
+  std::vector<Extreme> peak_load_radial;    ///< max |radial component| (boom frame) [N]
+  std::vector<Extreme> peak_load_tangential;///< max |tangential component| (boom frame) [N]
   std::vector<double> residual;        ///< per residual_sway limit: max |theta| after its time [rad]
   double settling_time = 0;            ///< time after which every |theta| stays within the band [s];
                                        ///< NaN when the run ends outside the band
@@ -65,15 +74,16 @@ struct CaseOptions {
 /// The extremes a case reports, located by an ExtremeFinder: per link |theta|, |theta_i -
 /// theta_{i-1}|, |omega|, the pivot load, the least tension at each end of a rope link; for the
 /// chain the horizontal force on its support; per residual_sway limit the largest |theta| of its
-/// links after its time.
+/// links after its time; on demand (a limit of an on-demand kind, or `on_demand`) per link the
+/// in-plane and out-of-plane sway and the pivot load components (CaseMetrics::peak_in_plane ...).
 class CaseExtremes {
  public:
-  /// With `extra` > 0, `extra_quantities` adds that many quantities of the caller's, located by the
+  /// With `on_demand` the on-demand figures are located whatever the limits. With `extra` > 0, `extra_quantities` adds that many quantities of the caller's, located by the
   /// same finder (one finder per run: each finder's probes re-evaluate the workspace, so a second
   /// finder observing the same view would read a workspace that no longer describes it). They are
   /// quantities `first_extra()` .. `first_extra() + extra - 1` of `finder()`.
   CaseExtremes(const Model& model, const Spec& spec, int extra = 0,
-               ExtremeFinder::Quantities extra_quantities = {});
+               ExtremeFinder::Quantities extra_quantities = {}, bool on_demand = false);
   /// The on_step observer.
   void observe(const StepView& v);
   /// Writes the extremes into m (peak_*, min_tension, support_force_x, residual).
@@ -84,6 +94,7 @@ class CaseExtremes {
 
  private:
   const Model& model_;
+  bool on_demand_ = false;                      ///< the on-demand blocks are located
   int first_extra_ = 0;                         ///< the caller's quantities start here
   ExtremeFinder::Quantities extra_quantities_;  ///< the caller's, or empty
   std::vector<int> residual_links_;  ///< per residual_sway limit: its link, or -1 for every link

@@ -158,6 +158,10 @@ void point_state(const Model& model, const Workspace& ws, const PointRef& p, dou
 void wind_load_force(const Model& model, const Workspace& ws, const Phase& phase, std::size_t w, double& fx,
                      double& fy, double& vx, double& vy);
 
+/// The z component (across the travel) of wind load w's drag force [N], as `wind_load_force`; 0 for
+/// a planar chain.
+double wind_load_force_z(const Model& model, const Workspace& ws, const Phase& phase, std::size_t w);
+
 /// Stage 3a: wind (at the speeds of `phase`) and dashpot forces into ws.force_x/y and the
 /// generalised force Q (added to q), and their dissipated and input power into ws.
 void external_forces(const Model& model, Workspace& ws, const Phase& phase, double* q);

@@ -244,6 +244,13 @@ enum class LimitKind {
   ftle_max,          ///< largest finite-time Lyapunov exponent over `horizon` [1/s]
   modal_damping_min, ///< least modal damping ratio [-] (lower bound)
   onset_margin,      ///< chaotic-onset amplitude / largest start amplitude [-] (lower bound)
+  in_plane_sway,     ///< |sway in the travel plane, or the boom's plane when slewing| [rad]
+  out_of_plane_sway, ///< |sway across that plane| [rad] (spatial chains)
+  pivot_load_x,      ///< |x component of the pivot reaction| (ground frame, along the travel) [N]
+  pivot_load_z,      ///< |z component| (ground frame, across the travel; spatial chains) [N]
+  pivot_load_vertical,    ///< |vertical component| [N]
+  pivot_load_radial,      ///< |radial component| (boom frame; a slewing scenario) [N]
+  pivot_load_tangential,  ///< |tangential component| (boom frame; a slewing scenario) [N]
 };
 
 /// Which end of a rope link a rope_tension_min limit reads: the top end is what the sheave or
