@@ -54,6 +54,20 @@ Spec demo(const std::string& name, double duration) {
   return spec;
 }
 
+/// The spatial demo with a limit of every kind that is computed only on demand (sway by direction,
+/// pivot load by component), so that their metrics travel too.
+Spec spatial_with_components(double duration) {
+  const std::string path = std::string(SWAYBOUND_SOURCE_DIR) + "/specs/gantry_two_axis.yaml";
+  std::string text = Spec(load_spec(path)).source_text;
+  const std::string extra = "limits:\n  - {in_plane_sway: 20 deg}\n  - {out_of_plane_sway: 20 deg}\n"
+                            "  - {pivot_load_x: 500 kN}\n  - {pivot_load_z: 500 kN}\n"
+                            "  - {pivot_load_vertical: 500 kN}\n";
+  text.replace(text.find("limits:\n"), 8, extra);
+  Spec spec = load_spec_text(text, path);
+  spec.cases.duration = duration;
+  return spec;
+}
+
 std::string results_of(const Spec& spec) {
   CheckOptions options;
   options.jobs = 2;
@@ -83,6 +97,15 @@ TEST_CASE("a check whose cases come through the bytes of a farm writes the same 
   CHECK(farm.cases == CaseSpace(spec).size());
   CHECK(farmed == here);
   CHECK(describe_execution(3) == "1 process x 3 threads");
+}
+
+TEST_CASE("sway by direction and pivot load by component come through the bytes of a farm", "[checks][cluster]") {
+  const Spec spec = spatial_with_components(4.0);
+  const std::string here = results_of(spec);
+  WireFarm farm;
+  Installed installed(&farm);
+  CHECK(results_of(spec) == here);
+  CHECK(here.find("out_of_plane_sway") != std::string::npos);
 }
 
 TEST_CASE("case bytes: decode gives back every field encode wrote", "[checks][cluster]") {
