@@ -5,6 +5,7 @@
 #include <fmt/format.h>
 
 #include "loader_parts.hpp"
+#include "swaybound/model/shaper.hpp"
 #include "swaybound/spec/paths.hpp"
 
 namespace swaybound::spec_detail {
@@ -12,6 +13,27 @@ namespace swaybound::spec_detail {
 namespace u = units;
 
 namespace {
+
+/// Why the travel drive of scenario `scenario` cannot be built with the uncertain value `target`
+/// set to `value` (a stop that never ends, moves that overlap); empty when it can.
+std::string travel_problem(const Spec& spec, int scenario, const SpecPath& target, double value) {
+  const ScenarioSpec& sc = spec.scenarios[static_cast<std::size_t>(scenario)];
+  if (!sc.travel || (target.field != SpecPath::Field::stop_decel && target.field != SpecPath::Field::drum_move_accel))
+    return {};
+  Spec changed;
+  changed.scenarios = {sc};
+  SpecPath at = target;
+  at.index = 0;
+  set_spec_value(changed, at, value);
+  try {
+    (void)travel_drive_profile(*changed.scenarios[0].travel);
+  } catch (const std::exception& e) {
+    const std::string text = e.what(), cut = "failed: ";  // without SWAYBOUND_REQUIRE's source location
+    const auto pos = text.find(cut);
+    return pos == std::string::npos ? text : text.substr(pos + cut.size());
+  }
+  return {};
+}
 
 /// One entry {path, range} of scenario `scenario`'s list, at `path`.
 void read_uncertain_one(Context& ctx, const YAML::Node& node, const std::string& path, Spec& spec, int scenario) {
@@ -67,6 +89,16 @@ void read_uncertain_one(Context& ctx, const YAML::Node& node, const std::string&
                           u::format_si(nominal, dim)),
               "give a range that holds the scenario's value, or change the value");
   } else {
+    // The search runs the drive at any value of the range: both ends must give a drive that can be built.
+    for (int end = 0; end < 2; ++end) {
+      const double value = end == 0 ? *lo : *hi;
+      const std::string problem = travel_problem(spec, scenario, *target, value);
+      if (problem.empty()) continue;
+      ctx.error(r[static_cast<std::size_t>(end)], fmt::format("{}[{}]", m.path("range"), end),
+                fmt::format("at {} the travel drive cannot be built: {}", u::format_si(value, dim), problem),
+                "narrow the range to values the drive can run");
+      return;
+    }
     entry.lo = *lo;
     entry.hi = *hi;
     sc.uncertain.push_back(entry);

@@ -203,3 +203,40 @@ TEST_CASE("an uncertain value is written back by normalised_yaml and reloads to 
   CHECK(again.scenarios[0].uncertain[0].lo == -1.5);
   CHECK(again.scenarios[0].uncertain[0].hi == -0.5);
 }
+
+TEST_CASE("an uncertain travel acceleration whose low end cannot finish its move before the next is refused at the "
+          "range's end",
+          "[spec][uncertain][bad]") {
+  // 1 m/s at 0.2 m/s^2 takes 5 s: from 1 s the first move ends at 6 s, after the second starts at
+  // 3.5 s. The search would run the drive there, so the loader refuses the range, not the search.
+  const std::string text = R"(swaybound: 1
+name: a travel move whose acceleration may be too low to end before the next move
+links:
+  - {name: rope, kind: rope, length: 4 m, mass: 250 kg}
+base:
+  scenarios:
+    - name: move
+      travel:
+        moves: [{at: 1 s, to: 1 m/s, accel: 0.5 m/s^2}, {at: 3.5 s, to: 0 m/s, accel: 0.5 m/s^2}]
+      uncertain:
+        - {path: "travel.moves[0].accel", range: [0.2 m/s^2, 0.8 m/s^2]}
+cases:
+  duration: 8 s
+  initial: [{single: {theta: [0 deg]}}]
+limits:
+  - {peak_angle: 30 deg}
+)";
+  try {
+    (void)load_spec_text(text, "overlap.yaml");
+    FAIL("the spec loaded");
+  } catch (const SpecError& e) {
+    REQUIRE(e.diagnostics().size() == 1);
+    CHECK(e.diagnostics()[0].path == "base.scenarios[0].uncertain[0].range[0]");
+    CHECK(e.diagnostics()[0].mark.line == 11);
+    CHECK(e.diagnostics()[0].mark.column == 51);
+  }
+  // The same range from 0.5 m/s^2 up loads.
+  std::string fine = text;
+  fine.replace(fine.find("[0.2 m/s^2"), 10, "[0.5 m/s^2");
+  CHECK_NOTHROW(load_spec_text(fine, "overlap.yaml"));
+}
