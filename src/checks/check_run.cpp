@@ -349,6 +349,7 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
 
   const auto audit_start = std::chrono::steady_clock::now();
   if (options.audit) report.time_budget_total += audit_governing(plan, options.jobs, checks.results());
+  if (options.audit && report.searched) report.time_budget_total += audit_search(plan, options.jobs, report.search);
   if (options.record) report.recorded = record_governing(plan, checks.results());
   if (options.record) report.shaping = compare_shaping(plan, shaping);
   report.seconds_audit = seconds_since(audit_start);

@@ -3,7 +3,8 @@
 // through CheckOptions::search.
 //
 // Each (limit, start) pair is one task: a bounded local maximisation of the limit's utilisation
-// over the free dimensions of the start box, scaled to [0, 1] each, from the sampled start. The
+// over the free dimensions of the start box and the uncertain values of the start's scenario,
+// scaled to [0, 1] each, from the sampled start (and the spec's values). The
 // tasks run in parallel on their own workspaces and are combined in task order, so the result does
 // not depend on the thread count. None of the optimisers used draws random numbers.
 #include <algorithm>
@@ -39,13 +40,32 @@ struct TaskResult {
   double best = -INFINITY;   ///< best utilisation (the start's to begin with)
   double best_value = std::nan("");
   CaseDef best_case;         ///< the start giving it
+  std::vector<double> best_values;  ///< and the uncertain values (empty: the scenario has none)
   double best_ftle = std::nan("");
   std::string from_case;     ///< the sampled start's id
   long runs = 0;
   std::string method;
   bool failed = false;       ///< a run failed
   CaseDef failed_case;
+  std::vector<double> failed_values;
   std::string failure;
+};
+
+/// The scenario variants made so far (scenario_variant), one per scenario and distinct vector of
+/// uncertain values, shared by every task.
+class SharedVariants {
+ public:
+  std::shared_ptr<const ScenarioVariant> get(const CheckPlan& plan, int scenario, const UncertainDims& dims,
+                                             const std::vector<double>& values) {
+    const std::lock_guard<std::mutex> lock(mutex_);
+    auto& slot = variants_[{scenario, values}];
+    if (!slot) slot = scenario_variant(*plan.spec, plan.model, scenario, dims, values);
+    return slot;
+  }
+
+ private:
+  std::mutex mutex_;
+  std::map<std::pair<int, std::vector<double>>, std::shared_ptr<const ScenarioVariant>> variants_;
 };
 
 /// The cases run so far by every task, so that limits searched from the same start share the runs
@@ -54,7 +74,8 @@ struct TaskResult {
 /// a task's result and its count of evaluations do not.
 class SharedRuns {
  public:
-  /// Scenario (negated and less one when the run computed the FTLE), then the angles and rates.
+  /// Scenario (negated and less one when the run computed the FTLE), then the angles and rates,
+  /// then the uncertain values.
   using Key = std::pair<int, std::vector<double>>;
   std::shared_ptr<const CaseMetrics> find(const Key& key) const {
     const std::lock_guard<std::mutex> lock(mutex_);
@@ -78,6 +99,8 @@ struct Problem {
   const WorstStarts* starts = nullptr;
   Workspace* ws = nullptr;
   SharedRuns* shared = nullptr;
+  SharedVariants* variants = nullptr;
+  UncertainDims dims;  ///< the uncertain values of the start's scenario: the last dimensions
   CaseOptions options;  ///< the plan's, with the FTLE only where the limit is ftle_max
   int limit = 0;
   Bound bound = Bound::upper;
@@ -99,8 +122,18 @@ struct Problem {
     return def;
   }
 
+  /// The uncertain values at scaled point `u` (clamped to their ranges).
+  std::vector<double> values_at(const double* u) const {
+    std::vector<double> values;
+    for (std::size_t k = 0; k < dims.size(); ++k) {
+      const double s = std::clamp(u[box->free.size() + k], 0.0, 1.0);
+      values.push_back(dims.lo[k] + s * (dims.hi[k] - dims.lo[k]));
+    }
+    return values;
+  }
+
   double evaluate(const double* u) {
-    std::vector<double> key(u, u + box->free.size());
+    std::vector<double> key(u, u + box->free.size() + dims.size());
     for (double& x : key) x = std::clamp(x, 0.0, 1.0);
     if (const auto it = seen.find(key); it != seen.end()) return it->second;
     if (result->runs >= budget) {
@@ -108,13 +141,21 @@ struct Problem {
       return start_utilisation;
     }
     const CaseDef def = case_at(key.data());
+    const std::vector<double> values = values_at(key.data());
     SharedRuns::Key shared_key{options.ftle ? -1 - def.scenario : def.scenario, def.initial.theta};
-    for (const auto* list : {&def.initial.omega, &def.initial.phi, &def.initial.phi_rate})
+    for (const auto* list : {&def.initial.omega, &def.initial.phi, &def.initial.phi_rate, &values})
       shared_key.second.insert(shared_key.second.end(), list->begin(), list->end());
     std::shared_ptr<const CaseMetrics> run = shared->find(shared_key);
     if (!run) {
-      run = std::make_shared<const CaseMetrics>(
-          run_case(plan->model, *plan->spec, *ws, def, plan->streaming, options));
+      if (values.empty()) {
+        run = std::make_shared<const CaseMetrics>(
+            run_case(plan->model, *plan->spec, *ws, def, plan->streaming, options));
+      } else {
+        // The variant keeps the plan's model id, so this task's workspace runs it.
+        const auto variant = variants->get(*plan, def.scenario, dims, values);
+        run = std::make_shared<const CaseMetrics>(
+            run_case(variant->model, variant->spec, *ws, def, plan->streaming, options));
+      }
       shared->add(std::move(shared_key), run);
     }
     const CaseMetrics& m = *run;
@@ -123,6 +164,7 @@ struct Problem {
       // A failed run fails the limit: stop here and report its start.
       result->failed = true;
       result->failed_case = def;
+      result->failed_values = values;
       result->failure = fmt::format("{}: {}", status_name(m.status), m.reason);
       nlopt_force_stop(opt);
       return start_utilisation;
@@ -135,6 +177,7 @@ struct Problem {
       result->best = u_value;
       result->best_value = value;
       result->best_case = def;
+      result->best_values = values;
       result->best_ftle = m.ftle;
     }
     return u_value;
@@ -170,7 +213,7 @@ nlopt_result optimise(nlopt_algorithm algorithm, Problem& p, std::vector<double>
 bool refused(nlopt_result r) { return r == NLOPT_INVALID_ARGS || r == NLOPT_FAILURE || r == NLOPT_OUT_OF_MEMORY; }
 
 TaskResult run_task(const CheckPlan& plan, const StartBox& box, const WorstStarts& starts, const Task& task,
-                    Workspace& ws, SharedRuns& shared) {
+                    Workspace& ws, SharedRuns& shared, SharedVariants& variants) {
   const CaseMetrics& start = starts.of(task.limit)[task.start];
   const Bound bound = limit_kind(plan.spec->limits[static_cast<std::size_t>(task.limit)].kind).bound;
   TaskResult result;
@@ -180,6 +223,8 @@ TaskResult run_task(const CheckPlan& plan, const StartBox& box, const WorstStart
   p.starts = &starts;
   p.ws = &ws;
   p.shared = &shared;
+  p.variants = &variants;
+  p.dims = uncertain_dims(*plan.spec, start.scenario);
   // The FTLE doubles a run's cost: only an ftle_max limit's search computes it at every point (the
   // others get it for the case they end on, for the chaos flag).
   p.options = plan.case_options;
@@ -195,6 +240,7 @@ TaskResult run_task(const CheckPlan& plan, const StartBox& box, const WorstStart
   result.best = p.start_utilisation;
   result.best_value = start_value;
   result.best_case = p.base;
+  result.best_values = p.dims.nominal;
   result.best_ftle = start.ftle;
   result.from_case = start.id;
 
@@ -206,6 +252,8 @@ TaskResult run_task(const CheckPlan& plan, const StartBox& box, const WorstStart
     const double v = start_quantity(initial, d, box.links);
     x.push_back(std::clamp((v - box.lo[k]) / (box.hi[k] - box.lo[k]), 0.0, 1.0));
   }
+  for (std::size_t k = 0; k < p.dims.size(); ++k)
+    x.push_back(std::clamp((p.dims.nominal[k] - p.dims.lo[k]) / (p.dims.hi[k] - p.dims.lo[k]), 0.0, 1.0));
   p.seen.emplace(x, p.start_utilisation);
 
   // BOBYQA first; Nelder-Mead, then COBYLA, from the best point so far when it refuses (it needs
@@ -223,8 +271,13 @@ TaskResult run_task(const CheckPlan& plan, const StartBox& box, const WorstStart
 }  // namespace
 
 namespace {
-/// Records in `s` the start of `def` (scenario, angles, rates) and the sampled case it came from.
-void set_start(LimitSearch& s, const CaseDef& def, const std::string& from_case) {
+/// Records in `s` the start of `def` (scenario, angles, rates), the uncertain values of its scenario
+/// and the sampled case it came from.
+void set_start(LimitSearch& s, const Spec& spec, const CaseDef& def, const std::vector<double>& values,
+               const std::string& from_case) {
+  s.worst_case = def;
+  s.uncertain_dims = uncertain_dims(spec, def.scenario);
+  s.uncertain = values;
   s.scenario = def.scenario;
   s.theta = def.initial.theta;
   s.omega = def.initial.omega;
@@ -253,27 +306,31 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
     const std::vector<CaseMetrics>& kept = starts.of(c.limit);
     if (!kept.empty()) {
       const CaseDef governing = plan.space.at(kept.front().index);
-      set_start(s, governing, governing.id);
+      set_start(s, spec, governing, uncertain_dims(spec, governing.scenario).nominal, governing.id);
       s.ftle = kept.front().ftle;
     }
-    s.searched = !kept.empty() && !box.free.empty();
-    if (s.searched) {
-      const int count = static_cast<int>(kept.size());
-      for (int j = 0; j < count; ++j) {
-        const int share = budget.evaluations / count + (j < budget.evaluations % count ? 1 : 0);
-        if (share > 0) tasks.push_back({c.limit, static_cast<std::size_t>(j), share});
-      }
+    // A start whose scenario has no uncertain value has nothing to move in a box that is a point.
+    std::vector<int> movable;
+    for (std::size_t j = 0; j < kept.size(); ++j)
+      if (!box.free.empty() || !spec.scenarios[static_cast<std::size_t>(kept[j].scenario)].uncertain.empty())
+        movable.push_back(static_cast<int>(j));
+    s.searched = !movable.empty();
+    const int count = static_cast<int>(movable.size());
+    for (int j = 0; j < count; ++j) {
+      const int share = budget.evaluations / count + (j < budget.evaluations % count ? 1 : 0);
+      if (share > 0) tasks.push_back({c.limit, static_cast<std::size_t>(movable[static_cast<std::size_t>(j)]), share});
     }
     out.push_back(std::move(s));
   }
 
   std::vector<TaskResult> results;
   SharedRuns shared;
+  SharedVariants variants;
   RunnerOptions runner;
   runner.jobs = jobs;
   run_ordered<TaskResult>(
       static_cast<long>(tasks.size()), runner, [&] { return Workspace(plan.model); },
-      [&](long k, Workspace& ws) { return run_task(plan, box, starts, tasks[static_cast<std::size_t>(k)], ws, shared); },
+      [&](long k, Workspace& ws) { return run_task(plan, box, starts, tasks[static_cast<std::size_t>(k)], ws, shared, variants); },
       [&](TaskResult&& r) { results.push_back(std::move(r)); });
 
   for (LimitSearch& s : out) {
@@ -298,7 +355,7 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
     if (failed) {
       s.failed_run = true;
       s.failure = failed->failure;
-      set_start(s, failed->failed_case, failed->from_case);
+      set_start(s, spec, failed->failed_case, failed->failed_values, failed->from_case);
       s.searched_worst = std::nan("");
       s.margin = std::nan("");
       s.ftle = std::nan("");
@@ -308,7 +365,7 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
     if (winner) {
       s.found_worse = true;
       s.searched_worst = winner->best_value;
-      set_start(s, winner->best_case, winner->from_case);
+      set_start(s, spec, winner->best_case, winner->best_values, winner->from_case);
       s.ftle = winner->best_ftle;
       s.raise = best - sampled;
     }
@@ -317,9 +374,14 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
     s.pass = c.failed_cases == 0 && s.margin >= 0;
     if (plan.case_options.ftle && std::isnan(s.ftle) && winner) {
       // The search ran without the FTLE: compute it for the case it ended on.
-      CaseDef def = winner->best_case;
+      const CaseDef& def = winner->best_case;
       Workspace ws(plan.model);
-      s.ftle = run_case(plan.model, spec, ws, def, plan.streaming, plan.case_options).ftle;
+      if (winner->best_values.empty()) {
+        s.ftle = run_case(plan.model, spec, ws, def, plan.streaming, plan.case_options).ftle;
+      } else {
+        const auto variant = variants.get(plan, def.scenario, s.uncertain_dims, winner->best_values);
+        s.ftle = run_case(variant->model, variant->spec, ws, def, plan.streaming, plan.case_options).ftle;
+      }
     }
     s.chaotic = plan.case_options.ftle && !std::isnan(s.ftle) && s.ftle > spec.chaos.threshold;
   }

@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "swaybound/checks/check_run.hpp"
 #include "swaybound/checks/worst_search.hpp"
 
 namespace swaybound {
@@ -76,6 +77,68 @@ void WorstStarts::offer(const CaseMetrics& m) {
     kept.insert(at, m);
     if (static_cast<int>(kept.size()) > starts_) kept.pop_back();
   }
+}
+
+UncertainDims uncertain_dims(const Spec& spec, int scenario) {
+  UncertainDims dims;
+  for (const UncertainSpec& v : spec.scenarios.at(static_cast<std::size_t>(scenario)).uncertain) {
+    std::string error;
+    const auto target = parse_uncertain_path(spec, scenario, v.path, error);
+    SWAYBOUND_REQUIRE(target.has_value(), "uncertain value '{}' of scenario {}: {}", v.path, scenario, error);
+    dims.targets.push_back(*target);
+    dims.paths.push_back(v.path);
+    dims.units.push_back(units::si_unit(spec_path_dim(*target)));
+    dims.lo.push_back(v.lo);
+    dims.hi.push_back(v.hi);
+    dims.nominal.push_back(get_spec_value(spec, *target));
+  }
+  return dims;
+}
+
+std::shared_ptr<const ScenarioVariant> scenario_variant(const Spec& spec, const Model& model, int scenario,
+                                                        const UncertainDims& dims, const std::vector<double>& values) {
+  auto variant = std::make_shared<ScenarioVariant>(ScenarioVariant{spec, model});
+  for (std::size_t k = 0; k < dims.size(); ++k) set_spec_value(variant->spec, dims.targets[k], values.at(k));
+  const auto s = static_cast<std::size_t>(scenario);
+  variant->model.scenarios.at(s) = build_scenario(variant->spec.scenarios.at(s), variant->spec.wind);
+  return variant;
+}
+
+long audit_search(const CheckPlan& plan, int jobs, std::vector<LimitSearch>& searches) {
+  const Spec& spec = *plan.spec;
+  RunSettings tight = plan.streaming;
+  tight.rtol = std::max(plan.run.rtol / 100, 1e-15);
+  tight.atol = std::max(plan.run.atol / 100, 1e-18);
+  std::vector<std::size_t> audited;
+  for (std::size_t k = 0; k < searches.size(); ++k)
+    if (searches[k].searched && !searches[k].failed_run && !std::isnan(searches[k].searched_worst)) audited.push_back(k);
+  const WorstStarts values(spec, 1);
+  long time_budget = 0;
+  std::vector<CaseMetrics> reruns;
+  RunnerOptions runner;
+  runner.jobs = jobs;
+  run_ordered<CaseMetrics>(
+      static_cast<long>(audited.size()), runner, [&] { return Workspace(plan.model); },
+      [&](long k, Workspace& ws) {
+        const LimitSearch& s = searches[audited[static_cast<std::size_t>(k)]];
+        if (s.uncertain.empty())
+          return run_case(plan.model, spec, ws, s.worst_case, tight, plan.case_options);
+        const auto variant = scenario_variant(spec, plan.model, s.worst_case.scenario, s.uncertain_dims, s.uncertain);
+        return run_case(variant->model, variant->spec, ws, s.worst_case, tight, plan.case_options);
+      },
+      [&](CaseMetrics&& m) {
+        if (m.status == RunStatus::time_budget) ++time_budget;
+        reruns.push_back(std::move(m));
+      });
+  for (std::size_t j = 0; j < audited.size(); ++j) {
+    LimitSearch& s = searches[audited[j]];
+    const CaseMetrics& m = reruns[j];
+    s.audited = true;
+    s.audit_value = m.ok() ? values.value(s.limit, m) : std::nan("");
+    s.audit_change = s.audit_value - s.searched_worst;
+    s.audit_warning = !(std::fabs(s.audit_change) <= std::fabs(s.margin));
+  }
+  return time_budget;
 }
 
 void apply_search(const std::vector<LimitSearch>& searches, std::vector<CheckResult>& checks) {

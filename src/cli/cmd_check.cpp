@@ -39,6 +39,8 @@ void print_search(const Spec& spec, const CheckReport& r, const CheckResult& c, 
     for (std::size_t i = 0; i < s.phi_rate.size(); ++i)
       start += fmt::format("{}{:.6g} deg/s", i ? ", " : "", s.phi_rate[i] * 180 / 3.141592653589793);
   }
+  for (std::size_t k = 0; k < s.uncertain.size() && k < s.uncertain_dims.size(); ++k)
+    start += fmt::format(", {} {}", s.uncertain_dims.paths[k], engineering(s.uncertain[k], s.uncertain_dims.units[k]));
   if (s.failed_run)
     out << fmt::format("    search: a run failed between the samples ({}) from theta {} under '{}' ({} runs)\n",
                        s.failure, start, scenario, s.evaluations);
@@ -47,6 +49,9 @@ void print_search(const Spec& spec, const CheckReport& r, const CheckResult& c, 
                        "under '{}' ({} runs)\n",
                        engineering(s.searched_worst, c.unit), engineering(s.raise, c.unit),
                        ratio_percent(s.raise_of_margin), start, scenario, s.evaluations);
+  if (s.audited && s.found_worse)
+    out << fmt::format("    search: at a 100x tighter tolerance the searched worst moved by {}{}\n",
+                       engineering(s.audit_change, c.unit), s.audit_warning ? ", more than the margin" : "");
   if (s.sampling_missed())
     out << "    FAIL on the searched worst: sampling alone would have passed this check\n";
   if (s.chaotic) out << "    search: local worst, statistical, not a bound (FTLE above chaos.threshold)\n";

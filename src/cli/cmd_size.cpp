@@ -42,6 +42,7 @@ Action add_size(CLI::App& app) {
                                          "given) with every limit holding; write the sized spec and its check to DIR");
   struct Options : PacketRunOptions {
     long screening = 64;
+    bool no_search = false;
     std::string margin;  ///< "5%" or "0.05"; empty: the spec's sizing.required_margin
   };
   auto o = std::make_shared<Options>();
@@ -64,6 +65,9 @@ Action add_size(CLI::App& app) {
           },
           "SHARE"));
   cmd->add_flag("--no-audit", o->no_audit, "Final check without re-running governing cases at a tighter tolerance");
+  cmd->add_flag("--no-search", o->no_search,
+                "No search for the worst case between the samples, in the final check or elsewhere (the verdicts "
+                "are the samples' alone)");
   cmd->add_flag("--force", o->force,
                 "Replace the packet of another design (a spec with another name); never deletes files "
                 "swaybound did not write");
@@ -94,6 +98,7 @@ Action add_size(CLI::App& app) {
     options.jobs = o->jobs;
     options.screening_cases = o->screening;
     options.audit = !o->no_audit;
+    options.search = !o->no_search;
     options.load = LoadOptions{o->max_cases, o->max_samples};
     packet.attach(options);
     const bool terminal = !o->quiet && ::isatty(2);

@@ -44,6 +44,8 @@ std::optional<SpeedProfile> travel_profile(const ScenarioSpec& s) {
   return travel_drive_profile(*s.travel);
 }
 
+}  // namespace
+
 ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>& wind) {
   // Breakpoints: ends of base-acceleration segments, starts/ends of gusts, and where the drum's or
   // the travel drive's acceleration or jerk jumps.
@@ -130,6 +132,8 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
   }
   return out;
 }
+
+namespace {
 
 /// Length kinds, rope laws and the extended coordinates of ropes of variable length.
 void assign_length_coordinates(const Spec& spec, Model& m) {

@@ -22,6 +22,11 @@ std::string start_text(const LimitSearch& s) {
     for (double v : s.phi_rate) phi_rate.push_back(num(v * kDeg) + " deg/s");
     text += fmt::format("; phi {}; phi rate {}", fmt::join(phi, ", "), fmt::join(phi_rate, ", "));
   }
+  // The scenario's uncertain values there, each with the spec's value the samples used.
+  const UncertainDims& dims = s.uncertain_dims;
+  for (std::size_t k = 0; k < s.uncertain.size() && k < dims.size(); ++k)
+    text += fmt::format("; {} {} (spec {})", dims.paths[k], engineering(s.uncertain[k], dims.units[k]),
+                        engineering(dims.nominal[k], dims.units[k]));
   return text;
 }
 
@@ -69,19 +74,23 @@ Section search_section(const Spec& spec, const CheckReport& r) {
   s.blocks.push_back(paragraph(fmt::format(
       "For each per-case check, the {} worst sampled cases were moved through the box of starts the case sets "
       "declare (each link's least to largest initial angle and rate) by a bounded local search (NLopt BOBYQA), "
-      "at most {} case runs per check, each under the scenario of its start. The searched worst is the worse of "
-      "the sampled worst and the best found: a local worst, so a lower bound on the true worst over the box, not "
-      "a proof that nothing worse exists. A check fails when its searched worst fails.",
+      "at most {} case runs per check, each under the scenario of its start, whose uncertain values (where the "
+      "spec gives ranges) move through their ranges as well; the sampled cases use the spec's values. The "
+      "searched worst is the worse of the sampled worst and the best found: a local worst, so a lower bound on the "
+      "true worst over the box, not a proof that nothing worse exists. A check fails when its searched worst "
+      "fails. Audit: the searched worst's case run again at a 100x tighter tolerance, and how far that moved it.",
       r.search_budget.starts, r.search_budget.evaluations)));
   Table t{"search-table",
           {col("#", 0.3, Align::right, "index"), col("check", 1.3, Align::left, "check"),
            col("sampled worst", 1, Align::right, "sampled"), col("searched worst", 1, Align::right, "searched"),
-           col("raise (of margin)", 1.1, Align::right, "raise"), col("start", 2.2, Align::left, "start", true),
-           col("runs", 0.5, Align::right, "runs"), col("verdict", 0.62, Align::center, "verdict")},
+           col("raise (of margin)", 1.0, Align::right, "raise"), col("start", 1.8, Align::left, "start", true),
+           col("runs", 0.45, Align::right, "runs"), col("audit moved it", 0.75, Align::right, "audit"),
+           col("verdict", 0.62, Align::center, "verdict")},
           {},
           "raise: searched worst - sampled worst in the direction that uses up the margin, and as a share of the "
           "sampled margin; start: the scenario and start angles and rates that give the searched worst (of the run "
-          "that failed, where one did); runs: evaluations the search made for the check.",
+          "that failed, where one did) and the scenario's uncertain values there; runs: evaluations the search made for the "
+          "check; audit moved it: the change of the searched worst at a 100x tighter tolerance (- without the audit).",
           7.6};
   std::vector<Rich> remarks;
   for (const LimitSearch& ls : r.search) {
@@ -98,10 +107,12 @@ Section search_section(const Spec& spec, const CheckReport& r) {
                                  : fmt::format("{} ({})", engineering(ls.raise, c.unit), ratio_percent(ls.raise_of_margin)),
                  ls.searched ? scenario + start_text(ls) : "-",
                  std::to_string(ls.evaluations),
+                 ls.audited ? engineering(ls.audit_change, c.unit) : "-",
                  ls.pass ? "pass" : "FAIL"};
     row.tone = ls.pass ? Tone::normal : Tone::fail;
     row.cell_tone.assign(row.cells.size(), Tone::normal);
-    row.cell_tone[7] = ls.pass ? Tone::pass : Tone::fail;
+    row.cell_tone[7] = ls.audit_warning ? Tone::fail : Tone::normal;
+    row.cell_tone[8] = ls.pass ? Tone::pass : Tone::fail;
     t.rows.push_back(row);
     const std::string label = fmt::format("Check {} ({}): ", ls.limit + 1, c.key);
     if (ls.sampling_missed())
@@ -110,6 +121,11 @@ Section search_section(const Spec& spec, const CheckReport& r) {
     if (ls.failed_run)
       remarks.push_back({Span{label, true}, Span{fmt::format("a run failed during the search ({}); it fails the check.",
                                                              ls.failure)}});
+    if (ls.audit_warning)
+      remarks.push_back({Span{label, true},
+                         Span{fmt::format("at a 100x tighter tolerance the searched worst moved by {}, more than the "
+                                          "margin: its verdict may depend on the solver tolerance.",
+                                          engineering(ls.audit_change, c.unit))}});
     if (ls.chaotic)
       remarks.push_back({Span{label, true},
                          Span{fmt::format("the searched worst's FTLE ({} 1/s) is above chaos.threshold: a local "

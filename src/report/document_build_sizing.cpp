@@ -61,7 +61,8 @@ Section sizing_section(const Spec& input, const SizingResult& r) {
           "Required margin: {:g}% (sizing.required_margin): every check's margin / scale must reach it; the "
           "scale is |limit|, or for a limit of 0 a fixed scale of its dimension (the chain's weight for "
           "forces).",
-          100 * r.required_margin)};
+          100 * r.required_margin),
+      worst_case_search_sentence(r)};
   std::vector<std::string> steps;
   for (const auto& v : r.variable_outcomes)
     if (v.step > 0)

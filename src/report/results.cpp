@@ -65,6 +65,20 @@ Json search_json(const Spec& spec, const LimitSearch& s) {
   j["ftle_per_s"] = number(s.ftle);
   j["verdict"] = s.pass ? "pass" : "fail";
   j["sampling_alone_would_pass"] = s.sampling_missed();
+  // Only for a scenario with uncertain values, so a spec without them writes what it wrote before.
+  if (!s.uncertain.empty()) {
+    Json values = Json::array();
+    for (std::size_t k = 0; k < s.uncertain.size() && k < s.uncertain_dims.size(); ++k)
+      values.push_back({{"path", s.uncertain_dims.paths[k]},
+                        {"unit", s.uncertain_dims.units[k]},
+                        {"value", number(s.uncertain[k])},
+                        {"spec_value", number(s.uncertain_dims.nominal[k])},
+                        {"range", {number(s.uncertain_dims.lo[k]), number(s.uncertain_dims.hi[k])}}});
+    j["uncertain"] = values;
+  }
+  if (s.audited)
+    j["accuracy_audit"] = {{"value", number(s.audit_value)}, {"change", number(s.audit_change)},
+                           {"warning", s.audit_warning}};
   return j;
 }
 

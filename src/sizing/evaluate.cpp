@@ -8,6 +8,7 @@
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/cases/runner.hpp"
 #include "swaybound/checks/limit_kinds.hpp"
+#include "swaybound/checks/worst_search.hpp"
 #include "swaybound/core/error.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/modal/modes.hpp"
@@ -37,11 +38,21 @@ bool has_kind(const Spec& spec, LimitKind kind) {
   return false;
 }
 
-DesignOutcome outcome_from(const Spec& spec, const std::vector<CheckResult>& checks) {
+/// The outcome of `checks`; a check with a search in `searches` counts its searched worst (a failed
+/// run during the search fails the constraint, as a failed case does).
+DesignOutcome outcome_from(const Spec& spec, const std::vector<CheckResult>& checks,
+                           const std::vector<LimitSearch>& searches = {}) {
   DesignOutcome out;
   for (const auto& c : checks) {
-    out.ratio.push_back(constraint_ratio(spec, c));
-    out.worst.push_back(c.worst);
+    CheckResult counted = c;
+    for (const LimitSearch& s : searches)
+      if (s.limit == c.limit && s.searched) {
+        counted.worst = s.searched_worst;
+        counted.margin = s.margin;
+        if (s.failed_run) counted.failed_cases = std::max(counted.failed_cases, 1L);
+      }
+    out.ratio.push_back(constraint_ratio(spec, counted));
+    out.worst.push_back(counted.worst);
     out.governing.push_back(c.per_case ? c.governing : -1);
   }
   return out;
@@ -119,8 +130,9 @@ double DesignOutcome::least() const {
   return least;
 }
 
-DesignEvaluator::DesignEvaluator(const Spec& base, std::vector<DesignVariable> variables, int jobs)
+DesignEvaluator::DesignEvaluator(const Spec& base, std::vector<DesignVariable> variables, int jobs, bool search)
     : base_(base), variables_(std::move(variables)), jobs_(jobs) {
+  search_screening_ = search && base_.sizing && base_.sizing->search_in_screening && base_.cases.search.enabled;
   const CaseSpace space(base_);
   case_count_ = space.size();
   envelope_ = space.envelope_amplitude();
@@ -143,7 +155,11 @@ DesignOutcome DesignEvaluator::screen(const std::vector<double>& values, const s
   MetricAccumulator metric{&metric_};
   RunnerOptions runner;
   runner.jobs = jobs_;
-  stream_cases(plan, CaseList::of(cases), runner, checks, totals, [&](const CaseMetrics& m) { metric.offer(m); });
+  WorstStarts starts(spec, spec.cases.search.starts);
+  stream_cases(plan, CaseList::of(cases), runner, checks, totals, [&](const CaseMetrics& m) {
+    metric.offer(m);
+    if (search_screening_) starts.offer(m);
+  });
   const long run_count = totals.cases, failed = totals.failed_total;
 
   double least_damping = std::nan("");
@@ -164,7 +180,14 @@ DesignOutcome DesignEvaluator::screen(const std::vector<double>& values, const s
     set_onset_checks(spec, onset, envelope_, checks);
   }
   checks.finish();
-  DesignOutcome out = outcome_from(spec, checks.results());
+  std::vector<LimitSearch> searches;
+  if (search_screening_) {
+    // From the worst screening cases: the search sees only what screening ran.
+    searches = search_worst(plan, starts, checks.results(),
+                            {spec.cases.search.evaluations, spec.cases.search.starts}, jobs_);
+    apply_search(searches, checks.results());
+  }
+  DesignOutcome out = outcome_from(spec, checks.results(), searches);
   out.cases = run_count;
   out.failed_cases = failed;
   out.required = required_;
@@ -188,7 +211,7 @@ DesignOutcome DesignEvaluator::check(const Spec& design, CheckOptions options, C
     if (user) user(m);
   };
   report = run_check(design, options);
-  DesignOutcome out = outcome_from(design, report.checks);
+  DesignOutcome out = outcome_from(design, report.checks, report.search);
   out.cases = report.case_count;
   out.failed_cases = report.failed_total;
   out.required = required_;

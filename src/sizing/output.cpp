@@ -102,6 +102,18 @@ std::string sizing_history_csv(const Spec& spec, const SizingResult& r) {
   return out.str();
 }
 
+std::string worst_case_search_sentence(const SizingResult& r) {
+  if (!r.searched_final)
+    return "Worst-case search: off (cases.search: false, or --no-search): every verdict rests on the sampled "
+           "cases alone.";
+  return r.searched_screening
+             ? "Worst-case search: in the final check and in screening and every verification round "
+               "(sizing.search_in_screening): each limit's verdict rests on its searched worst."
+             : "Worst-case search: in the final check only (screening and the verification rounds use the "
+               "sampled cases; sizing.search_in_screening: true searches there too): each limit's final "
+               "verdict rests on its searched worst.";
+}
+
 std::string sizing_table_markdown(const Spec& spec, const SizingResult& r) {
   std::ostringstream out;
   const SizingSpec& s = *spec.sizing;
@@ -115,6 +127,7 @@ std::string sizing_table_markdown(const Spec& spec, const SizingResult& r) {
   out << fmt::format(
       "Required margin {:g}% (`sizing.required_margin`): every check's margin / scale must reach it.\n",
       100 * r.required_margin);
+  out << worst_case_search_sentence(r) << "\n";
   {
     std::string steps;
     for (const auto& v : r.variable_outcomes)
@@ -238,7 +251,8 @@ std::string sizing_summary_json(const Spec& spec, const SizingResult& r) {
                  {"screening_evaluations", r.screening_evaluations},
                  {"full_checks", r.full_checks},
                  {"screening_cases", r.screening_size},
-                 {"cases", r.case_count}};
+                 {"cases", r.case_count},
+                 {"worst_case_search", {{"final_check", r.searched_final}, {"screening", r.searched_screening}}}};
   json stages = json::array();
   for (const auto& st : r.stages)
     stages.push_back({{"algorithm", st.algorithm},

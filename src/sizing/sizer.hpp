@@ -53,7 +53,7 @@ class Sizer {
       : spec_(spec),
         options_(options),
         sizing_(*spec.sizing),
-        evaluator_(spec, design_variables(spec), options.jobs),
+        evaluator_(spec, design_variables(spec), options.jobs, options.search),
         vars_(evaluator_.variables()) {}
 
   /// The whole sizing run (sizing.cpp).

@@ -123,6 +123,8 @@ DesignOutcome Sizer::full_check(const Spec& design, CheckReport& report, std::ve
   o.jobs = options_.jobs;
   o.audit = false;
   o.record = false;
+  // The verification rounds search only when screening does (sizing.search_in_screening).
+  if (evaluator_.search_in_screening()) o.search = search_worst;
   o.on_case = [&](const CaseMetrics& m) {
     if (!m.ok() && failed.size() < 16) failed.push_back(m.index);
   };

@@ -136,7 +136,10 @@ SizingResult Sizer::run() {
   o.audit = options_.audit;
   o.record = options_.record;
   o.on_case = options_.on_final_case;
+  if (options_.search) o.search = search_worst;
   r.outcome_after = evaluator_.check(r.sized, o, r.after);
+  r.searched_final = r.after.searched;
+  r.searched_screening = evaluator_.search_in_screening();
   Point p = make_point(final_values, r.outcome_after);
   p.verified = true;
   record(p, EvaluationKind::final_check);
@@ -192,11 +195,15 @@ void Sizer::build_result(SizingResult& r) const {
       l.ratio_before = r.outcome_before.ratio[i];
       l.pass_before = r.before.checks[i].pass;
     }
-    l.worst_after = a.worst;
+    l.sampled_after = a.worst;
+    l.worst_after = r.outcome_after.worst[i];  // the searched worst where the search ran
     l.ratio_after = r.outcome_after.ratio[i];
     l.pass_after = a.pass;
     l.binding = !a.pass || l.ratio_after < r.required_margin + kBindingRatio;
-    l.shortfall = a.pass ? 0.0 : (std::isnan(a.margin) ? std::nan("") : -a.margin);
+    double margin = a.margin;
+    for (const LimitSearch& s : r.after.search)
+      if (s.limit == a.limit && s.searched) margin = s.margin;
+    l.shortfall = a.pass ? 0.0 : (std::isnan(margin) ? std::nan("") : -margin);
     l.governing_after = a.governing_id;
     r.limits.push_back(l);
   }

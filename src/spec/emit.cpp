@@ -290,6 +290,18 @@ std::string normalised_yaml(const Spec& spec) {
       w.value("slack", l->slack, u::length);
       w.end();
     }
+    if (!s.uncertain.empty()) {
+      out << YAML::Key << "uncertain" << YAML::Value << YAML::BeginSeq;
+      for (const UncertainSpec& v : s.uncertain) {
+        std::string why;
+        const auto target = parse_uncertain_path(spec, static_cast<int>(i), v.path, why);
+        const u::Dim dim = target ? spec_path_dim(*target) : u::dimensionless;
+        out << YAML::Flow << YAML::BeginMap << YAML::Key << "path" << YAML::Value << v.path << YAML::Key << "range"
+            << YAML::Value << YAML::Flow << YAML::BeginSeq << number(v.lo, dim) << number(v.hi, dim) << YAML::EndSeq
+            << YAML::EndMap << YAML::Comment(u::si_unit(dim));
+      }
+      out << YAML::EndSeq;
+    }
     out << YAML::EndMap;
   }
   out << YAML::EndSeq << YAML::EndMap;
@@ -444,6 +456,7 @@ std::string normalised_yaml(const Spec& spec) {
     w.text("seed", std::to_string(s.seed));
     w.text("mode", s.mode == SearchMode::local ? "local" : "global");
     w.value("required_margin", s.required_margin, u::dimensionless);
+    if (s.search_in_screening) w.text("search_in_screening", "true");
     w.end();
   }
   w.begin("solver");

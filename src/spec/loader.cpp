@@ -374,7 +374,7 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
               "give at least one scenario, or leave 'base' out for a fixed top pivot");
   for (std::size_t i = 0; i < list.size(); ++i) {
     const std::string path = fmt::format("base.scenarios[{}]", i);
-    MapView s(ctx, list[i], path, {"name", "initial_velocity", "accel", "travel", "slew", "hoist", "lift_off"});
+    MapView s(ctx, list[i], path, {"name", "initial_velocity", "accel", "travel", "slew", "hoist", "lift_off", "uncertain"});
     if (!s.ok()) continue;
     ScenarioSpec sc;
     sc.mark = s.mark();
@@ -411,6 +411,7 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
     if (s.has("slew")) read_slew(s, spec, sc);
     spec.scenarios.push_back(std::move(sc));
   }
+  read_uncertain(ctx, list, spec);
 }
 
 /// Checks what the chain's inputs imply, link by link from the bottom, with the links below each

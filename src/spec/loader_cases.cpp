@@ -683,7 +683,7 @@ void read_sizing(const MapView& top, Spec& spec) {
   Context& ctx = top.ctx();
   if (!top.has("sizing")) return;
   MapView m(ctx, top.get("sizing"), "sizing",
-            {"variables", "objective", "budget", "seed", "mode", "required_margin"});
+            {"variables", "objective", "budget", "seed", "mode", "required_margin", "search_in_screening"});
   if (!m.ok()) return;
   SizingSpec s;
   s.mark = m.mark();
@@ -818,6 +818,9 @@ void read_sizing(const MapView& top, Spec& spec) {
       s.mode = *k == "local" ? SearchMode::local : SearchMode::global;
   read_optional(m, "required_margin", s.required_margin, u::dimensionless,
                 Bounds{0, 0.5, false, true, "a share of each limit, e.g. 0.05 for 5%"});
+  if (m.has("search_in_screening"))
+    if (auto c = read_choice(ctx, m.get("search_in_screening"), "sizing.search_in_screening", {"true", "false"}))
+      s.search_in_screening = *c == "true";
   note_sizing_defaults(m);
   spec.sizing = std::move(s);
 }

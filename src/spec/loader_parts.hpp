@@ -60,6 +60,10 @@ void refuse_with_spatial(Context& ctx, const Spec& spec);
 /// instead of `accel`, `initial_velocity` and `travel`.
 void read_slew(const MapView& scenario, const Spec& spec, ScenarioSpec& sc);
 
+/// Reads each scenario's `uncertain` list (loader_uncertain.cpp) once every scenario of the list
+/// `scenarios` and the wind are read.
+void read_uncertain(Context& ctx, const YAML::Node& scenarios, Spec& spec);
+
 void read_cases(const MapView& top, Spec& spec, const LoadOptions& options);
 void read_limits(const MapView& top, Spec& spec);
 void read_chaos(const MapView& top, Spec& spec);

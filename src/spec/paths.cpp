@@ -46,6 +46,12 @@ const FieldInfo kTravelFields[] = {
     {"travel.shaper.damping_ratio", Field::shaper_damping_ratio, units::dimensionless, 0, false},
     {"travel.stop.decel", Field::stop_decel, units::acceleration, 0, true},
 };
+const FieldInfo kUncertainFields[] = {
+    {"x", Field::accel_x, units::acceleration, -1e300, false},
+    {"y", Field::accel_y, units::acceleration, -1e300, false},
+    {"z", Field::accel_z, units::acceleration, -1e300, false},
+    {"wind.speed", Field::wind_speed, units::speed, -1e300, false},
+};
 const FieldInfo kDashpotField{"coefficient", Field::dashpot_coefficient, units::linear_damping, 0, false};
 
 const FieldInfo& info(Field f) {
@@ -54,6 +60,8 @@ const FieldInfo& info(Field f) {
   for (const auto& i : kDrumFields)
     if (i.field == f) return i;
   for (const auto& i : kTravelFields)
+    if (i.field == f) return i;
+  for (const auto& i : kUncertainFields)
     if (i.field == f) return i;
   return kDashpotField;
 }
@@ -217,6 +225,72 @@ std::optional<SpecPath> parse_spec_path(const Spec& spec, std::string_view text,
   return std::nullopt;
 }
 
+namespace {
+/// "[K]" at the start of `text`: K (at most 3 digits) and the rest after "].", or -1.
+int leading_index(std::string_view text, std::string_view& rest) {
+  const auto end = text.find(']');
+  if (text.empty() || text[0] != '[' || end == std::string_view::npos || end + 1 >= text.size() ||
+      text[end + 1] != '.')
+    return -1;
+  const std::string digits(text.substr(1, end - 1));
+  if (digits.empty() || digits.size() > 3 || digits.find_first_not_of("0123456789") != std::string::npos) return -1;
+  rest = text.substr(end + 2);
+  return std::stoi(digits);
+}
+}  // namespace
+
+std::optional<SpecPath> parse_uncertain_path(const Spec& spec, int scenario, std::string_view text, std::string& error) {
+  const ScenarioSpec& s = spec.scenarios.at(static_cast<std::size_t>(scenario));
+  const std::string forms =
+      "the forms are accel[K].x | y | z, travel.stop.decel, travel.moves[K].accel, wind.speed or wind[K].speed";
+  std::string_view rest;
+  if (text == "wind.speed") {
+    if (spec.wind.size() != 1) {
+      error = spec.wind.empty() ? "the spec has no wind load"
+                                : fmt::format("the spec has {} wind loads: name one as wind[K].speed, K from 0",
+                                              spec.wind.size());
+      return std::nullopt;
+    }
+    return SpecPath{Field::wind_speed, 0};
+  }
+  if (text.rfind("wind[", 0) == 0) {
+    const int k = leading_index(text.substr(4), rest);
+    if (k < 0 || rest != "speed") {
+      error = "expected wind[K].speed with K a wind load's position in the list, from 0";
+      return std::nullopt;
+    }
+    if (k >= static_cast<int>(spec.wind.size())) {
+      error = fmt::format("the spec has {} wind load(s); K runs from 0", spec.wind.size());
+      return std::nullopt;
+    }
+    return SpecPath{Field::wind_speed, k};
+  }
+  if (text.rfind("accel[", 0) == 0) {
+    const int k = leading_index(text.substr(5), rest);
+    if (k < 0 || (rest != "x" && rest != "y" && rest != "z")) {
+      error = "expected accel[K].x, .y or .z with K a segment's position in the scenario's accel list, from 0";
+      return std::nullopt;
+    }
+    if (k >= static_cast<int>(s.accel.size())) {
+      error = fmt::format("scenario '{}' has {} accel segment(s); K runs from 0", s.name, s.accel.size());
+      return std::nullopt;
+    }
+    if (rest == "z" && spec.motion != Motion::spatial) {
+      error = "a planar chain has no motion across the travel (z)";
+      return std::nullopt;
+    }
+    return SpecPath{rest == "x" ? Field::accel_x : rest == "y" ? Field::accel_y : Field::accel_z, scenario, k};
+  }
+  if (text == "travel.stop.decel" || (text.rfind("travel.moves[", 0) == 0 && text.size() > 6 &&
+                                      text.substr(text.size() - 6) == ".accel")) {
+    auto path = parse_scenario_path(spec, s.name, text, error);
+    if (path) return path;
+    return std::nullopt;
+  }
+  error = fmt::format("'{}' is not a value that can be uncertain: {}", text, forms);
+  return std::nullopt;
+}
+
 units::Dim spec_path_dim(const SpecPath& path) { return info(path.field).dim; }
 
 double spec_path_lower_bound(const SpecPath& path, bool& open) {
@@ -228,8 +302,13 @@ namespace {
 template <class SpecT>
 auto& value_ref(SpecT& spec, const SpecPath& p) {
   if (p.field == Field::dashpot_coefficient) return spec.dashpots.at(static_cast<std::size_t>(p.index)).coefficient;
+  if (p.field == Field::wind_speed) return spec.wind.at(static_cast<std::size_t>(p.index)).speed;
   if (p.field >= Field::drum_speed) {
     auto& scenario = spec.scenarios.at(static_cast<std::size_t>(p.index));
+    if (p.field >= Field::accel_x) {
+      auto& segment = scenario.accel.at(static_cast<std::size_t>(p.damper));
+      return p.field == Field::accel_x ? segment.ax : p.field == Field::accel_y ? segment.ay : segment.az;
+    }
     if (p.field == Field::shaper_frequency) return scenario.travel.value().shaper.value().frequency;
     if (p.field == Field::shaper_damping_ratio) return scenario.travel.value().shaper.value().damping_ratio;
     if (p.field == Field::stop_decel) return scenario.travel.value().stop.value().decel;

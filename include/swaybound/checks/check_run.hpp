@@ -4,7 +4,7 @@
 //   stream_cases      a list of cases, in parallel, into the checks and the running totals
 //   run_global_checks modal analysis and chaotic-onset indicators, into the global checks
 //   search_worst      the worst case between the samples, per per-case limit (worst_search.hpp)
-//   audit_governing   each governing case again at a 100x tighter tolerance
+//   audit_governing   each governing case again at a 100x tighter tolerance (audit_search: each searched worst)
 //   record_governing  each governing case again with its time series recorded (for plots)
 // run_check composes them over every case of the spec.
 #include <cmath>

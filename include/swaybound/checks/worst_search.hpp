@@ -8,6 +8,12 @@
 // maximises the limit's utilisation (larger is worse for an upper bound, smaller for a lower one),
 // each evaluation one case run with the plan's model and streaming settings.
 //
+// A scenario's uncertain values (base.scenarios[i].uncertain: a wind speed, a braking deceleration
+// within a range) are further dimensions of the box for the cases of that scenario: the sampled
+// cases use the spec's value, the search moves it through its range. A point with other values
+// runs on a copy of the plan's model whose scenario is rebuilt from them (scenario_variant), made
+// once per distinct vector of values and shared by every limit's search.
+//
 // The searched worst is the worse of the sampled worst and the best found: a local optimum, so
 // a lower bound on the true worst, never a proof that nothing worse exists. A run that fails
 // during the search fails the limit and is reported with its start. Where the worst case's FTLE
@@ -19,11 +25,15 @@
 // into that target). run_check calls it through CheckOptions::search, which a caller linking
 // sizing sets to `search_worst` (the CLI does, unless --no-search).
 #include <cmath>
+#include <memory>
 #include <string>
 #include <vector>
 
+#include "swaybound/cases/case_space.hpp"
 #include "swaybound/checks/checks.hpp"
 #include "swaybound/checks/metrics.hpp"
+#include "swaybound/model/model.hpp"
+#include "swaybound/spec/paths.hpp"
 #include "swaybound/spec/spec.hpp"
 
 namespace swaybound {
@@ -48,6 +58,29 @@ double& start_quantity(InitialState& start, int d, int n);
 
 /// The union bounding box of the starts of `spec`'s case sets.
 StartBox start_box(const Spec& spec);
+
+/// The uncertain values of one scenario as dimensions of the search, in the order of its list.
+struct UncertainDims {
+  std::vector<SpecPath> targets;
+  std::vector<std::string> paths;       ///< as written, relative to the scenario
+  std::vector<std::string> units;       ///< SI unit of each
+  std::vector<double> lo, hi, nominal;  ///< the range and the spec's value, SI
+  std::size_t size() const { return targets.size(); }
+};
+
+/// The uncertain values of scenario `scenario` of `spec` (empty without a list).
+UncertainDims uncertain_dims(const Spec& spec, int scenario);
+
+/// A scenario with its uncertain values set: the spec with them, and a copy of the plan's model
+/// whose scenario `scenario` is rebuilt from that spec (build_scenario). Only that scenario's phases
+/// differ, so the copy keeps the model's id and a Workspace built for the model runs it; a case of
+/// another scenario must not run on it (an uncertain wind speed is rebuilt in this scenario only).
+struct ScenarioVariant {
+  Spec spec;
+  Model model;
+};
+std::shared_ptr<const ScenarioVariant> scenario_variant(const Spec& spec, const Model& model, int scenario,
+                                                        const UncertainDims& dims, const std::vector<double>& values);
 
 /// The utilisation of a per-case limit's value: the value for an upper bound, its negative for a
 /// lower one (larger is always worse).
@@ -84,6 +117,11 @@ struct LimitSearch {
   std::vector<double> theta, omega;  ///< per link [rad], [rad/s]
   std::vector<double> phi, phi_rate; ///< spatial chains: per link [rad], [rad/s] (empty for planar)
   std::string from_case;             ///< id of the sampled case the winning search started from
+  /// The scenario's uncertain values at searched_worst (the spec's values when the search found
+  /// nothing worse), in the order of its list; empty when the scenario has none.
+  std::vector<double> uncertain;
+  UncertainDims uncertain_dims;      ///< their paths, units, ranges and the spec's values
+  CaseDef worst_case;                ///< the case of searched_worst (its start), for the audit
   bool found_worse = false;          ///< the search found a value worse than the sampled worst
   double raise = 0;                  ///< |searched_worst - sampled_worst|, in the worse direction, SI
   double raise_of_margin = std::nan("");  ///< raise / |sampled margin| (NaN when the margin is 0)
@@ -101,6 +139,11 @@ struct LimitSearch {
   /// The worst case's FTLE is computed and above chaos.threshold: a local worst, statistical, not a bound.
   bool chaotic = false;
   double ftle = std::nan("");        ///< that FTLE [1/s] (NaN: not computed)
+  /// The audit (audit_search): searched_worst's case run again at a 100x tighter tolerance.
+  bool audited = false;
+  double audit_value = std::nan("");   ///< the limit's value in that run, SI (NaN: the run failed)
+  double audit_change = std::nan("");  ///< audit_value - searched_worst, SI
+  bool audit_warning = false;          ///< |audit_change| > |margin|: the verdict may depend on the tolerance
 };
 
 /// The search's settings for one run: spec.cases.search, or off.
@@ -115,6 +158,12 @@ struct SearchBudget {
 std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& starts,
                                       const std::vector<CheckResult>& checks, const SearchBudget& budget,
                                       int jobs);
+
+/// The accuracy audit of the search: runs the case of each searched worst (but after a failed
+/// run) again at a 100x tighter tolerance (as audit_governing does for the sampled worst),
+/// with its uncertain values, on `jobs` threads, and writes each search's audit_value,
+/// audit_change and audit_warning. Returns how many re-runs the wall-clock budget stopped. Engine code.
+long audit_search(const CheckPlan& plan, int jobs, std::vector<LimitSearch>& searches);
 
 /// Fails every check whose searched worst fails (the sampled worst may pass: then
 /// LimitSearch::sampling_missed says sampling alone would have passed it). Engine code.

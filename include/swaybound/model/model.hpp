@@ -145,4 +145,8 @@ struct Model {
 /// and mass as a uniform rod (c = L/2, I = m L^2 / 12).
 Model build_model(const Spec& spec);
 
+/// The phases of scenario `s` under the wind loads `wind` (as build_model makes them): a model
+/// whose scenario inputs change (an uncertain value, checks/worst_search.hpp) rebuilds only these.
+ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>& wind);
+
 }  // namespace swaybound

@@ -58,7 +58,11 @@ struct DesignOutcome {
 
 class DesignEvaluator {
  public:
-  DesignEvaluator(const Spec& base, std::vector<DesignVariable> variables, int jobs);
+  /// `search`: the search for the worst case between the samples may run (the spec's cases.search
+  /// permitting): in check() when its options ask for it, in screen() with sizing.search_in_screening.
+  DesignEvaluator(const Spec& base, std::vector<DesignVariable> variables, int jobs, bool search = true);
+  /// Screening (and the verification rounds) search for the worst case between the samples.
+  bool search_in_screening() const { return search_screening_; }
   const std::vector<DesignVariable>& variables() const { return variables_; }
   const Spec& base() const { return base_; }
   /// The base spec with the design's values set.
@@ -72,6 +76,7 @@ class DesignEvaluator {
   DesignOutcome screen(const std::vector<double>& values, const std::vector<long>& cases,
                        const std::vector<double>* onset_worst = nullptr) const;
   /// The full check of a design spec: run_check with `options` (its on_case is kept and chained).
+  /// Where the search ran, each limit's constraint is its searched worst's.
   DesignOutcome check(const Spec& design, CheckOptions options, CheckReport& report) const;
   long case_count() const { return case_count_; }
   const ObjectiveMetric& metric() const { return metric_; }
@@ -83,6 +88,7 @@ class DesignEvaluator {
   Spec base_;
   std::vector<DesignVariable> variables_;
   int jobs_;
+  bool search_screening_ = false;
   long case_count_ = 0;
   double envelope_ = 0;
   double required_ = 0;

@@ -29,8 +29,11 @@
 //      found are each checked on every case (cheapest first for min_cost, else nearest first), as
 //      catalogue combinations are; the best that passes is the final design.
 //   5. The final design goes through its YAML (normalised_yaml, re-loaded) and is checked on
-//      every case with the accuracy audit; that check is what is reported. No design passes
-//      that this final check did not pass.
+//      every case with the accuracy audit and the search for the worst case between the samples
+//      (checks/worst_search.hpp, as `check` runs it; cases.search: false leaves it out): each
+//      limit's searched worst decides. That check is what is reported. No design passes that this
+//      final check did not pass. Screening and the verification rounds use the samples alone
+//      unless sizing.search_in_screening is true (then they search too).
 // Worst-case margins are non-smooth (the governing case switches as the design moves): COBYLA's
 // linear models tolerate kinks, the screening set keeps the cases that govern, and the
 // verification round catches a case that starts to govern outside it.
@@ -133,6 +136,7 @@ struct SizingOptions {
   long screening_cases = 64;     ///< about this many every-k-th cases screen (0: every case screens)
   bool audit = true;             ///< final check with the accuracy audit, as `check`
   bool record = false;           ///< final check records its governing cases (for plots)
+  bool search = true;            ///< the search for the worst case between the samples (spec's cases.search permitting)
   LoadOptions load;              ///< for re-loading the sized spec
   std::function<void(const SizingProgress&)> progress;
   std::function<void(const CaseMetrics&)> on_final_case;  ///< every case of the final check, in order
@@ -160,6 +164,8 @@ struct LimitOutcome {
   bool pass_before = false, pass_after = false;
   bool binding = false;          ///< after: margin ratio within 1% of the required margin (active), or failing
   double shortfall = 0;          ///< after, when failing: how much the worst value is past the limit [SI]
+  /// After: the sampled cases' worst [SI]; worst_after is the searched worst where the search ran.
+  double sampled_after = std::nan("");
   std::string governing_after;
 };
 
@@ -177,6 +183,9 @@ struct SizingResult {
   std::string sized_yaml;        ///< header comment + normalised YAML
   std::string sized_path;        ///< where write_sized_spec put it (empty: memory)
   CheckReport before, after;     ///< full checks of the design as given and of the final design
+  /// Where the search for the worst case between the samples ran: in the final check (after.searched)
+  /// and in screening and the verification rounds (sizing.search_in_screening).
+  bool searched_final = false, searched_screening = false;
   DesignOutcome outcome_before, outcome_after;
   double objective_before = std::nan(""), objective_after = std::nan("");
   std::string objective_label, objective_unit;
@@ -194,6 +203,10 @@ struct SizingResult {
 
 /// Runs the sizing of `spec` (which must have a sizing section: SpecError otherwise).
 SizingResult run_sizing(const Spec& spec, const SizingOptions& options = {});
+
+/// One sentence saying where the search for the worst case between the samples ran (the final
+/// check, screening) and so which worst each limit's verdict rests on.
+std::string worst_case_search_sentence(const SizingResult& result);
 
 /// The header comment of a sized spec file.
 std::string sized_spec_header(const SizingResult& result);

@@ -135,6 +135,15 @@ struct LiftOffSpec {
   Mark mark;
 };
 
+/// A continuous value of a scenario known only within a range (base.scenarios[i].uncertain): the
+/// sampled cases use the spec's value; the search for the worst case (checks/worst_search.hpp) also
+/// moves it through the range. spec/paths.hpp parses `path` (parse_uncertain_path).
+struct UncertainSpec {
+  std::string path;       ///< as written, relative to the scenario, e.g. "accel[0].x", "wind.speed"
+  double lo = 0, hi = 0;  ///< the range, SI; the spec's value lies in it
+  Mark mark;
+};
+
 struct ScenarioSpec {
   std::string name;
   double initial_vx = 0, initial_vy = 0;  ///< base velocity at t = 0 [m/s]
@@ -177,6 +186,7 @@ struct ScenarioSpec {
   };
   std::optional<Slew> slew;
   std::optional<LiftOffSpec> lift_off;    ///< the load starts on the ground
+  std::vector<UncertainSpec> uncertain;   ///< values the worst-case search moves through a range
   Mark mark;
 };
 
@@ -312,6 +322,9 @@ struct SizingSpec {
   /// Every limit must hold with this share to spare: margin >= required_margin x the limit's
   /// constraint scale (|limit|, or for a limit of 0 the scale of its dimension), in [0, 0.5).
   double required_margin = 0;
+  /// Screening and the verification rounds also search for the worst case between the samples
+  /// (checks/worst_search.hpp); false: only the final check does.
+  bool search_in_screening = false;
   Mark mark;
 };
 
