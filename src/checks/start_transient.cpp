@@ -53,10 +53,7 @@ void flag_start_transients(const Spec& spec, const CaseSpace& space, const Modal
     const CaseDef def = space.at(c.governing);
     if (def.start_kind == StartKind::equilibrium) continue;  // no transient by construction
     c.start_transient = true;
-    c.start_note = fmt::format(
-        "governed at t = {:.3g} s, within the first quarter of the lowest modal period ({:.3g} s) after the start ({}): "
-        "the peak may be a transient of this start rather than of the motion",
-        c.time, period, start_description(spec, def));
+    c.start_note = start_description(spec, def);
   }
 }
 

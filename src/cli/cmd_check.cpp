@@ -66,9 +66,9 @@ void print_summary(const Spec& spec, const CheckReport& r, std::ostream& out) {
       out << fmt::format("    {} case(s) failed to run; first: {}\n", c.failed_cases, c.first_failure);
     if (r.searched) print_search(spec, r, c, out);
     if (c.start_transient)
-      out << fmt::format("    note: start transient? peak at t = {:.3g} s, within {:g} of the lowest modal period after "
-                         "the start {}\n",
-                         c.time, kStartTransientFraction, c.start_note);
+      out << fmt::format("    note: start transient? the worst is at t = {:.3g} s, within the first quarter of the "
+                         "lowest modal period ({:.3g} s) after the start {}\n",
+                         c.time, lowest_swing_period(r.modes), c.start_note);
     if (c.audit_warning)
       out << fmt::format("    warning: at a 100x tighter tolerance the worst value moves by {}, more than the margin\n",
                          engineering(c.audit_change, c.unit));
