@@ -5,7 +5,10 @@
 #include <cmath>
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
+#include "swaybound/dynamics/equilibrium.hpp"
+#include "swaybound/modal/modal_start.hpp"
 #include "swaybound/spec/loader.hpp"
 
 namespace swaybound {
@@ -32,8 +35,9 @@ const Range& dimension(const InitialSetSpec& set, std::size_t d) {
   }
   throw ArgumentError(fmt::format("start dimension {} out of range", d));
 }
-void assign(InitialState& out, const InitialSetSpec& set, std::size_t d, double value) {
-  std::vector<double>* targets[] = {&out.theta, &out.omega, &out.phi, &out.phi_rate};
+/// Where the values of a set's dimensions go: theta, omega, phi, phi_rate, amplitude, phase.
+using Targets = std::array<std::vector<double>*, 6>;
+void assign(const Targets& targets, const InitialSetSpec& set, std::size_t d, double value) {
   const auto lists = start_lists(set);
   for (std::size_t k = 0; k < lists.size(); ++k) {
     if (d < lists[k]->size()) {
@@ -103,9 +107,61 @@ CaseSpace::CaseSpace(const Spec& spec) : spec_(&spec) {
     }
   }
   total_ = starts_ * static_cast<long>(spec.scenarios.size());
+  prepare_starts(spec);
 }
 
-void CaseSpace::fill_start(const InitialSetSpec& set, int set_index, long k, InitialState& out) const {
+void CaseSpace::prepare_starts(const Spec& spec) {
+  equilibria_.resize(spec.cases.initial.size());
+  bool modal = false, equilibrium = false;
+  for (const auto& set : spec.cases.initial) {
+    modal |= start_kind(set) == StartKind::modal;
+    equilibrium |= set.kind == InitialKind::equilibrium;
+  }
+  if (!modal && !equilibrium) return;
+  const Model model = build_model(spec);
+  if (modal) {
+    modes_ = std::make_shared<const ModalResult>(modal_analysis(model));
+    // Envelope: |theta_i| <= sum_k max |A_k| |s_ki| <= sum_k max |A_k| (largest |s_ki| is 1).
+    for (const auto& set : spec.cases.initial) {
+      double bound = 0;
+      for (const auto& r : set.amplitude) bound += std::max(std::fabs(r.lo), std::fabs(r.hi));
+      envelope_ = std::max(envelope_, bound);
+    }
+  }
+  if (!equilibrium) return;
+  Workspace ws(model);
+  for (std::size_t i = 0; i < spec.cases.initial.size(); ++i) {
+    const InitialSetSpec& set = spec.cases.initial[i];
+    if (set.kind != InitialKind::equilibrium) continue;
+    for (std::size_t sc = 0; sc < model.scenarios.size(); ++sc) {
+      // The inputs at t = 0 with the set's steady acceleration and wind in place of the scenario's.
+      Phase phase = model.scenarios[sc].phases.front();
+      if (!set.accel_from_scenario) {
+        phase.ax = set.accel;
+        phase.ay = 0;
+      }
+      for (std::size_t w = 0; w < phase.wind_speed.size(); ++w)
+        phase.wind_speed[w] = set.wind_from_spec ? spec.wind[w].speed : set.wind_speed;
+      const EquilibriumResult e = static_equilibrium(model, ws, phase);
+      if (!e.converged) {
+        std::vector<std::string> angles;
+        for (double t : e.theta) angles.push_back(fmt::format("{:.4g}", t * 180 / 3.141592653589793));
+        throw SpecError(spec.source_file,
+                        {Diagnostic{set.mark, fmt::format("cases.initial[{}].equilibrium", i),
+                                    fmt::format("no equilibrium start under scenario '{}' ({:g} m/s^2 along the travel): {} "
+                                                "(last angles {} deg, residual {:.3g})",
+                                                spec.scenarios[sc].name, phase.ax, e.reason, fmt::join(angles, ", "),
+                                                e.residual),
+                                    "give a smaller steady acceleration or wind_speed, or start this chain from angles "
+                                    "(theta, rate)"}});
+      }
+      for (double t : e.theta) envelope_ = std::max(envelope_, std::fabs(t));
+      equilibria_[i].push_back(e.theta);
+    }
+  }
+}
+
+void CaseSpace::fill_start(const InitialSetSpec& set, int set_index, long k, Targets out) const {
   const std::size_t dims = dimensions(set);
   switch (set.kind) {
     case InitialKind::single:
@@ -115,7 +171,7 @@ void CaseSpace::fill_start(const InitialSetSpec& set, int set_index, long k, Ini
       for (std::size_t d = 0; d < dims; ++d) assign(out, set, d, dimension(set, d).lo);
       if (k > 0) {
         const double step = set.steps[static_cast<std::size_t>(k - 1)];
-        double& theta = out.theta[static_cast<std::size_t>(set.perturb_link)];
+        double& theta = (*out[0])[static_cast<std::size_t>(set.perturb_link)];
         theta = set.relative ? theta * (1 + step) : theta + step;
       }
       break;
@@ -153,6 +209,8 @@ void CaseSpace::fill_start(const InitialSetSpec& set, int set_index, long k, Ini
       }
       break;
     }
+    case InitialKind::equilibrium:
+      break;  // at() takes the scenario's equilibrium
   }
 }
 
@@ -173,7 +231,16 @@ CaseDef CaseSpace::at(long index) const {
     c.initial.phi.assign(n, 0.0);
     c.initial.phi_rate.assign(n, 0.0);
   }
-  fill_start(set, c.set, c.start, c.initial);
+  c.start_kind = start_kind(set);
+  std::vector<double> amplitude(set.amplitude.size(), 0.0), phase(set.phase.size(), 0.0);
+  fill_start(set, c.set, c.start, {&c.initial.theta, &c.initial.omega, &c.initial.phi, &c.initial.phi_rate, &amplitude, &phase});
+  if (c.start_kind == StartKind::modal) {
+    const InitialState m = modal_start(*modes_, amplitude, phase);
+    c.initial.theta = m.theta;
+    c.initial.omega = m.omega;
+  } else if (c.start_kind == StartKind::equilibrium) {
+    c.initial.theta = equilibria_[static_cast<std::size_t>(c.set)][static_cast<std::size_t>(c.scenario)];
+  }
   const int width = static_cast<int>(std::to_string(initial_set_size(set)).size());
   c.id = fmt::format("{}/{}-{:0{}}", slugs_[static_cast<std::size_t>(c.scenario)], set_slugs_[static_cast<std::size_t>(c.set)], c.start + 1,
                      std::max(width, 3));

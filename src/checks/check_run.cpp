@@ -9,6 +9,7 @@
 
 #include "rope_recording.hpp"
 #include "swaybound/checks/case_farm.hpp"
+#include "swaybound/checks/start_transient.hpp"
 #include "swaybound/dynamics/posture.hpp"
 #include "swaybound/spec/loader.hpp"
 
@@ -336,6 +337,7 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   const auto chaos_start = std::chrono::steady_clock::now();
   run_global_checks(plan, options.jobs > 0 ? options.jobs : default_jobs(), checks, report.modes, report.chaos);
   checks.finish();
+  flag_start_transients(spec, plan.space, report.modes, checks.results());
   report.seconds_chaos = seconds_since(chaos_start);
 
   if (search) {

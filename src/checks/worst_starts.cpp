@@ -6,6 +6,7 @@
 
 #include "swaybound/checks/check_run.hpp"
 #include "swaybound/checks/worst_search.hpp"
+#include "swaybound/spec/case_set_kinds.hpp"
 
 namespace swaybound {
 
@@ -26,6 +27,8 @@ StartBox start_box(const Spec& spec) {
     box.hi[d] = std::max(box.hi[d], b);
   };
   for (const InitialSetSpec& set : spec.cases.initial) {
+    // Modal and equilibrium starts are checked at their samples only (the box is of link angles).
+    if (start_kind(set) != StartKind::angles) continue;
     const bool ranged = set.kind == InitialKind::grid || set.kind == InitialKind::corners ||
                         set.kind == InitialKind::random;
     const auto lists = start_lists(set);
@@ -63,6 +66,7 @@ double WorstStarts::value(int limit, const CaseMetrics& m) const {
 
 void WorstStarts::offer(const CaseMetrics& m) {
   if (!m.ok()) return;
+  if (start_kind(spec_->cases.initial[static_cast<std::size_t>(m.set)]) != StartKind::angles) return;
   for (std::size_t k = 0; k < spec_->limits.size(); ++k) {
     const LimitKindInfo& info = limit_kind(spec_->limits[k].kind);
     if (!info.per_case) continue;

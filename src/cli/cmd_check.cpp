@@ -10,6 +10,7 @@
 #include "commands.hpp"
 #include "swaybound/cases/case_space.hpp"
 #include "swaybound/checks/case_farm.hpp"
+#include "swaybound/checks/start_transient.hpp"
 #include "swaybound/checks/worst_search.hpp"
 #include "swaybound/report/check_packet.hpp"
 #include "swaybound/report/format.hpp"
@@ -70,6 +71,10 @@ void print_summary(const Spec& spec, const CheckReport& r, std::ostream& out) {
     if (c.failed_cases > 0)
       out << fmt::format("    {} case(s) failed to run; first: {}\n", c.failed_cases, c.first_failure);
     if (r.searched) print_search(spec, r, c, out);
+    if (c.start_transient)
+      out << fmt::format("    note: start transient? the worst is at t = {:.3g} s, within the first quarter of the "
+                         "lowest modal period ({:.3g} s) after the start {}\n",
+                         c.time, lowest_swing_period(r.modes), c.start_note);
     if (c.audit_warning)
       out << fmt::format("    warning: at a 100x tighter tolerance the worst value moves by {}, more than the margin\n",
                          engineering(c.audit_change, c.unit));

@@ -175,6 +175,16 @@ Section design_section(const Spec& spec, const CheckReport& r) {
       notes = fmt::format("perturbs '{}' by {} [{}]", link_name(spec, set.perturb_link), fmt::join(st, ", "),
                           set.relative ? "relative" : "deg");
     }
+    if (start_kind(set) == StartKind::modal)
+      notes = (notes.empty() ? "" : notes + "; ") +
+              fmt::format("modal start: amplitude {}, phase {} per mode, lowest first",
+                          range_text(set.amplitude, set.kind, kDeg, "deg"), range_text(set.phase, set.kind, kDeg, "deg"));
+    if (set.kind == InitialKind::equilibrium)
+      notes = fmt::format("hanging still under {} and {}",
+                          set.accel_from_scenario ? std::string("each scenario's acceleration at t = 0")
+                                                  : fmt::format("{} m/s² along the travel", num(set.accel)),
+                          set.wind_from_spec ? std::string("the spec's steady wind")
+                                             : fmt::format("every wind load at {} m/s", num(set.wind_speed)));
     is.rows.push_back({{set.name, kind_name(set.kind), std::to_string(initial_set_size(set)),
                         range_text(set.theta, set.kind, kDeg, "deg"), range_text(set.rate, set.kind, kDeg, "deg/s"),
                         notes.empty() ? "-" : notes}});

@@ -117,8 +117,11 @@ std::string start_text(const Spec& spec, const CaseSpace& space, long index) {
     omega.push_back(deg(i < def.initial.omega.size() ? def.initial.omega[i] : 0.0));
   }
   const auto scenario = static_cast<std::size_t>(def.scenario);
-  std::string text = fmt::format("scenario '{}', θ0 = ({}) deg, ω0 = ({}) deg/s",
+  std::string text = fmt::format("scenario '{}', {}θ0 = ({}) deg, ω0 = ({}) deg/s",
                                  scenario < spec.scenarios.size() ? spec.scenarios[scenario].name : "-",
+                                 def.start_kind == StartKind::modal         ? "modal start: "
+                                 : def.start_kind == StartKind::equilibrium ? "equilibrium start: "
+                                                                            : "",
                                  fmt::join(theta, ", "), fmt::join(omega, ", "));
   if (spec.motion == Motion::spatial) {
     std::vector<std::string> phi, phi_rate;

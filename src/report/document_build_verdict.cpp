@@ -7,6 +7,7 @@
 #include <fmt/format.h>
 
 #include "swaybound/checks/limit_kinds.hpp"
+#include "swaybound/checks/start_transient.hpp"
 #include "swaybound/report/format.hpp"
 #include "swaybound/report/results.hpp"
 
@@ -83,10 +84,11 @@ Section verdict_section(const Spec& spec, const CheckReport& r, const std::vecto
                  ratio_percent(c.margin_ratio),
                  c.pass ? "pass" : "FAIL",
                  c.governing_id.empty() ? "-" : c.governing_id,
-                 where_text(spec, c)};
+                 where_text(spec, c) + (c.start_transient ? ", start transient?" : "")};
     row.tone = c.pass ? Tone::normal : Tone::fail;
     row.cell_tone.assign(row.cells.size(), Tone::normal);
     row.cell_tone[7] = c.pass ? Tone::pass : Tone::fail;
+    if (c.start_transient) row.cell_tone[9] = Tone::warn;
     t.rows.push_back(row);
   }
   s.blocks.push_back(table_block(t));
@@ -98,6 +100,14 @@ Section verdict_section(const Spec& spec, const CheckReport& r, const std::vecto
       remarks.push_back({Span{fmt::format("Check {} ({}): ", i + 1, c.key), true},
                          Span{fmt::format("{} case(s) failed to run and fail this check; first: {}.", c.failed_cases,
                                           c.first_failure)}});
+    if (c.start_transient)
+      remarks.push_back({Span{fmt::format("Check {} ({}): ", i + 1, c.key), true},
+                         Span{fmt::format("start transient? The worst value is at t = {:.3g} s, within the first "
+                                          "quarter of the lowest modal period ({:.3g} s) after the start {}. It may come from "
+                                          "this start (a kinked chain released from rest) rather than from the motion; "
+                                          "check it again from an equilibrium or modal start (specs/README.md, "
+                                          "'Starts').",
+                                          c.time, lowest_swing_period(r.modes), c.start_note)}});
     if (c.audit_warning)
       remarks.push_back({Span{fmt::format("Check {} ({}): ", i + 1, c.key), true},
                          Span{fmt::format("at a 100x tighter tolerance the worst value moves by {}, more than the "

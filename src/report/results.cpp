@@ -2,12 +2,16 @@
 
 #include <algorithm>
 #include <cmath>
+#include <optional>
 #include <string_view>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
+#include "swaybound/cases/case_space.hpp"
 #include "swaybound/checks/limit_kinds.hpp"
+#include "swaybound/checks/start_transient.hpp"
+#include "swaybound/spec/case_set_kinds.hpp"
 #include "swaybound/core/hash.hpp"
 #include "swaybound/core/version.hpp"
 
@@ -34,6 +38,13 @@ bool has_elastic_rope(const Spec& spec) {
 }
 
 /// Whether some scenario starts with the load on the ground.
+/// Whether some set gives its starts other than as link angles (modal coordinates, an equilibrium):
+/// then cases.csv names each case's start kind and results.json each governing case's start.
+bool has_derived_starts(const Spec& spec) {
+  return std::any_of(spec.cases.initial.begin(), spec.cases.initial.end(),
+                     [](const InitialSetSpec& set) { return start_kind(set) != StartKind::angles; });
+}
+
 bool has_lift_off(const Spec& spec) {
   return std::any_of(spec.scenarios.begin(), spec.scenarios.end(),
                      [](const ScenarioSpec& s) { return s.lift_off.has_value(); });
@@ -213,6 +224,10 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
   j["notes"] = notes;
 
   Json checks = Json::array();
+  const bool derived = has_derived_starts(spec);
+  const bool flagged = std::any_of(r.checks.begin(), r.checks.end(), [](const CheckResult& c) { return c.start_transient; });
+  std::optional<CaseSpace> space;
+  if (derived || flagged) space.emplace(spec);
   for (const auto& c : r.checks) {
     Json cj;
     cj["limit"] = c.key;
@@ -232,6 +247,18 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
       cj["accuracy_audit"] = {{"value", number(c.audit_value)}, {"change", number(c.audit_change)},
                               {"warning", c.audit_warning}};
     cj["verdict"] = c.pass ? "pass" : "fail";
+    // Specs with modal or equilibrium starts, or a flagged check: the raw start of the governing case.
+    if (space && c.per_case && c.governing >= 0 && c.governing < space->size()) {
+      const CaseDef def = space->at(c.governing);
+      cj["governing_start"] = {{"kind", std::string(start_kind_name(def.start_kind))},
+                               {"theta_rad", vector_json(def.initial.theta)},
+                               {"rate_rad_per_s", vector_json(def.initial.omega)}};
+    }
+    if (c.start_transient)
+      cj["start_transient"] = {{"flagged", true},
+                               {"within_s", number(kStartTransientFraction * lowest_swing_period(r.modes))},
+                               {"fraction_of_lowest_period", kStartTransientFraction},
+                               {"start", c.start_note}};
     if (r.searched)
       for (const LimitSearch& ls : r.search)
         if (ls.limit == c.limit) cj["search"] = search_json(spec, ls);
@@ -343,6 +370,7 @@ LimitSpec probe_limit(const LimitKindInfo& info, RopeEnd end = RopeEnd::either) 
 std::string cases_csv_header(const Spec& spec) {
   std::string h = "\"case\",\"scenario\",\"set\",\"status\"";
   const auto column = [&h](const std::string& name) { add_field(h, csv_quote(name)); };
+  if (has_derived_starts(spec)) column("start");
   for (const auto& l : spec.links) column(fmt::format("theta0({}) [rad]", l.name));
   for (const auto& l : spec.links) column(fmt::format("omega0({}) [rad/s]", l.name));
   if (spec.motion == Motion::spatial) {
@@ -384,6 +412,8 @@ std::string cases_csv_row(const Spec& spec, const CaseMetrics& m) {
   add_field(row, csv_quote(spec.scenarios[static_cast<std::size_t>(m.scenario)].name));
   add_field(row, csv_quote(spec.cases.initial[static_cast<std::size_t>(m.set)].name));
   add_field(row, status_name(m.status));
+  if (has_derived_starts(spec))
+    add_field(row, start_kind_name(start_kind(spec.cases.initial[static_cast<std::size_t>(m.set)])));
   const std::size_t n = spec.links.size();
   for (std::size_t i = 0; i < n; ++i) add_field(row, csv_number(i < m.initial.theta.size() ? m.initial.theta[i] : 0.0));
   for (std::size_t i = 0; i < n; ++i) add_field(row, csv_number(i < m.initial.omega.size() ? m.initial.omega[i] : 0.0));

@@ -4,8 +4,22 @@
 
 namespace swaybound {
 
-std::array<const std::vector<Range>*, 4> start_lists(const InitialSetSpec& set) {
-  return {&set.theta, &set.rate, &set.phi, &set.phi_rate};
+std::array<const std::vector<Range>*, 6> start_lists(const InitialSetSpec& set) {
+  return {&set.theta, &set.rate, &set.phi, &set.phi_rate, &set.amplitude, &set.phase};
+}
+
+StartKind start_kind(const InitialSetSpec& set) {
+  if (set.kind == InitialKind::equilibrium) return StartKind::equilibrium;
+  return set.amplitude.empty() ? StartKind::angles : StartKind::modal;
+}
+
+std::string_view start_kind_name(StartKind kind) {
+  switch (kind) {
+    case StartKind::angles: return "angles";
+    case StartKind::modal: return "modal";
+    case StartKind::equilibrium: return "equilibrium";
+  }
+  return "angles";
 }
 
 namespace {
@@ -31,9 +45,10 @@ long corners_size(const InitialSetSpec& set) {
   return n;
 }
 
-constexpr std::string_view kValueKeys[] = {"theta", "rate", "phi", "phi_rate"};
-constexpr std::string_view kRandomKeys[] = {"count", "seed", "method", "theta", "rate", "phi", "phi_rate"};
+constexpr std::string_view kValueKeys[] = {"theta", "rate", "phi", "phi_rate", "amplitude", "phase"};
+constexpr std::string_view kRandomKeys[] = {"count", "seed", "method", "theta", "rate", "phi", "phi_rate", "amplitude", "phase"};
 constexpr std::string_view kLadderKeys[] = {"from", "relative", "absolute", "link"};
+constexpr std::string_view kEquilibriumKeys[] = {"acceleration", "wind_speed"};
 
 constexpr InitialKindInfo kKinds[] = {
     {InitialKind::single, "single", kValueKeys, StartShape::values, single_size},
@@ -41,6 +56,7 @@ constexpr InitialKindInfo kKinds[] = {
     {InitialKind::random, "random", kRandomKeys, StartShape::ranges, random_size},
     {InitialKind::corners, "corners", kValueKeys, StartShape::ranges, corners_size},
     {InitialKind::ladder, "ladder", kLadderKeys, StartShape::values, ladder_size},
+    {InitialKind::equilibrium, "equilibrium", kEquilibriumKeys, StartShape::values, single_size},
 };
 
 constexpr bool in_enum_order() {

@@ -339,9 +339,25 @@ std::string normalised_yaml(const Spec& spec) {
       emit_ranges(out, "rate", set.rate, counted, u::angular_rate);
       emit_ranges(out, "phi", set.phi, counted, u::angle);
       emit_ranges(out, "phi_rate", set.phi_rate, counted, u::angular_rate);
+      emit_ranges(out, "amplitude", set.amplitude, counted, u::angle);
+      emit_ranges(out, "phase", set.phase, counted, u::angle);
+    } else if (set.kind == InitialKind::equilibrium) {
+      out << YAML::Key << "acceleration" << YAML::Value;
+      if (set.accel_from_scenario)
+        out << "scenario";
+      else
+        out << number(set.accel, u::acceleration);
+      w.mark_default("equilibrium.acceleration");
+      out << YAML::Key << "wind_speed" << YAML::Value;
+      if (set.wind_from_spec)
+        out << "steady";
+      else
+        out << number(set.wind_speed, u::speed);
+      w.mark_default("equilibrium.wind_speed");
     } else {
       for (auto [key, list, dim] : {std::tuple{"theta", &set.theta, u::angle}, {"rate", &set.rate, u::angular_rate},
-                                    {"phi", &set.phi, u::angle}, {"phi_rate", &set.phi_rate, u::angular_rate}}) {
+                                    {"phi", &set.phi, u::angle}, {"phi_rate", &set.phi_rate, u::angular_rate},
+                                    {"amplitude", &set.amplitude, u::angle}, {"phase", &set.phase, u::angle}}) {
         if (list->empty()) continue;
         out << YAML::Key << key << YAML::Value << YAML::Flow << YAML::BeginSeq;
         for (const auto& r : *list) out << number(r.lo, dim);

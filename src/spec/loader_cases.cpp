@@ -58,6 +58,8 @@ std::string kind_list() {
   return all;
 }
 
+}  // namespace
+
 /// Reads a per-link list of values ("single" and ladder "from"): [10 deg, -5 deg].
 void read_value_list(Context& ctx, const YAML::Node& node, const std::string& path, const u::Dim& dim,
                      std::size_t links, std::vector<Range>& out) {
@@ -110,6 +112,8 @@ void read_range_list(Context& ctx, const YAML::Node& node, const std::string& pa
   }
 }
 
+namespace {
+
 /// Reads a set's out-of-plane lists phi [angle] and phi_rate [angular rate] per link, as values
 /// (`ranges` false) or ranges (`counted`: with counts, for a grid); refused on a planar chain.
 void read_out_of_plane(const MapView& s, const Spec& spec, bool ranges, bool counted, InitialSetSpec& set) {
@@ -131,7 +135,9 @@ void read_out_of_plane(const MapView& s, const Spec& spec, bool ranges, bool cou
 }
 
 /// True when the set's body gives some start quantity.
-bool has_start_key(const MapView& s) { return s.has("theta") || s.has("rate") || s.has("phi") || s.has("phi_rate"); }
+bool has_start_key(const MapView& s) {
+  return s.has("theta") || s.has("rate") || s.has("phi") || s.has("phi_rate") || s.has("amplitude");
+}
 
 void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& path, const Spec& spec,
                       InitialSetSpec& set) {
@@ -170,6 +176,7 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
       if (s.has("theta")) read_value_list(ctx, s.get("theta"), s.path("theta"), u::angle, n, set.theta);
       if (s.has("rate")) read_value_list(ctx, s.get("rate"), s.path("rate"), u::angular_rate, n, set.rate);
       read_out_of_plane(s, spec, false, false, set);
+      read_modal_keys(s, spec, false, false, set);
       break;
     }
     case InitialKind::grid:
@@ -178,10 +185,12 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
       MapView s(ctx, m.get(kind), kp, body);
       if (!s.ok()) return;
       if (!has_start_key(s))
-        ctx.error(s.mark(), kp, "no ranges given", "give 'theta' and/or 'rate' ranges per link");
+        ctx.error(s.mark(), kp, "no ranges given",
+                  "give 'theta' and/or 'rate' ranges per link, or 'amplitude' (and 'phase') ranges per mode");
       if (s.has("theta")) read_range_list(ctx, s.get("theta"), s.path("theta"), u::angle, n, grid, set.theta);
       if (s.has("rate")) read_range_list(ctx, s.get("rate"), s.path("rate"), u::angular_rate, n, grid, set.rate);
       read_out_of_plane(s, spec, true, grid, set);
+      read_modal_keys(s, spec, true, grid, set);
       break;
     }
     case InitialKind::random: {
@@ -198,10 +207,12 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
         ctx.defaults_filled.push_back(s.path("method"));
       }
       if (!has_start_key(s))
-        ctx.error(s.mark(), kp, "no ranges given", "give 'theta' and/or 'rate' ranges per link");
+        ctx.error(s.mark(), kp, "no ranges given",
+                  "give 'theta' and/or 'rate' ranges per link, or 'amplitude' (and 'phase') ranges per mode");
       if (s.has("theta")) read_range_list(ctx, s.get("theta"), s.path("theta"), u::angle, n, false, set.theta);
       if (s.has("rate")) read_range_list(ctx, s.get("rate"), s.path("rate"), u::angular_rate, n, false, set.rate);
       read_out_of_plane(s, spec, true, false, set);
+      read_modal_keys(s, spec, true, false, set);
       break;
     }
     case InitialKind::ladder: {
@@ -242,6 +253,12 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
                     "relative perturbations of a zero angle are all zero",
                     "give a non-zero starting angle for the perturbed link, or use 'absolute'");
       }
+      break;
+    }
+    case InitialKind::equilibrium: {
+      MapView s(ctx, m.get(kind).IsNull() ? YAML::Node(YAML::NodeType::Map) : m.get(kind), kp, body);
+      if (!s.ok()) return;
+      read_equilibrium(m, s, spec, set);
       break;
     }
   }

@@ -63,6 +63,18 @@ void read_slew(const MapView& scenario, const Spec& spec, ScenarioSpec& sc);
 /// Reads each scenario's `uncertain` list (loader_uncertain.cpp) once every scenario of the list
 /// `scenarios` and the wind are read.
 void read_uncertain(Context& ctx, const YAML::Node& scenarios, Spec& spec);
+/// Reads a per-link (or per-mode) list of values [10 deg, -5 deg] into `out` (loader_cases.cpp).
+void read_value_list(Context& ctx, const YAML::Node& node, const std::string& path, const units::Dim& dim,
+                     std::size_t links, std::vector<Range>& out);
+/// Reads a per-link (or per-mode) list of ranges: [[lo, hi, n], ...] with counts, [[lo, hi], ...] otherwise.
+void read_range_list(Context& ctx, const YAML::Node& node, const std::string& path, const units::Dim& dim,
+                     std::size_t links, bool with_count, std::vector<Range>& out);
+/// Reads a set's modal coordinates `amplitude` and `phase` (per mode, lowest first; loader_starts.cpp)
+/// as values or ranges (`counted`: with counts, for a grid); refused on a spatial chain, with an
+/// elastic rope, or beside link angles.
+void read_modal_keys(const MapView& s, const Spec& spec, bool ranges, bool counted, InitialSetSpec& set);
+/// Reads the body `s` of an `equilibrium` set (`set_map` the set's own map; loader_starts.cpp).
+void read_equilibrium(const MapView& set_map, const MapView& s, const Spec& spec, InitialSetSpec& set);
 
 void read_cases(const MapView& top, Spec& spec, const LoadOptions& options);
 void read_limits(const MapView& top, Spec& spec);

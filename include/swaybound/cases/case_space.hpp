@@ -3,18 +3,27 @@
 // scenario. Cases are made on demand from their index (no list of all cases is kept), so memory
 // does not grow with the case count; the same index always gives the same case.
 //
+// Starts given in modal coordinates or as a static equilibrium are turned into link angles and
+// rates here (modal/modal_start.hpp, dynamics/equilibrium.hpp), from the model of the spec built
+// once in the constructor; a CaseDef always holds the raw angles and rates a case starts from.
+//
 // Order: scenario-major, then the initial sets in spec order, then the starts of each set.
 // Id: "<scenario-slug>/<set-name>-<k>", k counted from 1 within the set and zero-padded to the
 // width of the set's size (at least 3), e.g. "brake-from-travel-speed/grid-017". Sets with the same
 // name are told apart as "random", "random-2", ...
+#include <array>
 #include <cstdint>
+#include <memory>
 #include <string>
 #include <vector>
 
 #include "swaybound/integrate/run.hpp"
+#include "swaybound/spec/case_set_kinds.hpp"
 #include "swaybound/spec/spec.hpp"
 
 namespace swaybound {
+
+struct ModalResult;
 
 struct CaseDef {
   long index = 0;           ///< position in the case space
@@ -23,10 +32,12 @@ struct CaseDef {
   int set = 0;              ///< index into Spec::cases.initial
   long start = 0;           ///< index of the start within its set
   InitialState initial;     ///< angles [rad] and rates [rad/s] per link
+  StartKind start_kind = StartKind::angles;  ///< what the set gave (angles, modal coordinates, an equilibrium)
 };
 
 class CaseSpace {
  public:
+  /// Throws SpecError (at the set) when an equilibrium start cannot be found.
   explicit CaseSpace(const Spec& spec);
   long size() const { return total_; }
   long starts() const { return starts_; }  ///< per scenario
@@ -35,8 +46,11 @@ class CaseSpace {
   double envelope_amplitude() const { return envelope_; }
 
  private:
-  void fill_start(const InitialSetSpec& set, int set_index, long k, InitialState& out) const;
+  void prepare_starts(const Spec& spec);
+  void fill_start(const InitialSetSpec& set, int set_index, long k, std::array<std::vector<double>*, 6> out) const;
   const Spec* spec_;
+  std::shared_ptr<const ModalResult> modes_;  ///< the chain's modes, when a set gives modal starts
+  std::vector<std::vector<std::vector<double>>> equilibria_;  ///< per set, per scenario: angles [rad] (equilibrium sets)
   std::vector<long> offsets_;                      ///< first start of each set within a scenario
   std::vector<std::vector<std::vector<int>>> lhs_; ///< per set, per dimension: stratum permutation
   std::vector<std::string> slugs_;      ///< per scenario

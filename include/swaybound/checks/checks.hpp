@@ -35,6 +35,11 @@ struct CheckResult {
   double audit_value = std::nan("");
   double audit_change = std::nan("");  ///< audit_value - worst
   bool audit_warning = false;          ///< |audit_change| > |margin|
+  /// The governing peak came so soon after a start that is not an equilibrium that it may be the
+  /// start's own transient (checks/start_transient.hpp); `start_note` says which start
+  /// (start_description: its id within the scenario, kind, angles and rates).
+  bool start_transient = false;
+  std::string start_note;
 };
 
 /// Accumulates per-case metrics into the spec's checks as cases stream past (in case order, so

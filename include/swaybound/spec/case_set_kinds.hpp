@@ -24,6 +24,15 @@ struct InitialKindInfo {
   long (*size)(const InitialSetSpec& set); ///< starts the set gives (capped above 1e9)
 };
 
+/// What a start is given as: raw link angles and rates, modal coordinates (amplitude and phase per
+/// mode), or the static equilibrium under a steady acceleration and wind. Every start becomes raw
+/// angles and rates before it runs; results name the kind beside them.
+enum class StartKind { angles, modal, equilibrium };
+/// The start kind of a set's starts.
+StartKind start_kind(const InitialSetSpec& set);
+/// "angles", "modal", "equilibrium".
+std::string_view start_kind_name(StartKind kind);
+
 /// Every kind of initial-condition set, in the order of the InitialKind enum.
 std::span<const InitialKindInfo> initial_kinds();
 /// The row of a kind.

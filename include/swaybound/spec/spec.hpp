@@ -197,11 +197,14 @@ struct Range {
 };
 
 /// The start quantities of an initial set in their order as dimensions of the case space: theta,
-/// rate, phi, phi_rate (each a list per link, possibly empty).
+/// rate, phi, phi_rate (each a list per link), then the modal amplitude and phase (each a list per
+/// mode); any of them possibly empty.
 struct InitialSetSpec;
-std::array<const std::vector<Range>*, 4> start_lists(const InitialSetSpec& set);
+std::array<const std::vector<Range>*, 6> start_lists(const InitialSetSpec& set);
 
-enum class InitialKind { single, grid, random, corners, ladder };
+/// `equilibrium`: one start per scenario, the chain hanging still under a steady base acceleration
+/// and wind (dynamics/equilibrium.hpp).
+enum class InitialKind { single, grid, random, corners, ladder, equilibrium };
 enum class SamplingMethod { uniform, latin_hypercube };
 
 /// One initial-condition set. Angles are absolute link angles [rad], rates [rad/s]; a link not
@@ -218,6 +221,16 @@ struct InitialSetSpec {
   std::vector<double> steps;       ///< ladder perturbations
   bool relative = true;            ///< ladder: steps relative to the base angle, else absolute [rad]
   int perturb_link = 0;            ///< ladder
+  /// Modal starts (single, grid, corners, random; planar chains): per mode, lowest first, the
+  /// amplitude of its largest link angle [rad] and its phase [rad] (modal/modal_start.hpp).
+  std::vector<Range> amplitude, phase;
+  /// equilibrium: the steady horizontal base acceleration [m/s^2], or (accel_from_scenario) each
+  /// scenario's base acceleration at t = 0; the steady speed of every wind load [m/s], or
+  /// (wind_from_spec) each wind load's own steady speed.
+  bool accel_from_scenario = true;
+  double accel = 0;
+  bool wind_from_spec = true;
+  double wind_speed = 0;
   Mark mark;
 };
 
