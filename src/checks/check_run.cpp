@@ -335,7 +335,10 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   report.seconds_cases = seconds_since(cases_start);
 
   const auto chaos_start = std::chrono::steady_clock::now();
-  run_global_checks(plan, options.jobs > 0 ? options.jobs : default_jobs(), checks, report.modes, report.chaos);
+  // The stages after the cases run in this process alone; a farm may lend it the threads of
+  // processes that wait meanwhile (the ranks that share its node).
+  const int stage_jobs = case_farm() ? case_farm()->stage_jobs(options.jobs) : options.jobs;
+  run_global_checks(plan, stage_jobs > 0 ? stage_jobs : default_jobs(), checks, report.modes, report.chaos);
   checks.finish();
   flag_start_transients(spec, plan.space, report.modes, checks.results());
   report.seconds_chaos = seconds_since(chaos_start);
@@ -343,15 +346,15 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   if (search) {
     const auto search_start = std::chrono::steady_clock::now();
     report.search_budget = {spec.cases.search.evaluations, spec.cases.search.starts};
-    report.search = options.search(plan, starts, checks.results(), report.search_budget, options.jobs);
+    report.search = options.search(plan, starts, checks.results(), report.search_budget, stage_jobs);
     report.searched = true;
     apply_search(report.search, checks.results());
     report.seconds_search = seconds_since(search_start);
   }
 
   const auto audit_start = std::chrono::steady_clock::now();
-  if (options.audit) report.time_budget_total += audit_governing(plan, options.jobs, checks.results());
-  if (options.audit && report.searched) report.time_budget_total += audit_search(plan, options.jobs, report.search);
+  if (options.audit) report.time_budget_total += audit_governing(plan, stage_jobs, checks.results());
+  if (options.audit && report.searched) report.time_budget_total += audit_search(plan, stage_jobs, report.search);
   if (options.record) report.recorded = record_governing(plan, checks.results());
   if (options.record) report.shaping = compare_shaping(plan, shaping);
   report.seconds_audit = seconds_since(audit_start);

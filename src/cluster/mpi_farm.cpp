@@ -1,10 +1,12 @@
 #include "mpi_farm.hpp"
 
 #include <mpi.h>
+#include <sched.h>
 
 #include <algorithm>
 #include <chrono>
 #include <condition_variable>
+#include <cstdio>
 #include <cstring>
 #include <functional>
 #include <limits>
@@ -79,6 +81,14 @@ std::string receive(const MPI_Status& status) {
   std::string bytes(static_cast<std::size_t>(count), '\0');
   MPI_Recv(bytes.data(), count, MPI_BYTE, status.MPI_SOURCE, status.MPI_TAG, MPI_COMM_WORLD, MPI_STATUS_IGNORE);
   return bytes;
+}
+
+/// CPUs this process may run on (its affinity mask: what mpirun's binding left it).
+int allowed_cpus() {
+  cpu_set_t set;
+  CPU_ZERO(&set);
+  if (sched_getaffinity(0, sizeof set, &set) != 0) return default_jobs();
+  return std::max(1, CPU_COUNT(&set));
 }
 
 int world_rank() {
@@ -157,12 +167,48 @@ MpiFarm::MpiFarm(int ranks)
       worker_plan_(static_cast<std::size_t>(ranks), 0),
       main_thread_(std::this_thread::get_id()) {
   stats_.cases_by_rank.assign(static_cast<std::size_t>(ranks), 0);
+  same_node_.assign(static_cast<std::size_t>(ranks), 0);
+  cpus_.assign(static_cast<std::size_t>(ranks), 1);
+  // The other side of serve_cases' node grouping (collective over every rank).
+  MPI_Comm node;
+  MPI_Comm_split_type(MPI_COMM_WORLD, MPI_COMM_TYPE_SHARED, 0, MPI_INFO_NULL, &node);
+  int leader = 0;
+  MPI_Bcast(&leader, 1, MPI_INT, 0, node);
+  MPI_Comm_free(&node);
   for (int r = 1; r < ranks_; ++r) {
     MPI_Status status;
     MPI_Probe(r, kHello, MPI_COMM_WORLD, &status);
     Unpack u{receive(status)};
     worker_threads_[static_cast<std::size_t>(r)] = std::max(1, u.get<std::int32_t>());
+    same_node_[static_cast<std::size_t>(r)] = u.get<std::uint8_t>();
+    cpus_[static_cast<std::size_t>(r)] = std::max(1, u.get<std::int32_t>());
   }
+  cpus_[0] = allowed_cpus();
+}
+
+void MpiFarm::warn_binding(int jobs) {
+  if (warned_binding_) return;
+  warned_binding_ = true;
+  for (int r = 0; r < ranks_; ++r) {
+    const long threads = r == 0 ? std::max<long>(stage_jobs(jobs), jobs > 0 ? jobs : default_jobs())
+                                : (jobs > 0 ? jobs : worker_threads_[static_cast<std::size_t>(r)]);
+    if (threads > cpus_[static_cast<std::size_t>(r)]) {
+      std::fprintf(stderr,
+                   "swaybound: note: rank %d may run on %d core(s) but runs %ld threads: mpirun bound it; start "
+                   "mpirun with --bind-to none (or give each rank as many cores as --jobs) so that its threads "
+                   "run side by side\n",
+                   r, cpus_[static_cast<std::size_t>(r)], threads);
+      return;
+    }
+  }
+}
+
+int MpiFarm::stage_jobs(int jobs) const {
+  const int hardware = default_jobs();
+  long threads = jobs > 0 ? jobs : hardware;
+  for (int r = 1; r < ranks_; ++r)
+    if (same_node_[static_cast<std::size_t>(r)]) threads += jobs > 0 ? jobs : worker_threads_[static_cast<std::size_t>(r)];
+  return static_cast<int>(std::min<long>(threads, hardware));
 }
 
 std::string MpiFarm::describe(int jobs) const {
@@ -184,6 +230,7 @@ bool MpiFarm::stream(const CheckPlan& plan, const CaseList& cases, const RunnerO
   }
   const long n = cases.size();
   ++stats_.lists;
+  warn_binding(runner.jobs);
   const auto threads_of = [&](int rank) {
     if (runner.jobs > 0) return static_cast<long>(runner.jobs);
     return static_cast<long>(rank == 0 ? default_jobs() : worker_threads_[static_cast<std::size_t>(rank)]);
@@ -268,34 +315,60 @@ bool MpiFarm::stream(const CheckPlan& plan, const CaseList& cases, const RunnerO
       busy[static_cast<std::size_t>(r)] = block.first;
     }
   };
-  // A worker's message, if one is waiting: its block into `done`, or its failure thrown.
+  // Workers' messages, without waiting on any: each announced one starts a non-blocking receive
+  // (so a slow sender never holds rank 0 up), and each received one puts its block into `done` or
+  // throws its failure. True when something moved.
+  struct Incoming {
+    MPI_Request request = MPI_REQUEST_NULL;
+    std::string bytes;
+    int tag = 0;
+  };
+  std::vector<Incoming> incoming(static_cast<std::size_t>(ranks_));
   const auto collect = [&]() -> bool {
-    int waiting = 0;
-    MPI_Status status;
-    MPI_Iprobe(MPI_ANY_SOURCE, MPI_ANY_TAG, MPI_COMM_WORLD, &waiting, &status);
-    if (!waiting) return false;
     const auto start = std::chrono::steady_clock::now();
-    const std::string bytes = receive(status);
-    const int r = status.MPI_SOURCE;
-    if (r <= 0 || r >= ranks_ || busy[static_cast<std::size_t>(r)] < 0)
-      throw RunError(fmt::format("cluster: an unexpected message from rank {}", r));
-    const long first = busy[static_cast<std::size_t>(r)];
-    busy[static_cast<std::size_t>(r)] = -1;
-    Unpack u{bytes};
-    if (status.MPI_TAG == kFailure)
-      throw RunError(fmt::format("rank {} could not run its cases: {}", r, u.get_text()));
-    if (status.MPI_TAG != kResult || u.get<long>() != first)
-      throw RunError(fmt::format("cluster: rank {} answered out of turn", r));
-    std::vector<CaseMetrics> out = decode_cases(u.rest());
-    stats_.gather_seconds += std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-    stats_.bytes += static_cast<double>(bytes.size());
-    stats_.remote_cases += static_cast<long>(out.size());
-    stats_.cases_by_rank[static_cast<std::size_t>(r)] += static_cast<long>(out.size());
-    {
-      std::lock_guard lock(mutex);
-      done.emplace(first, std::move(out));
+    bool moved = false;
+    for (;;) {
+      int waiting = 0;
+      MPI_Message message;
+      MPI_Status status;
+      MPI_Improbe(MPI_ANY_SOURCE, MPI_ANY_TAG, MPI_COMM_WORLD, &waiting, &message, &status);
+      if (!waiting) break;
+      const int r = status.MPI_SOURCE;
+      if (r <= 0 || r >= ranks_ || busy[static_cast<std::size_t>(r)] < 0)
+        throw RunError(fmt::format("cluster: an unexpected message from rank {}", r));
+      Incoming& in = incoming[static_cast<std::size_t>(r)];
+      int count = 0;
+      MPI_Get_count(&status, MPI_BYTE, &count);
+      in.bytes.assign(static_cast<std::size_t>(count), '\0');
+      in.tag = status.MPI_TAG;
+      MPI_Imrecv(in.bytes.data(), count, MPI_BYTE, &message, &in.request);
+      moved = true;
     }
-    return true;
+    for (int r = 1; r < ranks_; ++r) {
+      Incoming& in = incoming[static_cast<std::size_t>(r)];
+      if (in.request == MPI_REQUEST_NULL) continue;
+      int received = 0;
+      MPI_Test(&in.request, &received, MPI_STATUS_IGNORE);
+      if (!received) continue;
+      moved = true;
+      const long first = busy[static_cast<std::size_t>(r)];
+      busy[static_cast<std::size_t>(r)] = -1;
+      Unpack u{in.bytes};
+      if (in.tag == kFailure) throw RunError(fmt::format("rank {} could not run its cases: {}", r, u.get_text()));
+      if (in.tag != kResult || u.get<long>() != first)
+        throw RunError(fmt::format("cluster: rank {} answered out of turn", r));
+      std::vector<CaseMetrics> out = decode_cases(u.rest());
+      stats_.bytes += static_cast<double>(in.bytes.size());
+      stats_.remote_cases += static_cast<long>(out.size());
+      stats_.cases_by_rank[static_cast<std::size_t>(r)] += static_cast<long>(out.size());
+      {
+        std::lock_guard lock(mutex);
+        done.emplace(first, std::move(out));
+      }
+    }
+    if (moved)
+      stats_.gather_seconds += std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+    return moved;
   };
 
   const auto started = std::chrono::steady_clock::now();
@@ -341,7 +414,7 @@ bool MpiFarm::stream(const CheckPlan& plan, const CaseList& cases, const RunnerO
       }
       throw_if_cancelled();
       std::unique_lock lock(mutex);
-      changed.wait_for(lock, std::chrono::microseconds(200));
+      changed.wait_for(lock, std::chrono::milliseconds(1));  // a finished local block wakes it sooner
     }
   } catch (...) {
     {
@@ -370,14 +443,32 @@ void MpiFarm::stop_workers() {
 }
 
 int serve_cases() {
+  // Whether this rank shares rank 0's node: the ranks of rank 0's shared-memory group.
+  MPI_Comm node;
+  MPI_Comm_split_type(MPI_COMM_WORLD, MPI_COMM_TYPE_SHARED, 0, MPI_INFO_NULL, &node);
+  int on_node_of_0 = 0, node_leader = world_rank();
+  MPI_Bcast(&node_leader, 1, MPI_INT, 0, node);  // the lowest world rank of the group (ranks keep their order)
+  on_node_of_0 = node_leader == 0;
+  MPI_Comm_free(&node);
   Pack hello;
   hello.put(static_cast<std::int32_t>(default_jobs()));
+  hello.put(static_cast<std::uint8_t>(on_node_of_0));
+  hello.put(static_cast<std::int32_t>(allowed_cpus()));
   send(hello.bytes, 0, kHello);
   std::uint64_t serial = 0;
   RebuiltPlan current;
   for (;;) {
+    // Waits without spinning (a blocking probe keeps a core busy in most MPI libraries, a core
+    // rank 0 lends its own stages meanwhile): polls every 50 us for the first 20 ms, then every 2 ms.
     MPI_Status status;
-    MPI_Probe(0, MPI_ANY_TAG, MPI_COMM_WORLD, &status);
+    const auto idle = std::chrono::steady_clock::now();
+    for (int waiting = 0;;) {
+      MPI_Iprobe(0, MPI_ANY_TAG, MPI_COMM_WORLD, &waiting, &status);
+      if (waiting) break;
+      std::this_thread::sleep_for(std::chrono::steady_clock::now() - idle < std::chrono::milliseconds(20)
+                                      ? std::chrono::microseconds(50)
+                                      : std::chrono::microseconds(2000));
+    }
     const std::string message = receive(status);
     if (status.MPI_TAG == kStop) return 0;
     try {

@@ -44,6 +44,9 @@ class MpiFarm final : public CaseFarm {
   bool stream(const CheckPlan& plan, const CaseList& cases, const RunnerOptions& runner,
               const std::function<void(CaseMetrics&&)>& consume) override;
   std::string describe(int jobs) const override;
+  /// Rank 0's threads plus those of the ranks on its node (they wait while rank 0 runs the later
+  /// stages), at most the node's hardware threads.
+  int stage_jobs(int jobs) const override;
   /// True when a failure left workers busy or gone: the job must end with MPI_Abort.
   bool broken() const { return broken_; }
   /// Tells every worker the job is over (when not broken).
@@ -53,6 +56,11 @@ class MpiFarm final : public CaseFarm {
  private:
   int ranks_;
   std::vector<int> worker_threads_;      ///< per rank (index 0 unused): hardware threads
+  std::vector<char> same_node_;          ///< per rank: shares rank 0's node
+  std::vector<int> cpus_;                ///< per rank: CPUs its affinity mask allows
+  bool warned_binding_ = false;
+  /// Once per job: a note on stderr when a rank runs more threads than mpirun's binding gives it cores.
+  void warn_binding(int jobs);
   std::vector<std::uint64_t> worker_plan_;  ///< per rank: the plan serial it holds (0: none)
   std::string plan_key_;                  ///< key of the current plan
   std::uint64_t plan_serial_ = 0;

@@ -4,6 +4,7 @@
 // process it is the plain build.
 #include <mpi.h>
 
+#include <csignal>
 #include <cstdio>
 #include <iostream>
 
@@ -27,6 +28,11 @@ int main(int argc, char** argv) {
     return cli::kExitError;
   }
   if (rank != 0) {
+    // mpirun passes SIGINT and SIGTERM to every rank: rank 0 alone acts on them (it removes its
+    // temporary packet, then ends the job), so a worker ignores them rather than dying first and
+    // having mpirun kill rank 0 before it has cleaned up.
+    std::signal(SIGINT, SIG_IGN);
+    std::signal(SIGTERM, SIG_IGN);
     const int status = cluster::serve_cases();
     MPI_Finalize();
     return status;

@@ -29,7 +29,7 @@ failures = []
 
 
 def mpirun(ranks, *args):
-    return ["mpirun", "-n", str(ranks), "--oversubscribe", MPI, *args]
+    return ["mpirun", "-n", str(ranks), "--oversubscribe", "--bind-to", "none", MPI, *args]
 
 
 def run(command, expect):

@@ -24,6 +24,10 @@ class CaseFarm {
                       const std::function<void(CaseMetrics&&)>& consume) = 0;
   /// How the cases run, for MANIFEST: e.g. "4 MPI ranks x 2 threads".
   virtual std::string describe(int jobs) const = 0;
+  /// Threads for the stages this process runs alone after the cases (global checks, search,
+  /// audit), given `jobs` per process (0: every hardware thread): `jobs` unless other processes
+  /// of the farm wait on this machine meanwhile and lend it their cores.
+  virtual int stage_jobs(int jobs) const { return jobs; }
 };
 
 /// Installs the farm stream_cases uses (nullptr: this process's threads). Not owned; it must stay
