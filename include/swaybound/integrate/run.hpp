@@ -69,10 +69,10 @@ struct InitialState {
   std::vector<double> omega;  ///< angular rates [rad/s]; missing links start at 0
   /// Spatial chains: each link's angle out of the travel plane after theta in it (dynamics/posture.hpp)
   /// [rad] and its rate [rad/s]; missing links start at 0. Empty for planar chains.
-  std::vector<double> phi, phi_rate;
+  std::vector<double> phi{}, phi_rate{};
   /// Elastic ropes (model.elastic_links order): their length [m] and its rate [m/s] at t = 0. Empty:
   /// each starts at the quasi-static stretch (rope_start).
-  std::vector<double> rope_length, rope_rate;
+  std::vector<double> rope_length{}, rope_rate{};
 };
 
 struct RunSettings {

@@ -30,7 +30,7 @@ struct PacketOptions {
   bool force = false;     ///< replace the packet of another design (report/packet.hpp's rule)
   bool audit = true;      ///< the run re-ran its governing cases at a tighter tolerance (MANIFEST says so)
   std::string date_utc;   ///< ISO 8601 date of the packet; empty: the time finish() is called
-  std::string execution;  ///< how the cases ran (checks/case_farm.hpp describe_execution), for MANIFEST
+  std::string execution{};  ///< how the cases ran (checks/case_farm.hpp describe_execution), for MANIFEST
 };
 
 class CheckPacket {
