@@ -137,19 +137,6 @@ void stream_cases(const CheckPlan& plan, const CaseList& cases, const RunnerOpti
       consume);
 }
 
-namespace {
-CaseFarm* g_farm = nullptr;
-}  // namespace
-
-void set_case_farm(CaseFarm* farm) { g_farm = farm; }
-
-CaseFarm* case_farm() { return g_farm; }
-
-std::string describe_execution(int jobs) {
-  if (g_farm) return g_farm->describe(jobs);
-  const int threads = jobs > 0 ? jobs : default_jobs();
-  return fmt::format("1 process x {} thread{}", threads, threads == 1 ? "" : "s");
-}
 
 void set_modal_checks(const Spec& spec, const ModalResult& modes, CheckSet& checks) {
   for (std::size_t i = 0; i < spec.limits.size(); ++i)
@@ -337,7 +324,8 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   const auto chaos_start = std::chrono::steady_clock::now();
   // The stages after the cases run in this process alone; a farm may lend it the threads of
   // processes that wait meanwhile (the ranks that share its node).
-  const int stage_jobs = case_farm() ? case_farm()->stage_jobs(options.jobs) : options.jobs;
+  const CaseFarm* farm = case_farm();
+  const int stage_jobs = farm ? farm->stage_jobs(options.jobs) : options.jobs;
   run_global_checks(plan, stage_jobs > 0 ? stage_jobs : default_jobs(), checks, report.modes, report.chaos);
   checks.finish();
   flag_start_transients(spec, plan.space, report.modes, checks.results());
