@@ -18,6 +18,12 @@ double ftle_of(const Model& model, Workspace& ws, const InitialState& start, con
   return r.status == FtleStatus::ok ? r.exponent : std::nan("");
 }
 
+/// The angle between two unit vectors [rad], accurate for small and large angles.
+double angle_between(const double* a, const double* b) {
+  const double cx = a[1] * b[2] - a[2] * b[1], cy = a[2] * b[0] - a[0] * b[2], cz = a[0] * b[1] - a[1] * b[0];
+  return std::atan2(std::sqrt(cx * cx + cy * cy + cz * cz), a[0] * b[0] + a[1] * b[1] + a[2] * b[2]);
+}
+
 /// Least-squares slope b and intercept a of y = a + b x over the finite points.
 bool fit_line(const std::vector<double>& x, const std::vector<double>& y, double& a, double& b) {
   double sx = 0, sy = 0, sxx = 0, sxy = 0;
@@ -63,6 +69,9 @@ LadderResult perturbation_ladder(const Model& model, const Spec& spec, const Cas
   rec.output_rate = spec.cases.output_rate;
   r.sample_interval = 1.0 / rec.output_rate;
   const int n = model.n;
+  // What is compared per link: its angle (planar), or its direction e_i (spatial: the separation is
+  // then the angle between the two directions).
+  const int per_link = model.spatial ? 3 : 1;
   // Record every start of the set under the first scenario.
   long first = 0;
   for (int s = 0; s < set_index; ++s) first += initial_set_size(spec.cases.initial[static_cast<std::size_t>(s)]);
@@ -73,7 +82,7 @@ LadderResult perturbation_ladder(const Model& model, const Spec& spec, const Cas
     const CaseDef def = space.at(first + k);
     starts.push_back(def.initial);
     std::vector<double> series;
-    const Observer on_sample = [&](const StepView& v) { series.insert(series.end(), v.x, v.x + n); };
+    const Observer on_sample = [&](const StepView& v) { series.insert(series.end(), v.x, v.x + n * per_link); };
     simulate_case(model, ws, 0, def.initial, rec, {}, on_sample);
     angles.push_back(std::move(series));
   }
@@ -83,10 +92,13 @@ LadderResult perturbation_ladder(const Model& model, const Spec& spec, const Cas
     r.delta.push_back(std::fabs(starts[k].theta[link] - starts[0].theta[link]));
     std::vector<double> sep;
     double when = std::nan("");
-    const std::size_t samples = std::min(base.size(), angles[k].size()) / static_cast<std::size_t>(n);
+    const auto stride = static_cast<std::size_t>(n * per_link);
+    const std::size_t samples = std::min(base.size(), angles[k].size()) / stride;
     for (std::size_t j = 0; j < samples; ++j) {
       double d = 0;
-      for (int i = 0; i < n; ++i) d = std::max(d, std::fabs(angles[k][j * n + i] - base[j * n + i]));
+      for (int i = 0; i < n; ++i)
+        d = std::max(d, per_link == 1 ? std::fabs(angles[k][j * stride + i] - base[j * stride + i])
+                                      : angle_between(&angles[k][j * stride + 3 * i], &base[j * stride + 3 * i]));
       sep.push_back(d);
       if (std::isnan(when) && d > spec.chaos.tolerance) when = static_cast<double>(j) * r.sample_interval;
     }

@@ -101,15 +101,11 @@ void refuse_with_spatial(Context& ctx, const Spec& spec) {
                   "check the slewing scenario without this dashpot, or anchor it between links");
   for (std::size_t i = 0; i < spec.limits.size(); ++i) {
     const LimitSpec& l = spec.limits[i];
-    if (l.kind == LimitKind::ftle_max || l.kind == LimitKind::onset_margin || l.kind == LimitKind::modal_damping_min)
+    if (l.kind == LimitKind::modal_damping_min)
       ctx.error(l.mark, fmt::format("limits[{}]", i),
-                fmt::format("{}: the {} of a spatial chain is not computed yet", l.key,
-                            l.kind == LimitKind::modal_damping_min ? "modal analysis" : "finite-time Lyapunov exponent"),
+                fmt::format("{}: the modal analysis of a spatial chain is not computed yet", l.key),
                 "remove this limit, or check it on the planar chain ('motion: planar')");
   }
-  if (spec.chaos.given)
-    ctx.error(spec.chaos.mark, "chaos", "the chaos section: the finite-time Lyapunov exponent of a spatial chain is not computed yet",
-              "remove the chaos section, or study the chaotic onset on the planar chain ('motion: planar')");
 }
 
 }  // namespace swaybound::spec_detail

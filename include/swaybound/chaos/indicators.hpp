@@ -20,7 +20,7 @@ struct LadderResult {
   std::string set, scenario;
   int link = 0;                          ///< the perturbed link
   std::vector<double> delta;             ///< actual initial angle perturbations [rad]
-  std::vector<double> divergence_time;   ///< first time max_i |dtheta_i| > chaos.tolerance [s]; NaN: never
+  std::vector<double> divergence_time;   ///< first time max_i |dtheta_i| > chaos.tolerance [s] (spatial: the angle between link i's two directions); NaN: never
   double sample_interval = 0;            ///< of `separation` [s]
   std::vector<std::vector<double>> separation;  ///< per step: max_i |dtheta_i| at each sample [rad]
   double lambda = std::nan("");          ///< FTLE of the base start [1/s]
