@@ -201,9 +201,12 @@ ClosedLoop closed_loop(const Model& model, int k, const DriveControl& c, const L
   loop.scenario_name = model.scenarios[static_cast<std::size_t>(k)].name;
   loop.stable = true;
   loop.least_damping_ratio = 1;
+  // A pole within round-off of the imaginary axis is on it (k_v = 0 leaves the speed error's pole at 0).
+  const double axis = 1e-9 * solver.eigenvalues().cwiseAbs().maxCoeff();
   for (Eigen::Index i = 0; i < solver.eigenvalues().size(); ++i) {
-    const std::complex<double> l = solver.eigenvalues()(i);
-    loop.stable &= l.real() < 0;
+    std::complex<double> l = solver.eigenvalues()(i);
+    if (std::abs(l) <= axis) l = 0;
+    loop.stable &= l.real() < -axis;
     if (l.imag() < 0) continue;  // the pair is listed by its root with Im > 0
     ClosedLoopPole pole;
     pole.eigenvalue = l;

@@ -77,7 +77,7 @@ struct ClosedLoop {
   int scenario = -1;
   std::string scenario_name;
   std::vector<ClosedLoopPole> poles;  ///< sorted by natural frequency, lowest first
-  bool stable = false;                ///< every pole has Re(lambda) < 0
+  bool stable = false;                ///< every pole has Re(lambda) < 0 (beyond 1e-9 of the largest |lambda|)
   double least_damping_ratio = 0;     ///< min over the complex poles of damping_ratio [-] (1 with none)
 };
 
