@@ -8,6 +8,7 @@
 #include <complex>
 #include <filesystem>
 #include <fstream>
+#include <iterator>
 #include <numbers>
 
 #include <Eigen/Eigenvalues>
@@ -296,7 +297,7 @@ base: {scenarios: [{name: go, travel: {moves: [{at: 0 s, to: 1 m/s, accel: 0.3 m
   CHECK(why.find("controller") != std::string::npos);
 }
 
-TEST_CASE("swaybound modes prints the closed loop", "[controller][cli]") {
+TEST_CASE("swaybound modes and the check packet print the closed loop", "[controller][cli]") {
   const std::string path = (std::filesystem::temp_directory_path() / "swaybound-controller-modes.yaml").string();
   std::ofstream(path) << point_pendulum(5, "{rate_gain: 2 m s^-1 rad^-1, speed_gain: 0.5 /s}");
   const CommandResult table = run_command(fmt::format("{} modes '{}'", SWAYBOUND_CLI, path));
@@ -311,6 +312,24 @@ TEST_CASE("swaybound modes prints the closed loop", "[controller][cli]") {
   REQUIRE(j["closed_loops"][0]["poles"].size() == loop.poles.size());
   for (std::size_t k = 0; k < loop.poles.size(); ++k)
     CHECK(j["closed_loops"][0]["poles"][k]["damping_ratio"].get<double>() == loop.poles[k].damping_ratio);
+  // The check packet's modal section: results.json and the report.
+  const std::filesystem::path out = std::filesystem::temp_directory_path() / "swaybound-controller-packet";
+  std::filesystem::remove_all(out);
+  const CommandResult check =
+      run_command(fmt::format("{} check '{}' --out '{}' --jobs 1 --quiet", SWAYBOUND_CLI, path, out.string()));
+  REQUIRE(check.status == 0);
+  std::ifstream results(out / "results.json");
+  const auto packet = nlohmann::json::parse(results);
+  const auto& loops = packet.at("modes").at("closed_loops");
+  REQUIRE(loops.size() == 1);
+  CHECK(loops[0]["stable"].get<bool>());
+  REQUIRE(loops[0]["poles"].size() == loop.poles.size());
+  for (std::size_t k = 0; k < loop.poles.size(); ++k)
+    CHECK(loops[0]["poles"][k]["eigenvalue_real_per_s"].get<double>() == loop.poles[k].eigenvalue.real());
+  std::ifstream html_file(out / "report.html");
+  const std::string html((std::istreambuf_iterator<char>(html_file)), std::istreambuf_iterator<char>());
+  CHECK(html.find("Closed loop of the travel controller, scenario &#39;brake&#39;") != std::string::npos);
+  std::filesystem::remove_all(out);
 }
 
 // Sizing searches a gain: the residual sway after the brake fails with a weak rate gain; the least
