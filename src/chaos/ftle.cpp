@@ -90,6 +90,7 @@ FtleResult chain_ftle(const Model& model, Workspace& ws, int scenario, const Ini
   }
 
   const ScenarioModel& sc = model.scenarios[static_cast<std::size_t>(scenario)];
+  drive_start(model, sc.phases.front(), x0);
   std::vector<double> breakpoints;
   for (const Phase& p : sc.phases)
     if (std::isfinite(p.t1) && p.t1 > 0 && p.t1 < s.horizon) breakpoints.push_back(p.t1);

@@ -50,6 +50,24 @@ nlohmann::json modal_json(const ModalResult& r, const Model& model, const std::s
   }
   out["modes"] = std::move(modes);
   out["least_damping_ratio"] = number(r.least_damping_ratio);
+  if (!r.closed_loops.empty()) {
+    nlohmann::json loops = nlohmann::json::array();
+    for (const ClosedLoop& loop : r.closed_loops) {
+      nlohmann::json l;
+      l["scenario"] = loop.scenario_name;
+      l["stable"] = loop.stable;
+      l["least_damping_ratio"] = number(loop.least_damping_ratio);
+      nlohmann::json poles = nlohmann::json::array();
+      for (const ClosedLoopPole& p : loop.poles)
+        poles.push_back({{"eigenvalue_real_per_s", number(p.eigenvalue.real())},
+                         {"eigenvalue_imag_per_s", number(p.eigenvalue.imag())},
+                         {"natural_frequency_hz", number(p.natural_frequency_hz)},
+                         {"damping_ratio", number(p.damping_ratio)}});
+      l["poles"] = std::move(poles);
+      loops.push_back(std::move(l));
+    }
+    out["closed_loops"] = std::move(loops);
+  }
   out["notes"] = r.notes;
   return out;
 }
@@ -85,6 +103,20 @@ void print_table(const ModalResult& r, const Model& model, const std::string& sp
     std::cout << '\n';
   }
   std::cout << fmt::format("\nleast damping ratio: {:.6g}\n", r.least_damping_ratio);
+  for (const ClosedLoop& loop : r.closed_loops) {
+    std::cout << fmt::format("\nclosed loop of the travel controller, scenario '{}': {}\n", loop.scenario_name,
+                             loop.stable ? "stable" : "NOT stable (a pole with Re >= 0)");
+    std::cout << fmt::format("{:>4}  {:>22}  {:>20}  {:>17}\n", "pole", "eigenvalue [1/s]", "w_n [Hz]",
+                             "damping ratio [-]");
+    for (std::size_t k = 0; k < loop.poles.size(); ++k) {
+      const ClosedLoopPole& p = loop.poles[k];
+      const std::string value = p.eigenvalue.imag() > 0
+                                    ? fmt::format("{:.6g} +- {:.6g}i", p.eigenvalue.real(), p.eigenvalue.imag())
+                                    : fmt::format("{:.6g}", p.eigenvalue.real() + 0.0);
+      std::cout << fmt::format("{:>4}  {:>22}  {:>20.6g}  {:>17.6g}\n", k + 1, value, p.natural_frequency_hz,
+                               p.damping_ratio);
+    }
+  }
   std::cout << (ropes ? "mode shapes: link angles [rad] and rope stretches [m] of one mode vector, its largest angle "
                         "1 for a sway mode, its largest stretch 1 for an axial (bounce) mode\n"
                       : "mode shapes: link angles [rad per rad], largest 1\n");

@@ -86,6 +86,15 @@ void kinematics(const Model& model, Workspace& ws, const Phase& p, const double*
   ws.base_vy = p.vy0 + p.ay * dt;
   ws.base_x = p.x0 + (p.vx0 + (0.5 * p.ax + p.jx * dt / 6.0) * dt) * dt;
   ws.base_y = p.y0 + p.vy0 * dt + 0.5 * p.ay * dt * dt;
+  if (p.control.active) {
+    // The profile above is the drive's reference; the base follows the controller (controller.hpp).
+    const auto d = static_cast<std::size_t>(model.drive_state());
+    const auto m = static_cast<std::size_t>(p.control.measure);
+    const double a_ref = ws.base_ax, v_ref = ws.base_vx;
+    ws.base_x = x[d];
+    ws.base_vx = x[d + 1];
+    ws.base_ax = drive_acceleration(p.control, a_ref, v_ref, ws.base_vx, x[m], x[static_cast<std::size_t>(model.dof) + m]);
+  }
   if (model.variable_length()) rope_kinematics(model, ws, p, x, t);
 }
 
@@ -319,14 +328,27 @@ void evaluate(const Model& model, Workspace& ws, const Phase& phase, const doubl
   }
   if (model.variable_length()) {
     evaluate_general(model, ws, phase, x, t, dxdt);
-    return;
+  } else {
+    switch (model.n) {
+      case 1: evaluate_impl(model, ws, ws.s1, phase, x, t, dxdt); break;
+      case 2: evaluate_impl(model, ws, ws.s2, phase, x, t, dxdt); break;
+      case 3: evaluate_impl(model, ws, ws.s3, phase, x, t, dxdt); break;
+      default: evaluate_impl(model, ws, ws.sn, phase, x, t, dxdt); break;
+    }
   }
-  switch (model.n) {
-    case 1: evaluate_impl(model, ws, ws.s1, phase, x, t, dxdt); break;
-    case 2: evaluate_impl(model, ws, ws.s2, phase, x, t, dxdt); break;
-    case 3: evaluate_impl(model, ws, ws.s3, phase, x, t, dxdt); break;
-    default: evaluate_impl(model, ws, ws.sn, phase, x, t, dxdt); break;
+  if (model.drive_states) {
+    // The base's x and speed (a scenario without a controller integrates its own profile).
+    const auto d = static_cast<std::size_t>(model.drive_state());
+    dxdt[d] = ws.base_vx;
+    dxdt[d + 1] = ws.base_ax;
   }
+}
+
+void drive_start(const Model& model, const Phase& phase, std::vector<double>& x) {
+  if (!model.drive_states) return;
+  const auto d = static_cast<std::size_t>(model.drive_state());
+  x[d] = phase.x0;
+  x[d + 1] = phase.vx0;
 }
 
 void finish_reactions(const Model& model, Workspace& ws) {

@@ -422,6 +422,7 @@ RunOutcome simulate_case(const Model& model, Workspace& ws, int scenario, const 
   write_start(model, start, x);
   const ScenarioModel& s = model.scenarios[static_cast<std::size_t>(scenario)];
   ws.grounded = false;
+  drive_start(model, s.phases.front(), x);
   rope_start(model, ws, s.phases.front(), s.lift_off, s.lift_off_slack, x);
   if (!start.rope_length.empty()) {
     SWAYBOUND_REQUIRE(start.rope_length.size() == model.elastic_links.size() &&

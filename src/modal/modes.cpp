@@ -106,6 +106,7 @@ namespace {
 
 struct LinearSystem {
   Eigen::MatrixXd M, K, C;  ///< mass, stiffness and damping matrices about the rest position
+  Eigen::VectorXd F;        ///< generalised force per unit base acceleration along x [kg m]
 };
 
 /// M, K and C of a chain with elastic ropes, by central differences of the right-hand side about
@@ -123,6 +124,7 @@ LinearSystem linearise_numerically(const Model& model) {
   Phase rest = m.scenarios.front().phases.front();
   rest.ax = rest.ay = rest.vx0 = rest.vy0 = 0;
   rest.drum_link = -1;
+  rest.control.active = false;
   const int d = m.dof;
   std::vector<double> x(static_cast<std::size_t>(m.state_size()), 0.0), dxdt(x.size()), plus(x.size()), minus(x.size());
   rope_start(m, ws, rest, false, 0.0, x);
@@ -144,6 +146,18 @@ LinearSystem linearise_numerically(const Model& model) {
       (j < d ? dq(i, j) : dv(i, j - d)) = derivative;
     }
   }
+  // The base acceleration enters linearly: one central difference with a_x = +-1 m/s^2 is exact.
+  {
+    Phase push = rest;
+    push.ax = 1;
+    evaluate(m, ws, push, x.data(), push.t0, plus.data());
+    push.ax = -1;
+    evaluate(m, ws, push, x.data(), push.t0, minus.data());
+    Eigen::VectorXd accel(d);
+    for (int i = 0; i < d; ++i)
+      accel(i) = 0.5 * (plus[static_cast<std::size_t>(d + i)] - minus[static_cast<std::size_t>(d + i)]);
+    s.F = s.M * accel;
+  }
   s.K = -s.M * dq;
   s.C = -s.M * dv;
   s.K = 0.5 * (s.K + s.K.transpose()).eval();
@@ -158,7 +172,54 @@ LinearSystem linear_system(const Model& model) {
   s.K = Eigen::MatrixXd::Zero(model.n, model.n);
   for (int i = 0; i < model.n; ++i) s.K(i, i) = model.gravity * model.h[static_cast<std::size_t>(i)];
   s.C = linear_damping_matrix(model);
+  s.F = Eigen::VectorXd::Zero(model.n);
+  for (int i = 0; i < model.n; ++i) s.F(i) = -model.h[static_cast<std::size_t>(i)];
   return s;
+}
+
+/// The loop of scenario `k`'s controller `c` linearised about rest (modes.hpp), its poles sorted.
+ClosedLoop closed_loop(const Model& model, int k, const DriveControl& c, const LinearSystem& s,
+                       const Eigen::LLT<Eigen::MatrixXd>& llt) {
+  const auto d = static_cast<Eigen::Index>(s.M.rows());
+  Eigen::MatrixXd A = Eigen::MatrixXd::Zero(2 * d + 1, 2 * d + 1);
+  A.block(0, d, d, d).setIdentity();
+  A.block(d, 0, d, d) = -llt.solve(s.K);
+  A.block(d, d, d, d) = -llt.solve(s.C);
+  Eigen::RowVectorXd gain = Eigen::RowVectorXd::Zero(2 * d + 1);
+  gain(c.measure) = c.angle_gain;
+  gain(d + c.measure) = c.rate_gain;
+  gain(2 * d) = -c.speed_gain;
+  Eigen::VectorXd input = Eigen::VectorXd::Zero(2 * d + 1);
+  input.segment(d, d) = llt.solve(s.F);
+  input(2 * d) = 1;
+  A.noalias() += input * gain;
+  Eigen::EigenSolver<Eigen::MatrixXd> solver(A, false);
+  SWAYBOUND_REQUIRE(solver.info() == Eigen::Success, "the closed-loop eigenproblem of scenario '{}' did not converge",
+                    model.scenarios[static_cast<std::size_t>(k)].name);
+  ClosedLoop loop;
+  loop.scenario = k;
+  loop.scenario_name = model.scenarios[static_cast<std::size_t>(k)].name;
+  loop.stable = true;
+  loop.least_damping_ratio = 1;
+  // A pole within round-off of the imaginary axis is on it (k_v = 0 leaves the speed error's pole at 0).
+  const double axis = 1e-9 * solver.eigenvalues().cwiseAbs().maxCoeff();
+  for (Eigen::Index i = 0; i < solver.eigenvalues().size(); ++i) {
+    std::complex<double> l = solver.eigenvalues()(i);
+    if (std::abs(l) <= axis) l = 0;
+    loop.stable &= l.real() < -axis;
+    if (l.imag() < 0) continue;  // the pair is listed by its root with Im > 0
+    ClosedLoopPole pole;
+    pole.eigenvalue = l;
+    const double wn = std::abs(l);
+    pole.natural_frequency_hz = wn / kTwoPi;
+    pole.damping_ratio = wn > 0 ? -l.real() / wn : 0.0;
+    if (l.imag() > 0) loop.least_damping_ratio = std::min(loop.least_damping_ratio, pole.damping_ratio);
+    loop.poles.push_back(pole);
+  }
+  std::sort(loop.poles.begin(), loop.poles.end(), [](const ClosedLoopPole& a, const ClosedLoopPole& b) {
+    return a.natural_frequency_hz < b.natural_frequency_hz;
+  });
+  return loop;
 }
 
 }  // namespace
@@ -296,6 +357,9 @@ ModalResult modal_analysis(const Model& model) {
   }
   result.least_damping_ratio = std::numeric_limits<double>::infinity();
   for (const Mode& m : result.modes) result.least_damping_ratio = std::min(result.least_damping_ratio, m.damping_ratio);
+  for (std::size_t k = 0; k < model.scenarios.size(); ++k)
+    if (const Phase& p = model.scenarios[k].phases.front(); p.control.active)
+      result.closed_loops.push_back(closed_loop(model, static_cast<int>(k), p.control, system, llt));
 
   // --- Notes: what the linearisation leaves out or approximates.
   auto& notes = result.notes;
@@ -341,6 +405,10 @@ ModalResult modal_analysis(const Model& model) {
     if (a.x == b.x && a.y == b.y)
       notes.push_back(fmt::format("dashpot '{}' has coincident ends at rest and is left out", d.name));
   }
+  if (!result.closed_loops.empty())
+    notes.push_back("travel controllers: each loop is linearised about rest at a constant speed command (states: "
+                    "angles, rates, trolley speed error); its saturation at the acceleration limit is left out, so its "
+                    "poles hold while the commanded acceleration stays below the limit");
   if (!model.wind.empty())
     notes.push_back("wind left out: it moves the equilibrium away from the hanging position and its drag "
                     "linearisation depends on the wind speed of the load case");

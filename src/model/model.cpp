@@ -128,6 +128,7 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
       vy += p.ay * dt;
       vz += p.az * dt;
     }
+    if (s.travel && s.travel->controller) p.control = drive_control(*s.travel->controller);
     out.phases.push_back(std::move(p));
   }
   return out;
@@ -229,10 +230,14 @@ Model build_model(const Spec& spec) {
   for (const auto& w : spec.wind)
     m.wind.push_back(WindModel{PointRef{w.link, w.at, 0, 0}, 0.5 * w.air_density * w.drag_coefficient * w.drag_area,
                                std::cos(w.direction), std::sin(w.direction)});
-  for (const auto& s : spec.scenarios) m.scenarios.push_back(build_scenario(s, spec.wind));
+  for (const auto& s : spec.scenarios) {
+    m.scenarios.push_back(build_scenario(s, spec.wind));
+    m.drive_states |= s.travel && s.travel->controller;
+  }
   assign_length_coordinates(spec, m);
   if (spec.motion == Motion::spatial) {
     SWAYBOUND_REQUIRE(!m.variable_length(), "a spatial chain cannot have ropes of variable length yet");
+    SWAYBOUND_REQUIRE(!m.drive_states, "a spatial chain cannot have a travel drive's controller yet");
     m.spatial = true;
     m.dof = m.extended = 3 * m.n;
   }

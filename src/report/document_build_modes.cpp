@@ -50,6 +50,30 @@ Section modal_section(const Spec& spec, const CheckReport& r) {
   }
   s.blocks.push_back(table_block(t));
   s.blocks.push_back(paragraph(fmt::format("Least modal damping ratio: {}.", num(r.modes.least_damping_ratio))));
+  for (const ClosedLoop& loop : r.modes.closed_loops) {
+    s.blocks.push_back(subheading(fmt::format("Closed loop of the travel controller, scenario '{}'", loop.scenario_name)));
+    Table cl{"closed-loop-" + std::to_string(loop.scenario),
+             {col("pole", 0.5, Align::right, "pole"), col("eigenvalue [1/s]", 1.6, Align::right, "eigenvalue"),
+              col("w_n [Hz]", 1, Align::right, "frequency"), col("damping ratio", 1, Align::right, "damping")},
+             {},
+             "The loop of the drive's controller linearised about rest at a constant speed command (states: link "
+             "angles, their rates, the trolley's speed error), without its saturation. A complex pair is listed once; "
+             "w_n = |λ|/2π, damping ratio -Re(λ)/|λ|.",
+             7.6};
+    for (std::size_t k = 0; k < loop.poles.size(); ++k) {
+      const ClosedLoopPole& p = loop.poles[k];
+      cl.rows.push_back(Row{{std::to_string(k + 1),
+                             p.eigenvalue.imag() > 0
+                                 ? fmt::format("{} ± {}i", num(p.eigenvalue.real()), num(p.eigenvalue.imag()))
+                                 : num(p.eigenvalue.real() + 0.0),
+                             num(p.natural_frequency_hz), num(p.damping_ratio)},
+                            p.eigenvalue.real() < 0 ? Tone::normal : Tone::fail,
+                            {}});
+    }
+    s.blocks.push_back(table_block(cl));
+    s.blocks.push_back(paragraph(loop.stable ? "Every pole has a negative real part: the linearised loop is stable."
+                                             : "A pole has a real part >= 0: the linearised loop is NOT stable."));
+  }
 
   plot::ChainSketch sketch;
   for (const auto& l : spec.links) sketch.lengths.push_back(l.length);

@@ -296,6 +296,20 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
                      {"damping_ratio", number(m.damping_ratio)}, {"damped_frequency_hz", number(m.damped_frequency_hz)},
                      {"shape", vector_json(m.shape)}});
   j["modes"] = {{"modes", modes}, {"least_damping_ratio", number(r.modes.least_damping_ratio)}, {"notes", r.modes.notes}};
+  if (!r.modes.closed_loops.empty()) {  // travel controllers (modal/modes.hpp)
+    Json loops = Json::array();
+    for (const ClosedLoop& loop : r.modes.closed_loops) {
+      Json poles = Json::array();
+      for (const ClosedLoopPole& p : loop.poles)
+        poles.push_back({{"eigenvalue_real_per_s", number(p.eigenvalue.real())},
+                         {"eigenvalue_imag_per_s", number(p.eigenvalue.imag())},
+                         {"natural_frequency_hz", number(p.natural_frequency_hz)},
+                         {"damping_ratio", number(p.damping_ratio)}});
+      loops.push_back({{"scenario", loop.scenario_name}, {"stable", loop.stable},
+                       {"least_damping_ratio", number(loop.least_damping_ratio)}, {"poles", poles}});
+    }
+    j["modes"]["closed_loops"] = loops;
+  }
 
   const ChaosSummary& ch = r.chaos;
   Json chaos;

@@ -276,6 +276,15 @@ std::string normalised_yaml(const Spec& spec) {
         w.value("jerk", stop->jerk, u::jerk);
         w.end();
       }
+      if (const auto& c = t->controller) {
+        w.begin("controller");
+        w.text("measure", spec.links[static_cast<std::size_t>(c->measure)].name);
+        w.value("angle_gain", c->angle_gain, u::sway_angle_gain);
+        w.value("rate_gain", c->rate_gain, u::sway_rate_gain);
+        w.value("speed_gain", c->speed_gain, u::rate);
+        w.value("accel_limit", c->accel_limit, u::acceleration);
+        w.end();
+      }
       w.end();
     }
     if (const auto& h = s.hoist) {

@@ -407,7 +407,10 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
       }
     }
     read_scenario_rope_keys(s, spec, sc);
-    if (s.has("travel")) read_travel(s, sc);
+    if (s.has("travel")) {
+      read_travel(s, sc);
+      read_travel_controller(s, spec, sc);
+    }
     if (s.has("slew")) read_slew(s, spec, sc);
     spec.scenarios.push_back(std::move(sc));
   }

@@ -208,7 +208,7 @@ void read_travel(const MapView& scenario, ScenarioSpec& sc) {
                 fmt::format("'{}' and 'travel' both set the base's motion", other),
                 "give the motion either as a travel drive (travel: {speed, moves}) or as acceleration segments "
                 "(accel, initial_velocity), not both");
-  MapView t(ctx, scenario.get("travel"), scenario.path("travel"), {"speed", "moves", "shaper", "stop"});
+  MapView t(ctx, scenario.get("travel"), scenario.path("travel"), {"speed", "moves", "shaper", "stop", "controller"});
   if (!t.ok()) return;
   ScenarioSpec::Travel travel;
   travel.mark = scenario.key_mark("travel");

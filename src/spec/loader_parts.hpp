@@ -36,6 +36,8 @@ bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& pat
 /// Reads a scenario's `travel` drive (speed and moves; loader_rope.cpp, which shares the moves'
 /// reader with the drum). A scenario with a travel drive gives neither `accel` nor `initial_velocity`.
 void read_travel(const MapView& scenario, ScenarioSpec& sc);
+/// Reads the travel drive's `controller` (loader_controller.cpp), after read_travel.
+void read_travel_controller(const MapView& scenario, const Spec& spec, ScenarioSpec& sc);
 /// After cases.duration is read: every hoisted rope's length, length - s(t) / parts_of_line with s
 /// the rope the drum hauled in, stays within [kMinHoistedShare, kMaxHoistedFactor] x its length
 /// over [0, duration].

@@ -45,6 +45,9 @@ const FieldInfo kTravelFields[] = {
     {"travel.shaper.frequency", Field::shaper_frequency, units::rate, 0, true},
     {"travel.shaper.damping_ratio", Field::shaper_damping_ratio, units::dimensionless, 0, false},
     {"travel.stop.decel", Field::stop_decel, units::acceleration, 0, true},
+    {"travel.controller.angle_gain", Field::controller_angle_gain, units::sway_angle_gain, -1e300, false},
+    {"travel.controller.rate_gain", Field::controller_rate_gain, units::sway_rate_gain, 0, false},
+    {"travel.controller.speed_gain", Field::controller_speed_gain, units::rate, 0, false},
 };
 const FieldInfo kUncertainFields[] = {
     {"x", Field::accel_x, units::acceleration, -1e300, false},
@@ -80,11 +83,13 @@ std::optional<SpecPath> parse_scenario_path(const Spec& spec, const std::string&
   const bool travel = field.rfind("travel.", 0) == 0;
   for (const auto& f : kTravelFields)
     if (field == f.name) {
-      const bool present = scenario.travel && (f.field == Field::stop_decel ? scenario.travel->stop.has_value()
-                                                                             : scenario.travel->shaper.has_value());
+      const bool control = f.field >= Field::controller_angle_gain;
+      const bool present = scenario.travel && (control                         ? scenario.travel->controller.has_value()
+                                               : f.field == Field::stop_decel ? scenario.travel->stop.has_value()
+                                                                              : scenario.travel->shaper.has_value());
       if (!present) {
         error = fmt::format("scenario '{}' has no travel {} to vary", name,
-                            f.field == Field::stop_decel ? "stop" : "shaper");
+                            control ? "controller" : f.field == Field::stop_decel ? "stop" : "shaper");
         return std::nullopt;
       }
       return SpecPath{f.field, index, 0, true};
@@ -116,7 +121,7 @@ std::optional<SpecPath> parse_scenario_path(const Spec& spec, const std::string&
   }
   error = fmt::format("unknown field '{}' (a scenario has: hoist.drum_speed, hoist.moves[K].to | accel | jerk, "
                       "travel.speed, travel.moves[K].to | accel | jerk, travel.shaper.frequency | damping_ratio, "
-                      "travel.stop.decel)",
+                      "travel.stop.decel, travel.controller.angle_gain | rate_gain | speed_gain)",
                       field);
   return std::nullopt;
 }
@@ -312,6 +317,9 @@ auto& value_ref(SpecT& spec, const SpecPath& p) {
     if (p.field == Field::shaper_frequency) return scenario.travel.value().shaper.value().frequency;
     if (p.field == Field::shaper_damping_ratio) return scenario.travel.value().shaper.value().damping_ratio;
     if (p.field == Field::stop_decel) return scenario.travel.value().stop.value().decel;
+    if (p.field == Field::controller_angle_gain) return scenario.travel.value().controller.value().angle_gain;
+    if (p.field == Field::controller_rate_gain) return scenario.travel.value().controller.value().rate_gain;
+    if (p.field == Field::controller_speed_gain) return scenario.travel.value().controller.value().speed_gain;
     if (p.field == Field::drum_speed)
       return p.travel ? scenario.travel.value().initial_speed : scenario.hoist.value().initial_speed;
     auto& moves = p.travel ? scenario.travel.value().moves : scenario.hoist.value().moves;

@@ -39,6 +39,8 @@ inline constexpr Dim angular_acceleration{0, 0, -2, 1};  // rad/s^2, a slewing m
 inline constexpr Dim angular_jerk{0, 0, -3, 1};     // rad/s^3
 inline constexpr Dim area{0, 2, 0, 0};
 inline constexpr Dim density{1, -3, 0, 0};
+inline constexpr Dim sway_angle_gain{0, 1, -2, -1};  // m/s^2 per rad, a travel controller's (m s^-2 rad^-1)
+inline constexpr Dim sway_rate_gain{0, 1, -1, -1};   // m/s^2 per rad/s (m s^-1 rad^-1)
 
 /// Human name of a dimension ("length", "torque", ...) or its SI form ("kg m^2 s^-1").
 std::string dim_name(const Dim& d);

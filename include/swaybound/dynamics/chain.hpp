@@ -18,7 +18,8 @@
 // `evaluate`), not lagged from the previous step.
 //
 // State layout x (size 2N+2): theta[0..N) [rad], omega[0..N) [rad/s], dissipated energy [J],
-// work done on the chain by the base and the wind [J].
+// work done on the chain by the base and the wind [J]; with a travel drive's controller
+// (model/controller.hpp) then the base's x [m] and speed [m/s] (Model::drive_state).
 #include <algorithm>
 #include <cstdint>
 #include <vector>
@@ -190,6 +191,10 @@ void evaluate(const Model& model, Workspace& ws, const Phase& phase, const doubl
 /// it are at rest and ws.grounded is set.
 void rope_start(const Model& model, Workspace& ws, const Phase& phase, bool lift_off, double slack,
                 std::vector<double>& x);
+
+/// Sets the base's x and speed in a start state x at t = 0 (`phase` the scenario's first) for a
+/// model whose state holds them (Model::drive_states; no-op otherwise).
+void drive_start(const Model& model, const Phase& phase, std::vector<double>& x);
 
 /// Makes ws.reaction* belong to the last evaluation (no-op when they already do).
 void finish_reactions(const Model& model, Workspace& ws);

@@ -26,6 +26,16 @@
 //   - wind: it shifts the equilibrium away from theta = 0 and its drag linearisation depends on
 //     the wind speed and the load case;
 //   - base motion: the modes are those of the chain on a base at rest.
+//
+// Closed loops: a scenario whose travel drive has a controller (model/controller.hpp) also gets the
+// eigenvalues of its loop linearised about rest at a constant speed command, in the states
+// (theta, theta', e = v - v_ref): with F = d Q / d a_x the generalised force per unit base
+// acceleration (F = -h at rest, model.hpp) and g the gain row, a = g . (theta, theta', e) =
+// k_p theta_m + k_d theta_m' - k_v e,
+//   [theta']   [ 0            I             0 ] [theta ]
+//   [theta''] = [-M0^-1 K      -M0^-1 C       0 ] [theta'] + [0; M0^-1 F; 1] a.
+//   [e'     ]   [ 0            0             0 ] [e     ]
+// The saturation at accel_limit is left out (the loop is linear while |a_cmd| stays below it).
 #include <complex>
 #include <string>
 #include <vector>
@@ -55,8 +65,25 @@ struct Mode {
   std::complex<double> partner;     ///< the other root [1/s]: conj(lambda), or the faster real root
 };
 
+/// One pole of a closed loop: a complex pair (listed once, Im > 0) or a real root.
+struct ClosedLoopPole {
+  std::complex<double> eigenvalue;  ///< lambda [1/s]
+  double natural_frequency_hz = 0;  ///< |lambda| / (2 pi) [Hz]
+  double damping_ratio = 0;         ///< -Re(lambda) / |lambda| [-] (a real root: 1 decaying, -1 growing; 0 at 0)
+};
+
+/// The loop of one scenario's travel controller, linearised about rest (see the top of this file).
+struct ClosedLoop {
+  int scenario = -1;
+  std::string scenario_name;
+  std::vector<ClosedLoopPole> poles;  ///< sorted by natural frequency, lowest first
+  bool stable = false;                ///< every pole has Re(lambda) < 0 (beyond 1e-9 of the largest |lambda|)
+  double least_damping_ratio = 0;     ///< min over the complex poles of damping_ratio [-] (1 with none)
+};
+
 struct ModalResult {
   std::vector<Mode> modes;          ///< sorted by undamped frequency, lowest first
+  std::vector<ClosedLoop> closed_loops;  ///< one per scenario with a travel controller, in scenario order
   double least_damping_ratio = 0;   ///< min over modes of damping_ratio [-] (modal_damping_min limit)
   std::vector<std::string> notes;   ///< what the linearisation leaves out or approximates
 };

@@ -15,6 +15,7 @@
 
 #include <Eigen/Dense>
 
+#include "swaybound/model/controller.hpp"
 #include "swaybound/spec/spec.hpp"
 
 namespace swaybound {
@@ -79,6 +80,9 @@ struct Phase {
   /// through (x0 - radius, ., z0) at t = 0 ... see chain_spatial.cpp; the slewing angle [rad], speed
   /// [rad/s] and acceleration [rad/s^2] at t0 and the jerk [rad/s^3] within the phase.
   double slew_radius = 0, slew_angle0 = 0, slew_rate0 = 0, slew_accel0 = 0, slew_jerk = 0;
+  /// A travel drive's controller (model/controller.hpp): when active, the fields above give the
+  /// drive's reference (speed command) and the base's x and its speed are states of the run.
+  DriveControl control;
 };
 
 struct ScenarioModel {
@@ -135,10 +139,16 @@ struct Model {
   bool any_pivot_torque = false;   ///< some pivot has friction or a damper
   double energy_scale = 0;         ///< g sum_k m_k depth_k at rest [J]: scale for audit residuals
 
+  /// Some scenario's travel drive has a controller: the state ends with the base's x [m] and its
+  /// speed [m/s] (at drive_state(), drive_state() + 1), integrated in every scenario of the model.
+  bool drive_states = false;
+
   /// State layout: coordinates q[0..dof) (angles, then elastic rope lengths [m]; for a spatial
   /// chain the unit vectors e_0, e_1, ... [-]), their rates
-  /// [dof..2 dof), dissipated energy [J], work done on the chain by the base, the wind and the drum [J].
-  int state_size() const { return 2 * dof + 2; }
+  /// [dof..2 dof), dissipated energy [J], work done on the chain by the base, the wind and the drum [J],
+  /// then with drive_states the base's x [m] and speed [m/s].
+  int state_size() const { return 2 * dof + 2 + (drive_states ? 2 : 0); }
+  int drive_state() const { return 2 * dof + 2; }
 };
 
 /// Builds the model. com/inertia not given in the spec follow the link's (possibly sized) length

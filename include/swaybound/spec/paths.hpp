@@ -9,6 +9,7 @@
 //   scenarios[NAME].hoist.drum_speed | hoist.moves[K].to | hoist.moves[K].accel | hoist.moves[K].jerk
 //   scenarios[NAME].travel.speed | travel.moves[K].to | travel.moves[K].accel | travel.moves[K].jerk
 //   scenarios[NAME].travel.shaper.frequency | travel.shaper.damping_ratio | travel.stop.decel
+//   scenarios[NAME].travel.controller.angle_gain | rate_gain | speed_gain   (model/controller.hpp)
 // and, for the uncertain values of a scenario only (parse_uncertain_path, relative to the scenario):
 //   accel[K].x | y | z   travel.stop.decel   travel.moves[K].accel   wind.speed | wind[K].speed
 #include <optional>
@@ -29,6 +30,7 @@ struct SpecPath {
     parts_of_line, rope_ea, rope_stiffness, rope_damping, rope_damping_ratio,
     drum_speed, drum_move_to, drum_move_accel, drum_move_jerk,
     shaper_frequency, shaper_damping_ratio, stop_decel,  // a travel drive's
+    controller_angle_gain, controller_rate_gain, controller_speed_gain,  // a travel drive's controller's
     accel_x, accel_y, accel_z,  // a base-acceleration segment's (uncertain values only)
     wind_speed,                 // a wind load's steady speed (uncertain values only)
   };

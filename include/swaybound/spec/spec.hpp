@@ -171,6 +171,17 @@ struct ScenarioSpec {
       Mark mark;
     };
     std::optional<Stop> stop;
+    /// Feedback anti-sway (model/controller.hpp): the drive's acceleration from the measured sway
+    /// of one link and the speed error, saturated at accel_limit. Planar chains only.
+    struct Controller {
+      int measure = -1;         ///< the measured link (default: the lowest)
+      double angle_gain = 0;    ///< k_p [m/s^2 per rad]
+      double rate_gain = 0;     ///< k_d [m/s^2 per rad/s], >= 0
+      double speed_gain = 0;    ///< k_v [1/s], >= 0
+      double accel_limit = 0;   ///< [m/s^2], > 0 (default: the largest accel of the moves and the stop)
+      Mark mark;
+    };
+    std::optional<Controller> controller;
     Mark mark;
   };
   std::optional<Travel> travel;
