@@ -174,6 +174,11 @@ Vec3 from_axis(const Workspace& ws, Vec3 point) { return point - Vec3{ws.axis_x,
 /// the angular momentum about the axis: the work rate of the Euler forces -m W' x rho with the
 /// change of the centrifugal potential as W changes). Dissipation is the same in both frames (the
 /// pivot-0 torque acts against the swing relative to the boom), Coriolis forces do no work.
+/// A pivot torque tau between links i-1 and i acts on each link only across its axis (its part
+/// along the axis would twist the link, which is not modelled): on link i tau - (tau . e_i) e_i,
+/// on link i-1 -(tau - (tau . e_(i-1)) e_(i-1)). The pair does the work of its dissipation in any
+/// frame plus, relative to the boom, -W . m with m = (tau . e_(i-1)) e_(i-1) - (tau . e_i) e_i its
+/// net moment, which `frame` includes.
 void boom_frame_powers(const Model& model, const Workspace& ws, const Phase& phase, bool moving, double& frame,
                        double& euler) {
   frame = 0.0;
@@ -187,6 +192,11 @@ void boom_frame_powers(const Model& model, const Workspace& ws, const Phase& pha
     point_state_3d(model, ws, model.wind[k].point, pos, vel);
     frame += dot(Vec3{force[0], force[1], force[2]}, vel - cross(w, from_axis(ws, pos)));
   }
+  if (model.any_pivot_torque && ws.base_spin != 0.0)
+    for (int i = 1; i < model.n; ++i) {
+      const Vec3 tau = load(ws.torque, i), upper = load(ws.dir, i - 1), lower = load(ws.dir, i);
+      frame -= dot(w, dot(tau, upper) * upper - dot(tau, lower) * lower);
+    }
   euler = ws.base_spin_rate == 0.0 ? 0.0 : -ws.base_spin_rate * axis_momentum(model, ws);
 }
 
