@@ -11,11 +11,16 @@
 #include <string>
 #include <vector>
 
+#include <nlohmann/json.hpp>
+
+#include "swaybound/checks/check_run.hpp"
+#include "swaybound/checks/metrics.hpp"
 #include "swaybound/dynamics/chain.hpp"
 #include "swaybound/dynamics/posture.hpp"
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/model/profile.hpp"
+#include "swaybound/report/results.hpp"
 #include "swaybound/spec.hpp"
 #include "../support/python_reference.hpp"
 
@@ -415,4 +420,59 @@ TEST_CASE("The luffing pivot's position, velocity and acceleration against SymPy
     CHECK(worst[1] < 1e-12);
     CHECK(worst[2] < 1e-12);
   }
+}
+
+TEST_CASE("A check of a slewing spec reports the boom-frame energy audit beside the inertial one",
+          "[integrate][spatial][luff][packet]") {
+  // Per case (CaseMetrics::boom_audit_relative) and in results.json (cases.
+  // energy_audit_boom_frame_max_relative and its case); a spec that does not slew has neither.
+  const std::string links = R"(links:
+  - {name: rope, kind: rope, length: 5, mass: 10, pivot: {damper: {coefficient: 300 N m s/rad}}}
+  - {name: hook, length: 1, mass: 200, com: 0.6, inertia: 8}
+)";
+  const std::string rest = R"(cases: {duration: 8 s, initial: [{single: {theta: [5 deg, 2 deg], phi: [1 deg, 0 deg]}}]}
+limits: [{pivot_load: 100 kN}]
+solver: {rtol: 1e-10, atol: 1e-12}
+)";
+  const auto run = [](const std::string& yaml, std::vector<CaseMetrics>& cases, nlohmann::json& results) {
+    const Spec spec = load_spec_text(yaml, "audit.yaml");
+    CheckOptions o;
+    o.audit = false;
+    o.jobs = 1;
+    o.on_case = [&cases](const CaseMetrics& m) { cases.push_back(m); };
+    const CheckReport report = run_check(spec, o);
+    results = nlohmann::json::parse(results_json(spec, report));
+  };
+  std::vector<CaseMetrics> cases;
+  nlohmann::json results;
+  run("swaybound: 1\nname: slewing\nmotion: spatial\n" + links + R"(base:
+  scenarios:
+    - name: slew and luff
+      slew: {radius: 14 m, moves: [{at: 0 s, to: 0.2 rad/s, accel: 0.05 rad/s^2}],
+             luff: {boom: 16 m, angle: 45 deg, moves: [{at: 1 s, to: -0.03 rad/s, accel: 0.02 rad/s^2}]}}
+    - {name: travel, initial_velocity: {x: 1 m/s}, accel: [{for: 2 s, x: -0.5 m/s^2}]}
+)" + rest, cases, results);
+  REQUIRE(cases.size() == 2);
+  for (const CaseMetrics& m : cases) {
+    INFO(m.id << ": inertial " << m.audit_relative << ", boom frame " << m.boom_audit_relative);
+    REQUIRE(m.ok());
+    CHECK(m.boom_audit_relative < 1e-8);
+    CHECK(m.audit_relative < 1e-8);
+  }
+  // The travel scenario's boom frame is the ground frame: the same audit.
+  CHECK(cases[1].boom_audit_relative == Approx(cases[1].audit_relative).epsilon(1e-6));
+  const auto& c = results.at("cases");
+  const double largest = std::max(cases[0].boom_audit_relative, cases[1].boom_audit_relative);
+  CHECK(c.at("energy_audit_boom_frame_max_relative").get<double>() == largest);
+  CHECK(c.at("energy_audit_boom_frame_max_case").get<std::string>() ==
+        (largest == cases[0].boom_audit_relative ? cases[0].id : cases[1].id));
+
+  cases.clear();
+  run("swaybound: 1\nname: travelling\nmotion: spatial\n" + links + R"(base:
+  scenarios:
+    - {name: travel, initial_velocity: {x: 1 m/s}, accel: [{for: 2 s, x: -0.5 m/s^2}]}
+)" + rest, cases, results);
+  REQUIRE(cases.size() == 1);
+  CHECK(std::isnan(cases[0].boom_audit_relative));
+  CHECK_FALSE(results.at("cases").contains("energy_audit_boom_frame_max_relative"));
 }
