@@ -112,6 +112,11 @@ void CaseTotals::offer(const CaseMetrics& m) {
     max_audit_relative = m.audit_relative;
     max_audit_case = m.id;
   }
+  if (m.ok() && !std::isnan(m.boom_audit_relative) &&
+      (max_boom_audit_case.empty() || m.boom_audit_relative > max_boom_audit_relative)) {
+    max_boom_audit_relative = m.boom_audit_relative;
+    max_boom_audit_case = m.id;
+  }
   const bool slack = std::any_of(m.slack_count.begin(), m.slack_count.end(), [](long c) { return c > 0; });
   if (slack && slack_cases++ == 0) first_slack_case = m.id;
   if (!std::isnan(m.ftle) && (std::isnan(max_ftle) || m.ftle > max_ftle)) {
@@ -311,6 +316,8 @@ CheckReport run_check(const Spec& spec, const CheckOptions& options) {
   report.time_budget_total = totals.time_budget_total;
   report.max_audit_relative = totals.max_audit_relative;
   report.max_audit_case = totals.max_audit_case;
+  report.max_boom_audit_relative = totals.max_boom_audit_relative;
+  report.max_boom_audit_case = totals.max_boom_audit_case;
   report.total_steps = totals.total_steps;
   report.slack_cases = totals.slack_cases;
   report.first_slack_case = totals.first_slack_case;

@@ -207,6 +207,8 @@ CaseMetrics run_case(const Model& model, const Spec& spec, Workspace& ws, const 
   m.steps = out.steps;
   m.evaluations = out.evaluations;
   m.audit_relative = out.audit_scale > 0 ? out.max_audit_residual / out.audit_scale : out.max_audit_residual;
+  if (model.boom_frame)
+    m.boom_audit_relative = out.audit_scale > 0 ? out.max_boom_audit_residual / out.audit_scale : out.max_boom_audit_residual;
   m.settling_time = outside_now ? std::nan("") : last_outside;
   m.switches = out.switches;
   for (const ModeEvent& e : out.events)

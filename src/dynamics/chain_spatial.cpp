@@ -162,6 +162,44 @@ void add_spatial_pivot_torques(const Model& model, Workspace& ws, const double* 
   }
 }
 
+/// The boom frame's angular velocity (W y, W = ws.base_spin) and the position of a point relative
+/// to the slewing axis, rho = point - (axis_x, 0, 0) (its height does not matter: W x rho and
+/// (rho x v)_y do not read it).
+Vec3 frame_spin(const Workspace& ws) { return {0.0, ws.base_spin, 0.0}; }
+Vec3 from_axis(const Workspace& ws, Vec3 point) { return point - Vec3{ws.axis_x, 0.0, 0.0}; }
+
+/// The powers of the boom-frame energy audit (see boom_frame_energy) into `frame` (the work rate
+/// of the base's force through the pivot's luffing velocity relative to the boom, and of the wind
+/// through its point's velocity relative to the boom, F . (v - W x rho)) and `euler` (-W' H_y, H
+/// the angular momentum about the axis: the work rate of the Euler forces -m W' x rho with the
+/// change of the centrifugal potential as W changes). Dissipation is the same in both frames (the
+/// pivot-0 torque acts against the swing relative to the boom), Coriolis forces do no work.
+/// A pivot torque tau between links i-1 and i acts on each link only across its axis (its part
+/// along the axis would twist the link, which is not modelled): on link i tau - (tau . e_i) e_i,
+/// on link i-1 -(tau - (tau . e_(i-1)) e_(i-1)). The pair does the work of its dissipation in any
+/// frame plus, relative to the boom, -W . m with m = (tau . e_(i-1)) e_(i-1) - (tau . e_i) e_i its
+/// net moment, which `frame` includes.
+void boom_frame_powers(const Model& model, const Workspace& ws, const Phase& phase, bool moving, double& frame,
+                       double& euler) {
+  frame = 0.0;
+  if (moving)
+    frame += dot(Vec3{ws.reaction_x[0], ws.reaction_y[0], ws.reaction_z[0]}, Vec3{ws.luff_vx, ws.luff_vy, ws.luff_vz});
+  const Vec3 w = frame_spin(ws);
+  for (std::size_t k = 0; k < model.wind.size(); ++k) {
+    double force[3], velocity[3];
+    spatial_wind_force(model, ws, phase, k, force, velocity);
+    Vec3 pos, vel;
+    point_state_3d(model, ws, model.wind[k].point, pos, vel);
+    frame += dot(Vec3{force[0], force[1], force[2]}, vel - cross(w, from_axis(ws, pos)));
+  }
+  if (model.any_pivot_torque && ws.base_spin != 0.0)
+    for (int i = 1; i < model.n; ++i) {
+      const Vec3 tau = load(ws.torque, i), upper = load(ws.dir, i - 1), lower = load(ws.dir, i);
+      frame -= dot(w, dot(tau, upper) * upper - dot(tau, lower) * lower);
+    }
+  euler = ws.base_spin_rate == 0.0 ? 0.0 : -ws.base_spin_rate * axis_momentum(model, ws);
+}
+
 /// e_i'' from the tangent accelerations u'.
 Vec3 direction_accel(const Workspace& ws, int i, const Eigen::VectorXd& u_rate) {
   return u_rate(2 * i) * tangent(ws, i, 0) + u_rate(2 * i + 1) * tangent(ws, i, 1) - ws.omega[i] * load(ws.dir, i);
@@ -181,23 +219,64 @@ void spatial_kinematics(const Model& model, Workspace& ws, const Phase& p, const
   ws.base_y = p.y0 + p.vy0 * dt + 0.5 * p.ay * dt * dt;
   ws.base_z = p.z0 + p.vz0 * dt + 0.5 * p.az * dt * dt;
   if (p.slew_radius > 0) {
-    // Slewing: the pivot on a circle of radius R about the vertical axis through (-R, y, 0), at
-    // slewing angle psi(t) (a cubic within the phase): p = (R (cos psi - 1), y, R sin psi),
-    // p' = R psi' (-sin psi, 0, cos psi), p'' = R psi'' (-sin psi, 0, cos psi) - R psi'^2 (cos psi, 0, sin psi).
-    const double r = p.slew_radius;
+    // Slewing: the pivot at radius r(t) from the vertical axis through (-R, y, 0) (R = r(0)), at
+    // slewing angle psi(t) (a cubic within the phase), and h(t) above its start (boom luffing).
+    // With the radial and tangential unit vectors e_r = (cos psi, 0, sin psi), e_t = (-sin psi, 0,
+    // cos psi) (e_r' = psi' e_t, e_t' = -psi' e_r):
+    //   p   = r e_r - (R, 0, 0) + h y,
+    //   p'  = r' e_r + r psi' e_t + h' y,
+    //   p'' = (r'' - r psi'^2) e_r + (r psi'' + 2 r' psi') e_t + h'' y.
+    // In the boom frame (turning at W = -psi' y, the axis fixed) p'' is the relative acceleration
+    // r'' e_r + h'' y plus the frame's terms: centripetal W x (W x p) = -r psi'^2 e_r, Euler
+    // W' x p = r psi'' e_t and Coriolis 2 W x (r' e_r) = 2 r' psi' e_t (y x e_r = -e_t).
+    // Radial luffing: r = R + s(t), s the luffing profile's position (a cubic within the phase),
+    // h = 0. Boom luffing: a boom of length b at angle beta(t) = beta0 + s(t) above the horizontal,
+    // its foot at radius R - b cos beta0 and at the tip's start height - b sin beta0:
+    //   r = R + b (cos beta - cos beta0),  r' = -b sin(beta) beta',  r'' = -b (cos(beta) beta'^2 + sin(beta) beta''),
+    //   h = b (sin beta - sin beta0),      h' =  b cos(beta) beta',  h'' =  b (cos(beta) beta'' - sin(beta) beta'^2),
+    // exact at every instant from beta, beta', beta'' (the differences of cosines and sines written
+    // as products so that a small turn keeps its digits).
+    const double r0 = p.slew_radius;
     const double psi = p.slew_angle0 + (p.slew_rate0 + (0.5 * p.slew_accel0 + p.slew_jerk * dt / 6.0) * dt) * dt;
     const double rate = p.slew_rate0 + (p.slew_accel0 + 0.5 * p.slew_jerk * dt) * dt;
     const double accel = p.slew_accel0 + p.slew_jerk * dt;
+    const double luff = p.luff_s0 + (p.luff_v0 + (0.5 * p.luff_a0 + p.luff_jerk * dt / 6.0) * dt) * dt;
+    const double luff_rate = p.luff_v0 + (p.luff_a0 + 0.5 * p.luff_jerk * dt) * dt;
+    const double luff_accel = p.luff_a0 + p.luff_jerk * dt;
+    double d = luff, d1 = luff_rate, d2 = luff_accel, h = 0, h1 = 0, h2 = 0;  // r - R and h, with their rates
+    if (p.luff_boom > 0) {
+      const double b = p.luff_boom, beta = p.luff_angle0 + luff, cb = std::cos(beta), sb = std::sin(beta);
+      const double half_sum = 0.5 * (beta + p.luff_angle0), half_turn = std::sin(0.5 * luff);
+      d = -2.0 * b * std::sin(half_sum) * half_turn;
+      h = 2.0 * b * std::cos(half_sum) * half_turn;
+      d1 = -b * sb * luff_rate;
+      d2 = -b * (cb * luff_rate * luff_rate + sb * luff_accel);
+      h1 = b * cb * luff_rate;
+      h2 = b * (cb * luff_accel - sb * luff_rate * luff_rate);
+    }
+    const double r = r0 + d;
     const double c = std::cos(psi), s = std::sin(psi);
-    ws.base_x = r * (c - 1.0);
+    ws.base_x = r0 * (c - 1.0) + d * c;
     ws.base_z = r * s;
-    ws.base_vx = -r * rate * s;
-    ws.base_vz = r * rate * c;
-    ws.base_ax = -r * accel * s - r * rate * rate * c;
-    ws.base_az = r * accel * c - r * rate * rate * s;
+    ws.base_y += h;
+    ws.base_vx = -r * rate * s + d1 * c;
+    ws.base_vz = r * rate * c + d1 * s;
+    ws.base_vy += h1;
+    ws.base_ax = -r * accel * s - r * rate * rate * c + (d2 * c - 2.0 * d1 * rate * s);
+    ws.base_az = r * accel * c - r * rate * rate * s + (d2 * s + 2.0 * d1 * rate * c);
+    ws.base_ay += h2;
     ws.base_spin = -rate;  // turning from +x towards +z is a rotation about -y
+    ws.base_spin_rate = -accel;
+    ws.axis_x = -r0;
+    ws.luff_vx = d1 * c;
+    ws.luff_vy = h1;
+    ws.luff_vz = d1 * s;
   } else {
-    ws.base_spin = 0.0;
+    ws.base_spin = ws.base_spin_rate = 0.0;
+    ws.axis_x = 0.0;
+    ws.luff_vx = ws.base_vx;
+    ws.luff_vy = ws.base_vy;
+    ws.luff_vz = ws.base_vz;
   }
   for (int i = 0; i < model.n; ++i) {
     const Vec3 raw{x[3 * i], x[3 * i + 1], x[3 * i + 2]};
@@ -343,6 +422,12 @@ void evaluate_spatial_with(const Model& model, Workspace& ws, const Phase& phase
     ws.input_power += ws.base_spin * ws.torque[1];
   }
   if (moving) ws.input_power += dot(Vec3{ws.reaction_x[0], ws.reaction_y[0], ws.reaction_z[0]}, base_v);
+  if (model.boom_frame) {
+    double frame = 0, euler = 0;
+    boom_frame_powers(model, ws, phase, moving, frame, euler);
+    dxdt[2 * model.dof + 2] = frame;
+    dxdt[2 * model.dof + 3] = euler;
+  }
 
   const int f = model.dof;
   for (int i = 0; i < n; ++i) {
@@ -373,6 +458,41 @@ double spatial_energy(const Model& model, const Workspace& ws) {
     v = v + model.length[k] * r;
   }
   return energy;
+}
+
+double boom_frame_energy(const Model& model, const Workspace& ws) {
+  if (!model.spatial) return mechanical_energy(model, ws);
+  // Per link: 1/2 m |v - W x rho|^2 + 1/2 I |e' - W x e|^2 + m g y - 1/2 m |W x rho|^2 - 1/2 I |W x e|^2
+  // (a link's inertia I about its centre of mass acts across its axis only: no twist).
+  const Vec3 w = frame_spin(ws);
+  double energy = 0;
+  Vec3 pivot{ws.base_x, ws.base_y, ws.base_z}, v = base_velocity(ws);
+  for (int k = 0; k < model.n; ++k) {
+    const Vec3 e = load(ws.dir, k), r = load(ws.dir_rate, k);
+    const Vec3 com = pivot + model.com[k] * e, com_v = v + model.com[k] * r;
+    const Vec3 carried = cross(w, from_axis(ws, com)), turned = cross(w, e);
+    const Vec3 v_rel = com_v - carried, r_rel = r - turned;
+    energy += 0.5 * model.mass[k] * (dot(v_rel, v_rel) - dot(carried, carried)) +
+              0.5 * model.inertia[k] * (dot(r_rel, r_rel) - dot(turned, turned)) + model.mass[k] * model.gravity * com.y;
+    pivot = pivot + model.length[k] * e;
+    v = v + model.length[k] * r;
+  }
+  return energy;
+}
+
+double axis_momentum(const Model& model, const Workspace& ws) {
+  if (!model.spatial) return 0.0;
+  // sum_k m_k (rho_k x v_k)_y + I_k (e_k x e_k')_y; (a x b)_y = a_z b_x - a_x b_z.
+  double momentum = 0;
+  Vec3 pivot{ws.base_x, ws.base_y, ws.base_z}, v = base_velocity(ws);
+  for (int k = 0; k < model.n; ++k) {
+    const Vec3 e = load(ws.dir, k), r = load(ws.dir_rate, k);
+    const Vec3 rho = from_axis(ws, pivot + model.com[k] * e), com_v = v + model.com[k] * r;
+    momentum += model.mass[k] * cross(rho, com_v).y + model.inertia[k] * cross(e, r).y;
+    pivot = pivot + model.length[k] * e;
+    v = v + model.length[k] * r;
+  }
+  return momentum;
 }
 
 void spatial_link_tension(const Model& model, const Workspace& ws, int i, double& top, double& bottom) {

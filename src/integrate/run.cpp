@@ -94,6 +94,7 @@ class Driver final : public DenseProbe {
         // The segment's first state under its own inputs: the right-hand limit at the jump.
         system_.ensure(x, t, scratch_);
         if (first) outcome_.energy0 = mechanical_energy(model_, ws_);
+        if (first && model_.boom_frame) outcome_.boom_energy0 = boom_frame_energy(model_, ws_);
         first = false;
         if (watch_.active()) watch_.indicators(ws_, h_start_.data());
         observe(x, t, on_step_, true, Segment::start);
@@ -146,6 +147,9 @@ class Driver final : public DenseProbe {
     const auto dof = static_cast<std::size_t>(model_.dof);
     const double residual = energy + x[2 * dof] - x[2 * dof + 1] - outcome_.energy0;
     StepView v{t, x.data(), &ws_, &system_.phase(), energy, residual};
+    if (model_.boom_frame)
+      v.boom_audit_residual =
+          boom_frame_energy(model_, ws_) + x[2 * dof] - x[2 * dof + 2] - x[2 * dof + 3] - outcome_.boom_energy0;
     return v;
   }
 
@@ -157,6 +161,7 @@ class Driver final : public DenseProbe {
   void observe(const State& x, double t, const Observer& observer, bool audit, Segment segment = Segment::inside) {
     StepView v = view(x, t);
     if (audit) outcome_.max_audit_residual = std::max(outcome_.max_audit_residual, std::fabs(v.audit_residual));
+    if (audit) outcome_.max_boom_audit_residual = std::max(outcome_.max_boom_audit_residual, std::fabs(v.boom_audit_residual));
     v.segment_start = segment == Segment::start;
     v.segment_end = segment == Segment::end;
     if (segment != Segment::start && interpolate_) v.probe = this;

@@ -37,6 +37,15 @@ SpeedProfile slew_profile(const ScenarioSpec& s) {
   return SpeedProfile::build(s.slew->initial_rate, moves);
 }
 
+/// The luffing profile of a scenario: the radius's rate [m/s] or the boom angle's [rad/s] (standing
+/// still without luffing).
+SpeedProfile luff_profile(const ScenarioSpec& s) {
+  if (!s.slew || !s.slew->luff) return {};
+  std::vector<SpeedMove> moves;
+  for (const DrumMoveSpec& m : s.slew->luff->moves) moves.push_back(SpeedMove{m.at, m.to, m.accel, m.jerk});
+  return SpeedProfile::build(s.slew->luff->initial_speed, moves);
+}
+
 /// The travel drive's speed profile of a scenario, shaped and stopped as its spec says (empty
 /// without a travel drive).
 std::optional<SpeedProfile> travel_profile(const ScenarioSpec& s) {
@@ -52,8 +61,10 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
   const SpeedProfile drum = drum_profile(s);
   const std::optional<SpeedProfile> travel = travel_profile(s);
   const SpeedProfile slew = slew_profile(s);
+  const SpeedProfile luff = luff_profile(s);
   std::vector<double> cuts = drum.breakpoints();
   for (double t : slew.breakpoints()) cuts.push_back(t);
+  for (double t : luff.breakpoints()) cuts.push_back(t);
   if (travel)
     for (double t : travel->breakpoints()) cuts.push_back(t);
   double t = 0;
@@ -111,6 +122,14 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
       p.slew_rate0 = slew.speed(p.t0);
       p.slew_accel0 = slew.accel(p.t0);
       p.slew_jerk = slew.jerk(p.t0);
+      if (const auto& l = s.slew->luff) {
+        p.luff_boom = l->boom;
+        p.luff_angle0 = l->angle;
+        p.luff_s0 = luff.position(p.t0);
+        p.luff_v0 = luff.speed(p.t0);
+        p.luff_a0 = luff.accel(p.t0);
+        p.luff_jerk = luff.jerk(p.t0);
+      }
     }
     if (travel) {
       // The drive's profile gives x exactly (a cubic within the phase); y keeps its segments.
@@ -240,6 +259,8 @@ Model build_model(const Spec& spec) {
     SWAYBOUND_REQUIRE(!m.drive_states, "a spatial chain cannot have a travel drive's controller yet");
     m.spatial = true;
     m.dof = m.extended = 3 * m.n;
+    m.boom_frame = std::any_of(spec.scenarios.begin(), spec.scenarios.end(),
+                               [](const ScenarioSpec& s) { return s.slew.has_value(); });
   }
   return m;
 }

@@ -24,7 +24,17 @@ Section trust_section(const Spec& spec, const CheckReport& r) {
                            ? std::string("-")
                            : fmt::format("largest residual {} of the energy scale, in case {}", num(r.max_audit_relative, 3),
                                          r.max_audit_case)}};
+  if (!r.max_boom_audit_case.empty())
+    f.field_list.push_back({"Energy audit, boom frame",
+                            fmt::format("largest residual {} of the energy scale, in case {}",
+                                        num(r.max_boom_audit_relative, 3), r.max_boom_audit_case)});
   s.blocks.push_back(f);
+  if (!r.max_boom_audit_case.empty())
+    s.blocks.push_back(paragraph(
+        "Energy audit in the boom frame (slewing scenarios): kinetic energy relative to the boom + potential - "
+        "centrifugal potential + dissipated energy - work of the luffing and the wind relative to the boom - work "
+        "of the Euler forces as the slewing speed changes must stay equal to its initial value; Coriolis forces do "
+        "no work. Without slewing it is the energy audit above."));
   s.blocks.push_back(paragraph(
       "Energy audit: in every run, kinetic + potential + dissipated energy - work by the base and the wind must stay "
       "equal to the initial energy; the residual, relative to the run's energy scale, measures the integration "

@@ -214,6 +214,10 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
   j["cases"] = {{"count", r.case_count}, {"scenarios", spec.scenarios.size()}, {"duration_s", spec.cases.duration},
                 {"failed", r.failed_total}, {"total_steps", r.total_steps},
                 {"energy_audit_max_relative", number(r.max_audit_relative)}, {"energy_audit_max_case", r.max_audit_case}};
+  if (!r.max_boom_audit_case.empty()) {
+    j["cases"]["energy_audit_boom_frame_max_relative"] = number(r.max_boom_audit_relative);
+    j["cases"]["energy_audit_boom_frame_max_case"] = r.max_boom_audit_case;
+  }
   Json failed = Json::array();
   for (const auto& f : r.failed) failed.push_back({{"case", f.id}, {"status", f.status}, {"reason", f.reason}});
   j["failed_cases"] = failed;

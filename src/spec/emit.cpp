@@ -255,6 +255,17 @@ std::string normalised_yaml(const Spec& spec) {
       w.value("radius", sl->radius, u::length);
       w.value("speed", sl->initial_rate, u::angular_rate);
       write_moves(sl->moves, true);
+      if (const auto& lu = sl->luff) {
+        w.begin("luff");
+        const bool boom = lu->boom > 0;
+        if (boom) {
+          w.value("boom", lu->boom, u::length);
+          w.value("angle", lu->angle, u::angle);
+        }
+        w.value("speed", lu->initial_speed, boom ? u::angular_rate : u::speed);
+        write_moves(lu->moves, boom);
+        w.end();
+      }
       w.end();
     }
     if (const auto& t = s.travel) {

@@ -656,6 +656,7 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   }
   read_cases(top, spec, options);
   check_hoisted_lengths(ctx, spec);
+  check_luffing(ctx, spec);
   read_limits(top, spec);
   read_chaos(top, spec);
   read_sizing(top, spec);

@@ -61,6 +61,10 @@ void refuse_with_spatial(Context& ctx, const Spec& spec);
 /// Reads a scenario's `slew` (spatial chains; loader_spatial.cpp): radius and slewing speed moves,
 /// instead of `accel`, `initial_velocity` and `travel`.
 void read_slew(const MapView& scenario, const Spec& spec, ScenarioSpec& sc);
+/// Reads `slew.luff` (loader_luff.cpp) once the slew's radius is read; after cases.duration is
+/// read, check_luffing reports a radius that reaches 0 or a boom angle that leaves (-90, 90) deg.
+void read_luff(const MapView& slew_map, ScenarioSpec::Slew& slew);
+void check_luffing(Context& ctx, const Spec& spec);
 
 /// Reads each scenario's `uncertain` list (loader_uncertain.cpp) once every scenario of the list
 /// `scenarios` and the wind are read.

@@ -35,7 +35,7 @@ void read_slew(const MapView& scenario, const Spec& spec, ScenarioSpec& sc) {
       ctx.error(scenario.key_mark(other), scenario.path(other),
                 fmt::format("'{}' and 'slew' both set the base's motion", other),
                 "give the motion either as slewing (slew: {radius, speed, moves}) or as travel, not both");
-  MapView m(ctx, scenario.get("slew"), scenario.path("slew"), {"radius", "speed", "moves"});
+  MapView m(ctx, scenario.get("slew"), scenario.path("slew"), {"radius", "speed", "moves", "luff"});
   if (!m.ok()) return;
   ScenarioSpec::Slew slew;
   slew.mark = scenario.key_mark("slew");
@@ -65,6 +65,7 @@ void read_slew(const MapView& scenario, const Spec& spec, ScenarioSpec& sc) {
       ctx.error(slew.moves[k].mark, fmt::format("{}[{}]", m.path("moves"), k), message, fix);
     }
   }
+  if (m.has("luff")) read_luff(m, slew);
   sc.slew = slew;
 }
 

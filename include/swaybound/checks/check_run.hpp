@@ -151,6 +151,9 @@ struct CheckReport {
   long time_budget_total = 0;
   double max_audit_relative = 0;   ///< largest energy-audit residual / energy scale over the cases
   std::string max_audit_case;
+  /// The same for the boom-frame audit (a slewing spatial model; case empty otherwise).
+  double max_boom_audit_relative = 0;
+  std::string max_boom_audit_case;
   long total_steps = 0;
   /// Cases in which an elastic rope went slack after it was taut (its snatch is in the rope figures;
   /// a slack_time limit bounds it), and the first of them.
@@ -214,6 +217,8 @@ struct CaseTotals {
   long time_budget_total = 0;
   double max_audit_relative = 0;
   std::string max_audit_case;
+  double max_boom_audit_relative = 0;
+  std::string max_boom_audit_case;
   long total_steps = 0;
   long slack_cases = 0;            ///< cases in which an elastic rope went slack after it was taut
   std::string first_slack_case;    ///< the first of them (case order)

@@ -55,6 +55,7 @@ struct CaseMetrics {
   double settling_time = 0;            ///< time after which every |theta| stays within the band [s];
                                        ///< NaN when the run ends outside the band
   double audit_relative = 0;           ///< largest |energy audit residual| / energy scale [-]
+  double boom_audit_relative = std::nan("");  ///< the same in the boom frame (a slewing spatial model), else NaN [-]
   long steps = 0, evaluations = 0;
   double ftle = std::nan("");          ///< largest finite-time Lyapunov exponent [1/s], NaN if not computed
   std::string ftle_note;               ///< why the FTLE is missing, when it failed

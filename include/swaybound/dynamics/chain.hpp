@@ -132,6 +132,9 @@ struct Workspace {
   std::vector<double> force_z, acc_z, reaction_z;  ///< across the travel, as force_x etc. (N)
   double base_z = 0, base_vz = 0, base_az = 0;     ///< base across the travel [m], [m/s], [m/s^2]
   double base_spin = 0;                            ///< slewing: the boom's angular velocity about +y [rad/s] (-psi')
+  double base_spin_rate = 0;                       ///< its rate [rad/s^2] (-psi'')
+  double axis_x = 0;                               ///< slewing: the axis is the vertical through (axis_x, ., 0) [m]
+  double luff_vx = 0, luff_vy = 0, luff_vz = 0;    ///< the pivot's velocity relative to the boom (luffing; the base's without slewing) [m/s]
   Eigen::MatrixXd mass_s;             ///< mass matrix of the tangent rates (2N x 2N) [kg m^2]
   Eigen::VectorXd bias_s, rhs_s, accel_s;  ///< generalised forces [N m] and tangent accelerations [1/s^2] (2N)
   Eigen::LLT<Eigen::MatrixXd> llt_s;  ///< Cholesky factor of mass_s
@@ -202,6 +205,15 @@ void finish_reactions(const Model& model, Workspace& ws);
 /// Mechanical energy (kinetic + potential, potential zero at the base's y = 0, plus the strain
 /// energy of elastic ropes) [J] after `evaluate` at the same state.
 double mechanical_energy(const Model& model, const Workspace& ws);
+
+/// The energy of a spatial chain in the boom frame (turning with the slewing about its axis) after
+/// `evaluate`: relative kinetic energy + gravity potential - centrifugal potential
+/// (1/2 m W^2 r_perp^2, with the links' own share) [J]; without slewing the mechanical energy.
+double boom_frame_energy(const Model& model, const Workspace& ws);
+
+/// The angular momentum of a spatial chain about the slewing axis (about the vertical through the
+/// pivot's start without slewing), its component along +y [kg m^2/s], after `evaluate`.
+double axis_momentum(const Model& model, const Workspace& ws);
 
 /// Axial tension of link i at its upper and lower ends [N] after `evaluate` (positive = pulling;
 /// the lower end of the last link is free, tension 0).

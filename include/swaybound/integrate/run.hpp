@@ -116,6 +116,10 @@ struct StepView {
   const Phase* phase = nullptr;  ///< the inputs (base motion, wind) ws was evaluated under
   double energy = 0;             ///< mechanical energy [J]
   double audit_residual = 0;     ///< E + dissipated - work in - E(0) [J]
+  /// The same in the boom frame (model.boom_frame; 0 otherwise): E_boom + dissipated - the boom
+  /// frame's work of the base and wind - the work of the slewing's angular acceleration - E_boom(0),
+  /// E_boom as dynamics/chain.hpp's boom_frame_energy [J].
+  double boom_audit_residual = 0;
   bool segment_start = false;    ///< first state of a segment (t = 0 or just after a jump)
   bool segment_end = false;      ///< last state of a segment (just before a jump, or the end of the run)
   /// Evaluates the run between accepted steps (on_step views of accepted steps only; null at a
@@ -150,6 +154,8 @@ struct RunOutcome {
   double energy0 = 0;             ///< [J]
   double max_audit_residual = 0;  ///< largest |audit residual| over the accepted steps [J]
   double audit_scale = 0;         ///< energy scale the residual is judged against [J]
+  double boom_energy0 = 0;        ///< boom frame (model.boom_frame) [J]
+  double max_boom_audit_residual = 0;  ///< largest |boom_audit_residual| over the accepted steps [J]
   long switches = 0;              ///< located switches of contact laws (ropes slack/taut, ground)
   std::vector<ModeEvent> events;  ///< the first kMaxRecordedEvents of them, in time order
   static constexpr std::size_t kMaxRecordedEvents = 1000;

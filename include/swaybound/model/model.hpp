@@ -83,6 +83,11 @@ struct Phase {
   /// A travel drive's controller (model/controller.hpp): when active, the fields above give the
   /// drive's reference (speed command) and the base's x and its speed are states of the run.
   DriveControl control;
+  /// Luffing (with slewing; all 0 without): the luffing profile's position, speed and acceleration
+  /// at t0 and its jerk within the phase; radial luffing (luff_boom = 0): the radius is
+  /// slew_radius + position [m]; boom luffing: the boom angle is luff_angle0 + position [rad] for a
+  /// boom of length luff_boom [m] (see chain_spatial.cpp).
+  double luff_boom = 0, luff_angle0 = 0, luff_s0 = 0, luff_v0 = 0, luff_a0 = 0, luff_jerk = 0;
 };
 
 struct ScenarioModel {
@@ -139,16 +144,20 @@ struct Model {
   bool any_pivot_torque = false;   ///< some pivot has friction or a damper
   double energy_scale = 0;         ///< g sum_k m_k depth_k at rest [J]: scale for audit residuals
 
+  /// A spatial chain some scenario slews: the state carries the boom-frame energy audit's two
+  /// works after the inertial audit's (chain_spatial.cpp, boom_frame_energy).
+  bool boom_frame = false;
   /// Some scenario's travel drive has a controller: the state ends with the base's x [m] and its
   /// speed [m/s] (at drive_state(), drive_state() + 1), integrated in every scenario of the model.
   bool drive_states = false;
 
   /// State layout: coordinates q[0..dof) (angles, then elastic rope lengths [m]; for a spatial
   /// chain the unit vectors e_0, e_1, ... [-]), their rates
-  /// [dof..2 dof), dissipated energy [J], work done on the chain by the base, the wind and the drum [J],
-  /// then with drive_states the base's x [m] and speed [m/s].
-  int state_size() const { return 2 * dof + 2 + (drive_states ? 2 : 0); }
-  int drive_state() const { return 2 * dof + 2; }
+  /// [dof..2 dof), dissipated energy [J], work done on the chain by the base, the wind and the drum [J];
+  /// with boom_frame then the boom frame's work of the base (luffing) and the wind, and the work of
+  /// the slewing's angular acceleration [J]; with drive_states then the base's x [m] and speed [m/s].
+  int state_size() const { return 2 * dof + 2 + (boom_frame ? 2 : 0) + (drive_states ? 2 : 0); }
+  int drive_state() const { return 2 * dof + 2 + (boom_frame ? 2 : 0); }
 };
 
 /// Builds the model. com/inertia not given in the spec follow the link's (possibly sized) length

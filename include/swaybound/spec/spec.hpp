@@ -193,6 +193,20 @@ struct ScenarioSpec {
     double radius = 0;        ///< [m]
     double initial_rate = 0;  ///< [rad/s]
     std::vector<DrumMoveSpec> moves;
+    /// Luffing (slew.luff; loader_luff.cpp): the pivot's radius changes. Without `boom` (radial
+    /// luffing) the speed profile is the radius's rate [m/s], + outwards, `radius` the radius at
+    /// t = 0. With `boom` [m] (a boom of that length luffing about a foot on the slewing arm) it is
+    /// the boom angle's rate [rad/s] from `angle` (above the horizontal) at t = 0, + raises the boom;
+    /// the foot is at radius - boom cos(angle), the tip at foot + boom cos(beta(t)) and
+    /// boom (sin beta(t) - sin angle) above its start.
+    struct Luff {
+      double initial_speed = 0;  ///< [m/s] radial, [rad/s] boom angle
+      std::vector<DrumMoveSpec> moves;
+      double boom = 0;           ///< boom length [m]; 0: radial luffing
+      double angle = 0;          ///< boom angle at t = 0 [rad], in (-pi/2, pi/2)
+      Mark mark, speed_mark;     ///< the `luff` key; its `speed` key (the `luff` key when not given)
+    };
+    std::optional<Luff> luff;
     Mark mark;
   };
   std::optional<Slew> slew;

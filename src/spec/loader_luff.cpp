@@ -1,0 +1,210 @@
+// Spec loader, luffing: a slewing scenario's `slew.luff` (specs/README.md, "Slewing and luffing"),
+// the radius of the boom tip (radial luffing, a speed profile in m/s) or the angle of a boom of
+// given length (boom luffing, a speed profile in rad/s) changing during the scenario, and the check
+// after cases.duration is read that the radius stays positive and the boom angle within
+// (-90, 90) deg over the run.
+#include <algorithm>
+#include <cmath>
+#include <numbers>
+
+#include <fmt/format.h>
+
+#include "loader_parts.hpp"
+#include "swaybound/model/profile.hpp"
+
+namespace swaybound::spec_detail {
+
+namespace u = units;
+
+namespace {
+
+constexpr double kQuarterTurn = std::numbers::pi / 2;
+
+/// One luffing move {at, to, accel, jerk}: radial (m/s, + outwards) or boom angle (rad/s, + raises).
+bool read_luff_move(Context& ctx, const YAML::Node& node, const std::string& path, bool boom, DrumMoveSpec& move) {
+  MapView m(ctx, node, path, {"at", "to", "accel", "jerk"});
+  if (!m.ok()) return false;
+  move.mark = m.mark();
+  bool ok = true;
+  const auto read = [&](std::string_view key, const char* what, const u::Dim& dim, const Bounds& bounds,
+                        double& out) {
+    if (!m.require(key, what)) {
+      ok = false;
+      return;
+    }
+    if (auto v = read_quantity(ctx, m.get(key), m.path(key), dim, bounds))
+      out = *v;
+    else
+      ok = false;
+  };
+  read("at", "when the move starts, e.g. '2 s'", u::duration, Bounds::non_negative(), move.at);
+  read("to",
+       boom ? "the boom angle's rate the move reaches, e.g. '0.02 rad/s' (+ raises the boom)"
+            : "the radial speed the move reaches, e.g. '-0.5 m/s' (+ outwards, - in)",
+       boom ? u::angular_rate : u::speed, Bounds::any(), move.to);
+  read("accel",
+       boom ? "the luffing acceleration limit of the boom angle, e.g. '0.01 rad/s^2'"
+            : "the luffing acceleration limit, e.g. '0.2 m/s^2'",
+       boom ? u::angular_acceleration : u::acceleration, Bounds::positive(), move.accel);
+  if (m.has("jerk")) {
+    if (auto v = read_quantity(ctx, m.get("jerk"), m.path("jerk"), boom ? u::angular_jerk : u::jerk,
+                               Bounds::non_negative()))
+      move.jerk = *v;
+    else
+      ok = false;
+  } else {
+    ctx.defaults_filled.push_back(m.path("jerk"));
+  }
+  return ok;
+}
+
+SpeedProfile luff_speed_profile(const ScenarioSpec::Slew::Luff& luff) {
+  std::vector<SpeedMove> moves;
+  for (const DrumMoveSpec& d : luff.moves) moves.push_back(SpeedMove{d.at, d.to, d.accel, d.jerk});
+  return SpeedProfile::build(luff.initial_speed, moves);
+}
+
+/// Times in [0, duration] where the profile's position can have an extreme: 0, the duration, every
+/// breakpoint before it and every zero of the speed (between two of them it is monotonic).
+std::vector<double> extreme_times(const SpeedProfile& profile, double duration) {
+  std::vector<double> times{0.0, duration};
+  for (double t : profile.breakpoints())
+    if (t < duration) times.push_back(t);
+  for (const ProfilePiece& q : profile.pieces()) {
+    const double end = std::min(q.t1, duration);
+    if (!(q.t0 < end)) continue;
+    std::vector<double> roots;  // v0 + a0 d + j d^2 / 2 = 0
+    if (q.j == 0) {
+      if (q.a0 != 0) roots.push_back(-q.v0 / q.a0);
+    } else if (const double disc = q.a0 * q.a0 - 2 * q.j * q.v0; disc >= 0) {
+      for (double sign : {-1.0, 1.0}) roots.push_back((-q.a0 + sign * std::sqrt(disc)) / q.j);
+    }
+    for (double d : roots)
+      if (d > 0 && q.t0 + d < end) times.push_back(q.t0 + d);
+  }
+  std::sort(times.begin(), times.end());
+  times.erase(std::unique(times.begin(), times.end()), times.end());
+  return times;
+}
+
+}  // namespace
+
+void read_luff(const MapView& slew_map, ScenarioSpec::Slew& slew) {
+  Context& ctx = slew_map.ctx();
+  MapView m(ctx, slew_map.get("luff"), slew_map.path("luff"), {"speed", "moves", "boom", "angle"});
+  if (!m.ok()) return;
+  ScenarioSpec::Slew::Luff luff;
+  luff.mark = slew_map.key_mark("luff");
+  luff.speed_mark = m.has("speed") ? m.key_mark("speed") : luff.mark;
+  bool ok = true;
+  const bool boom = m.has("boom");
+  if (boom) {
+    if (auto v = read_quantity(ctx, m.get("boom"), m.path("boom"), u::length, Bounds::positive()))
+      luff.boom = *v;
+    else
+      ok = false;
+    if (m.require("angle", "the boom's angle above the horizontal at t = 0, e.g. '60 deg'")) {
+      if (auto v = read_quantity(ctx, m.get("angle"), m.path("angle"), u::angle,
+                                 Bounds{-kQuarterTurn, kQuarterTurn, true, true, "the boom's angle above the horizontal, short of straight up or down"}))
+        luff.angle = *v;
+      else
+        ok = false;
+    } else {
+      ok = false;
+    }
+    // The foot on the slewing arm: radius - boom cos(angle) from the axis, not behind it.
+    if (ok && slew.radius > 0 && slew.radius - luff.boom * std::cos(luff.angle) < 0)
+      ctx.error(m.get("boom"), m.path("boom"),
+                fmt::format("a boom of {} at {:.4g} deg reaches {} out from its foot, beyond the tip's radius {}: "
+                            "the foot would be behind the slewing axis",
+                            u::format_si(luff.boom, u::length), luff.angle * 180 / std::numbers::pi,
+                            u::format_si(luff.boom * std::cos(luff.angle), u::length),
+                            u::format_si(slew.radius, u::length)),
+                "give the boom's length and its angle at t = 0 so that boom cos(angle) <= slew.radius (the tip's "
+                "radius at t = 0)");
+  } else if (m.has("angle")) {
+    ctx.error(m.key_mark("angle"), m.path("angle"), "'angle' is the boom's angle, and no boom length is given",
+              "add 'boom: LENGTH' (boom luffing), or remove 'angle' (radial luffing: speed and moves in m/s)");
+    ok = false;
+  }
+  read_optional(m, "speed", luff.initial_speed, boom ? u::angular_rate : u::speed);
+  if (m.has("moves") && expect_sequence(ctx, m.get("moves"), m.path("moves"), "luffing moves {at, to, accel, jerk}")) {
+    const YAML::Node list = m.get("moves");
+    for (std::size_t k = 0; k < list.size(); ++k) {
+      DrumMoveSpec move;
+      ok &= read_luff_move(ctx, list[k], fmt::format("{}[{}]", m.path("moves"), k), boom, move);
+      luff.moves.push_back(move);
+    }
+  } else if (m.has("moves")) {
+    ok = false;
+  }
+  if (ok) {
+    try {
+      (void)luff_speed_profile(luff);
+    } catch (const ProfileError& e) {
+      const auto [message, fix] = split_profile_error(e);
+      const std::size_t k = e.move_index();
+      ctx.error(luff.moves[k].mark, fmt::format("{}[{}]", m.path("moves"), k), message, fix);
+    }
+  }
+  slew.luff = luff;
+}
+
+void check_luffing(Context& ctx, const Spec& spec) {
+  const double duration = spec.cases.duration;
+  if (!(duration > 0)) return;
+  for (std::size_t i = 0; i < spec.scenarios.size(); ++i) {
+    const ScenarioSpec& sc = spec.scenarios[i];
+    if (!sc.slew || !sc.slew->luff) continue;
+    const ScenarioSpec::Slew::Luff& luff = *sc.slew->luff;
+    SpeedProfile profile;
+    try {
+      profile = luff_speed_profile(luff);
+    } catch (const Error&) {
+      continue;  // reported at the move
+    }
+    const bool boom = luff.boom > 0;
+    // Radial: the radius R + s(t) stays above 0. Boom: the angle stays within (-90, 90) deg (then
+    // the radius, foot + boom cos(beta) with the foot not behind the axis, stays above 0).
+    const auto outside = [&](double t) {
+      const double s = profile.position(t);
+      return boom ? !(std::fabs(luff.angle + s) < kQuarterTurn) : !(sc.slew->radius + s > 0);
+    };
+    const std::vector<double> times = extreme_times(profile, duration);
+    std::size_t k = 0;
+    while (k < times.size() && !outside(times[k])) ++k;
+    if (k == times.size()) continue;
+    double lo = k > 0 ? times[k - 1] : 0.0, hi = times[k];
+    for (int step = 0; step < 200 && lo < hi; ++step) {
+      const double mid = lo + (hi - lo) / 2;
+      if (mid <= lo || mid >= hi) break;
+      (outside(mid) ? hi : lo) = mid;
+    }
+    // The move under way at that time (the last one started by then), else the initial speed.
+    const std::string base = fmt::format("base.scenarios[{}].slew.luff", i);
+    std::string path = base + ".speed";
+    Mark mark = luff.speed_mark;
+    for (std::size_t j = 0; j < luff.moves.size(); ++j)
+      if (luff.moves[j].at <= hi) {
+        path = fmt::format("{}.moves[{}]", base, j);
+        mark = luff.moves[j].mark;
+      }
+    const std::string when = fmt::format("at t = {:.6g} s, within cases.duration ({})", hi,
+                                         u::format_si(duration, u::duration));
+    if (boom)
+      ctx.error(mark, path,
+                fmt::format("the boom angle would leave (-90, 90) deg {}: it starts at {:.4g} deg and the luffing "
+                            "turns it by {:.4g} deg by then",
+                            when, luff.angle * 180 / std::numbers::pi, profile.position(hi) * 180 / std::numbers::pi),
+                "luff less: a lower boom-angle rate or an earlier move back to 0 rad/s");
+    else
+      ctx.error(mark, path,
+                fmt::format("the luffing would bring the radius to {} {} (it starts at {}): the pivot would "
+                            "reach the slewing axis",
+                            u::format_si(sc.slew->radius + profile.position(hi), u::length), when,
+                            u::format_si(sc.slew->radius, u::length)),
+                "luff in less: a lower radial speed or an earlier move back to 0 m/s");
+  }
+}
+
+}  // namespace swaybound::spec_detail
