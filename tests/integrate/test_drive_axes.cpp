@@ -36,14 +36,14 @@ namespace {
 
 constexpr double kG = 9.81;
 
-/// A two-link chain (rope and hook block with a damped pivot between them) under a shaped travel move;
+/// A two-link chain (rope and hook block, damped at both pivots) under a shaped travel move;
 /// `shaper` is the flow map's body.
 std::string two_link_spec(const std::string& shaper, const std::string& sizing = "") {
   return fmt::format(R"(swaybound: 1
 name: two links
 gravity: 9.81
 links:
-  - {{name: rope, kind: rope, length: 8 m, mass: 20 kg}}
+  - {{name: rope, kind: rope, length: 8 m, mass: 20 kg, pivot: {{damper: {{coefficient: 2 kN m s/rad}}}}}}
   - {{name: hook, length: 1.5 m, mass: 120 kg, pivot: {{damper: {{coefficient: 60 N m s/rad}}}}}}
 base:
   scenarios:
@@ -122,7 +122,8 @@ TEST_CASE("a shaper designed from mode 1 of a two-link chain is the one given th
   const std::string yaml = normalised_yaml(from_mode);
   CHECK(yaml.find("mode: 1") != std::string::npos);
   const Spec again = load_spec_text(yaml, "again.yaml");
-  CHECK(again.scenarios[0].travel->shaper->frequency == a.frequency);
+  // (the normalised spec writes com and inertia to 12 digits)
+  CHECK_THAT(again.scenarios[0].travel->shaper->frequency, IsCloseTo(a.frequency, 0, 1e-10));
   CHECK(again.scenarios[0].travel->shaper->mode == 1);
 }
 
@@ -154,10 +155,13 @@ TEST_CASE("design_for designs the shaper for another rope length, and sizing mov
   CHECK_THAT(after, IsCloseTo(sized_modes.modes[0].natural_frequency_with_damping_hz, 0, 1e-14));
   CHECK_THAT(sized.scenarios[0].travel->shaper->damping_ratio, IsCloseTo(sized_modes.modes[0].damping_ratio, 0, 1e-14));
   CHECK(after < 0.85 * before);
-  // The sized spec as written keeps `mode`, and reloads to the sized frequency.
+  // The sized spec as written keeps `mode`, and reloads to the mode of the chain it describes.
   const std::string yaml = normalised_yaml(sized);
   CHECK(yaml.find("mode: 1") != std::string::npos);
-  CHECK_THAT(load_spec_text(yaml, "again.yaml").scenarios[0].travel->shaper->frequency, IsCloseTo(after, 0, 1e-11));
+  const Spec reloaded = load_spec_text(yaml, "again.yaml");
+  CHECK(reloaded.links[0].length == 13.0);
+  CHECK_THAT(reloaded.scenarios[0].travel->shaper->frequency,
+             IsCloseTo(modal_analysis(build_model(reloaded)).modes[0].natural_frequency_with_damping_hz, 0, 1e-14));
   // The shaper's frequency is not a sizing variable of its own while a mode sets it.
   CHECK_THROWS_AS(load_spec_text(two_link_spec("kind: zv, mode: 1",
                                                "sizing: {variables: [{path: 'scenarios[move].travel.shaper.frequency', "
@@ -275,7 +279,7 @@ cases: {{duration: 12 s, initial: [{{single: {{theta: [0 deg]}}}}]}}
   // Through the solver's base kinematics: position, speed and the peak speed.
   Workspace ws(model);
   RunSettings settings = RunSettings::from_spec(spec);
-  settings.output_rate = 100;
+  settings.output_rate = 8;  // a sample at the end of the move, 5.625 s
   double z_end = 0, peak = 0, z_at_end = std::nan("");
   REQUIRE(simulate_case(model, ws, 0, {}, settings, {}, [&](const StepView& view) {
             peak = std::max(peak, view.ws->base_vz);
@@ -291,7 +295,7 @@ cases: {{duration: 12 s, initial: [{{single: {{theta: [0 deg]}}}}]}}
 TEST_CASE("a shaped slewing move leaves less residual sway than the unshaped one", "[spatial][slew][shaper]") {
   // A boom of radius R slews 0 -> 0.05 rad/s -> 0; after the moves the pivot is still, so the
   // residual sway is the largest swing angle afterwards.
-  const auto run = [](double radius, const std::string& shaper) {
+  const auto run = [](double radius, double rate, const std::string& shaper) {
     const Spec spec = load_spec_text(fmt::format(R"(swaybound: 1
 name: slewing
 motion: spatial
@@ -301,12 +305,12 @@ links:
 base:
   scenarios:
     - name: slew
-      slew: {{radius: {r} m, moves: [{{at: 1 s, to: 0.05 rad/s, accel: 0.02 rad/s^2}},
+      slew: {{radius: {r} m, moves: [{{at: 1 s, to: {w} rad/s, accel: 0.02 rad/s^2}},
                                     {{at: 8 s, to: 0 rad/s, accel: 0.02 rad/s^2}}]{shaper}}}
 cases: {{duration: 40 s, initial: [{{single: {{theta: [0 deg]}}}}]}}
 solver: {{rtol: 1e-11, atol: 1e-13}}
 )",
-                                                 fmt::arg("r", radius), fmt::arg("shaper", shaper)),
+                                                 fmt::arg("r", radius), fmt::arg("w", rate), fmt::arg("shaper", shaper)),
                                      "slew.yaml");
     const Model model = build_model(spec);
     const double end = slew_drive_profile(*spec.scenarios[0].slew).end_of_moves();
@@ -321,16 +325,24 @@ solver: {{rtol: 1e-11, atol: 1e-13}}
             }).status == RunStatus::ok);
     return std::pair{peak, residual};
   };
-  for (const double radius : {20.0, 0.5}) {
-    const auto [peak_plain, plain] = run(radius, "");
-    const auto [peak_shaped, shaped] = run(radius, ", shaper: {kind: zv, mode: 1}");
-    INFO("radius " << radius << " m: residual unshaped " << plain << " rad (peak " << peak_plain << "), ZV "
-                   << shaped << " rad (peak " << peak_shaped << "), ratio " << shaped / plain);
-    WARN("slewing radius " << radius << " m: residual unshaped " << plain << " rad, ZV from mode 1 " << shaped
-                           << " rad, ratio " << shaped / plain);
-    CHECK(plain > 1e-4 * radius / 20);
+  // The pivot's acceleration is R psi'' along the boom's tangent (linear in the command, which the
+  // shaper cancels) and R psi'^2 towards the axis (quadratic, which it does not): the shaped residual
+  // over the unshaped one goes with psi'^2 / psi'', not with the radius. Measured (rtol 1e-11):
+  // 0.05 rad/s at 0.02 rad/s^2: ratio 0.0234 at R = 20 m and at R = 0.5 m; 0.005 rad/s at 20 m:
+  // 0.0026 (residual 6.6e-5 rad against 2.5e-2 rad unshaped).
+  double slow_ratio = 0;
+  for (const auto& [radius, rate] : {std::pair{20.0, 0.05}, std::pair{0.5, 0.05}, std::pair{20.0, 0.005}}) {
+    const auto [peak_plain, plain] = run(radius, rate, "");
+    const auto [peak_shaped, shaped] = run(radius, rate, ", shaper: {kind: zv, mode: 1}");
+    WARN("slewing radius " << radius << " m to " << rate << " rad/s: residual unshaped " << plain << " rad (peak "
+                           << peak_plain << "), ZV from mode 1 " << shaped << " rad (peak " << peak_shaped
+                           << "), ratio " << shaped / plain);
+    CHECK(plain > 1e-3 * radius * rate);
     CHECK(shaped < 0.05 * plain);
+    if (rate < 0.01) slow_ratio = shaped / plain;
   }
+  // Where the quadratic part is small (psi'^2 / psi'' = 1.25e-3), the ZV residual is small with it.
+  CHECK(slow_ratio < 5e-3);
 }
 
 TEST_CASE("a slewing stop and a cross-travel stop are read in their units and written back", "[spatial][slew][spec]") {
