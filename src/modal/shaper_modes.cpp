@@ -1,5 +1,6 @@
 #include "swaybound/modal/shaper_modes.hpp"
 
+#include <cmath>
 #include <string>
 
 #include <fmt/format.h>
@@ -73,7 +74,8 @@ void resolve_one(const Spec& spec, Shaper& shaper, const std::string& path, std:
     return;
   }
   shaper.frequency = m.natural_frequency_with_damping_hz;
-  if (!shaper.damping_given) shaper.damping_ratio = m.damping_ratio;
+  // An undamped chain's eigenvalues carry a real part of rounding size (zeta ~ 1e-16): that is 0.
+  if (!shaper.damping_given) shaper.damping_ratio = std::fabs(m.damping_ratio) < 1e-12 ? 0.0 : m.damping_ratio;
 }
 
 }  // namespace
