@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <string_view>
 
 #include <fmt/format.h>
 
@@ -17,9 +18,26 @@ namespace swaybound {
 
 namespace {
 
-/// The shaper a travel drive's spec designs.
+/// The shaper a drive's spec designs.
 InputShaper shaper_of(const ScenarioSpec::Travel::Shaper& s) {
   return design_shaper(s.kind, s.frequency, s.damping_ratio, s.vibration_tolerance);
+}
+
+using ShaperSlot = std::optional<ScenarioSpec::Travel::Shaper>;
+constexpr const char* kAxes[] = {"travel", "cross_travel", "slew"};
+
+/// The shaper of drive axis `axis` (kAxes) of a scenario; null when the scenario has no such drive.
+ShaperSlot* shaper_slot(ScenarioSpec& s, std::string_view axis) {
+  if (axis == "travel") return s.travel ? &s.travel->shaper : nullptr;
+  if (axis == "cross_travel") return s.cross_travel ? &s.cross_travel->shaper : nullptr;
+  return s.slew ? &s.slew->shaper : nullptr;
+}
+
+/// The profile of drive axis `axis` of a scenario that has it.
+SpeedProfile axis_profile(const ScenarioSpec& s, std::string_view axis) {
+  if (axis == "travel") return travel_drive_profile(*s.travel);
+  if (axis == "cross_travel") return travel_drive_profile(*s.cross_travel);
+  return slew_drive_profile(*s.slew);
 }
 
 /// The lowest undamped natural frequency of the chain of `spec` [Hz]; NaN when it has no mode.
@@ -40,7 +58,8 @@ SensitivityMark mark_at(std::string label, double frequency_hz, const InputShape
 
 /// Runs case `def` of `model` with its time series recorded (every `stride`-th output sample) and
 /// the largest angle of each link located from `window_start` on.
-ShapingRun run_one(const Model& model, const CaseDef& def, const RunSettings& run, long stride, double window_start) {
+ShapingRun run_one(const Model& model, const CaseDef& def, const RunSettings& run, long stride, double window_start,
+                   const SpeedProfile& drive) {
   const int n = model.n;
   ShapingRun out;
   out.stride = stride;
@@ -56,7 +75,7 @@ ShapingRun run_one(const Model& model, const CaseDef& def, const RunSettings& ru
     if (sample++ % stride != 0) return;
     out.t.push_back(v.t);
     out.top_angle.push_back(angle(v.x, 0));
-    out.base_speed.push_back(v.ws->base_vx);
+    out.base_speed.push_back(drive.speed(v.t));
   };
   Workspace ws(model);
   const RunOutcome outcome =
@@ -83,7 +102,8 @@ ShapingCases::ShapingCases(const Spec& spec) : spec_(&spec) {
   worst_.assign(count, -1);
   first_.assign(count, -1);
   worst_value_.assign(count, -std::numeric_limits<double>::infinity());
-  for (const ScenarioSpec& s : spec.scenarios) any_ = any_ || (s.travel && s.travel->shaper);
+  for (ScenarioSpec s : spec.scenarios)
+    for (const char* axis : kAxes) any_ = any_ || (shaper_slot(s, axis) && *shaper_slot(s, axis));
   for (LimitKind kind : {LimitKind::residual_sway, LimitKind::peak_angle}) {
     for (std::size_t i = 0; i < spec.limits.size() && limit_ < 0; ++i)
       if (spec.limits[i].kind == kind) limit_ = static_cast<int>(i);
@@ -136,41 +156,46 @@ std::vector<ShapingComparison> compare_shaping(const CheckPlan& plan, const Shap
   if (!cases.any()) return out;
   const long samples = samples_per_case(plan.run.duration, plan.run.output_rate);
   const long stride = std::max(1L, (samples + kMaxRecordedPoints - 1) / kMaxRecordedPoints);
-  for (std::size_t s = 0; s < spec.scenarios.size(); ++s) {
-    const ScenarioSpec& scenario = spec.scenarios[s];
-    if (!scenario.travel || !scenario.travel->shaper) continue;
-    const int index = static_cast<int>(s);
-    ShapingComparison c;
-    c.scenario = index;
-    c.shaper = shaper_of(*scenario.travel->shaper);
-    c.case_index = cases.worst_case(index);
-    if (c.case_index >= 0) {
-      c.limit = cases.limit();
-      c.chosen_by = spec.limits[static_cast<std::size_t>(c.limit)].key;
-    } else {
-      c.case_index = cases.first_case(index);
-      c.chosen_by = "first case";
-    }
-    if (c.case_index < 0) continue;  // the scenario has no case (not possible for a loaded spec)
-    const CaseDef def = plan.space.at(c.case_index);
-    c.case_id = def.id;
+  for (std::size_t s = 0; s < spec.scenarios.size(); ++s)
+    for (const char* axis : kAxes) {
+      ScenarioSpec scenario = spec.scenarios[s];
+      const ShaperSlot* slot = shaper_slot(scenario, axis);
+      if (slot == nullptr || !*slot) continue;
+      const int index = static_cast<int>(s);
+      ShapingComparison c;
+      c.scenario = index;
+      c.axis = axis;
+      c.mode = (*slot)->mode;
+      c.shaper = shaper_of(**slot);
+      c.case_index = cases.worst_case(index);
+      if (c.case_index >= 0) {
+        c.limit = cases.limit();
+        c.chosen_by = spec.limits[static_cast<std::size_t>(c.limit)].key;
+      } else {
+        c.case_index = cases.first_case(index);
+        c.chosen_by = "first case";
+      }
+      if (c.case_index < 0) continue;  // the scenario has no case (not possible for a loaded spec)
+      const CaseDef def = plan.space.at(c.case_index);
+      c.case_id = def.id;
 
-    // The same spec with the shaper removed: same moves, same stop.
-    Spec unshaped_spec = spec;
-    unshaped_spec.scenarios[s].travel->shaper.reset();
-    const Model unshaped_model = build_model(unshaped_spec);
-    const double shaped_end = travel_drive_profile(*scenario.travel).end_of_moves();
-    const double unshaped_end = travel_drive_profile(*unshaped_spec.scenarios[s].travel).end_of_moves();
-    c.window_start = std::max(shaped_end, unshaped_end);
-    c.shaped = run_one(plan.model, def, plan.run, stride, c.window_start);
-    c.unshaped = run_one(unshaped_model, def, plan.run, stride, c.window_start);
-    c.shaped.move_end = shaped_end;
-    c.unshaped.move_end = unshaped_end;
-    c.extra_time = shaped_end - unshaped_end;
-    c.reduction = 1 - c.shaped.residual_max / c.unshaped.residual_max;
-    shaping_sensitivity(spec, c.shaper, c);
-    out.push_back(std::move(c));
-  }
+      // The same spec with this axis's shaper removed: same moves, same stop.
+      Spec unshaped_spec = spec;
+      shaper_slot(unshaped_spec.scenarios[s], axis)->reset();
+      const Model unshaped_model = build_model(unshaped_spec);
+      const SpeedProfile shaped_drive = axis_profile(scenario, axis);
+      const SpeedProfile unshaped_drive = axis_profile(unshaped_spec.scenarios[s], axis);
+      const double shaped_end = shaped_drive.end_of_moves(), unshaped_end = unshaped_drive.end_of_moves();
+      c.window_start = std::max(shaped_end, unshaped_end);
+      c.shaped = run_one(plan.model, def, plan.run, stride, c.window_start, shaped_drive);
+      c.unshaped = run_one(unshaped_model, def, plan.run, stride, c.window_start, unshaped_drive);
+      c.shaped.move_end = shaped_end;
+      c.unshaped.move_end = unshaped_end;
+      c.extra_time = shaped_end - unshaped_end;
+      c.reduction = 1 - c.shaped.residual_max / c.unshaped.residual_max;
+      shaping_sensitivity(spec, c.shaper, c);
+      out.push_back(std::move(c));
+    }
   return out;
 }
 

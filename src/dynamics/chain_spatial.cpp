@@ -211,13 +211,13 @@ void spatial_kinematics(const Model& model, Workspace& ws, const Phase& p, const
   const double dt = t - p.t0;
   ws.base_ax = p.ax + p.jx * dt;
   ws.base_ay = p.ay;
-  ws.base_az = p.az;
+  ws.base_az = p.az + p.jz * dt;
   ws.base_vx = p.vx0 + (p.ax + 0.5 * p.jx * dt) * dt;
   ws.base_vy = p.vy0 + p.ay * dt;
-  ws.base_vz = p.vz0 + p.az * dt;
+  ws.base_vz = p.vz0 + (p.az + 0.5 * p.jz * dt) * dt;
   ws.base_x = p.x0 + (p.vx0 + (0.5 * p.ax + p.jx * dt / 6.0) * dt) * dt;
   ws.base_y = p.y0 + p.vy0 * dt + 0.5 * p.ay * dt * dt;
-  ws.base_z = p.z0 + p.vz0 * dt + 0.5 * p.az * dt * dt;
+  ws.base_z = p.z0 + (p.vz0 + (0.5 * p.az + p.jz * dt / 6.0) * dt) * dt;
   if (p.slew_radius > 0) {
     // Slewing: the pivot at radius r(t) from the vertical axis through (-R, y, 0) (R = r(0)), at
     // slewing angle psi(t) (a cubic within the phase), and h(t) above its start (boom luffing).

@@ -29,12 +29,11 @@ SpeedProfile drum_profile(const ScenarioSpec& s) {
   return SpeedProfile::build(s.hoist->initial_speed, moves);
 }
 
-/// The slewing drive's speed profile of a scenario [rad/s] (standing still without one).
+/// The slewing drive's speed profile of a scenario [rad/s], shaped and stopped as its spec says
+/// (standing still without one).
 SpeedProfile slew_profile(const ScenarioSpec& s) {
   if (!s.slew) return {};
-  std::vector<SpeedMove> moves;
-  for (const DrumMoveSpec& m : s.slew->moves) moves.push_back(SpeedMove{m.at, m.to, m.accel, m.jerk});
-  return SpeedProfile::build(s.slew->initial_rate, moves);
+  return slew_drive_profile(*s.slew);
 }
 
 /// The luffing profile of a scenario: the radius's rate [m/s] or the boom angle's [rad/s] (standing
@@ -53,6 +52,12 @@ std::optional<SpeedProfile> travel_profile(const ScenarioSpec& s) {
   return travel_drive_profile(*s.travel);
 }
 
+/// The cross-travel drive's speed profile (along z), likewise.
+std::optional<SpeedProfile> cross_travel_profile(const ScenarioSpec& s) {
+  if (!s.cross_travel) return std::nullopt;
+  return travel_drive_profile(*s.cross_travel);
+}
+
 }  // namespace
 
 ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>& wind) {
@@ -67,6 +72,9 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
   for (double t : luff.breakpoints()) cuts.push_back(t);
   if (travel)
     for (double t : travel->breakpoints()) cuts.push_back(t);
+  const std::optional<SpeedProfile> cross = cross_travel_profile(s);
+  if (cross)
+    for (double t : cross->breakpoints()) cuts.push_back(t);
   double t = 0;
   for (const auto& seg : s.accel) cuts.push_back(t += seg.duration);
   for (const auto& w : wind)
@@ -137,6 +145,12 @@ ScenarioModel build_scenario(const ScenarioSpec& s, const std::vector<WindSpec>&
       p.vx0 = travel->speed(p.t0);
       p.ax = travel->accel(p.t0);
       p.jx = travel->jerk(p.t0);
+    }
+    if (cross) {  // z from the cross-travel drive's profile, as x from the travel drive's
+      p.z0 = cross->position(p.t0);
+      p.vz0 = cross->speed(p.t0);
+      p.az = cross->accel(p.t0);
+      p.jz = cross->jerk(p.t0);
     }
     if (std::isfinite(p.t1)) {
       const double dt = p.t1 - p.t0;

@@ -257,15 +257,27 @@ SpeedProfile stop_profile(const SpeedProfile& command, double at, double decel, 
   return SpeedProfile::from_pieces(std::move(pieces), time);
 }
 
-SpeedProfile travel_drive_profile(const ScenarioSpec::Travel& travel) {
-  std::vector<SpeedMove> moves;
-  for (const DrumMoveSpec& m : travel.moves) moves.push_back(SpeedMove{m.at, m.to, m.accel, m.jerk});
-  SpeedProfile profile = SpeedProfile::build(travel.initial_speed, moves);
-  if (const auto& s = travel.shaper) {
+SpeedProfile drive_axis_profile(double initial_speed, const std::vector<DrumMoveSpec>& moves,
+                                const std::optional<ScenarioSpec::Travel::Shaper>& shaper,
+                                const std::optional<ScenarioSpec::Travel::Stop>& stop) {
+  std::vector<SpeedMove> speed_moves;
+  for (const DrumMoveSpec& m : moves) speed_moves.push_back(SpeedMove{m.at, m.to, m.accel, m.jerk});
+  SpeedProfile profile = SpeedProfile::build(initial_speed, speed_moves);
+  if (const auto& s = shaper) {
+    SWAYBOUND_REQUIRE(s->frequency > 0, "the shaper's design frequency {} Hz (mode {} not resolved)", s->frequency,
+                      s->mode);
     profile = shape_profile(profile, design_shaper(s->kind, s->frequency, s->damping_ratio, s->vibration_tolerance));
   }
-  if (const auto& stop = travel.stop) profile = stop_profile(profile, stop->at, stop->decel, stop->jerk);
+  if (const auto& st = stop) profile = stop_profile(profile, st->at, st->decel, st->jerk);
   return profile;
+}
+
+SpeedProfile travel_drive_profile(const ScenarioSpec::Travel& travel) {
+  return drive_axis_profile(travel.initial_speed, travel.moves, travel.shaper, travel.stop);
+}
+
+SpeedProfile slew_drive_profile(const ScenarioSpec::Slew& slew) {
+  return drive_axis_profile(slew.initial_rate, slew.moves, slew.shaper, slew.stop);
 }
 
 }  // namespace swaybound

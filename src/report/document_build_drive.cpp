@@ -23,20 +23,40 @@ const char* kind_name(ShaperKind kind) {
   return "?";
 }
 
-/// "ZVD, 0.2 Hz, zeta 0.01" (EI: with its tolerance).
-std::string shaper_text(const InputShaper& s) {
-  std::string text = fmt::format("{}, {} Hz, ζ {}", kind_name(s.kind), num(s.frequency_hz), num(s.damping_ratio, 3));
+/// "ZVD, 0.2 Hz, zeta 0.01" (EI: with its tolerance); "ZV, designed from mode 1: 0.2 Hz, zeta 0"
+/// for a shaper designed from a mode of the chain.
+std::string shaper_text(const ShapingComparison& c) {
+  const InputShaper& s = c.shaper;
+  std::string text = c.mode > 0 ? fmt::format("{}, designed from mode {}: {} Hz, ζ {}", kind_name(s.kind), c.mode,
+                                              num(s.frequency_hz), num(s.damping_ratio, 3))
+                                : fmt::format("{}, {} Hz, ζ {}", kind_name(s.kind), num(s.frequency_hz),
+                                              num(s.damping_ratio, 3));
   if (s.kind == ShaperKind::ei) text += fmt::format(", Vtol {}%", num(100 * s.vibration_tolerance, 3));
   return text;
 }
 
-/// " The stop at T s ... " when the scenario's drive has a stop, else empty.
+/// The stop of the compared drive axis, if it has one.
+const std::optional<ScenarioSpec::Travel::Stop>& axis_stop(const Spec& spec, const ShapingComparison& c) {
+  static const std::optional<ScenarioSpec::Travel::Stop> none;
+  const ScenarioSpec& s = spec.scenarios[static_cast<std::size_t>(c.scenario)];
+  if (c.axis == "cross_travel") return s.cross_travel ? s.cross_travel->stop : none;
+  if (c.axis == "slew") return s.slew ? s.slew->stop : none;
+  return s.travel ? s.travel->stop : none;
+}
+
+/// The scenario's name, with the drive axis when it is not the travel drive.
+std::string scenario_label(const Spec& spec, const ShapingComparison& c) {
+  const std::string& name = spec.scenarios[static_cast<std::size_t>(c.scenario)].name;
+  return c.axis == "travel" ? name : fmt::format("{} ({})", name, c.axis == "slew" ? "slewing" : "cross travel");
+}
+
+/// " The stop at T s ... " when the compared drive has a stop, else empty.
 std::string stop_text(const Spec& spec, const ShapingComparison& c) {
-  const auto& travel = spec.scenarios[static_cast<std::size_t>(c.scenario)].travel;
-  if (!travel || !travel->stop) return "";
+  const auto& stop = axis_stop(spec, c);
+  if (!stop) return "";
   return fmt::format(" The stop at {} s bypasses the shaper, so both runs stop from the speed their command had "
                      "then.",
-                     num(travel->stop->at));
+                     num(stop->at));
 }
 
 /// A fraction as a percentage with one decimal ("94.7%").
@@ -71,12 +91,16 @@ Figure angle_figure(const Spec& spec, const ShapingComparison& c, const std::str
 Figure speed_figure(const Spec& spec, const ShapingComparison& c) {
   std::vector<plot::Series> series{{"unshaped", c.unshaped.t, c.unshaped.base_speed, true, false, 1},
                                    {"shaped", c.shaped.t, c.shaped.base_speed, true, false, 0}};
-  plot::Axis y{"speed x", "m/s"};
+  const bool slew = c.axis == "slew", cross = c.axis == "cross_travel";
+  plot::Axis y{slew ? "slewing speed" : cross ? "speed z" : "speed x", slew ? "rad/s" : "m/s"};
   y.include_zero = true;
-  plot::Plot p = plot::line_chart("Travel speed", {"time", "s"}, y, std::move(series));
+  plot::Plot p = plot::line_chart(slew ? "Slewing speed" : cross ? "Cross-travel speed" : "Travel speed",
+                                  {"time", "s"}, y, std::move(series));
   return figure(std::move(p),
-                fmt::format("Speed of the trolley or boom tip along x, shaped and unshaped (the shaper's impulses "
-                            "last {} s).{}",
+                fmt::format("{}, shaped and unshaped (the shaper's impulses last {} s).{}",
+                            slew    ? "Slewing speed of the boom"
+                            : cross ? "Speed of the trolley or boom tip across the travel (along z)"
+                                    : "Speed of the trolley or boom tip along x",
                             num(c.shaper.duration()), stop_text(spec, c)),
                 200, 0.5);
 }
@@ -116,7 +140,8 @@ Figure sensitivity_figure(const ShapingComparison& c) {
 Section drive_section(const Spec& spec, const CheckReport& r) {
   Section s{"drive", "4c", "Drive and command shaping", {}, false};
   s.blocks.push_back(paragraph(
-      "For each scenario whose travel drive passes its moves through an input shaper, the case that governs the "
+      "For each scenario and drive axis (travel along x; on spatial chains also cross travel along z and slewing) "
+      "whose drive passes its moves through an input shaper, the case that governs the "
       "sway in that scenario (the largest value of the first residual_sway limit, else of the first peak_angle "
       "limit, else the scenario's first case) was run twice at the spec's tolerance: as specified, and with the "
       "shaper removed (same moves, same stop). Residual sway is the largest angle of any link, located between "
@@ -129,15 +154,15 @@ Section drive_section(const Spec& spec, const CheckReport& r) {
            col("reduction", 0.85, Align::right, "reduction"), col("moves end shaped", 0.8, Align::right, "end-shaped"),
            col("moves end unshaped", 0.8, Align::right, "end-unshaped"), col("extra time", 0.7, Align::right, "extra")},
           {},
-          "shaper: kind, design frequency, design damping ratio; case: the case run, and the limit that chose it; "
+          "scenario: with the drive axis when not travel; shaper: kind, design frequency, design damping ratio (and the "
+          "mode of the chain it was designed from); case: the case run, and the limit that chose it; "
           "residual: largest |angle| of any link after the later end of the moves; reduction: 1 - shaped / unshaped; "
           "extra time: shaped end - unshaped end of the moves.",
           7.6};
   for (const ShapingComparison& c : r.shaping) {
-    const std::string& scenario = spec.scenarios[static_cast<std::size_t>(c.scenario)].name;
     Row row;
-    row.cells = {scenario,
-                 shaper_text(c.shaper),
+    row.cells = {scenario_label(spec, c),
+                 shaper_text(c),
                  fmt::format("{} ({})", c.case_id, c.chosen_by),
                  precise(c.shaped.residual_max, "rad"),
                  precise(c.unshaped.residual_max, "rad"),
@@ -155,18 +180,17 @@ Section drive_section(const Spec& spec, const CheckReport& r) {
     if (c.shaped.status != "ok" || c.unshaped.status != "ok")
       remarks.push_back(plain(fmt::format("{}: a run ended early (shaped: {}, unshaped: {}); its residual covers the "
                                           "run up to where it ended.",
-                                          spec.scenarios[static_cast<std::size_t>(c.scenario)].name, c.shaped.status,
+                                          scenario_label(spec, c), c.shaped.status,
                                           c.unshaped.status)));
   for (const ShapingComparison& c : r.shaping)
     if (!stop_text(spec, c).empty())
       remarks.push_back(plain(fmt::format("{}: the drive stops at {} s; the moves end when the stop does, so the "
                                           "extra time ({} s) is not the shaper's duration ({} s).",
-                                          spec.scenarios[static_cast<std::size_t>(c.scenario)].name,
-                                          num(spec.scenarios[static_cast<std::size_t>(c.scenario)].travel->stop->at),
-                                          num(c.extra_time), num(c.shaper.duration()))));
+                                          scenario_label(spec, c), num(axis_stop(spec, c)->at), num(c.extra_time),
+                                          num(c.shaper.duration()))));
   if (!remarks.empty()) s.blocks.push_back(bullets(remarks));
   for (const ShapingComparison& c : r.shaping) {
-    const std::string& scenario = spec.scenarios[static_cast<std::size_t>(c.scenario)].name;
+    const std::string scenario = scenario_label(spec, c);
     s.blocks.push_back(subheading(fmt::format("Scenario '{}'", scenario)));
     s.blocks.push_back(figures({angle_figure(spec, c, scenario)}));
     s.blocks.push_back(figures({speed_figure(spec, c), sensitivity_figure(c)}));

@@ -119,6 +119,7 @@ Json shaping_json(const Spec& spec, const ShapingComparison& c) {
                  {"duration_s", c.shaper.duration()},
                  {"impulses", impulses}};
   if (c.shaper.kind == ShaperKind::ei) shaper["vibration_tolerance"] = c.shaper.vibration_tolerance;
+  if (c.mode > 0) shaper["designed_from_mode"] = c.mode;
   Json ratio = Json::array(), vibration = Json::array();
   for (const SensitivityPoint& p : c.curve) {
     ratio.push_back(number(p.frequency_ratio));
@@ -129,6 +130,7 @@ Json shaping_json(const Spec& spec, const ShapingComparison& c) {
     marks.push_back({{"label", m.label}, {"lowest_frequency_hz", number(m.frequency_hz)},
                      {"frequency_ratio", number(m.ratio)}, {"residual_vibration", number(m.vibration)}});
   return {{"scenario", spec.scenarios[static_cast<std::size_t>(c.scenario)].name},
+          {"axis", c.axis},
           {"shaper", shaper},
           {"case", c.case_id},
           {"case_chosen_by", c.chosen_by},

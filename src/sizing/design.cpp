@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "swaybound/core/error.hpp"
+#include "swaybound/modal/shaper_modes.hpp"
 
 namespace swaybound {
 
@@ -120,6 +121,9 @@ void apply_design(Spec& spec, const std::vector<DesignVariable>& variables, cons
       const LinkSpec& l = spec.links[static_cast<std::size_t>(w.link)];
       w.at = l.com_given ? l.com : l.length / 2;
     }
+  // A shaper designed from a mode follows the mode of the sized chain (modal/shaper_modes.hpp).
+  if (auto problems = resolve_shaper_modes(spec); !problems.empty())
+    throw SpecError(spec.source_file.empty() ? std::string("spec") : spec.source_file, std::move(problems));
 }
 
 double design_cost(const std::vector<DesignVariable>& variables, const std::vector<double>& values) {

@@ -237,19 +237,52 @@ std::string normalised_yaml(const Spec& spec) {
       out << YAML::Key << "initial_velocity" << YAML::Value << YAML::Flow << YAML::BeginMap << YAML::Key << "x"
           << YAML::Value << fmt::format("{:.12g}", s.initial_vx) << YAML::Key << "y" << YAML::Value
           << fmt::format("{:.12g}", s.initial_vy);
-      if (spec.motion == Motion::spatial) out << YAML::Key << "z" << YAML::Value << fmt::format("{:.12g}", s.initial_vz);
+      if (spec.motion == Motion::spatial && !s.cross_travel) out << YAML::Key << "z" << YAML::Value << fmt::format("{:.12g}", s.initial_vz);
       out << YAML::EndMap << YAML::Comment("m/s");
       out << YAML::Key << "accel" << YAML::Value << YAML::BeginSeq;
       for (const auto& seg : s.accel) {
         out << YAML::Flow << YAML::BeginMap << YAML::Key << "for" << YAML::Value << fmt::format("{:.12g}", seg.duration)
             << YAML::Key << "x" << YAML::Value << fmt::format("{:.12g}", seg.ax) << YAML::Key << "y" << YAML::Value
             << fmt::format("{:.12g}", seg.ay);
-        if (spec.motion == Motion::spatial) out << YAML::Key << "z" << YAML::Value << fmt::format("{:.12g}", seg.az);
+        if (spec.motion == Motion::spatial && !s.cross_travel) out << YAML::Key << "z" << YAML::Value << fmt::format("{:.12g}", seg.az);
         out << YAML::EndMap << YAML::Comment("s, m/s^2");
       }
       out << YAML::EndSeq;
     }
     w.at(fmt::format("base.scenarios[{}]", i));
+    // A drive axis's shaper and stop (a slewing drive's stop in rad/s^2, rad/s^3). A shaper designed
+    // from a mode keeps `mode` (its frequency follows the chain) and the damping ratio only if given.
+    const auto write_shaper_and_stop = [&](const std::optional<ScenarioSpec::Travel::Shaper>& shaper,
+                                           const std::optional<ScenarioSpec::Travel::Stop>& stop, bool angular) {
+      if (const auto& sh = shaper) {
+        w.begin("shaper");
+        w.text("kind", sh->kind == ShaperKind::zv ? "zv" : sh->kind == ShaperKind::zvd ? "zvd" : "ei");
+        if (sh->mode > 0) {
+          out << YAML::Key << "mode" << YAML::Value << sh->mode
+              << YAML::Comment(fmt::format("designed at {:.6g} Hz, damping ratio {:.4g}", sh->frequency,
+                                           sh->damping_ratio));
+          if (const auto& d = sh->design_for) {
+            w.begin("design_for");
+            w.text("link", d->link);
+            if (d->length) w.value("length", *d->length, u::length);
+            if (d->mass) w.value("mass", *d->mass, u::mass);
+            w.end();
+          }
+        } else {
+          w.value("frequency", sh->frequency, u::rate);
+        }
+        if (sh->mode == 0 || sh->damping_given) w.value("damping_ratio", sh->damping_ratio, u::dimensionless);
+        if (sh->kind == ShaperKind::ei) w.value("vibration_tolerance", sh->vibration_tolerance, u::dimensionless);
+        w.end();
+      }
+      if (const auto& st = stop) {
+        w.begin("stop");
+        w.value("at", st->at, u::duration);
+        w.value("decel", st->decel, angular ? u::angular_acceleration : u::acceleration);
+        w.value("jerk", st->jerk, angular ? u::angular_jerk : u::jerk);
+        w.end();
+      }
+    };
     if (const auto& sl = s.slew) {
       w.begin("slew");
       w.value("radius", sl->radius, u::length);
@@ -266,27 +299,14 @@ std::string normalised_yaml(const Spec& spec) {
         write_moves(lu->moves, boom);
         w.end();
       }
+      write_shaper_and_stop(sl->shaper, sl->stop, true);
       w.end();
     }
     if (const auto& t = s.travel) {
       w.begin("travel");
       w.value("speed", t->initial_speed, u::speed);
       write_moves(t->moves);
-      if (const auto& sh = t->shaper) {
-        w.begin("shaper");
-        w.text("kind", sh->kind == ShaperKind::zv ? "zv" : sh->kind == ShaperKind::zvd ? "zvd" : "ei");
-        w.value("frequency", sh->frequency, u::rate);
-        w.value("damping_ratio", sh->damping_ratio, u::dimensionless);
-        if (sh->kind == ShaperKind::ei) w.value("vibration_tolerance", sh->vibration_tolerance, u::dimensionless);
-        w.end();
-      }
-      if (const auto& stop = t->stop) {
-        w.begin("stop");
-        w.value("at", stop->at, u::duration);
-        w.value("decel", stop->decel, u::acceleration);
-        w.value("jerk", stop->jerk, u::jerk);
-        w.end();
-      }
+      write_shaper_and_stop(t->shaper, t->stop, false);
       if (const auto& c = t->controller) {
         w.begin("controller");
         w.text("measure", spec.links[static_cast<std::size_t>(c->measure)].name);
@@ -296,6 +316,13 @@ std::string normalised_yaml(const Spec& spec) {
         w.value("accel_limit", c->accel_limit, u::acceleration);
         w.end();
       }
+      w.end();
+    }
+    if (const auto& t = s.cross_travel) {
+      w.begin("cross_travel");
+      w.value("speed", t->initial_speed, u::speed);
+      write_moves(t->moves);
+      write_shaper_and_stop(t->shaper, t->stop, false);
       w.end();
     }
     if (const auto& h = s.hoist) {

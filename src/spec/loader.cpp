@@ -374,7 +374,7 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
               "give at least one scenario, or leave 'base' out for a fixed top pivot");
   for (std::size_t i = 0; i < list.size(); ++i) {
     const std::string path = fmt::format("base.scenarios[{}]", i);
-    MapView s(ctx, list[i], path, {"name", "initial_velocity", "accel", "travel", "slew", "hoist", "lift_off", "uncertain"});
+    MapView s(ctx, list[i], path, {"name", "initial_velocity", "accel", "travel", "cross_travel", "slew", "hoist", "lift_off", "uncertain"});
     if (!s.ok()) continue;
     ScenarioSpec sc;
     sc.mark = s.mark();
@@ -412,6 +412,7 @@ void read_base(Context& ctx, const YAML::Node& node, Spec& spec) {
       read_travel_controller(s, spec, sc);
     }
     if (s.has("slew")) read_slew(s, spec, sc);
+    if (s.has("cross_travel")) read_cross_travel(s, spec, sc);
     spec.scenarios.push_back(std::move(sc));
   }
   read_uncertain(ctx, list, spec);
@@ -648,6 +649,7 @@ Spec load_spec_text(std::string_view text, const std::string& file_label, const 
   if (top.has("dashpots")) read_dashpots(ctx, top.get("dashpots"), spec);
   if (top.has("wind")) read_wind(ctx, top.get("wind"), spec);
   if (top.has("base")) read_base(ctx, top.get("base"), spec);
+  if (ctx.diagnostics.empty()) check_mode_shapers(ctx, spec);
   if (spec.scenarios.empty() && !top.has("base")) {
     ScenarioSpec still;
     still.name = "still";

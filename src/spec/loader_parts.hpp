@@ -28,7 +28,7 @@ void read_scenario_rope_keys(const MapView& scenario, const Spec& spec, Scenario
 /// A speed profile's error as (message, fix) (loader_moves.cpp).
 std::pair<std::string, std::string> split_profile_error(const ProfileError& e);
 /// Whose speed move: a hoist drum's, a travel drive's (speeds in m/s) or a slewing drive's (rad/s).
-enum class MoveOf { drum, travel, slew };
+enum class MoveOf { drum, travel, slew, cross_travel };
 /// Reads one speed move {at, to, accel, jerk} at `path` into `move` (`of` picks the units and the
 /// words of the messages); false when it could not be read (loader_moves.cpp).
 bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& path, DrumMoveSpec& move, MoveOf of);
@@ -38,6 +38,17 @@ bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& pat
 void read_travel(const MapView& scenario, ScenarioSpec& sc);
 /// Reads the travel drive's `controller` (loader_controller.cpp), after read_travel.
 void read_travel_controller(const MapView& scenario, const Spec& spec, ScenarioSpec& sc);
+/// Reads a drive axis's keys speed, moves, shaper and stop from `t` (`of`: travel and cross travel
+/// in m/s, slewing in rad/s) and checks its profile; false when something was reported.
+bool read_drive_keys(const MapView& t, MoveOf of, double& initial_speed, std::vector<DrumMoveSpec>& moves,
+                     std::optional<ScenarioSpec::Travel::Shaper>& shaper,
+                     std::optional<ScenarioSpec::Travel::Stop>& stop);
+/// Reads a scenario's `cross_travel` drive (spatial chains; the z parts of `accel` and
+/// `initial_velocity` and `slew` refused beside it).
+void read_cross_travel(const MapView& scenario, const Spec& spec, ScenarioSpec& sc);
+/// Once the links and scenarios are read: resolves the shapers designed from a mode
+/// (resolve_shaper_modes) and checks their drives, which read_drive_keys could not.
+void check_mode_shapers(Context& ctx, Spec& spec);
 /// After cases.duration is read: every hoisted rope's length, length - s(t) / parts_of_line with s
 /// the rope the drum hauled in, stays within [kMinHoistedShare, kMaxHoistedFactor] x its length
 /// over [0, duration].

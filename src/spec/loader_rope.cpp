@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "loader_parts.hpp"
+#include "swaybound/modal/shaper_modes.hpp"
 #include "swaybound/model/profile.hpp"
 #include "swaybound/model/shaper.hpp"
 #include "swaybound/spec/paths.hpp"
@@ -357,7 +358,13 @@ void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& s
   if (!spec.sizing) return;
   bool any_rope_check = false;
   for (const auto& l : spec.links) any_rope_check |= l.kind == LinkKind::rope && l.elastic;
-  for (const auto& sc : spec.scenarios) any_rope_check |= (sc.hoist && sc.hoist->link >= 0) || sc.travel;
+  bool mode_shaped = false;  // a shaper designed from a mode: every design value may move the mode
+  for (const auto& sc : spec.scenarios) {
+    any_rope_check |= (sc.hoist && sc.hoist->link >= 0) || sc.travel || sc.cross_travel || sc.slew;
+    for (const auto* shaper : {sc.travel ? &sc.travel->shaper : nullptr,
+                               sc.cross_travel ? &sc.cross_travel->shaper : nullptr, sc.slew ? &sc.slew->shaper : nullptr})
+      mode_shaped |= shaper && *shaper && (*shaper)->mode > 0;
+  }
   if (!any_rope_check) return;
   const auto& variables = spec.sizing->variables;
   for (std::size_t i = 0; i < variables.size(); ++i) {
@@ -368,7 +375,7 @@ void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& s
     // the drum's moves; each is monotonic in every one of them, so the ends of a range (or of a
     // catalogue) are the designs to check.
     using F = SpecPath::Field;
-    if (!target || !(target->field == F::length || target->field == F::mass || target->field == F::rope_ea ||
+    if (!target || !(mode_shaped || target->field == F::length || target->field == F::mass || target->field == F::rope_ea ||
                      target->field == F::rope_stiffness || target->field == F::parts_of_line ||
                      target->field >= F::drum_speed))
       continue;
@@ -380,10 +387,13 @@ void check_sized_ropes(Context& ctx, const YAML::Node& links_node, const Spec& s
       set_spec_value(design, *target, value);
       Context probe;
       check_elastic_ropes(probe, links_node, design);
+      for (Diagnostic& d : resolve_shaper_modes(design)) probe.error(d.mark, d.path, d.message, d.fix);
       try {
         for (const auto& sc : design.scenarios) {
           if (sc.hoist) (void)drum_profile(*sc.hoist);
           if (sc.travel) (void)travel_drive_profile(*sc.travel);  // moves, shaper and stop
+          if (sc.cross_travel) (void)travel_drive_profile(*sc.cross_travel);
+          if (sc.slew) (void)slew_drive_profile(*sc.slew);
         }
         check_hoisted_lengths(probe, design);
       } catch (const ProfileError& e) {

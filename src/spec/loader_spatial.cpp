@@ -35,36 +35,14 @@ void read_slew(const MapView& scenario, const Spec& spec, ScenarioSpec& sc) {
       ctx.error(scenario.key_mark(other), scenario.path(other),
                 fmt::format("'{}' and 'slew' both set the base's motion", other),
                 "give the motion either as slewing (slew: {radius, speed, moves}) or as travel, not both");
-  MapView m(ctx, scenario.get("slew"), scenario.path("slew"), {"radius", "speed", "moves", "luff"});
+  MapView m(ctx, scenario.get("slew"), scenario.path("slew"), {"radius", "speed", "moves", "shaper", "stop", "luff"});
   if (!m.ok()) return;
   ScenarioSpec::Slew slew;
   slew.mark = scenario.key_mark("slew");
   if (m.require("radius", "the pivot's distance from the slewing axis, e.g. '18 m'"))
     if (auto v = read_quantity(ctx, m.get("radius"), m.path("radius"), units::length, Bounds::positive()))
       slew.radius = *v;
-  read_optional(m, "speed", slew.initial_rate, units::angular_rate);
-  bool moves_ok = true;
-  if (m.has("moves") && expect_sequence(ctx, m.get("moves"), m.path("moves"), "slewing moves {at, to, accel, jerk}")) {
-    const YAML::Node list = m.get("moves");
-    for (std::size_t k = 0; k < list.size(); ++k) {
-      DrumMoveSpec move;
-      moves_ok &= read_drum_move(ctx, list[k], fmt::format("{}[{}]", m.path("moves"), k), move, MoveOf::slew);
-      slew.moves.push_back(move);
-    }
-  } else if (m.has("moves")) {
-    moves_ok = false;
-  }
-  if (moves_ok) {
-    std::vector<SpeedMove> moves;
-    for (const DrumMoveSpec& d : slew.moves) moves.push_back(SpeedMove{d.at, d.to, d.accel, d.jerk});
-    try {
-      (void)SpeedProfile::build(slew.initial_rate, moves);
-    } catch (const ProfileError& e) {
-      const auto [message, fix] = split_profile_error(e);
-      const std::size_t k = e.move_index();
-      ctx.error(slew.moves[k].mark, fmt::format("{}[{}]", m.path("moves"), k), message, fix);
-    }
-  }
+  (void)read_drive_keys(m, MoveOf::slew, slew.initial_rate, slew.moves, slew.shaper, slew.stop);
   if (m.has("luff")) read_luff(m, slew);
   sc.slew = slew;
 }

@@ -92,6 +92,13 @@ std::optional<SpecPath> parse_scenario_path(const Spec& spec, const std::string&
                             control ? "controller" : f.field == Field::stop_decel ? "stop" : "shaper");
         return std::nullopt;
       }
+      const auto& shaper = scenario.travel->shaper;
+      if (shaper && shaper->mode > 0 &&
+          (f.field == Field::shaper_frequency || (f.field == Field::shaper_damping_ratio && !shaper->damping_given))) {
+        error = fmt::format("scenario '{}''s shaper is designed from mode {}, which sets its {}", name, shaper->mode,
+                            f.field == Field::shaper_frequency ? "frequency" : "damping ratio");
+        return std::nullopt;
+      }
       return SpecPath{f.field, index, 0, true};
     }
   const std::vector<DrumMoveSpec>* moves = nullptr;

@@ -1,6 +1,6 @@
 #pragma once
-// The effect of a travel drive's input shaper (model/shaper.hpp), for the review packet: per
-// scenario whose travel drive has a shaper, the case that governs the sway in that scenario is run
+// The effect of a drive's input shaper (model/shaper.hpp), for the review packet: per scenario and
+// drive axis (travel, cross travel, slewing) with a shaper, the case that governs the sway in that scenario is run
 // twice, as the spec gives it and with the shaper removed (same moves, same stop), and the residual
 // sway of both runs is compared after the later of the two ends of the moves. Because a shaper is
 // designed for one frequency and the chain's frequency varies over the design's range, the
@@ -31,7 +31,7 @@ struct ShapingRun {
   long stride = 1;              ///< every stride-th output sample is recorded
   std::vector<double> t;        ///< [s]
   std::vector<double> top_angle;///< link 0's angle (spatial: swing angle) [rad]
-  std::vector<double> base_speed;///< the base's speed along x [m/s]
+  std::vector<double> base_speed;///< the shaped drive's speed (travel along x, cross travel along z [m/s]; slewing [rad/s])
   std::string status = "ok";    ///< the run's status (status_name)
 };
 
@@ -43,9 +43,11 @@ struct SensitivityMark {
   double vibration = 0;     ///< residual_vibration there, at the shaper's damping ratio [-]
 };
 
-/// The comparison for one scenario whose travel drive has a shaper.
+/// The comparison for one drive axis with a shaper (travel, cross travel or slewing) of one scenario.
 struct ShapingComparison {
   int scenario = -1;
+  std::string axis = "travel";      ///< the shaped drive's key: travel, cross_travel or slew
+  int mode = 0;                     ///< the shaper was designed from this mode of `modes` (0: frequency given)
   InputShaper shaper;               ///< as designed from the spec (kind, frequency, damping, impulses)
   /// What chose the case: the spec's key of the limit whose worst case in this scenario it is
   /// ("residual_sway", "peak_angle"), or "first case" (no such limit, or no case of the scenario ran).
@@ -94,7 +96,8 @@ class ShapingCases {
 /// sizing variable of a link's length or mass, of the chain at each end of its range.
 void shaping_sensitivity(const Spec& spec, const InputShaper& shaper, ShapingComparison& out);
 
-/// Per scenario of the plan's spec whose travel drive has a shaper, in scenario order: the chosen
+/// Per scenario of the plan's spec and drive axis with a shaper, in scenario order (travel, cross
+/// travel, slewing within one): the chosen
 /// case run as given and without the shaper, recorded, with the sensitivity curve. Empty when no
 /// scenario has a shaper.
 std::vector<ShapingComparison> compare_shaping(const CheckPlan& plan, const ShapingCases& cases);

@@ -71,6 +71,7 @@ struct Phase {
   double jx = 0;                    ///< base jerk along x within the phase (a travel drive's S-curve) [m/s^3]
   double x0 = 0, y0 = 0, vx0 = 0, vy0 = 0;  ///< base position [m] and velocity [m/s] at t0
   double az = 0, z0 = 0, vz0 = 0;   ///< across the travel (spatial chains): acceleration, position, velocity at t0
+  double jz = 0;                    ///< base jerk along z within the phase (a cross-travel drive's S-curve) [m/s^3]
   std::vector<double> wind_speed;   ///< per wind load [m/s]
   /// Rope hauled in at the drum since t = 0 [m], its speed [m/s], acceleration [m/s^2] at t0 and
   /// the jerk [m/s^3] within the phase (all 0 without a hoist).

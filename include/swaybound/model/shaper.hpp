@@ -88,9 +88,18 @@ SpeedProfile shape_profile(const SpeedProfile& command, const InputShaper& shape
 /// stop that would end at a time that is not finite.
 SpeedProfile stop_profile(const SpeedProfile& command, double at, double decel, double jerk = 0);
 
-/// The travel drive's profile of a spec: the moves, shaped when the drive has a shaper, stopped
-/// when it has a stop. Throws ProfileError for moves that cannot be built and ArgumentError for a
-/// shaper or stop that cannot.
+/// One drive axis's profile (travel along x, cross travel along z, slewing in rad/s): the speed
+/// moves from `initial_speed`, shaped when `shaper` is given, stopped when `stop` is. Throws
+/// ProfileError for moves that cannot be built and ArgumentError for a shaper or stop that cannot
+/// (a shaper designed from a mode whose frequency is not resolved yet, frequency 0, is one).
+SpeedProfile drive_axis_profile(double initial_speed, const std::vector<DrumMoveSpec>& moves,
+                                const std::optional<ScenarioSpec::Travel::Shaper>& shaper,
+                                const std::optional<ScenarioSpec::Travel::Stop>& stop);
+
+/// The travel (or cross-travel) drive's profile of a spec: drive_axis_profile of its keys.
 SpeedProfile travel_drive_profile(const ScenarioSpec::Travel& travel);
+
+/// The slewing drive's profile [rad, rad/s, rad/s^2]: drive_axis_profile of its keys.
+SpeedProfile slew_drive_profile(const ScenarioSpec::Slew& slew);
 
 }  // namespace swaybound

@@ -40,7 +40,9 @@ struct DesignVariable {
 /// error) or a path no longer resolves.
 std::vector<DesignVariable> design_variables(const Spec& spec);
 
-/// Sets every variable's value in `spec` (SI, one per variable, in order).
+/// Sets every variable's value in `spec` (SI, one per variable, in order), then the frequency of
+/// every shaper designed from a mode of the chain so changed (resolve_shaper_modes; a SpecError
+/// when one cannot be).
 void apply_design(Spec& spec, const std::vector<DesignVariable>& variables, const std::vector<double>& values);
 
 /// Weighted cost: sum of cost_i * value_i [cost units].

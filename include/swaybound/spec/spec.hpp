@@ -158,10 +158,21 @@ struct ScenarioSpec {
     /// The moves convolved with an input shaper designed for one mode (model/shaper.hpp).
     struct Shaper {
       ShaperKind kind = ShaperKind::zv;
-      double frequency = 0;              ///< design frequency [Hz]
-      double damping_ratio = 0;          ///< [-], in [0, 1)
+      double frequency = 0;              ///< design frequency [Hz] (from the mode when `mode` > 0)
+      double damping_ratio = 0;          ///< [-], in [0, 1) (from the mode when `mode` > 0 and not given)
       double vibration_tolerance = 0.05; ///< EI only [-], in (0, 1)
-      Mark mark;
+      /// Designed from a mode of `modes` (1-based, lowest first; 0: frequency given): frequency, and
+      /// damping_ratio unless `damping_given`, are set by resolve_shaper_modes (modal/shaper_modes.hpp)
+      /// whenever the chain changes, of the chain with `design_for`'s values when given.
+      int mode = 0;
+      bool damping_given = true;
+      struct DesignFor {
+        std::string link;  ///< as written
+        std::optional<double> length, mass;  ///< [m], [kg]: the link's values for the design only
+        Mark mark, link_mark;
+      };
+      std::optional<DesignFor> design_for;
+      Mark mark, mode_mark;
     };
     std::optional<Shaper> shaper;
     /// An emergency or service stop: at `at` the drive leaves its (shaped) command and stops at
@@ -185,6 +196,9 @@ struct ScenarioSpec {
     Mark mark;
   };
   std::optional<Travel> travel;
+  /// Spatial chains: the base's travel across (along z) as a drive, keys as `travel`'s (the z part of
+  /// the initial velocity and of `accel` instead).
+  std::optional<Travel> cross_travel;
   /// Spatial chains: the top pivot on a boom slewing about a vertical axis at `radius` from it,
   /// its slewing speed [rad/s] given as speed moves (rad/s, rad/s^2, rad/s^3), instead of `accel`,
   /// `initial_velocity` and `travel`. The axis is at (-radius, 0, 0), so the pivot starts at the
@@ -207,6 +221,8 @@ struct ScenarioSpec {
       Mark mark, speed_mark;     ///< the `luff` key; its `speed` key (the `luff` key when not given)
     };
     std::optional<Luff> luff;
+    std::optional<Travel::Shaper> shaper;  ///< as a travel drive's, on the slewing speed
+    std::optional<Travel::Stop> stop;      ///< decel [rad/s^2], jerk [rad/s^3]
     Mark mark;
   };
   std::optional<Slew> slew;
