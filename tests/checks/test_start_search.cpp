@@ -276,3 +276,30 @@ sizing:
   // The report's sizing table marks the check (the check packet's own verdict table says "t = ..., start transient?").
   CHECK(html.find("rope&#39;), start transient?") != std::string::npos);
 }
+
+TEST_CASE("an equilibrium set sampled over a range of wind speeds matches the statics of a pendulum",
+          "[cases][starts][reference]") {
+  // Outside check: statics of a point mass on a massless rod with a horizontal force F at the mass:
+  // moments about the pivot F L cos(theta) = m g L sin(theta), so tan(theta) = F / (m g), with the
+  // quadratic drag F = 1/2 rho Cd A u^2 (the wind law of specs/README.md).
+  const double rho = 1.225, cd = 1.2, area = 6, m = 500;
+  const Spec spec = load_spec_text(R"(
+swaybound: 1
+name: wind range
+gravity: 9.81
+links:
+  - {name: rope, length: 6, mass: 500, com: 6, inertia: 0}
+wind: [{link: rope, at: 6 m, speed: 5 m/s, drag_area: 6 m^2, drag_coefficient: 1.2, air_density: 1.225 kg/m^3}]
+cases: {duration: 1 s, initial: [{equilibrium: {acceleration: 0 m/s^2, wind_speed: [0 m/s, 30 m/s, 4]}}]}
+)",
+                                   "w.yaml");
+  const CaseSpace space(spec);
+  REQUIRE(space.size() == 4);
+  for (long k = 0; k < 4; ++k) {
+    const CaseDef def = space.at(k);
+    const double u = 10.0 * static_cast<double>(k);
+    REQUIRE(def.initial.quantities.size() == 2);
+    CHECK_THAT(def.initial.quantities[1], IsCloseTo(u, 1e-14, 0));
+    CHECK_THAT(def.initial.theta[0], IsCloseTo(std::atan(0.5 * rho * cd * area * u * u / (m * kG)), 0, 1e-10));
+  }
+}
