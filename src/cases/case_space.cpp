@@ -35,8 +35,13 @@ const Range& dimension(const InitialSetSpec& set, std::size_t d) {
   }
   throw ArgumentError(fmt::format("start dimension {} out of range", d));
 }
-/// Where the values of a set's dimensions go: theta, omega, phi, phi_rate, amplitude, phase.
-using Targets = std::array<std::vector<double>*, 6>;
+/// Where the values of a set's dimensions go: theta, omega, phi, phi_rate, amplitude, phase,
+/// steady acceleration, wind speed.
+using Targets = std::array<std::vector<double>*, kStartLists>;
+/// How a set's ranges are sampled: its kind, or an equilibrium set's sampling.
+InitialKind sampling(const InitialSetSpec& set) {
+  return set.kind == InitialKind::equilibrium ? set.sampling : set.kind;
+}
 void assign(const Targets& targets, const InitialSetSpec& set, std::size_t d, double value) {
   const auto lists = start_lists(set);
   for (std::size_t k = 0; k < lists.size(); ++k) {
@@ -85,7 +90,7 @@ CaseSpace::CaseSpace(const Spec& spec) : spec_(&spec) {
     offsets_.push_back(starts_);
     starts_ += initial_set_size(set);
     std::vector<std::vector<int>> perms;
-    if (set.kind == InitialKind::random && set.method == SamplingMethod::latin_hypercube) {
+    if (sampling(set) == InitialKind::random && set.method == SamplingMethod::latin_hypercube) {
       // One random permutation of the strata per dimension (Fisher-Yates with unit_random).
       for (std::size_t d = 0; d < dimensions(set); ++d) {
         std::vector<int> p(static_cast<std::size_t>(set.count));
@@ -118,7 +123,8 @@ void CaseSpace::prepare_starts(const Spec& spec) {
     equilibrium |= set.kind == InitialKind::equilibrium;
   }
   if (!modal && !equilibrium) return;
-  const Model model = build_model(spec);
+  model_ = std::make_shared<const Model>(build_model(spec));
+  const Model& model = *model_;
   if (modal) {
     modes_ = std::make_shared<const ModalResult>(modal_analysis(model));
     // Envelope: |theta_i| <= sum_k max |A_k| |s_ki| <= sum_k max |A_k| (largest |s_ki| is 1).
@@ -130,40 +136,61 @@ void CaseSpace::prepare_starts(const Spec& spec) {
   }
   if (!equilibrium) return;
   Workspace ws(model);
+  const auto scenarios = static_cast<long>(model.scenarios.size());
   for (std::size_t i = 0; i < spec.cases.initial.size(); ++i) {
     const InitialSetSpec& set = spec.cases.initial[i];
     if (set.kind != InitialKind::equilibrium) continue;
-    for (std::size_t sc = 0; sc < model.scenarios.size(); ++sc) {
-      // The inputs at t = 0 with the set's steady acceleration and wind in place of the scenario's.
-      Phase phase = model.scenarios[sc].phases.front();
-      if (!set.accel_from_scenario) {
-        phase.ax = set.accel;
-        phase.ay = 0;
+    const long count = initial_set_size(set);
+    for (long k = 0; k < count; ++k) {
+      std::vector<double> none, accel(set.accel_range.size()), wind(set.wind_range.size());
+      fill_start(set, static_cast<int>(i), k, {&none, &none, &none, &none, &none, &none, &accel, &wind});
+      for (long sc = 0; sc < scenarios; ++sc) {
+        const auto [a, u] = steady_values(model, set, static_cast<int>(sc), accel, wind);
+        const EquilibriumResult e = steady_equilibrium(spec, model, ws, set, static_cast<int>(sc), a, u);
+        if (!e.converged) {
+          std::vector<std::string> angles;
+          for (double t : e.theta) angles.push_back(fmt::format("{:.4g}", t * 180 / 3.141592653589793));
+          throw SpecError(spec.source_file,
+                          {Diagnostic{set.mark, fmt::format("cases.initial[{}].equilibrium", i),
+                                      fmt::format("no equilibrium start under scenario '{}' ({:g} m/s^2 along the travel{}): {} "
+                                                  "(last angles {} deg, residual {:.3g})",
+                                                  spec.scenarios[static_cast<std::size_t>(sc)].name, a,
+                                                  std::isnan(u) ? std::string() : fmt::format(", wind {:g} m/s", u),
+                                                  e.reason, fmt::join(angles, ", "), e.residual),
+                                      "give a smaller steady acceleration or wind_speed, or start this chain from angles "
+                                      "(theta, rate)"}});
+        }
+        for (double t : e.theta) envelope_ = std::max(envelope_, std::fabs(t));
+        equilibria_[i].push_back(e.theta);
       }
-      for (std::size_t w = 0; w < phase.wind_speed.size(); ++w)
-        phase.wind_speed[w] = set.wind_from_spec ? spec.wind[w].speed : set.wind_speed;
-      const EquilibriumResult e = static_equilibrium(model, ws, phase);
-      if (!e.converged) {
-        std::vector<std::string> angles;
-        for (double t : e.theta) angles.push_back(fmt::format("{:.4g}", t * 180 / 3.141592653589793));
-        throw SpecError(spec.source_file,
-                        {Diagnostic{set.mark, fmt::format("cases.initial[{}].equilibrium", i),
-                                    fmt::format("no equilibrium start under scenario '{}' ({:g} m/s^2 along the travel): {} "
-                                                "(last angles {} deg, residual {:.3g})",
-                                                spec.scenarios[sc].name, phase.ax, e.reason, fmt::join(angles, ", "),
-                                                e.residual),
-                                    "give a smaller steady acceleration or wind_speed, or start this chain from angles "
-                                    "(theta, rate)"}});
-      }
-      for (double t : e.theta) envelope_ = std::max(envelope_, std::fabs(t));
-      equilibria_[i].push_back(e.theta);
     }
   }
 }
 
+std::array<double, 2> steady_values(const Model& model, const InitialSetSpec& set, int scenario,
+                                    const std::vector<double>& accel, const std::vector<double>& wind) {
+  const double a = !accel.empty()            ? accel.front()
+                   : set.accel_from_scenario ? model.scenarios.at(static_cast<std::size_t>(scenario)).phases.front().ax
+                                             : set.accel;
+  const double u = !wind.empty() ? wind.front() : set.wind_from_spec ? std::nan("") : set.wind_speed;
+  return {a, u};
+}
+
+EquilibriumResult steady_equilibrium(const Spec& spec, const Model& model, Workspace& ws, const InitialSetSpec& set,
+                                     int scenario, double accel, double wind) {
+  Phase phase = model.scenarios.at(static_cast<std::size_t>(scenario)).phases.front();
+  if (!set.accel_from_scenario) {
+    phase.ax = accel;
+    phase.ay = 0;
+  }
+  for (std::size_t w = 0; w < phase.wind_speed.size(); ++w)
+    phase.wind_speed[w] = std::isnan(wind) ? spec.wind[w].speed : wind;
+  return static_equilibrium(model, ws, phase);
+}
+
 void CaseSpace::fill_start(const InitialSetSpec& set, int set_index, long k, Targets out) const {
   const std::size_t dims = dimensions(set);
-  switch (set.kind) {
+  switch (sampling(set)) {
     case InitialKind::single:
       for (std::size_t d = 0; d < dims; ++d) assign(out, set, d, dimension(set, d).lo);
       break;
@@ -210,7 +237,7 @@ void CaseSpace::fill_start(const InitialSetSpec& set, int set_index, long k, Tar
       break;
     }
     case InitialKind::equilibrium:
-      break;  // at() takes the scenario's equilibrium
+      break;  // an equilibrium set's sampling is single, grid or random
   }
 }
 
@@ -233,13 +260,20 @@ CaseDef CaseSpace::at(long index) const {
   }
   c.start_kind = start_kind(set);
   std::vector<double> amplitude(set.amplitude.size(), 0.0), phase(set.phase.size(), 0.0);
-  fill_start(set, c.set, c.start, {&c.initial.theta, &c.initial.omega, &c.initial.phi, &c.initial.phi_rate, &amplitude, &phase});
+  std::vector<double> accel(set.accel_range.size(), 0.0), wind(set.wind_range.size(), 0.0);
+  fill_start(set, c.set, c.start,
+             {&c.initial.theta, &c.initial.omega, &c.initial.phi, &c.initial.phi_rate, &amplitude, &phase, &accel, &wind});
   if (c.start_kind == StartKind::modal) {
     const InitialState m = modal_start(*modes_, amplitude, phase);
     c.initial.theta = m.theta;
     c.initial.omega = m.omega;
+    c.initial.quantities = amplitude;
+    c.initial.quantities.insert(c.initial.quantities.end(), phase.begin(), phase.end());
   } else if (c.start_kind == StartKind::equilibrium) {
-    c.initial.theta = equilibria_[static_cast<std::size_t>(c.set)][static_cast<std::size_t>(c.scenario)];
+    const auto scenarios = static_cast<long>(spec_->scenarios.size());
+    c.initial.theta = equilibria_[static_cast<std::size_t>(c.set)][static_cast<std::size_t>(c.start * scenarios + c.scenario)];
+    const auto [a, u] = steady_values(*model_, set, c.scenario, accel, wind);
+    c.initial.quantities = {a, u};
   }
   const int width = static_cast<int>(std::to_string(initial_set_size(set)).size());
   c.id = fmt::format("{}/{}-{:0{}}", slugs_[static_cast<std::size_t>(c.scenario)], set_slugs_[static_cast<std::size_t>(c.set)], c.start + 1,

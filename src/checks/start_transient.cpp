@@ -38,7 +38,38 @@ std::string start_description(const Spec& spec, const CaseDef& def) {
                                  degrees(def.initial.theta, n));
   if (!rest) text += fmt::format(", omega0 = {} deg/s", degrees(def.initial.omega, n));
   if (!def.initial.phi.empty()) text += fmt::format(", phi0 = {} deg", degrees(def.initial.phi, n));
+  if (const std::string values = start_values_text(spec, def.set, def.initial.quantities); !values.empty())
+    text += " (" + values + ")";
   return text;
+}
+
+std::string start_values_text(const Spec& spec, int set, const std::vector<double>& quantities, bool si) {
+  if (set < 0 || static_cast<std::size_t>(set) >= spec.cases.initial.size() || quantities.empty()) return {};
+  const InitialSetSpec& s = spec.cases.initial[static_cast<std::size_t>(set)];
+  if (start_kind(s) == StartKind::equilibrium) {
+    std::string text = fmt::format("steady acceleration {:.6g} m/s^2", quantities.at(0));
+    if (quantities.size() > 1 && !std::isnan(quantities[1])) text += fmt::format(", wind speed {:.6g} m/s", quantities[1]);
+    return text;
+  }
+  if (start_kind(s) != StartKind::modal) return {};
+  const std::size_t modes = std::min(s.amplitude.size(), quantities.size());
+  const auto list = [&](std::size_t from, std::size_t to) {
+    std::vector<std::string> out;
+    for (std::size_t k = from; k < to; ++k)
+      out.push_back(fmt::format("{:.6g}", si ? quantities[k] : quantities[k] * 180 / std::numbers::pi));
+    return fmt::format("({})", fmt::join(out, ", "));
+  };
+  std::string text = fmt::format("amplitude {} {}", list(0, modes), si ? "rad" : "deg");
+  if (quantities.size() > modes) text += fmt::format(", phase {} {}", list(modes, quantities.size()), si ? "rad" : "deg");
+  return text;
+}
+
+std::string start_transient_remark(double time, double period, const std::string& start_note) {
+  return fmt::format("start transient? The worst value is at t = {:.3g} s, within the first quarter of the lowest modal "
+                     "period ({:.3g} s) after the start {}. It may come from this start (a kinked chain released from "
+                     "rest) rather than from the motion; check it again from an equilibrium or modal start "
+                     "(specs/README.md, 'Starts').",
+                     time, period, start_note);
 }
 
 void flag_start_transients(const Spec& spec, const CaseSpace& space, const ModalResult& modes,

@@ -111,64 +111,70 @@ struct Problem {
   nlopt_opt opt = nullptr;
   TaskResult* result = nullptr;
 
-  /// The case at scaled point `u` (clamped to the box).
-  CaseDef case_at(const double* u) const {
-    CaseDef def = base;
-    for (std::size_t k = 0; k < box->free.size(); ++k) {
-      const auto d = static_cast<std::size_t>(box->free[k]);
-      const double s = std::clamp(u[k], 0.0, 1.0);
-      start_quantity(def.initial, box->free[k], box->links) = box->lo[d] + s * (box->hi[d] - box->lo[d]);
-    }
-    return def;
+  /// Scaled coordinate k of a point: clamped to [0, 1], or wrapped into [0, 1) for a periodic
+  /// dimension (a phase over a whole turn).
+  double scaled(const double* u, std::size_t k) const {
+    if (k < box->free.size() && box->periodic[static_cast<std::size_t>(box->free[k])]) return u[k] - std::floor(u[k]);
+    return std::clamp(u[k], 0.0, 1.0);
   }
 
-  /// The uncertain values at scaled point `u` (clamped to their ranges).
-  std::vector<double> values_at(const double* u) const {
+  /// The values of the box's free dimensions at scaled point `u`.
+  std::vector<double> start_at(const double* u) const {
     std::vector<double> values;
-    for (std::size_t k = 0; k < dims.size(); ++k) {
-      const double s = std::clamp(u[box->free.size() + k], 0.0, 1.0);
-      values.push_back(dims.lo[k] + s * (dims.hi[k] - dims.lo[k]));
+    for (std::size_t k = 0; k < box->free.size(); ++k) {
+      const auto d = static_cast<std::size_t>(box->free[k]);
+      values.push_back(box->lo[d] + u[k] * (box->hi[d] - box->lo[d]));
     }
     return values;
   }
 
+  /// The uncertain values at scaled point `u`.
+  std::vector<double> values_at(const double* u) const {
+    std::vector<double> values;
+    for (std::size_t k = 0; k < dims.size(); ++k) values.push_back(dims.lo[k] + u[box->free.size() + k] * (dims.hi[k] - dims.lo[k]));
+    return values;
+  }
+
+  /// Ends the task on a run that failed (or a start that does not exist): it fails the limit.
+  double fail(const CaseDef& def, const std::vector<double>& values, std::string why) {
+    result->failed = true;
+    result->failed_case = def;
+    result->failed_values = values;
+    result->failure = std::move(why);
+    nlopt_force_stop(opt);
+    return start_utilisation;
+  }
+
   double evaluate(const double* u) {
-    std::vector<double> key(u, u + box->free.size() + dims.size());
-    for (double& x : key) x = std::clamp(x, 0.0, 1.0);
+    std::vector<double> key(box->free.size() + dims.size());
+    for (std::size_t k = 0; k < key.size(); ++k) key[k] = scaled(u, k);
     if (const auto it = seen.find(key); it != seen.end()) return it->second;
     if (result->runs >= budget) {
       nlopt_force_stop(opt);
       return start_utilisation;
     }
-    const CaseDef def = case_at(key.data());
     const std::vector<double> values = values_at(key.data());
+    // The variant keeps the plan's model id, so this task's workspace runs it.
+    const auto variant = values.empty() ? nullptr : variants->get(*plan, base.scenario, dims, values);
+    const Model& model = variant ? variant->model : plan->model;
+    const Spec& spec = variant ? variant->spec : *plan->spec;
+    CaseDef def = base;
+    if (std::string why = move_start(*box, start_at(key.data()), spec, plan->space, model, *ws, def); !why.empty()) {
+      ++result->runs;
+      return fail(def, values, "no_start: " + why);
+    }
     SharedRuns::Key shared_key{options.ftle ? -1 - def.scenario : def.scenario, def.initial.theta};
-    for (const auto* list : {&def.initial.omega, &def.initial.phi, &def.initial.phi_rate, &values})
+    for (const std::vector<double>* list : std::initializer_list<const std::vector<double>*>{&def.initial.omega, &def.initial.phi, &def.initial.phi_rate, &values})
       shared_key.second.insert(shared_key.second.end(), list->begin(), list->end());
     std::shared_ptr<const CaseMetrics> run = shared->find(shared_key);
     if (!run) {
-      if (values.empty()) {
-        run = std::make_shared<const CaseMetrics>(
-            run_case(plan->model, *plan->spec, *ws, def, plan->streaming, options));
-      } else {
-        // The variant keeps the plan's model id, so this task's workspace runs it.
-        const auto variant = variants->get(*plan, def.scenario, dims, values);
-        run = std::make_shared<const CaseMetrics>(
-            run_case(variant->model, variant->spec, *ws, def, plan->streaming, options));
-      }
+      run = std::make_shared<const CaseMetrics>(run_case(model, spec, *ws, def, plan->streaming, options));
       shared->add(std::move(shared_key), run);
     }
     const CaseMetrics& m = *run;
     ++result->runs;
-    if (!m.ok()) {
-      // A failed run fails the limit: stop here and report its start.
-      result->failed = true;
-      result->failed_case = def;
-      result->failed_values = values;
-      result->failure = fmt::format("{}: {}", status_name(m.status), m.reason);
-      nlopt_force_stop(opt);
-      return start_utilisation;
-    }
+    // A failed run fails the limit: stop here and report its start.
+    if (!m.ok()) return fail(def, values, fmt::format("{}: {}", status_name(m.status), m.reason));
     const double value = starts->value(limit, m);
     // A case without a value (none of the limit's links has one) is neither better nor worse.
     const double u_value = std::isnan(value) ? start_utilisation : utilisation(bound, value);
@@ -194,7 +200,15 @@ nlopt_result optimise(nlopt_algorithm algorithm, Problem& p, std::vector<double>
   nlopt_opt opt = nlopt_create(algorithm, d);
   if (!opt) return NLOPT_OUT_OF_MEMORY;
   p.opt = opt;
-  const std::vector<double> lower(d, 0.0), upper(d, 1.0), step(d, kInitialStep);
+  // A periodic dimension may run a whole turn past either end (wrapped when evaluated), so the
+  // optimiser sees no wall at the seam.
+  std::vector<double> lower(d, 0.0), upper(d, 1.0);
+  const std::vector<double> step(d, kInitialStep);
+  for (std::size_t k = 0; k < p.box->free.size(); ++k)
+    if (p.box->periodic[static_cast<std::size_t>(p.box->free[k])]) {
+      lower[k] = -1;
+      upper[k] = 2;
+    }
   nlopt_set_lower_bounds(opt, lower.data());
   nlopt_set_upper_bounds(opt, upper.data());
   nlopt_set_max_objective(opt, &Problem::objective, &p);
@@ -212,9 +226,10 @@ nlopt_result optimise(nlopt_algorithm algorithm, Problem& p, std::vector<double>
 /// Whether an optimiser's result means it refused the problem (rather than stopping or ending).
 bool refused(nlopt_result r) { return r == NLOPT_INVALID_ARGS || r == NLOPT_FAILURE || r == NLOPT_OUT_OF_MEMORY; }
 
-TaskResult run_task(const CheckPlan& plan, const StartBox& box, const WorstStarts& starts, const Task& task,
+TaskResult run_task(const CheckPlan& plan, const std::vector<StartBox>& boxes, const WorstStarts& starts, const Task& task,
                     Workspace& ws, SharedRuns& shared, SharedVariants& variants) {
   const CaseMetrics& start = starts.of(task.limit)[task.start];
+  const StartBox& box = boxes[static_cast<std::size_t>(start.set)];
   const Bound bound = limit_kind(plan.spec->limits[static_cast<std::size_t>(task.limit)].kind).bound;
   TaskResult result;
   Problem p;
@@ -249,8 +264,8 @@ TaskResult run_task(const CheckPlan& plan, const StartBox& box, const WorstStart
   InitialState initial = start.initial;
   for (int d : box.free) {
     const auto k = static_cast<std::size_t>(d);
-    const double v = start_quantity(initial, d, box.links);
-    x.push_back(std::clamp((v - box.lo[k]) / (box.hi[k] - box.lo[k]), 0.0, 1.0));
+    const double u = (box_value(box, initial, d) - box.lo[k]) / (box.hi[k] - box.lo[k]);
+    x.push_back(box.periodic[k] ? u - std::floor(u) : std::clamp(u, 0.0, 1.0));
   }
   for (std::size_t k = 0; k < p.dims.size(); ++k)
     x.push_back(std::clamp((p.dims.nominal[k] - p.dims.lo[k]) / (p.dims.hi[k] - p.dims.lo[k]), 0.0, 1.0));
@@ -291,7 +306,8 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
                                       const std::vector<CheckResult>& checks, const SearchBudget& budget,
                                       int jobs) {
   const Spec& spec = *plan.spec;
-  const StartBox box = start_box(spec);
+  std::vector<StartBox> boxes;  // per set: the box its starts are searched in
+  for (std::size_t i = 0; i < spec.cases.initial.size(); ++i) boxes.push_back(set_box(spec, static_cast<int>(i)));
   std::vector<LimitSearch> out;
   std::vector<Task> tasks;
   for (const CheckResult& c : checks) {
@@ -312,7 +328,8 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
     // A start whose scenario has no uncertain value has nothing to move in a box that is a point.
     std::vector<int> movable;
     for (std::size_t j = 0; j < kept.size(); ++j)
-      if (!box.free.empty() || !spec.scenarios[static_cast<std::size_t>(kept[j].scenario)].uncertain.empty())
+      if (!boxes[static_cast<std::size_t>(kept[j].set)].free.empty() ||
+          !spec.scenarios[static_cast<std::size_t>(kept[j].scenario)].uncertain.empty())
         movable.push_back(static_cast<int>(j));
     s.searched = !movable.empty();
     const int count = static_cast<int>(movable.size());
@@ -330,7 +347,7 @@ std::vector<LimitSearch> search_worst(const CheckPlan& plan, const WorstStarts& 
   runner.jobs = jobs;
   run_ordered<TaskResult>(
       static_cast<long>(tasks.size()), runner, [&] { return Workspace(plan.model); },
-      [&](long k, Workspace& ws) { return run_task(plan, box, starts, tasks[static_cast<std::size_t>(k)], ws, shared, variants); },
+      [&](long k, Workspace& ws) { return run_task(plan, boxes, starts, tasks[static_cast<std::size_t>(k)], ws, shared, variants); },
       [&](TaskResult&& r) { results.push_back(std::move(r)); });
 
   for (LimitSearch& s : out) {

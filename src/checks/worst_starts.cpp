@@ -3,9 +3,13 @@
 // optimiser itself (NLopt) is in worst_search.cpp, built into swaybound::sizing.
 #include <algorithm>
 #include <cmath>
+#include <numbers>
+
+#include <fmt/format.h>
 
 #include "swaybound/checks/check_run.hpp"
 #include "swaybound/checks/worst_search.hpp"
+#include "swaybound/modal/modal_start.hpp"
 #include "swaybound/spec/case_set_kinds.hpp"
 
 namespace swaybound {
@@ -22,12 +26,13 @@ StartBox start_box(const Spec& spec) {
   box.links = static_cast<int>(n);
   box.lo.assign(blocks * n, INFINITY);
   box.hi.assign(blocks * n, -INFINITY);
+  box.periodic.assign(blocks * n, false);
   const auto widen = [&](std::size_t d, double a, double b) {
     box.lo[d] = std::min(box.lo[d], a);
     box.hi[d] = std::max(box.hi[d], b);
   };
   for (const InitialSetSpec& set : spec.cases.initial) {
-    // Modal and equilibrium starts are checked at their samples only (the box is of link angles).
+    // Modal and equilibrium starts have boxes of their own (set_box).
     if (start_kind(set) != StartKind::angles) continue;
     const bool ranged = set.kind == InitialKind::grid || set.kind == InitialKind::corners ||
                         set.kind == InitialKind::random;
@@ -52,9 +57,76 @@ StartBox start_box(const Spec& spec) {
   return box;
 }
 
+StartBox set_box(const Spec& spec, int set_index) {
+  const InitialSetSpec& set = spec.cases.initial.at(static_cast<std::size_t>(set_index));
+  const StartKind kind = start_kind(set);
+  if (kind == StartKind::angles) return start_box(spec);
+  StartBox box;
+  box.links = static_cast<int>(spec.links.size());
+  box.kind = kind;
+  box.set = set_index;
+  // The set's values in the order of InitialState::quantities (CaseSpace::at): amplitudes then
+  // phases, or the steady acceleration then the wind speed (a value it does not sample stays fixed).
+  const bool ranged = kind == StartKind::equilibrium ? set.sampling != InitialKind::single
+                                                     : set.kind == InitialKind::grid || set.kind == InitialKind::corners ||
+                                                           set.kind == InitialKind::random;
+  const auto add = [&](const Range& r, bool phase) {
+    box.lo.push_back(r.lo);
+    box.hi.push_back(ranged ? r.hi : r.lo);
+    // A phase over a whole turn: its ends are the same start.
+    box.periodic.push_back(phase && std::fabs((box.hi.back() - box.lo.back()) - 2 * std::numbers::pi) < 1e-9);
+  };
+  if (kind == StartKind::modal) {
+    for (const Range& r : set.amplitude) add(r, false);
+    for (const Range& r : set.phase) add(r, true);
+  } else {
+    add(set.accel_range.empty() ? Range{} : set.accel_range.front(), false);
+    add(set.wind_range.empty() ? Range{} : set.wind_range.front(), false);
+  }
+  for (std::size_t d = 0; d < box.lo.size(); ++d)
+    if (box.hi[d] > box.lo[d]) box.free.push_back(static_cast<int>(d));
+  return box;
+}
+
+double box_value(const StartBox& box, const InitialState& start, int d) {
+  if (box.kind == StartKind::angles) return start_quantity(const_cast<InitialState&>(start), d, box.links);
+  return start.quantities.at(static_cast<std::size_t>(d));
+}
+
+std::string move_start(const StartBox& box, const std::vector<double>& values, const Spec& spec, const CaseSpace& space,
+                       const Model& model, Workspace& ws, CaseDef& def) {
+  if (box.kind == StartKind::angles) {
+    for (std::size_t k = 0; k < box.free.size(); ++k) start_quantity(def.initial, box.free[k], box.links) = values.at(k);
+    return {};
+  }
+  std::vector<double>& q = def.initial.quantities;
+  for (std::size_t k = 0; k < box.free.size(); ++k) q.at(static_cast<std::size_t>(box.free[k])) = values.at(k);
+  const InitialSetSpec& set = spec.cases.initial.at(static_cast<std::size_t>(box.set));
+  if (box.kind == StartKind::modal) {
+    const auto modes = static_cast<std::ptrdiff_t>(set.amplitude.size());
+    const InitialState m = modal_start(*space.modes(), std::vector<double>(q.begin(), q.begin() + modes),
+                                       std::vector<double>(q.begin() + modes, q.end()));
+    def.initial.theta = m.theta;
+    def.initial.omega = m.omega;
+    return {};
+  }
+  const EquilibriumResult e = steady_equilibrium(spec, model, ws, set, def.scenario, q.at(0), q.at(1));
+  if (!e.converged)
+    return fmt::format("no equilibrium start at {:g} m/s^2{}: {}", q.at(0),
+                       std::isnan(q.at(1)) ? std::string() : fmt::format(", wind {:g} m/s", q.at(1)), e.reason);
+  def.initial.theta = e.theta;
+  std::fill(def.initial.omega.begin(), def.initial.omega.end(), 0.0);
+  return {};
+}
+
 WorstStarts::WorstStarts(const Spec& spec, int starts) : spec_(&spec), starts_(std::max(starts, 1)) {
   slots_ = residual_slots(spec);
   kept_.resize(spec.limits.size());
+  // A set of modal or equilibrium starts with nothing to move (values, not ranges) is searched only
+  // where its scenario has uncertain values.
+  for (std::size_t i = 0; i < spec.cases.initial.size(); ++i)
+    fixed_.push_back(start_kind(spec.cases.initial[i]) != StartKind::angles &&
+                     set_box(spec, static_cast<int>(i)).free.empty());
 }
 
 double WorstStarts::value(int limit, const CaseMetrics& m) const {
@@ -66,7 +138,8 @@ double WorstStarts::value(int limit, const CaseMetrics& m) const {
 
 void WorstStarts::offer(const CaseMetrics& m) {
   if (!m.ok()) return;
-  if (start_kind(spec_->cases.initial[static_cast<std::size_t>(m.set)]) != StartKind::angles) return;
+  if (fixed_[static_cast<std::size_t>(m.set)] && spec_->scenarios[static_cast<std::size_t>(m.scenario)].uncertain.empty())
+    return;
   for (std::size_t k = 0; k < spec_->limits.size(); ++k) {
     const LimitKindInfo& info = limit_kind(spec_->limits[k].kind);
     if (!info.per_case) continue;

@@ -42,6 +42,9 @@ void print_search(const Spec& spec, const CheckReport& r, const CheckResult& c, 
   }
   for (std::size_t k = 0; k < s.uncertain.size() && k < s.uncertain_dims.size(); ++k)
     start += fmt::format(", {} {}", s.uncertain_dims.paths[k], engineering(s.uncertain[k], s.uncertain_dims.units[k]));
+  // A modal or equilibrium start: the values the search moved.
+  if (const std::string values = start_values_text(spec, s.worst_case.set, s.worst_case.initial.quantities); !values.empty())
+    start += " (" + values + ")";
   if (s.failed_run)
     out << fmt::format("    search: a run failed between the samples ({}) from theta {} under '{}' ({} runs)\n",
                        s.failure, start, scenario, s.evaluations);

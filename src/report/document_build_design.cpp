@@ -179,12 +179,20 @@ Section design_section(const Spec& spec, const CheckReport& r) {
       notes = (notes.empty() ? "" : notes + "; ") +
               fmt::format("modal start: amplitude {}, phase {} per mode, lowest first",
                           range_text(set.amplitude, set.kind, kDeg, "deg"), range_text(set.phase, set.kind, kDeg, "deg"));
-    if (set.kind == InitialKind::equilibrium)
+    if (set.kind == InitialKind::equilibrium) {
+      // A sampled range is shown as the grid or random set that samples it.
+      const InitialKind sampled = set.sampling;
       notes = fmt::format("hanging still under {} and {}",
-                          set.accel_from_scenario ? std::string("each scenario's acceleration at t = 0")
-                                                  : fmt::format("{} m/s² along the travel", num(set.accel)),
-                          set.wind_from_spec ? std::string("the spec's steady wind")
-                                             : fmt::format("every wind load at {} m/s", num(set.wind_speed)));
+                          !set.accel_range.empty()
+                              ? fmt::format("{} along the travel", range_text(set.accel_range, sampled, 1, "m/s²"))
+                          : set.accel_from_scenario ? std::string("each scenario's acceleration at t = 0")
+                                                    : fmt::format("{} m/s² along the travel", num(set.accel)),
+                          !set.wind_range.empty() ? fmt::format("every wind load at {}", range_text(set.wind_range, sampled, 1, "m/s"))
+                          : set.wind_from_spec    ? std::string("the spec's steady wind")
+                                                  : fmt::format("every wind load at {} m/s", num(set.wind_speed)));
+      if (sampled == InitialKind::random)
+        notes += fmt::format("; seed {}, {}", set.seed, set.method == SamplingMethod::uniform ? "uniform" : "Latin hypercube");
+    }
     is.rows.push_back({{set.name, kind_name(set.kind), std::to_string(initial_set_size(set)),
                         range_text(set.theta, set.kind, kDeg, "deg"), range_text(set.rate, set.kind, kDeg, "deg/s"),
                         notes.empty() ? "-" : notes}});

@@ -1,6 +1,7 @@
 // Section 6, governing cases: for each limit, the case that governs it, its recorded sway and
 // the inputs beside it.
 #include "document_build.hpp"
+#include "swaybound/checks/start_transient.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -131,6 +132,9 @@ std::string start_text(const Spec& spec, const CaseSpace& space, long index) {
     }
     text += fmt::format(", φ0 = ({}) deg, φ'0 = ({}) deg/s", fmt::join(phi, ", "), fmt::join(phi_rate, ", "));
   }
+  // A modal or equilibrium start: the values it came from.
+  if (const std::string values = start_values_text(spec, def.set, def.initial.quantities); !values.empty())
+    text += " (" + values + ")";
   return text;
 }
 

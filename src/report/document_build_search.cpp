@@ -4,6 +4,7 @@
 
 #include <fmt/format.h>
 
+#include "swaybound/checks/start_transient.hpp"
 #include "swaybound/report/format.hpp"
 
 namespace swaybound::report_doc::build {
@@ -11,7 +12,7 @@ namespace swaybound::report_doc::build {
 namespace {
 
 /// "theta 3 deg, -6 deg; rate 2 deg/s, 0 deg/s" for a start.
-std::string start_text(const LimitSearch& s) {
+std::string start_text(const Spec& spec, const LimitSearch& s) {
   std::vector<std::string> theta, rate;
   for (double v : s.theta) theta.push_back(deg(v) + " deg");
   for (double v : s.omega) rate.push_back(num(v * kDeg) + " deg/s");
@@ -22,6 +23,9 @@ std::string start_text(const LimitSearch& s) {
     for (double v : s.phi_rate) phi_rate.push_back(num(v * kDeg) + " deg/s");
     text += fmt::format("; phi {}; phi rate {}", fmt::join(phi, ", "), fmt::join(phi_rate, ", "));
   }
+  // A modal or equilibrium start: the values the search moved.
+  if (const std::string values = start_values_text(spec, s.worst_case.set, s.worst_case.initial.quantities); !values.empty())
+    text += "; " + values;
   // The scenario's uncertain values there, each with the spec's value the samples used.
   const UncertainDims& dims = s.uncertain_dims;
   for (std::size_t k = 0; k < s.uncertain.size() && k < dims.size(); ++k)
@@ -105,7 +109,7 @@ Section search_section(const Spec& spec, const CheckReport& r) {
                  !ls.searched ? "not searched"
                  : ls.failed_run ? "-"
                                  : fmt::format("{} ({})", engineering(ls.raise, c.unit), ratio_percent(ls.raise_of_margin)),
-                 ls.searched ? scenario + start_text(ls) : "-",
+                 ls.searched ? scenario + start_text(spec, ls) : "-",
                  std::to_string(ls.evaluations),
                  ls.audited ? engineering(ls.audit_change, c.unit) : "-",
                  ls.pass ? "pass" : "FAIL"};

@@ -2,6 +2,8 @@
 // the limits that bind.
 #include "document_build.hpp"
 
+#include "swaybound/checks/start_transient.hpp"
+
 #include <cmath>
 
 #include <fmt/format.h>
@@ -136,9 +138,21 @@ Section sizing_section(const Spec& input, const SizingResult& r) {
     row.tone = held ? Tone::normal : Tone::fail;
     row.cell_tone.assign(row.cells.size(), Tone::normal);
     row.cell_tone[6] = held ? Tone::pass : Tone::fail;
+    if (l.start_transient_after) {
+      row.cells[0] += ", start transient?";
+      row.cell_tone[0] = Tone::warn;
+    }
     ct.rows.push_back(row);
   }
   s.blocks.push_back(table_block(ct));
+  // The final check's start transients, as the check packet remarks on them.
+  std::vector<Rich> transients;
+  for (const auto& l : r.limits)
+    if (l.start_transient_after)
+      transients.push_back({Span{fmt::format("{} ({}): ", l.key, l.subject), true},
+                            Span{start_transient_remark(l.time_after, lowest_swing_period(r.after.modes),
+                                                        l.start_note_after)}});
+  if (!transients.empty()) s.blocks.push_back(bullets(std::move(transients)));
   if (!r.stages.empty()) {
     s.blocks.push_back(subheading("Why each search stage stopped"));
     Table st{"sizing-stages",

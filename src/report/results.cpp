@@ -51,6 +51,21 @@ bool has_lift_off(const Spec& spec) {
 }
 
 /// The search for the worst case between the samples of one per-case check (results.json).
+/// The values a modal or equilibrium start came from (InitialState::quantities), as fields of `j`.
+void add_start_values(Json& j, const Spec& spec, int set, const std::vector<double>& q) {
+  if (q.empty() || set < 0 || static_cast<std::size_t>(set) >= spec.cases.initial.size()) return;
+  const InitialSetSpec& s = spec.cases.initial[static_cast<std::size_t>(set)];
+  if (start_kind(s) == StartKind::equilibrium) {
+    j["acceleration_m_per_s2"] = number(q.at(0));
+    // null: each wind load's own steady speed
+    j["wind_speed_m_per_s"] = q.size() > 1 && !std::isnan(q[1]) ? number(q[1]) : Json(nullptr);
+  } else if (start_kind(s) == StartKind::modal) {
+    const auto modes = static_cast<std::ptrdiff_t>(std::min(s.amplitude.size(), q.size()));
+    j["amplitude_rad"] = vector_json(std::vector<double>(q.begin(), q.begin() + modes));
+    j["phase_rad"] = vector_json(std::vector<double>(q.begin() + modes, q.end()));
+  }
+}
+
 Json search_json(const Spec& spec, const LimitSearch& s) {
   Json j;
   j["searched"] = s.searched;
@@ -64,6 +79,11 @@ Json search_json(const Spec& spec, const LimitSearch& s) {
   if (spec.motion == Motion::spatial) {
     j["start"]["phi_rad"] = vector_json(s.phi);
     j["start"]["phi_rate_rad_per_s"] = vector_json(s.phi_rate);
+  }
+  // A modal or equilibrium start: the values the search moved.
+  if (!s.worst_case.initial.quantities.empty()) {
+    j["start"]["kind"] = std::string(start_kind_name(s.worst_case.start_kind));
+    add_start_values(j["start"], spec, s.worst_case.set, s.worst_case.initial.quantities);
   }
   j["raise"] = number(s.raise);
   j["raise_of_margin"] = number(s.raise_of_margin);
@@ -259,6 +279,7 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
       cj["governing_start"] = {{"kind", std::string(start_kind_name(def.start_kind))},
                                {"theta_rad", vector_json(def.initial.theta)},
                                {"rate_rad_per_s", vector_json(def.initial.omega)}};
+      add_start_values(cj["governing_start"], spec, def.set, def.initial.quantities);
     }
     if (c.start_transient)
       cj["start_transient"] = {{"flagged", true},
@@ -390,7 +411,10 @@ LimitSpec probe_limit(const LimitKindInfo& info, RopeEnd end = RopeEnd::either) 
 std::string cases_csv_header(const Spec& spec) {
   std::string h = "\"case\",\"scenario\",\"set\",\"status\"";
   const auto column = [&h](const std::string& name) { add_field(h, csv_quote(name)); };
-  if (has_derived_starts(spec)) column("start");
+  if (has_derived_starts(spec)) {
+    column("start");
+    column("start_values");
+  }
   for (const auto& l : spec.links) column(fmt::format("theta0({}) [rad]", l.name));
   for (const auto& l : spec.links) column(fmt::format("omega0({}) [rad/s]", l.name));
   if (spec.motion == Motion::spatial) {
@@ -432,8 +456,10 @@ std::string cases_csv_row(const Spec& spec, const CaseMetrics& m) {
   add_field(row, csv_quote(spec.scenarios[static_cast<std::size_t>(m.scenario)].name));
   add_field(row, csv_quote(spec.cases.initial[static_cast<std::size_t>(m.set)].name));
   add_field(row, status_name(m.status));
-  if (has_derived_starts(spec))
+  if (has_derived_starts(spec)) {
     add_field(row, start_kind_name(start_kind(spec.cases.initial[static_cast<std::size_t>(m.set)])));
+    add_field(row, csv_quote(start_values_text(spec, m.set, m.initial.quantities, true)));
+  }
   const std::size_t n = spec.links.size();
   for (std::size_t i = 0; i < n; ++i) add_field(row, csv_number(i < m.initial.theta.size() ? m.initial.theta[i] : 0.0));
   for (std::size_t i = 0; i < n; ++i) add_field(row, csv_number(i < m.initial.omega.size() ? m.initial.omega[i] : 0.0));

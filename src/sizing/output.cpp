@@ -6,6 +6,7 @@
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
+#include "swaybound/checks/start_transient.hpp"
 #include "swaybound/core/version.hpp"
 #include "swaybound/sizing/sizing.hpp"
 
@@ -184,6 +185,11 @@ std::string sizing_table_markdown(const Spec& spec, const SizingResult& r) {
   if (std::isfinite(r.outcome_after.geometry))
     out << fmt::format("| geometry (points on their links) | on the link | | | | {} | {} | |\n",
                        percent(r.outcome_after.geometry), r.outcome_after.geometry >= 0 ? "pass" : "FAIL");
+  // The final check's start transients, as a check packet flags them.
+  for (const auto& l : r.limits)
+    if (l.start_transient_after)
+      out << fmt::format("\n**{} ({}): {}**\n", l.key, l.subject,
+                         start_transient_remark(l.time_after, lowest_swing_period(r.after.modes), l.start_note_after));
   out << "\nMargins are margin / |limit| (a limit of 0: margin / the chain's weight for forces, x horizon "
          "for "
          "ftle_max); binding: within 1% of the required margin, or failing; short of margin: within the "
@@ -292,6 +298,15 @@ std::string sizing_summary_json(const Spec& spec, const SizingResult& r) {
                       {"binding", l.binding},
                       {"shortfall", json_number(l.shortfall)},
                       {"governing_after", l.governing_after}});
+  // The final check's start transients, in the shape of results.json's checks[i].start_transient.
+  for (std::size_t i = 0; i < r.limits.size(); ++i)
+    if (r.limits[i].start_transient_after)
+      limits[i]["start_transient_after"] = {
+          {"flagged", true},
+          {"time_s", json_number(r.limits[i].time_after)},
+          {"within_s", json_number(kStartTransientFraction * lowest_swing_period(r.after.modes))},
+          {"fraction_of_lowest_period", kStartTransientFraction},
+          {"start", r.limits[i].start_note_after}};
   j["limits"] = limits;
   return j.dump(2) + "\n";
 }

@@ -205,6 +205,9 @@ void Sizer::build_result(SizingResult& r) const {
       if (s.limit == a.limit && s.searched) margin = s.margin;
     l.shortfall = a.pass ? 0.0 : (std::isnan(margin) ? std::nan("") : -margin);
     l.governing_after = a.governing_id;
+    l.start_transient_after = a.start_transient;
+    l.time_after = a.time;
+    l.start_note_after = a.start_note;
     r.limits.push_back(l);
   }
 }

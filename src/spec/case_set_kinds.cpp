@@ -4,8 +4,8 @@
 
 namespace swaybound {
 
-std::array<const std::vector<Range>*, 6> start_lists(const InitialSetSpec& set) {
-  return {&set.theta, &set.rate, &set.phi, &set.phi_rate, &set.amplitude, &set.phase};
+std::array<const std::vector<Range>*, kStartLists> start_lists(const InitialSetSpec& set) {
+  return {&set.theta, &set.rate, &set.phi, &set.phi_rate, &set.amplitude, &set.phase, &set.accel_range, &set.wind_range};
 }
 
 StartKind start_kind(const InitialSetSpec& set) {
@@ -36,6 +36,10 @@ long grid_size(const InitialSetSpec& set) {
     for (const auto& r : *list) n = n > 1'000'000'000L / std::max(1, r.count) ? kCap : n * r.count;
   return n;
 }
+/// An equilibrium set: one start, or as many as its ranges are sampled at.
+long equilibrium_size(const InitialSetSpec& set) {
+  return set.sampling == InitialKind::grid ? grid_size(set) : set.sampling == InitialKind::random ? set.count : 1;
+}
 /// Two starts per range that is not a single value.
 long corners_size(const InitialSetSpec& set) {
   long n = 1;
@@ -48,7 +52,7 @@ long corners_size(const InitialSetSpec& set) {
 constexpr std::string_view kValueKeys[] = {"theta", "rate", "phi", "phi_rate", "amplitude", "phase"};
 constexpr std::string_view kRandomKeys[] = {"count", "seed", "method", "theta", "rate", "phi", "phi_rate", "amplitude", "phase"};
 constexpr std::string_view kLadderKeys[] = {"from", "relative", "absolute", "link"};
-constexpr std::string_view kEquilibriumKeys[] = {"acceleration", "wind_speed"};
+constexpr std::string_view kEquilibriumKeys[] = {"acceleration", "wind_speed", "count", "seed", "method"};
 
 constexpr InitialKindInfo kKinds[] = {
     {InitialKind::single, "single", kValueKeys, StartShape::values, single_size},
@@ -56,7 +60,7 @@ constexpr InitialKindInfo kKinds[] = {
     {InitialKind::random, "random", kRandomKeys, StartShape::ranges, random_size},
     {InitialKind::corners, "corners", kValueKeys, StartShape::ranges, corners_size},
     {InitialKind::ladder, "ladder", kLadderKeys, StartShape::values, ladder_size},
-    {InitialKind::equilibrium, "equilibrium", kEquilibriumKeys, StartShape::values, single_size},
+    {InitialKind::equilibrium, "equilibrium", kEquilibriumKeys, StartShape::values, equilibrium_size},
 };
 
 constexpr bool in_enum_order() {

@@ -389,14 +389,28 @@ std::string normalised_yaml(const Spec& spec) {
       emit_ranges(out, "amplitude", set.amplitude, counted, u::angle);
       emit_ranges(out, "phase", set.phase, counted, u::angle);
     } else if (set.kind == InitialKind::equilibrium) {
+      // A sampled range is written as a grid's [low, high, count] or a random set's [low, high].
+      const auto range = [&](const Range& r, const u::Dim& dim) {
+        out << YAML::Flow << YAML::BeginSeq << number(r.lo, dim) << number(r.hi, dim);
+        if (set.sampling == InitialKind::grid) out << r.count;
+        out << YAML::EndSeq;
+      };
+      if (set.sampling == InitialKind::random)
+        out << YAML::Key << "count" << YAML::Value << set.count << YAML::Key << "seed" << YAML::Value << set.seed
+            << YAML::Key << "method" << YAML::Value
+            << (set.method == SamplingMethod::uniform ? "uniform" : "latin_hypercube");
       out << YAML::Key << "acceleration" << YAML::Value;
-      if (set.accel_from_scenario)
+      if (!set.accel_range.empty())
+        range(set.accel_range.front(), u::acceleration);
+      else if (set.accel_from_scenario)
         out << "scenario";
       else
         out << number(set.accel, u::acceleration);
       w.mark_default("equilibrium.acceleration");
       out << YAML::Key << "wind_speed" << YAML::Value;
-      if (set.wind_from_spec)
+      if (!set.wind_range.empty())
+        range(set.wind_range.front(), u::speed);
+      else if (set.wind_from_spec)
         out << "steady";
       else
         out << number(set.wind_speed, u::speed);

@@ -73,17 +73,57 @@ void read_modal_keys(const MapView& s, const Spec& spec, bool ranges, bool count
               "give an amplitude for every mode that has a phase (0 deg for none)");
 }
 
+namespace {
+
+/// One range [low, high] or [low, high, count] of an equilibrium's steady value at `path`; nullopt
+/// after reporting a wrong shape or an inverted range.
+std::optional<Range> read_steady_range(Context& ctx, const YAML::Node& node, const std::string& path, const u::Dim& dim,
+                                       const Bounds& bounds) {
+  if (node.size() != 2 && node.size() != 3) {
+    ctx.error(node, path, "expected a range [low, high] (sampled at random) or [low, high, count] (a grid)",
+              "write e.g. [0.1 m/s^2, 0.5 m/s^2, 5]");
+    return std::nullopt;
+  }
+  const auto lo = read_quantity(ctx, node[0], path + "[0]", dim, bounds);
+  const auto hi = read_quantity(ctx, node[1], path + "[1]", dim, bounds);
+  Range r;
+  if (node.size() == 3) {
+    const auto n = read_integer(ctx, node[2], path + "[2]", 1, 100'000);
+    if (!n) return std::nullopt;
+    r.count = static_cast<int>(*n);
+  }
+  if (!lo || !hi) return std::nullopt;
+  if (*lo > *hi) {
+    ctx.error(node, path, fmt::format("the range is inverted: low {} > high {}", u::format_si(*lo, dim), u::format_si(*hi, dim)),
+              "write the lower bound first");
+    return std::nullopt;
+  }
+  r.lo = *lo;
+  r.hi = *hi;
+  return r;
+}
+
+}  // namespace
+
 void read_equilibrium(const MapView& set_map, const MapView& s, const Spec& spec, InitialSetSpec& set) {
   Context& ctx = s.ctx();
   if (!planar_rigid_chain(ctx, set_map.key_mark("equilibrium"), set_map.path("equilibrium"), spec, "equilibrium starts"))
     return;
+  const std::size_t errors_before = ctx.diagnostics.size();
   // A lift-off needs an elastic rope, refused above: its load starts on the ground, not hanging.
+  const Bounds accel_bounds{-100, 100, false, false, "a trolley or boom tip accelerates far less than 10 g"};
+  const Bounds wind_bounds{-200, 200, false, false, "wind speeds stay well below 200 m/s"};
   if (s.has("acceleration")) {
     const YAML::Node a = s.get("acceleration");
     if (a.IsScalar() && a.Scalar() == "scenario") {
       set.accel_from_scenario = true;
-    } else if (auto v = read_quantity(ctx, a, s.path("acceleration"), u::acceleration,
-                                      Bounds{-100, 100, false, false, "a trolley or boom tip accelerates far less than 10 g"})) {
+    } else if (a.IsSequence()) {
+      if (auto r = read_steady_range(ctx, a, s.path("acceleration"), u::acceleration, accel_bounds)) {
+        set.accel_from_scenario = false;
+        set.accel = r->lo;
+        set.accel_range.push_back(*r);
+      }
+    } else if (auto v = read_quantity(ctx, a, s.path("acceleration"), u::acceleration, accel_bounds)) {
       set.accel_from_scenario = false;
       set.accel = *v;
     }
@@ -92,18 +132,71 @@ void read_equilibrium(const MapView& set_map, const MapView& s, const Spec& spec
   }
   if (s.has("wind_speed")) {
     const YAML::Node w = s.get("wind_speed");
+    std::optional<double> value;
     if (w.IsScalar() && w.Scalar() == "steady") {
       set.wind_from_spec = true;
-    } else if (auto v = read_quantity(ctx, w, s.path("wind_speed"), u::speed,
-                                      Bounds{-200, 200, false, false, "wind speeds stay well below 200 m/s"})) {
+    } else if (w.IsSequence()) {
+      if (auto r = read_steady_range(ctx, w, s.path("wind_speed"), u::speed, wind_bounds)) {
+        set.wind_from_spec = false;
+        set.wind_speed = r->lo;
+        set.wind_range.push_back(*r);
+        value = r->hi > r->lo || r->lo != 0 ? 1.0 : 0.0;
+      }
+    } else if ((value = read_quantity(ctx, w, s.path("wind_speed"), u::speed, wind_bounds))) {
       set.wind_from_spec = false;
-      set.wind_speed = *v;
-      if (spec.wind.empty() && *v != 0)
-        ctx.error(w, s.path("wind_speed"), "the spec has no wind loads, so there is no wind for the load to hang in",
-                  "add a 'wind' section (the drag areas the wind acts on), or remove wind_speed");
+      set.wind_speed = *value;
     }
+    if (value && spec.wind.empty() && *value != 0)
+      ctx.error(w, s.path("wind_speed"), "the spec has no wind loads, so there is no wind for the load to hang in",
+                "add a 'wind' section (the drag areas the wind acts on), or remove wind_speed");
   } else {
     ctx.defaults_filled.push_back(s.path("wind_speed"));
+  }
+  if (ctx.diagnostics.size() != errors_before) return;
+  // How the ranges are sampled: a grid when they carry counts, at random when the set gives a count.
+  std::vector<std::pair<const char*, const Range*>> ranges;
+  if (!set.accel_range.empty()) ranges.emplace_back("acceleration", &set.accel_range.front());
+  if (!set.wind_range.empty()) ranges.emplace_back("wind_speed", &set.wind_range.front());
+  const bool random = s.has("count") || s.has("seed") || s.has("method");
+  for (const auto& [key, range] : ranges) {
+    const bool counted = s.get(key).size() == 3;
+    if (counted && random) {
+      ctx.error(s.get(key), s.path(key),
+                "a range with a count is a grid, and the set also gives 'count'/'seed' for random samples",
+                fmt::format("write {} as [low, high] for random samples, or remove count, seed and method for a grid", key));
+      return;
+    }
+    if (!counted && !random) {
+      ctx.error(s.get(key), s.path(key), "a range [low, high] without a count: how many starts should it give?",
+                fmt::format("give {} as [low, high, count] (evenly spaced), or add 'count' and 'seed' (random samples)", key));
+      return;
+    }
+  }
+  if (ranges.empty()) {
+    if (random)
+      for (const char* key : {"count", "seed", "method"})
+        if (s.has(key)) {
+          ctx.error(s.key_mark(key), s.path(key),
+                    fmt::format("'{}' samples a range, and neither acceleration nor wind_speed is one", key),
+                    "give acceleration or wind_speed as a range [low, high], or remove this key");
+          return;
+        }
+    return;
+  }
+  if (!random) {
+    set.sampling = InitialKind::grid;
+    return;
+  }
+  set.sampling = InitialKind::random;
+  if (s.require("count", "how many random starts"))
+    if (auto c = read_integer(ctx, s.get("count"), s.path("count"), 1, 100'000'000)) set.count = static_cast<int>(*c);
+  if (s.require("seed", "a seed for the random generator, so runs repeat"))
+    if (auto c = read_integer(ctx, s.get("seed"), s.path("seed"), 0, 1LL << 53)) set.seed = static_cast<std::uint64_t>(*c);
+  if (s.has("method")) {
+    if (auto c = read_choice(ctx, s.get("method"), s.path("method"), {"uniform", "latin_hypercube"}))
+      set.method = *c == "uniform" ? SamplingMethod::uniform : SamplingMethod::latin_hypercube;
+  } else {
+    ctx.defaults_filled.push_back(s.path("method"));
   }
 }
 

@@ -17,6 +17,7 @@
 #include <string>
 #include <vector>
 
+#include "swaybound/dynamics/equilibrium.hpp"
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/spec/case_set_kinds.hpp"
 #include "swaybound/spec/spec.hpp"
@@ -42,15 +43,19 @@ class CaseSpace {
   long size() const { return total_; }
   long starts() const { return starts_; }  ///< per scenario
   CaseDef at(long index) const;
+  /// The chain's modes, when a set gives modal starts (else null).
+  const ModalResult* modes() const { return modes_.get(); }
   /// Largest |initial angle| over every start of every set [rad] (the operating envelope).
   double envelope_amplitude() const { return envelope_; }
 
  private:
   void prepare_starts(const Spec& spec);
-  void fill_start(const InitialSetSpec& set, int set_index, long k, std::array<std::vector<double>*, 6> out) const;
+  void fill_start(const InitialSetSpec& set, int set_index, long k, std::array<std::vector<double>*, kStartLists> out) const;
   const Spec* spec_;
+  std::shared_ptr<const Model> model_;         ///< the spec's model, when a set gives modal or equilibrium starts
   std::shared_ptr<const ModalResult> modes_;  ///< the chain's modes, when a set gives modal starts
-  std::vector<std::vector<std::vector<double>>> equilibria_;  ///< per set, per scenario: angles [rad] (equilibrium sets)
+  /// Equilibrium sets: per set, per start (start x scenarios + scenario) the angles [rad].
+  std::vector<std::vector<std::vector<double>>> equilibria_;
   std::vector<long> offsets_;                      ///< first start of each set within a scenario
   std::vector<std::vector<std::vector<int>>> lhs_; ///< per set, per dimension: stratum permutation
   std::vector<std::string> slugs_;      ///< per scenario
@@ -58,6 +63,18 @@ class CaseSpace {
   long starts_ = 0, total_ = 0;
   double envelope_ = 0;
 };
+
+/// The steady base acceleration along the travel [m/s^2] and wind speed [m/s] (NaN: each wind
+/// load's own speed) an equilibrium start of `set` hangs under in `scenario` of `model`, given the
+/// set's sampled values `accel` and `wind` (one each when the set gives that range, else empty).
+std::array<double, 2> steady_values(const Model& model, const InitialSetSpec& set, int scenario,
+                                    const std::vector<double>& accel, const std::vector<double>& wind);
+
+/// The equilibrium of `model` (built from `spec`) in the inputs at t = 0 of `scenario`, with the
+/// base acceleration `accel` along the travel (and none upwards) unless `set` takes the scenario's,
+/// and every wind load at speed `wind` (NaN: its own).
+EquilibriumResult steady_equilibrium(const Spec& spec, const Model& model, Workspace& ws, const InitialSetSpec& set,
+                                     int scenario, double accel, double wind);
 
 /// "Brake from travel speed" -> "brake-from-travel-speed".
 std::string slug(const std::string& name);

@@ -29,6 +29,16 @@ double lowest_swing_period(const ModalResult& modes);
 /// "grid-017: link angles released from rest at theta0 = (2, -4, 6) deg".
 std::string start_description(const Spec& spec, const CaseDef& def);
 
+/// The values a start not given as angles came from (InitialState::quantities of a start of set
+/// `set`), in words: "amplitude (5, 0) deg, phase (90) deg" for a modal start, "steady acceleration
+/// 0.5 m/s^2" (and ", wind speed 12 m/s" when the set gives one) for an equilibrium start; angles in
+/// rad when `si`. Empty for a start of link angles.
+std::string start_values_text(const Spec& spec, int set, const std::vector<double>& quantities, bool si = false);
+
+/// The remark on a flagged check, as the check packet gives it: the worst value's time `time` [s],
+/// the lowest modal period `period` [s], the start `start_note` and what to do about it.
+std::string start_transient_remark(double time, double period, const std::string& start_note);
+
 /// Sets start_transient and start_note of every per-case check whose governing case starts from
 /// other than an equilibrium and whose peak is at t < kStartTransientFraction x the lowest period.
 void flag_start_transients(const Spec& spec, const CaseSpace& space, const ModalResult& modes,

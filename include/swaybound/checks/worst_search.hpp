@@ -6,7 +6,10 @@
 // bounding box, the same for every scenario), with a derivative-free bounded local optimiser
 // (NLopt's BOBYQA; Nelder-Mead, then COBYLA, when BOBYQA refuses, e.g. in one dimension) that
 // maximises the limit's utilisation (larger is worse for an upper bound, smaller for a lower one),
-// each evaluation one case run with the plan's model and streaming settings.
+// each evaluation one case run with the plan's model and streaming settings. A start of a set of
+// modal or equilibrium starts moves instead through that set's own ranges (its modal amplitudes
+// and phases, a phase over a whole turn wrapping round; its steady acceleration and wind speed),
+// each point turned into angles and rates as the case space turns a sample (move_start).
 //
 // A scenario's uncertain values (base.scenarios[i].uncertain: a wind speed, a braking deceleration
 // within a range) are further dimensions of the box for the cases of that scenario: the sampled
@@ -33,6 +36,7 @@
 #include "swaybound/checks/checks.hpp"
 #include "swaybound/checks/metrics.hpp"
 #include "swaybound/model/model.hpp"
+#include "swaybound/spec/case_set_kinds.hpp"
 #include "swaybound/spec/paths.hpp"
 #include "swaybound/spec/spec.hpp"
 
@@ -40,24 +44,48 @@ namespace swaybound {
 
 struct CheckPlan;  // checks/check_run.hpp
 
-/// The box of starts the case sets declare: per link, the least and largest initial angle [rad] and
-/// rate [rad/s] over every set (a set's ranges, a single or ladder start's values and the ladder's
-/// perturbed angles; a link a set does not list starts at 0 there, so 0 is in its box).
+/// The box a search moves a start through. For a start given as link angles: per link, the least
+/// and largest initial angle [rad] and rate [rad/s] over every set of such starts (a set's ranges, a
+/// single or ladder start's values and the ladder's perturbed angles; a link a set does not list
+/// starts at 0 there, so 0 is in its box). For a start of a set of modal or equilibrium starts: that
+/// set's own start quantities (InitialState::quantities), its modal amplitudes and phases, or its
+/// steady acceleration and wind speed; the search derives the angles and rates of each point as the
+/// case space does (move_start).
 struct StartBox {
   int links = 0;  ///< n
-  /// Per start quantity d = q n + i (q = 0 theta, 1 rate, 2 phi, 3 phi_rate of link i; phi and
-  /// phi_rate only for a spatial chain): the least and largest value [rad] or [rad/s].
+  StartKind kind = StartKind::angles;
+  int set = -1;   ///< modal and equilibrium boxes: the set (index into Spec::cases.initial)
+  /// Angles: per start quantity d = q n + i (q = 0 theta, 1 rate, 2 phi, 3 phi_rate of link i; phi
+  /// and phi_rate only for a spatial chain). Modal and equilibrium: per entry d of the set's
+  /// quantities. The least and largest value, SI.
   std::vector<double> lo, hi;
   /// Dimensions d of positive width; the others stay at the start's value.
   std::vector<int> free;
+  /// Per dimension d: it is a phase over a whole turn (hi - lo = 2 pi), whose ends are one start;
+  /// the search lets it run across them (wrapped into [lo, hi)).
+  std::vector<bool> periodic;
 };
 
 /// Start quantity d of `start` in the order of StartBox (theta, rate, phi, phi_rate per link of n);
 /// the lists must hold n entries each (CaseSpace::at fills them).
 double& start_quantity(InitialState& start, int d, int n);
 
-/// The union bounding box of the starts of `spec`'s case sets.
+/// The union bounding box of the starts of `spec`'s case sets given as link angles.
 StartBox start_box(const Spec& spec);
+
+/// The box a search moves a start of set `set` through: start_box(spec) for a set of link angles,
+/// the set's own modal or equilibrium quantities otherwise (see StartBox).
+StartBox set_box(const Spec& spec, int set);
+
+/// The value of dimension d of `box` in `start`.
+double box_value(const StartBox& box, const InitialState& start, int d);
+
+/// Sets the free dimensions of `box` in `def` to `values` (in box.free order) and, for a modal or
+/// equilibrium box, derives its angles and rates again: from the chain's modes (space.modes()), or
+/// as the equilibrium of `model` (the model the case runs on, built from `spec`). Returns "" or why
+/// there is no start there (an equilibrium not found).
+std::string move_start(const StartBox& box, const std::vector<double>& values, const Spec& spec, const CaseSpace& space,
+                       const Model& model, Workspace& ws, CaseDef& def);
 
 /// The uncertain values of one scenario as dimensions of the search, in the order of its list.
 struct UncertainDims {
@@ -102,6 +130,7 @@ class WorstStarts {
   const Spec* spec_;
   int starts_;
   std::vector<int> slots_;  ///< per limit: its residual_sway slot
+  std::vector<bool> fixed_; ///< per set: modal or equilibrium starts without a range to search
   std::vector<std::vector<CaseMetrics>> kept_;
 };
 

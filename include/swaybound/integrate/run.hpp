@@ -73,6 +73,11 @@ struct InitialState {
   /// Elastic ropes (model.elastic_links order): their length [m] and its rate [m/s] at t = 0. Empty:
   /// each starts at the quasi-static stretch (rope_start).
   std::vector<double> rope_length{}, rope_rate{};
+  /// A start not given as angles: the values its set gave it, which the angles and rates above
+  /// were derived from (cases/case_space.hpp, start_quantities): per mode the amplitude, then per
+  /// mode the phase [rad] (modal), or the steady base acceleration [m/s^2] and wind speed [m/s]
+  /// (equilibrium; NaN: each wind load's own speed). For reports only; the run does not read it.
+  std::vector<double> quantities{};
 };
 
 struct RunSettings {

@@ -167,6 +167,11 @@ struct LimitOutcome {
   /// After: the sampled cases' worst [SI]; worst_after is the searched worst where the search ran.
   double sampled_after = std::nan("");
   std::string governing_after;
+  /// After: the final check's worst may be a start transient (CheckResult::start_transient,
+  /// checks/start_transient.hpp): the time of that worst [s] and the start that gave it.
+  bool start_transient_after = false;
+  double time_after = std::nan("");
+  std::string start_note_after;
 };
 
 struct SizingResult {

@@ -239,12 +239,14 @@ struct Range {
 
 /// The start quantities of an initial set in their order as dimensions of the case space: theta,
 /// rate, phi, phi_rate (each a list per link), then the modal amplitude and phase (each a list per
-/// mode); any of them possibly empty.
+/// mode), then an equilibrium's sampled steady acceleration and wind speed (at most one range
+/// each); any of them possibly empty.
 struct InitialSetSpec;
-std::array<const std::vector<Range>*, 6> start_lists(const InitialSetSpec& set);
+inline constexpr std::size_t kStartLists = 8;
+std::array<const std::vector<Range>*, kStartLists> start_lists(const InitialSetSpec& set);
 
-/// `equilibrium`: one start per scenario, the chain hanging still under a steady base acceleration
-/// and wind (dynamics/equilibrium.hpp).
+/// `equilibrium`: the chain hanging still under a steady base acceleration and wind
+/// (dynamics/equilibrium.hpp); one start per scenario, or per sampled value when either is a range.
 enum class InitialKind { single, grid, random, corners, ladder, equilibrium };
 enum class SamplingMethod { uniform, latin_hypercube };
 
@@ -272,6 +274,11 @@ struct InitialSetSpec {
   double accel = 0;
   bool wind_from_spec = true;
   double wind_speed = 0;
+  /// equilibrium sampled over ranges: the steady acceleration [m/s^2] and wind speed [m/s] as at
+  /// most one range each (given, they replace `accel` / `wind_speed`), and how they are sampled:
+  /// grid (ranges with counts), random (count, seed, method) or single (no range).
+  std::vector<Range> accel_range, wind_range;
+  InitialKind sampling = InitialKind::single;
   Mark mark;
 };
 
