@@ -92,6 +92,7 @@ Phase scaled(const Phase& phase, double s) {
   p.ax *= s;
   p.ay *= s;
   p.jx = 0;
+  p.jz = 0;
   p.control.active = false;  // the equilibrium under the reference's acceleration, not the loop's
   for (double& w : p.wind_speed) w *= std::sqrt(s);
   return p;

@@ -444,7 +444,9 @@ TEST_CASE("files put into the packet while a run is going stop its replacement",
       if (contains(name, "swaybound-partial")) return true;
     return false;
   };
-  for (int k = 0; k < 400 && !partial_exists(); ++k)
+  // Up to 30 s for the run to start: on a loaded machine (two sanitizer builds and a suite beside
+  // it) start-up alone took more than the 4 s this loop waited before.
+  for (int k = 0; k < 3000 && !partial_exists(); ++k)
     std::this_thread::sleep_for(std::chrono::milliseconds(10));
   REQUIRE(partial_exists());
   write_file(out / "signed_review.txt", "approved");
