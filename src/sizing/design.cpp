@@ -114,6 +114,13 @@ void apply_design(Spec& spec, const std::vector<DesignVariable>& variables, cons
   SWAYBOUND_REQUIRE(values.size() == variables.size(), "{} values for {} variables", values.size(), variables.size());
   for (std::size_t i = 0; i < variables.size(); ++i) set_spec_value(spec, variables[i].target, values[i]);
   spec.design_values = values;
+  // A centre of mass or inertia not given explicitly is the uniform rod's of the link's length and
+  // mass (the loader's default, and what build_model uses): hold the spec's values to the sized ones,
+  // so the normalised sized spec (which writes them as numbers) reloads to the same chain.
+  for (LinkSpec& l : spec.links) {
+    if (!l.com_given) l.com = l.length / 2;
+    if (!l.inertia_given) l.inertia = l.mass * l.length * l.length / 12;
+  }
   // A wind point not given explicitly sits at its link's centre of mass (the loader's default):
   // keep it there when a length or centre of mass changes.
   for (auto& w : spec.wind)
