@@ -20,44 +20,6 @@ namespace {
 
 constexpr double kQuarterTurn = std::numbers::pi / 2;
 
-/// One luffing move {at, to, accel, jerk}: radial (m/s, + outwards) or boom angle (rad/s, + raises).
-bool read_luff_move(Context& ctx, const YAML::Node& node, const std::string& path, bool boom, DrumMoveSpec& move) {
-  MapView m(ctx, node, path, {"at", "to", "accel", "jerk"});
-  if (!m.ok()) return false;
-  move.mark = m.mark();
-  bool ok = true;
-  const auto read = [&](std::string_view key, const char* what, const u::Dim& dim, const Bounds& bounds,
-                        double& out) {
-    if (!m.require(key, what)) {
-      ok = false;
-      return;
-    }
-    if (auto v = read_quantity(ctx, m.get(key), m.path(key), dim, bounds))
-      out = *v;
-    else
-      ok = false;
-  };
-  read("at", "when the move starts, e.g. '2 s'", u::duration, Bounds::non_negative(), move.at);
-  read("to",
-       boom ? "the boom angle's rate the move reaches, e.g. '0.02 rad/s' (+ raises the boom)"
-            : "the radial speed the move reaches, e.g. '-0.5 m/s' (+ outwards, - in)",
-       boom ? u::angular_rate : u::speed, Bounds::any(), move.to);
-  read("accel",
-       boom ? "the luffing acceleration limit of the boom angle, e.g. '0.01 rad/s^2'"
-            : "the luffing acceleration limit, e.g. '0.2 m/s^2'",
-       boom ? u::angular_acceleration : u::acceleration, Bounds::positive(), move.accel);
-  if (m.has("jerk")) {
-    if (auto v = read_quantity(ctx, m.get("jerk"), m.path("jerk"), boom ? u::angular_jerk : u::jerk,
-                               Bounds::non_negative()))
-      move.jerk = *v;
-    else
-      ok = false;
-  } else {
-    ctx.defaults_filled.push_back(m.path("jerk"));
-  }
-  return ok;
-}
-
 SpeedProfile luff_speed_profile(const ScenarioSpec::Slew::Luff& luff) {
   std::vector<SpeedMove> moves;
   for (const DrumMoveSpec& d : luff.moves) moves.push_back(SpeedMove{d.at, d.to, d.accel, d.jerk});
@@ -127,26 +89,8 @@ void read_luff(const MapView& slew_map, ScenarioSpec::Slew& slew) {
               "add 'boom: LENGTH' (boom luffing), or remove 'angle' (radial luffing: speed and moves in m/s)");
     ok = false;
   }
-  read_optional(m, "speed", luff.initial_speed, boom ? u::angular_rate : u::speed);
-  if (m.has("moves") && expect_sequence(ctx, m.get("moves"), m.path("moves"), "luffing moves {at, to, accel, jerk}")) {
-    const YAML::Node list = m.get("moves");
-    for (std::size_t k = 0; k < list.size(); ++k) {
-      DrumMoveSpec move;
-      ok &= read_luff_move(ctx, list[k], fmt::format("{}[{}]", m.path("moves"), k), boom, move);
-      luff.moves.push_back(move);
-    }
-  } else if (m.has("moves")) {
-    ok = false;
-  }
-  if (ok) {
-    try {
-      (void)luff_speed_profile(luff);
-    } catch (const ProfileError& e) {
-      const auto [message, fix] = split_profile_error(e);
-      const std::size_t k = e.move_index();
-      ctx.error(luff.moves[k].mark, fmt::format("{}[{}]", m.path("moves"), k), message, fix);
-    }
-  }
+  ok &= read_speed_moves(m, boom ? MoveOf::luff_boom : MoveOf::luff_radial, "speed", "luffing moves",
+                         luff.initial_speed, luff.moves);
   slew.luff = luff;
 }
 

@@ -29,7 +29,9 @@ std::pair<std::string, std::string> split_profile_error(const ProfileError& e) {
 /// false when the move could not be read.
 bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& path, DrumMoveSpec& move,
                     MoveOf of) {
-  const bool drum = of == MoveOf::drum, slew = of == MoveOf::slew, cross = of == MoveOf::cross_travel;
+  const bool drum = of == MoveOf::drum, cross = of == MoveOf::cross_travel;
+  const bool radial = of == MoveOf::luff_radial, boom = of == MoveOf::luff_boom;
+  const bool slew = of == MoveOf::slew || boom;  // in rad/s
   MapView m(ctx, node, path, {"at", "to", "accel", "jerk"});
   if (!m.ok()) return false;
   move.mark = m.mark();
@@ -47,13 +49,17 @@ bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& pat
   };
   read("at", "when the move starts, e.g. '2 s'", u::duration, Bounds::non_negative(), move.at);
   read("to",
-       slew   ? "the slewing speed the move reaches, e.g. '0.1 rad/s' (+ turns the pivot from +x towards +z)"
+       boom     ? "the boom angle's rate the move reaches, e.g. '0.02 rad/s' (+ raises the boom)"
+       : radial ? "the radial speed the move reaches, e.g. '-0.5 m/s' (+ outwards, - in)"
+       : slew   ? "the slewing speed the move reaches, e.g. '0.1 rad/s' (+ turns the pivot from +x towards +z)"
        : drum ? "the drum speed the move reaches, e.g. '0.5 m/s' (+ hauls in, - pays out)"
        : cross ? "the cross-travel speed the move reaches, e.g. '0.6 m/s' (+ towards +z)"
               : "the travel speed the move reaches, e.g. '1.2 m/s' (+ towards +x)",
        slew ? u::angular_rate : u::speed, Bounds::any(), move.to);
   read("accel",
-       slew   ? "the slewing acceleration limit, e.g. '0.02 rad/s^2'"
+       boom     ? "the luffing acceleration limit of the boom angle, e.g. '0.01 rad/s^2'"
+       : radial ? "the luffing acceleration limit, e.g. '0.2 m/s^2'"
+       : slew   ? "the slewing acceleration limit, e.g. '0.02 rad/s^2'"
        : drum ? "the drum's acceleration limit, e.g. '0.4 m/s^2'"
               : "the drive's acceleration limit, e.g. '0.3 m/s^2'",
        slew ? u::angular_acceleration : u::acceleration, Bounds::positive(), move.accel);
@@ -279,32 +285,41 @@ std::optional<ScenarioSpec::Travel::Stop> read_stop(const MapView& travel, MoveO
 
 }  // namespace
 
+bool read_speed_moves(const MapView& m, MoveOf of, std::string_view speed_key, std::string_view what,
+                      double& initial_speed, std::vector<DrumMoveSpec>& moves) {
+  Context& ctx = m.ctx();
+  const bool angular = of == MoveOf::slew || of == MoveOf::luff_boom;
+  read_optional(m, speed_key, initial_speed, angular ? u::angular_rate : u::speed);
+  bool ok = true;
+  if (m.has("moves") && expect_sequence(ctx, m.get("moves"), m.path("moves"), fmt::format("{} {{at, to, accel, jerk}}", what))) {
+    const YAML::Node list = m.get("moves");
+    for (std::size_t k = 0; k < list.size(); ++k) {
+      DrumMoveSpec move;
+      ok &= read_drum_move(ctx, list[k], fmt::format("{}[{}]", m.path("moves"), k), move, of);
+      moves.push_back(move);
+    }
+  } else if (m.has("moves")) {
+    ok = false;
+  }
+  if (!ok) return false;
+  std::vector<SpeedMove> speed_moves;
+  for (const DrumMoveSpec& d : moves) speed_moves.push_back(SpeedMove{d.at, d.to, d.accel, d.jerk});
+  try {
+    (void)SpeedProfile::build(initial_speed, speed_moves);
+  } catch (const ProfileError& e) {
+    const auto [message, fix] = split_profile_error(e);
+    const std::size_t k = e.move_index();
+    ctx.error(moves[k].mark, fmt::format("{}[{}]", m.path("moves"), k), message, fix);
+    return false;
+  }
+  return true;
+}
+
 bool read_drive_keys(const MapView& t, MoveOf of, double& initial_speed, std::vector<DrumMoveSpec>& moves,
                      std::optional<ScenarioSpec::Travel::Shaper>& shaper,
                      std::optional<ScenarioSpec::Travel::Stop>& stop) {
   Context& ctx = t.ctx();
-  read_optional(t, "speed", initial_speed, of == MoveOf::slew ? u::angular_rate : u::speed);
-  bool moves_ok = true;
-  if (t.has("moves") && expect_sequence(ctx, t.get("moves"), t.path("moves"), "drive moves {at, to, accel, jerk}")) {
-    const YAML::Node list = t.get("moves");
-    for (std::size_t k = 0; k < list.size(); ++k) {
-      DrumMoveSpec move;
-      moves_ok &= read_drum_move(ctx, list[k], fmt::format("{}[{}]", t.path("moves"), k), move, of);
-      moves.push_back(move);
-    }
-  } else if (t.has("moves")) {
-    moves_ok = false;
-  }
-  if (moves_ok) {
-    try {
-      (void)drive_axis_profile(initial_speed, moves, std::nullopt, std::nullopt);
-    } catch (const ProfileError& e) {
-      const auto [message, fix] = split_profile_error(e);
-      const std::size_t k = e.move_index();
-      ctx.error(moves[k].mark, fmt::format("{}[{}]", t.path("moves"), k), message, fix);
-      moves_ok = false;
-    }
-  }
+  const bool moves_ok = read_speed_moves(t, of, "speed", "drive moves", initial_speed, moves);
   bool rest_ok = true;
   if (t.has("shaper")) {
     shaper = read_shaper(t);

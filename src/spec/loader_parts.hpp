@@ -28,10 +28,15 @@ void read_scenario_rope_keys(const MapView& scenario, const Spec& spec, Scenario
 /// A speed profile's error as (message, fix) (loader_moves.cpp).
 std::pair<std::string, std::string> split_profile_error(const ProfileError& e);
 /// Whose speed move: a hoist drum's, a travel drive's (speeds in m/s) or a slewing drive's (rad/s).
-enum class MoveOf { drum, travel, slew, cross_travel };
+enum class MoveOf { drum, travel, slew, cross_travel, luff_radial, luff_boom };
 /// Reads one speed move {at, to, accel, jerk} at `path` into `move` (`of` picks the units and the
 /// words of the messages); false when it could not be read (loader_moves.cpp).
 bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& path, DrumMoveSpec& move, MoveOf of);
+/// Reads a speed profile's initial speed (`speed_key`, in the units `of` picks) and its `moves`
+/// from `m`, and checks that the moves build a profile (an error names the move); false when
+/// something was reported. `what` describes the list for a message, e.g. "drum moves".
+bool read_speed_moves(const MapView& m, MoveOf of, std::string_view speed_key, std::string_view what,
+                      double& initial_speed, std::vector<DrumMoveSpec>& moves);
 
 /// Reads a scenario's `travel` drive (speed and moves; loader_rope.cpp, which shares the moves'
 /// reader with the drum). A scenario with a travel drive gives neither `accel` nor `initial_velocity`.

@@ -120,28 +120,7 @@ void read_hoist(const MapView& scenario, const Spec& spec, ScenarioSpec& sc) {
                 "add rope: NAME, the rope link the drum winds");
     }
   }
-  read_optional(h, "drum_speed", hoist.initial_speed, u::speed);
-  bool moves_ok = true;
-  if (h.has("moves") &&
-      expect_sequence(ctx, h.get("moves"), h.path("moves"), "drum moves {at, to, accel, jerk}")) {
-    const YAML::Node list = h.get("moves");
-    for (std::size_t k = 0; k < list.size(); ++k) {
-      DrumMoveSpec move;
-      moves_ok &= read_drum_move(ctx, list[k], fmt::format("{}[{}]", h.path("moves"), k), move, MoveOf::drum);
-      hoist.moves.push_back(move);
-    }
-  } else if (h.has("moves")) {
-    moves_ok = false;
-  }
-  if (moves_ok) {
-    try {
-      (void)drum_profile(hoist);
-    } catch (const ProfileError& e) {
-      const auto [message, fix] = split_profile_error(e);
-      const std::size_t k = e.move_index();
-      ctx.error(hoist.moves[k].mark, fmt::format("{}[{}]", h.path("moves"), k), message, fix);
-    }
-  }
+  (void)read_speed_moves(h, MoveOf::drum, "drum_speed", "drum moves", hoist.initial_speed, hoist.moves);
   sc.hoist = hoist;
 }
 
