@@ -39,6 +39,10 @@ nlohmann::json modal_json(const ModalResult& r, const Model& model, const std::s
     nlohmann::json shape = nlohmann::json::object();
     for (std::size_t i = 0; i < m.shape.size(); ++i) shape[model.names[i]] = number(m.shape[i]);
     j["shape_rad_per_rad"] = shape;
+    if (model.spatial) {  // pairs: the travel plane and across it
+      j["plane"] = m.plane == SwayPlane::travel ? "travel" : "across";
+      j["pair_mode"] = m.pair >= 0 ? nlohmann::json(m.pair + 1) : nlohmann::json(nullptr);
+    }
     if (!model.elastic_links.empty()) {
       j["kind"] = m.axial ? "axial" : "sway";
       nlohmann::json stretch = nlohmann::json::object();
@@ -78,6 +82,7 @@ void print_table(const ModalResult& r, const Model& model, const std::string& sp
   std::cout << fmt::format("{:>4}  {:>14}  {:>10}  {:>17}  {:>20}  {:>20}", "mode", "frequency [Hz]", "period [s]",
                            "damping ratio [-]", "damped frequency [Hz]", "w_n with damping [Hz]");
   for (const auto& name : model.names) std::cout << "  " << fmt::format("{:>12}", "shape(" + name + ")");
+  if (model.spatial) std::cout << "  " << fmt::format("{:>14}", "plane");
   const bool ropes = !model.elastic_links.empty();
   if (ropes) {
     std::cout << "  " << fmt::format("{:>5}", "kind");
@@ -93,6 +98,7 @@ void print_table(const ModalResult& r, const Model& model, const std::string& sp
                              m.natural_frequency_with_damping_hz);
     for (std::size_t i = 0; i < m.shape.size(); ++i)
       std::cout << "  " << fmt::format("{:>{}.6g}", m.shape[i], std::max<std::size_t>(12, model.names[i].size() + 7));
+    if (model.spatial) std::cout << "  " << fmt::format("{:>14}", m.plane == SwayPlane::travel ? "travel (x-y)" : "across (z-y)");
     if (ropes) {
       std::cout << "  " << fmt::format("{:>5}", m.axial ? "axial" : "sway");  // + 0.0 below: no "-0"
       for (std::size_t r = 0; r < m.stretch_shape.size(); ++r)

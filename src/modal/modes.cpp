@@ -19,8 +19,9 @@ constexpr double kTwoPi = 2 * std::numbers::pi;
 
 /// A point of the chain at rest: its position [m] and d v_x / d omega_j [m] (at theta = 0 every
 /// link moves horizontally: a point at lever r on link j has velocity r omega_j (1, 0)).
+/// (A spatial chain's point moves the same way across the travel, d v_z / d phi_j' = r: the same dvx.)
 struct RestPoint {
-  double x = 0, y = 0;
+  double x = 0, y = 0, z = 0;
   std::vector<double> dvx;
 };
 
@@ -30,6 +31,7 @@ RestPoint rest_point(const Model& model, const PointRef& p) {
   if (p.link < 0) {  // on the base, which is at rest
     out.x = p.base_x;
     out.y = p.base_y;
+    out.z = p.base_z;
     return out;
   }
   for (int j = 0; j <= p.link; ++j) {
@@ -70,7 +72,12 @@ double small_signal_damper_coefficient(const PivotModel& p) {
   return c;
 }
 
-Eigen::MatrixXd linear_damping_matrix(const Model& model) {
+namespace {
+
+/// The damping matrix of swing in the travel plane (across = false) or, for a spatial chain, across
+/// it (the links turning about x at rest): pivot dampers act alike in both; a dashpot by the
+/// component of its line in the plane of the swing.
+Eigen::MatrixXd plane_damping_matrix(const Model& model, bool across) {
   const int n = model.n;
   Eigen::MatrixXd C = Eigen::MatrixXd::Zero(n, n);
   // Pivot i: tau_i = -c (omega_i - omega_{i-1}) on link i, -tau_i on link i-1 (chain.hpp).
@@ -91,16 +98,20 @@ Eigen::MatrixXd linear_damping_matrix(const Model& model) {
   for (const DashpotModel& d : model.dashpots) {
     if (d.coefficient <= 0) continue;
     const RestPoint a = rest_point(model, d.a), b = rest_point(model, d.b);
-    const double dx = a.x - b.x, dy = a.y - b.y;
-    const double length = std::sqrt(dx * dx + dy * dy);
+    const double dx = a.x - b.x, dy = a.y - b.y, dz = a.z - b.z;
+    const double length = std::sqrt(dx * dx + dy * dy + dz * dz);
     if (length <= 0) continue;  // as the engine: coincident ends exert no force (noted by modal_analysis)
-    const double ux = dx / length;
+    const double ux = (across ? dz : dx) / length;
     Eigen::VectorXd g(n);
     for (int j = 0; j < n; ++j) g(j) = ux * (a.dvx[static_cast<std::size_t>(j)] - b.dvx[static_cast<std::size_t>(j)]);
     C.noalias() += d.coefficient * g * g.transpose();
   }
   return C;
 }
+
+}  // namespace
+
+Eigen::MatrixXd linear_damping_matrix(const Model& model) { return plane_damping_matrix(model, false); }
 
 namespace {
 
@@ -165,13 +176,13 @@ LinearSystem linearise_numerically(const Model& model) {
   return s;
 }
 
-LinearSystem linear_system(const Model& model) {
+LinearSystem linear_system(const Model& model, bool across) {
   if (model.variable_length()) return linearise_numerically(model);
   LinearSystem s;
   s.M = model.mu;
   s.K = Eigen::MatrixXd::Zero(model.n, model.n);
   for (int i = 0; i < model.n; ++i) s.K(i, i) = model.gravity * model.h[static_cast<std::size_t>(i)];
-  s.C = linear_damping_matrix(model);
+  s.C = plane_damping_matrix(model, across);
   s.F = Eigen::VectorXd::Zero(model.n);
   for (int i = 0; i < model.n; ++i) s.F(i) = -model.h[static_cast<std::size_t>(i)];
   return s;
@@ -224,7 +235,10 @@ ClosedLoop closed_loop(const Model& model, int k, const DriveControl& c, const L
 
 }  // namespace
 
-ModalResult modal_analysis(const Model& model) {
+namespace {
+
+/// The modes of swing in one plane (see modal_analysis).
+ModalResult plane_modes(const Model& model, bool across) {
   SWAYBOUND_REQUIRE(model.n >= 1, "modal analysis needs at least one link, got {}", model.n);
   // Coordinates: the link angles, then the elastic rope lengths. A spatial chain hanging at rest
   // with isotropic pivots linearises to two copies of the planar system, one per swing plane: its
@@ -232,7 +246,7 @@ ModalResult modal_analysis(const Model& model) {
   const int n = model.spatial ? model.n : model.dof;
   ModalResult result;
 
-  const LinearSystem system = linear_system(model);
+  const LinearSystem system = linear_system(model, across);
   const Eigen::MatrixXd& M0 = system.M;
   Eigen::LLT<Eigen::MatrixXd> llt(M0);
   SWAYBOUND_REQUIRE(llt.info() == Eigen::Success,
@@ -363,13 +377,6 @@ ModalResult modal_analysis(const Model& model) {
 
   // --- Notes: what the linearisation leaves out or approximates.
   auto& notes = result.notes;
-  if (model.spatial)
-    notes.push_back(model.dashpots.empty()
-                        ? "spatial chain: the modes of swing in the travel plane (x-y); with isotropic pivots the swing "
-                          "across the travel has the same modes (each a degenerate pair)"
-                        : "spatial chain: the modes of swing in the travel plane (x-y); across the travel the "
-                          "frequencies are the same but the dashpots (in the travel plane) add no damping to first "
-                          "order, so those modes are less damped than listed (not computed here)");
   notes.push_back("linearised about the hanging rest position (all angles 0) with the base at rest; "
                   "valid for small swings only");
   for (int i = 0; i < model.n; ++i) {
@@ -417,6 +424,55 @@ ModalResult modal_analysis(const Model& model) {
       notes.push_back(fmt::format("mode {} has no gravity stiffness (neutral); its damping ratio is reported as 0",
                                   k + 1));
   return result;
+}
+
+}  // namespace
+
+ModalResult modal_analysis(const Model& model) {
+  if (!model.spatial) return plane_modes(model, false);
+  // A spatial chain hanging at rest: its swing in the travel plane (x-y) and across it (z-y) are
+  // uncoupled to first order with the same mass and gravity stiffness (de/dtheta = x, de/dphi = z
+  // at rest, x . z = 0), so every mode has a partner at the same undamped frequency. Pivot dampers
+  // are isotropic and damp both alike; a dashpot damps each plane by the component of its line in it.
+  ModalResult in = plane_modes(model, false);
+  ModalResult across = plane_modes(model, true);
+  ModalResult out;
+  out.closed_loops = std::move(in.closed_loops);
+  std::vector<Mode> all;
+  for (std::size_t k = 0; k < in.modes.size(); ++k) {
+    Mode a = in.modes[k], b = across.modes[k];
+    a.plane = SwayPlane::travel;
+    b.plane = SwayPlane::across;
+    all.push_back(std::move(a));
+    all.push_back(std::move(b));
+  }
+  // In pairs, lowest frequency first (the pair's in-plane mode first).
+  std::stable_sort(all.begin(), all.end(), [](const Mode& x, const Mode& y) {
+    return x.frequency_hz < y.frequency_hz * (1 - 1e-12);
+  });
+  for (std::size_t k = 0; k < all.size(); ++k)
+    for (std::size_t j = 0; j < all.size(); ++j)
+      if (j != k && all[j].plane != all[k].plane && all[j].frequency_hz == all[k].frequency_hz && all[j].pair < 0 &&
+          all[k].pair < 0) {
+        all[k].pair = static_cast<int>(j);
+        all[j].pair = static_cast<int>(k);
+      }
+  out.modes = std::move(all);
+  out.least_damping_ratio = std::min(in.least_damping_ratio, across.least_damping_ratio);
+  out.notes.push_back(
+      "spatial chain: each mode of swing in the travel plane (x-y; the boom's vertical plane when slewing) has a "
+      "partner across it (z-y) at the same undamped frequency, listed as a pair; pivot dampers damp both alike, a "
+      "dashpot each by the component of its line in that plane");
+  bool coupled = false;
+  for (const DashpotModel& d : model.dashpots) {
+    const RestPoint a = rest_point(model, d.a), b = rest_point(model, d.b);
+    coupled |= a.x != b.x && a.z != b.z;
+  }
+  if (coupled)
+    out.notes.push_back("a dashpot inclined to both planes couples the swing in them; the coupling is left out "
+                        "(each plane is damped by its own component only)");
+  for (std::string& note : in.notes) out.notes.push_back(std::move(note));
+  return out;
 }
 
 }  // namespace swaybound

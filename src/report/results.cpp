@@ -318,10 +318,16 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
   }
 
   Json modes = Json::array();
-  for (const auto& m : r.modes.modes)
-    modes.push_back({{"frequency_hz", number(m.frequency_hz)}, {"period_s", number(m.period_s)},
-                     {"damping_ratio", number(m.damping_ratio)}, {"damped_frequency_hz", number(m.damped_frequency_hz)},
-                     {"shape", vector_json(m.shape)}});
+  for (const auto& m : r.modes.modes) {
+    Json mj{{"frequency_hz", number(m.frequency_hz)}, {"period_s", number(m.period_s)},
+            {"damping_ratio", number(m.damping_ratio)}, {"damped_frequency_hz", number(m.damped_frequency_hz)},
+            {"shape", vector_json(m.shape)}};
+    if (spec.motion == Motion::spatial) {  // pairs: the travel plane and across it
+      mj["plane"] = m.plane == SwayPlane::travel ? "travel" : "across";
+      mj["pair_mode"] = m.pair >= 0 ? Json(m.pair + 1) : Json(nullptr);
+    }
+    modes.push_back(std::move(mj));
+  }
   j["modes"] = {{"modes", modes}, {"least_damping_ratio", number(r.modes.least_damping_ratio)}, {"notes", r.modes.notes}};
   if (!r.modes.closed_loops.empty()) {  // travel controllers (modal/modes.hpp)
     Json loops = Json::array();

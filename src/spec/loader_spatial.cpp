@@ -78,13 +78,6 @@ void refuse_with_spatial(Context& ctx, const Spec& spec) {
                               "turns with the boom is not modelled yet",
                               spec.dashpots[i].name, slewing->name),
                   "check the slewing scenario without this dashpot, or anchor it between links");
-  for (std::size_t i = 0; i < spec.limits.size(); ++i) {
-    const LimitSpec& l = spec.limits[i];
-    if (l.kind == LimitKind::modal_damping_min)
-      ctx.error(l.mark, fmt::format("limits[{}]", i),
-                fmt::format("{}: the modal analysis of a spatial chain is not computed yet", l.key),
-                "remove this limit, or check it on the planar chain ('motion: planar')");
-  }
 }
 
 }  // namespace swaybound::spec_detail

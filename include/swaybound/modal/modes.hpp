@@ -44,8 +44,16 @@
 
 namespace swaybound {
 
+/// The plane a mode swings in: the travel plane (x-y; a planar chain's only one, the boom's vertical
+/// plane when slewing) or, for a spatial chain, across it (z-y).
+enum class SwayPlane { travel, across };
+
 /// One mode: the undamped mode (frequency, period, shape) with the damped mode matched to it.
 struct Mode {
+  SwayPlane plane = SwayPlane::travel;
+  /// A spatial chain: the index (in ModalResult::modes) of its partner in the other plane at the
+  /// same undamped frequency; -1 for none (planar chains).
+  int pair = -1;
   // Undamped (K v = w^2 M0 v)
   double frequency_hz = 0;       ///< undamped natural frequency w / (2 pi) [Hz]
   double period_s = 0;           ///< 1 / frequency_hz [s] (infinity for a neutral mode)
