@@ -1,3 +1,6 @@
+// One file on purpose: the named stages of one right-hand side (kinematics with slewing and luffing,
+// forces, the solve, reactions, both energy audits) share its private helpers and the derivation below.
+//
 // Equations of motion of a spatial chain: N links on spherical pivots, hung from a base that moves
 // in x (travel), y (up) and z (across the travel). Each link is a straight axisymmetric body along
 // its unit vector e_i; its spin about its own axis is not modelled (its angular velocity is

@@ -1,3 +1,5 @@
+// results.json of a check packet: one schema, written in one place (checks, cases, search,
+// shaping, modes and closed loops, audits), so that readers of the file have one source to follow.
 #include "swaybound/report/results.hpp"
 
 #include <algorithm>
