@@ -1,4 +1,4 @@
-// One file on purpose: the named stages of one right-hand side (kinematics with slewing and luffing,
+// Reason it stays one file: the named stages of one right-hand side (kinematics with slewing and luffing,
 // forces, the solve, reactions, both energy audits) share its private helpers and the derivation below.
 //
 // Equations of motion of a spatial chain: N links on spherical pivots, hung from a base that moves

@@ -1,5 +1,5 @@
-// results.json of a check packet: one schema, written in one place (checks, cases, search,
-// shaping, modes and closed loops, audits), so that readers of the file have one source to follow.
+// results.json of a check packet. Reason it stays one file: one schema, written in one place
+// (checks, cases, search, shaping, modes and closed loops, audits), so readers have one source.
 #include "swaybound/report/results.hpp"
 
 #include <algorithm>

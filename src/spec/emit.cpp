@@ -1,5 +1,5 @@
 // The normalised spec: every value in SI, with its unit and whether it came from a default.
-// One file on purpose: it walks the whole spec in the order of specs/README.md, one block per
+// Reason it stays one file: it walks the whole spec in the order of specs/README.md, one block per
 // section, so that a key added to the loader has one obvious place to be written back.
 #include <algorithm>
 #include <cmath>

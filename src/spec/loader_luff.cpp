@@ -26,29 +26,6 @@ SpeedProfile luff_speed_profile(const ScenarioSpec::Slew::Luff& luff) {
   return SpeedProfile::build(luff.initial_speed, moves);
 }
 
-/// Times in [0, duration] where the profile's position can have an extreme: 0, the duration, every
-/// breakpoint before it and every zero of the speed (between two of them it is monotonic).
-std::vector<double> extreme_times(const SpeedProfile& profile, double duration) {
-  std::vector<double> times{0.0, duration};
-  for (double t : profile.breakpoints())
-    if (t < duration) times.push_back(t);
-  for (const ProfilePiece& q : profile.pieces()) {
-    const double end = std::min(q.t1, duration);
-    if (!(q.t0 < end)) continue;
-    std::vector<double> roots;  // v0 + a0 d + j d^2 / 2 = 0
-    if (q.j == 0) {
-      if (q.a0 != 0) roots.push_back(-q.v0 / q.a0);
-    } else if (const double disc = q.a0 * q.a0 - 2 * q.j * q.v0; disc >= 0) {
-      for (double sign : {-1.0, 1.0}) roots.push_back((-q.a0 + sign * std::sqrt(disc)) / q.j);
-    }
-    for (double d : roots)
-      if (d > 0 && q.t0 + d < end) times.push_back(q.t0 + d);
-  }
-  std::sort(times.begin(), times.end());
-  times.erase(std::unique(times.begin(), times.end()), times.end());
-  return times;
-}
-
 }  // namespace
 
 void read_luff(const MapView& slew_map, ScenarioSpec::Slew& slew) {
@@ -114,7 +91,7 @@ void check_luffing(Context& ctx, const Spec& spec) {
       const double s = profile.position(t);
       return boom ? !(std::fabs(luff.angle + s) < kQuarterTurn) : !(sc.slew->radius + s > 0);
     };
-    const std::vector<double> times = extreme_times(profile, duration);
+    const std::vector<double> times = profile_check_times(profile, duration);
     std::size_t k = 0;
     while (k < times.size() && !outside(times[k])) ++k;
     if (k == times.size()) continue;

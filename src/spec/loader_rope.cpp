@@ -171,6 +171,8 @@ void read_lift_off(const MapView& scenario, const Spec& spec, ScenarioSpec& sc) 
   sc.lift_off = lift;
 }
 
+}  // namespace
+
 /// Times in [0, duration] where the drum's rope position can have an extreme or changes law:
 /// 0, the duration, every breakpoint before it and every zero of the speed.
 std::vector<double> profile_check_times(const SpeedProfile& profile, double duration) {
@@ -196,8 +198,6 @@ std::vector<double> profile_check_times(const SpeedProfile& profile, double dura
   times.erase(std::unique(times.begin(), times.end()), times.end());
   return times;
 }
-
-}  // namespace
 
 void read_rope_keys(const MapView& link_map, bool kind_read, LinkSpec& link) {
   Context& ctx = link_map.ctx();
