@@ -112,6 +112,20 @@ void read_range_list(Context& ctx, const YAML::Node& node, const std::string& pa
   }
 }
 
+void read_random_sampling(const MapView& s, InitialSetSpec& set) {
+  Context& ctx = s.ctx();
+  if (s.require("count", "how many random starts"))
+    if (auto c = read_integer(ctx, s.get("count"), s.path("count"), 1, 100'000'000)) set.count = static_cast<int>(*c);
+  if (s.require("seed", "a seed for the random generator, so runs repeat"))
+    if (auto c = read_integer(ctx, s.get("seed"), s.path("seed"), 0, 1LL << 53)) set.seed = static_cast<std::uint64_t>(*c);
+  if (s.has("method")) {
+    if (auto c = read_choice(ctx, s.get("method"), s.path("method"), {"uniform", "latin_hypercube"}))
+      set.method = *c == "uniform" ? SamplingMethod::uniform : SamplingMethod::latin_hypercube;
+  } else {
+    ctx.defaults_filled.push_back(s.path("method"));
+  }
+}
+
 namespace {
 
 /// Reads a set's out-of-plane lists phi [angle] and phi_rate [angular rate] per link, as values
@@ -196,16 +210,7 @@ void read_initial_set(Context& ctx, const YAML::Node& node, const std::string& p
     case InitialKind::random: {
       MapView s(ctx, m.get(kind), kp, body);
       if (!s.ok()) return;
-      if (s.require("count", "how many random starts"))
-        if (auto c = read_integer(ctx, s.get("count"), s.path("count"), 1, 100'000'000)) set.count = static_cast<int>(*c);
-      if (s.require("seed", "a seed for the random generator, so runs repeat"))
-        if (auto c = read_integer(ctx, s.get("seed"), s.path("seed"), 0, 1LL << 53)) set.seed = static_cast<std::uint64_t>(*c);
-      if (s.has("method")) {
-        if (auto c = read_choice(ctx, s.get("method"), s.path("method"), {"uniform", "latin_hypercube"}))
-          set.method = *c == "uniform" ? SamplingMethod::uniform : SamplingMethod::latin_hypercube;
-      } else {
-        ctx.defaults_filled.push_back(s.path("method"));
-      }
+      read_random_sampling(s, set);
       if (!has_start_key(s))
         ctx.error(s.mark(), kp, "no ranges given",
                   "give 'theta' and/or 'rate' ranges per link, or 'amplitude' (and 'phase') ranges per mode");

@@ -32,6 +32,8 @@ enum class MoveOf { drum, travel, slew, cross_travel, luff_radial, luff_boom };
 /// Reads one speed move {at, to, accel, jerk} at `path` into `move` (`of` picks the units and the
 /// words of the messages); false when it could not be read (loader_moves.cpp).
 bool read_drum_move(Context& ctx, const YAML::Node& node, const std::string& path, DrumMoveSpec& move, MoveOf of);
+/// Reads a random set's count, seed and sampling method (method defaults to uniform) from `s`.
+void read_random_sampling(const MapView& s, InitialSetSpec& set);
 /// Times in [0, duration] where a speed profile's position can have an extreme or changes law: 0,
 /// the duration, every breakpoint before it and every zero of the speed (loader_rope.cpp).
 std::vector<double> profile_check_times(const SpeedProfile& profile, double duration);

@@ -188,16 +188,7 @@ void read_equilibrium(const MapView& set_map, const MapView& s, const Spec& spec
     return;
   }
   set.sampling = InitialKind::random;
-  if (s.require("count", "how many random starts"))
-    if (auto c = read_integer(ctx, s.get("count"), s.path("count"), 1, 100'000'000)) set.count = static_cast<int>(*c);
-  if (s.require("seed", "a seed for the random generator, so runs repeat"))
-    if (auto c = read_integer(ctx, s.get("seed"), s.path("seed"), 0, 1LL << 53)) set.seed = static_cast<std::uint64_t>(*c);
-  if (s.has("method")) {
-    if (auto c = read_choice(ctx, s.get("method"), s.path("method"), {"uniform", "latin_hypercube"}))
-      set.method = *c == "uniform" ? SamplingMethod::uniform : SamplingMethod::latin_hypercube;
-  } else {
-    ctx.defaults_filled.push_back(s.path("method"));
-  }
+  read_random_sampling(s, set);
 }
 
 }  // namespace swaybound::spec_detail
