@@ -9,10 +9,9 @@
 // phi_k e_k (l_k). With J_k = dr_k/dq, Lagrange's equations in Kane's form (Kane & Levinson,
 // Dynamics: Theory and Applications, 1985, ch. 6) read
 //   sum_k m_k J_k^T (J_k q'' + a0_k + g y) + rotational terms = Q,
-//   a0_k = a_base + sum_{j<k} (l_j'' e_j + 2 l_j' theta_j' n_j - l_j theta_j'^2 e_j)
-//          + c_k'' e_k + 2 c_k' theta_k' n_k - c_k theta_k'^2 e_k,
-// where l_j'' is known for fixed and prescribed lengths (0 and the drum's) and part of q'' for
-// elastic ones. A rope's inertia about its centre of mass scales as I_k = I0_k (l_k / L_k)^2, so
+//   a0_k = a_base + sum_{j<k} (2 l_j' theta_j' n_j - l_j theta_j'^2 e_j) + 2 c_k' theta_k' n_k - c_k theta_k'^2 e_k,
+// the acceleration at q'' = 0: every changing length is a coordinate, so its l_j'' enters through
+// J_k q'' (an elastic one's unknown, a prescribed one's the drum's, known). A rope's inertia about its centre of mass scales as I_k = I0_k (l_k / L_k)^2, so
 // T_rot = 1/2 I_k(l_k) theta_k'^2 adds I_k' theta_k' to the theta_k equation and -1/2 dI_k/dl_k
 // theta_k'^2 to the l_k equation. The free coordinates (angles, elastic lengths) are solved from
 // their block of the mass matrix with the prescribed accelerations moved to the right; the rows of
@@ -115,12 +114,13 @@ void extended_mass_matrix(const Model& model, Workspace& ws) {
       ws.jac_x(k, ck) = phi * s;
       ws.jac_y(k, ck) = -phi * c;
     }
-    // a0 of the centre of mass, then of the next pivot: (l'' - l w^2) e + 2 l' w n.
-    const double com_accel = phi * ws.len_accel[k] * (model.length_coordinate[k] >= 0 ? 1.0 : 0.0);
-    const double ce = com_accel - ws.com_now[k] * w * w, cn = 2.0 * ws.com_rate[k] * w;
+    // a0 of the centre of mass, then of the next pivot: -l w^2 e + 2 l' w n. Every length that
+    // changes is a coordinate (its l'' enters through J q'', the prescribed ones' with their known
+    // values), so a0 holds no l''.
+    const double ce = -ws.com_now[k] * w * w, cn = 2.0 * ws.com_rate[k] * w;
     ws.acc0_x[k] = pivot_ax + ce * s + cn * c;
     ws.acc0_y[k] = pivot_ay - ce * c + cn * s;
-    const double le = ws.len_accel[k] - ws.len[k] * w * w, ln = 2.0 * ws.len_rate[k] * w;
+    const double le = -ws.len[k] * w * w, ln = 2.0 * ws.len_rate[k] * w;
     pivot_ax += le * s + ln * c;
     pivot_ay += -le * c + ln * s;
   }
