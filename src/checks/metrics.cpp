@@ -51,7 +51,7 @@ CaseExtremes::CaseExtremes(const Model& model, const Spec& spec, int extra,
                   q[kTensionTop * n + i] = -top;
                   q[kTensionBottom * n + i] = -bottom;
                   // The fall's tension: an elastic rope's law, an inextensible rope's top end.
-                  const int r = model_.length_kind[k] == LengthKind::elastic ? model_.length_coordinate[k] - n : -1;
+                  const int r = model_.length_kind[k] == LengthKind::elastic ? model_.length_coordinate[k] - model_.length_start() : -1;
                   const double force = r >= 0 ? v.ws->rope_force[static_cast<std::size_t>(r)] : top;
                   q[kRopeForce * n + i] = model_.kind[k] == LinkKind::rope ? force : 0.0;
                   q[kSnatch * n + i] = r >= 0 && slack_count_[static_cast<std::size_t>(r)] > 0 ? force : 0.0;
@@ -140,7 +140,7 @@ void CaseExtremes::write(CaseMetrics& m) const {
     m.parts_of_line[k] = model_.parts[k];
     if (model_.kind[k] == LinkKind::rope) m.peak_rope_force[k] = peak(kRopeForce, i);
     if (model_.length_kind[k] != LengthKind::elastic) continue;
-    const auto r = static_cast<std::size_t>(model_.length_coordinate[k] - n);
+    const auto r = static_cast<std::size_t>(model_.length_coordinate[k] - model_.length_start());
     m.slack_time[k] = slack_time_[r];
     m.slack_count[k] = slack_count_[r];
     m.snatch[k] = peak(kSnatch, i);

@@ -40,7 +40,7 @@ nlohmann::json modal_json(const ModalResult& r, const Model& model, const std::s
     for (std::size_t i = 0; i < m.shape.size(); ++i) shape[model.names[i]] = number(m.shape[i]);
     j["shape_rad_per_rad"] = shape;
     if (model.spatial) {  // pairs: the travel plane and across it
-      j["plane"] = m.plane == SwayPlane::travel ? "travel" : "across";
+      j["plane"] = plane_name(m.plane);
       j["pair_mode"] = m.pair >= 0 ? nlohmann::json(m.pair + 1) : nlohmann::json(nullptr);
     }
     if (!model.elastic_links.empty()) {
@@ -98,7 +98,7 @@ void print_table(const ModalResult& r, const Model& model, const std::string& sp
                              m.natural_frequency_with_damping_hz);
     for (std::size_t i = 0; i < m.shape.size(); ++i)
       std::cout << "  " << fmt::format("{:>{}.6g}", m.shape[i], std::max<std::size_t>(12, model.names[i].size() + 7));
-    if (model.spatial) std::cout << "  " << fmt::format("{:>14}", m.plane == SwayPlane::travel ? "travel (x-y)" : "across (z-y)");
+    if (model.spatial) std::cout << "  " << fmt::format("{:>14}", m.plane == SwayPlane::travel ? "travel (x-y)" : m.plane == SwayPlane::across ? "across (z-y)" : "vertical (y)");
     if (ropes) {
       std::cout << "  " << fmt::format("{:>5}", m.axial ? "axial" : "sway");  // + 0.0 below: no "-0"
       for (std::size_t r = 0; r < m.stretch_shape.size(); ++r)

@@ -316,7 +316,7 @@ Action add_simulate(CLI::App& app) {
         if (model.length_kind[k] == LengthKind::fixed) continue;
         csv << ',' << w.len[k];
         if (model.length_kind[k] == LengthKind::elastic) {
-          const auto r = static_cast<std::size_t>(model.length_coordinate[k] - n);
+          const auto r = static_cast<std::size_t>(model.length_coordinate[k] - model.length_start());
           csv << ',' << w.unstretched[r] << ',' << w.stretch[r] << ',' << w.rope_force[r] + 0.0 << ','
               << (w.rope_slack[r] ? 1 : 0);
         } else {

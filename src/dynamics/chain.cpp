@@ -51,13 +51,17 @@ Workspace::Workspace(const Model& model) : model_id(model.id), links(model.n) {
     llt_s.compute(mass_s);  // sizes the factor (see Scratch::resize)
   }
   if (model.variable_length()) {
-    const auto e = static_cast<Eigen::Index>(model.extended), f = static_cast<Eigen::Index>(model.dof);
+    const auto e = static_cast<Eigen::Index>(model.speeds()), f = static_cast<Eigen::Index>(model.free_speeds());
     mass_x = Eigen::MatrixXd::Zero(e, e);
     bias_x = rhs_x = accel_x = Eigen::VectorXd::Zero(e);
     mass_f = Eigen::MatrixXd::Identity(f, f);
     rhs_f = accel_f = Eigen::VectorXd::Zero(f);
     llt_f.compute(mass_f);  // sizes the factor (see Scratch::resize)
     jac_x = jac_y = Eigen::MatrixXd::Zero(static_cast<Eigen::Index>(n), e);
+    if (model.spatial) {
+      jac_z = jac_x;
+      acc0_z.assign(n, 0.0);
+    }
   }
 }
 

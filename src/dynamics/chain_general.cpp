@@ -79,7 +79,7 @@ void rope_forces(const Model& model, Workspace& ws, double* q) {
     ws.stretch_rate[r] = delta_rate;
     ws.taut_margin[r] = s.taut_margin;
     ws.rope_force[r] = s.tension;
-    q[model.length_coordinate[i]] -= s.tension;
+    q[model.speed_index(model.length_coordinate[i])] -= s.tension;
     ws.strain_energy += s.strain_energy;
     ws.dissipated_power += s.dissipated_power;
     ws.input_power += s.drum_power;
@@ -272,10 +272,21 @@ void rope_start(const Model& model, Workspace& ws, const Phase& phase, bool lift
     // the rope's lower end is still: its rates follow from the base velocity (d' = -v_base).
     const auto c = static_cast<std::size_t>(model.length_coordinate[0]);
     x[c] -= lift_off_slack;
-    for (int k = 1; k < model.n; ++k) x[static_cast<std::size_t>(f + k)] = 0.0;
-    const double s = std::sin(x[0]), co = std::cos(x[0]);
-    x[static_cast<std::size_t>(f) + c] = -(phase.vx0 * s - phase.vy0 * co);
-    x[static_cast<std::size_t>(f)] = -(phase.vx0 * co + phase.vy0 * s) / x[c];
+    if (model.spatial) {
+      // d = l e: l' = -v . e and e' = -(v - (v . e) e) / l.
+      for (int k = 3; k < 3 * model.n; ++k) x[static_cast<std::size_t>(f + k)] = 0.0;
+      const double v[3] = {ws.base_vx, ws.base_vy, ws.base_vz};
+      const double norm = std::sqrt(x[0] * x[0] + x[1] * x[1] + x[2] * x[2]);
+      double e[3], along = 0;
+      for (std::size_t k = 0; k < 3; ++k) along += v[k] * (e[k] = x[k] / norm);
+      x[static_cast<std::size_t>(f) + c] = -along;
+      for (std::size_t k = 0; k < 3; ++k) x[static_cast<std::size_t>(f) + k] = -(v[k] - along * e[k]) / x[c];
+    } else {
+      for (int k = 1; k < model.n; ++k) x[static_cast<std::size_t>(f + k)] = 0.0;
+      const double s = std::sin(x[0]), co = std::cos(x[0]);
+      x[static_cast<std::size_t>(f) + c] = -(phase.vx0 * s - phase.vy0 * co);
+      x[static_cast<std::size_t>(f)] = -(phase.vx0 * co + phase.vy0 * s) / x[c];
+    }
     std::fill(ws.rope_slack.begin(), ws.rope_slack.end(), 0);
     ws.grounded = true;
     evaluate(model, ws, phase, x.data(), 0.0, dxdt.data());
@@ -291,13 +302,14 @@ void rope_start(const Model& model, Workspace& ws, const Phase& phase, bool lift
   std::fill(ws.rope_slack.begin(), ws.rope_slack.end(), 1);
   evaluate(model, ws, phase, x.data(), 0.0, dxdt.data());
   Eigen::MatrixXd a(static_cast<Eigen::Index>(ropes), static_cast<Eigen::Index>(ropes));
+  const auto speed = [&model](std::size_t r) {
+    return model.speed_index(model.length_coordinate[static_cast<std::size_t>(model.elastic_links[r])]);
+  };
   for (std::size_t r = 0; r < ropes; ++r) {
-    Eigen::VectorXd unit = Eigen::VectorXd::Zero(f);
-    unit(model.length_coordinate[static_cast<std::size_t>(model.elastic_links[r])]) = 1.0;
+    Eigen::VectorXd unit = Eigen::VectorXd::Zero(model.free_speeds());
+    unit(speed(r)) = 1.0;
     const Eigen::VectorXd column = ws.llt_f.solve(unit);
-    for (std::size_t s = 0; s < ropes; ++s)
-      a(static_cast<Eigen::Index>(s), static_cast<Eigen::Index>(r)) =
-          column(model.length_coordinate[static_cast<std::size_t>(model.elastic_links[s])]);
+    for (std::size_t s = 0; s < ropes; ++s) a(static_cast<Eigen::Index>(s), static_cast<Eigen::Index>(r)) = column(speed(s));
   }
   const Eigen::PartialPivLU<Eigen::MatrixXd> lu(a);
   Eigen::VectorXd tension = Eigen::VectorXd::Zero(static_cast<Eigen::Index>(ropes));

@@ -74,21 +74,27 @@ void point_state_3d(const Model& model, const Workspace& ws, const PointRef& p, 
     return;
   }
   for (int j = 0; j <= p.link; ++j) {
-    const double r = j < p.link ? model.length[j] : p.at;
+    // A point on a rope of variable length keeps its fraction of the length (as in the planar chain).
+    const double scale = j < p.link ? 1.0 : p.at / model.length[j];
+    const double r = j < p.link ? ws.len[j] : model.length_coordinate[j] < 0 ? p.at : ws.len[j] * scale;
     pos = pos + r * load(ws.dir, j);
-    vel = vel + r * load(ws.dir_rate, j);
+    vel = vel + r * load(ws.dir_rate, j) + (ws.len_rate[j] * scale) * load(ws.dir, j);
   }
 }
 
-/// Adds a point force F on link k at distance s to the generalised forces q (2 per link) and ws.force_*.
+/// Adds a point force F on link k at distance s (at the link's length in the spec) to the
+/// generalised forces q (2 per link, then the lengths' speeds) and ws.force_*.
 void apply_point_force_3d(const Model& model, Workspace& ws, int k, double s, Vec3 f, Eigen::VectorXd& q) {
   ws.force_x[k] += f.x;
   ws.force_y[k] += f.y;
   ws.force_z[k] += f.z;
   for (int j = 0; j <= k; ++j) {
-    const double lever = j < k ? model.length[j] : s;
+    const double scale = j < k ? 1.0 : s / model.length[j];
+    const int c = model.length_coordinate[j];
+    const double lever = j < k ? ws.len[j] : c < 0 ? s : ws.len[j] * scale;
     q(2 * j) += lever * dot(tangent(ws, j, 0), f);
     q(2 * j + 1) += lever * dot(tangent(ws, j, 1), f);
+    if (c >= 0) q(model.speed_index(c)) += scale * dot(load(ws.dir, j), f);
   }
 }
 
@@ -302,18 +308,27 @@ void spatial_kinematics(const Model& model, Workspace& ws, const Phase& p, const
     }
     ws.omega[i] = dot(r, r);  // the swing rate squared |e_i'|^2 [1/s^2] (the velocity-product terms read it)
   }
+  if (model.variable_length()) rope_kinematics(model, ws, p, x, t);
 }
 
 void spatial_reactions(const Model& model, Workspace& ws) {
   // Forward: centre-of-mass accelerations; backward: Newton's second law for each sub-chain.
-  Vec3 pivot{ws.base_ax, ws.base_ay, ws.base_az};
-  for (int k = 0; k < model.n; ++k) {
-    const Vec3 a = direction_accel(ws, k, ws.accel_s);
-    const Vec3 com = pivot + model.com[k] * a;
-    ws.acc_x[k] = com.x;
-    ws.acc_y[k] = com.y;
-    ws.acc_z[k] = com.z;
-    pivot = pivot + model.length[k] * a;
+  if (model.variable_length()) {
+    for (int k = 0; k < model.n; ++k) {
+      ws.acc_x[k] = ws.acc0_x[k] + ws.jac_x.row(k).dot(ws.accel_x);
+      ws.acc_y[k] = ws.acc0_y[k] + ws.jac_y.row(k).dot(ws.accel_x);
+      ws.acc_z[k] = ws.acc0_z[k] + ws.jac_z.row(k).dot(ws.accel_x);
+    }
+  } else {
+    Vec3 pivot{ws.base_ax, ws.base_ay, ws.base_az};
+    for (int k = 0; k < model.n; ++k) {
+      const Vec3 a = direction_accel(ws, k, ws.accel_s);
+      const Vec3 com = pivot + model.com[k] * a;
+      ws.acc_x[k] = com.x;
+      ws.acc_y[k] = com.y;
+      ws.acc_z[k] = com.z;
+      pivot = pivot + model.length[k] * a;
+    }
   }
   Vec3 f;
   for (int k = model.n - 1; k >= 0; --k) {
@@ -371,10 +386,15 @@ struct DynamicFactor {
 
 template <class Factor>
 void evaluate_spatial_with(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt);
+void evaluate_spatial_ropes(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt);
 
 }  // namespace
 
 void evaluate_spatial(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt) {
+  if (model.variable_length()) {
+    evaluate_spatial_ropes(model, ws, phase, x, t, dxdt);
+    return;
+  }
   switch (model.n) {
     case 1: evaluate_spatial_with<FixedFactor<2>>(model, ws, phase, x, t, dxdt); break;
     case 2: evaluate_spatial_with<FixedFactor<4>>(model, ws, phase, x, t, dxdt); break;
@@ -384,6 +404,46 @@ void evaluate_spatial(const Model& model, Workspace& ws, const Phase& phase, con
 }
 
 namespace {
+
+/// The end of every spatial right-hand side: the powers of the pivot torques and of the moving base
+/// into ws, the boom frame's powers (boom_frame_powers, with `drum` the drums' power, the same in
+/// every frame), and dx/dt from the state x and the generalised accelerations `accel` (the tangent
+/// accelerations 2 per link, then the lengths').
+void spatial_powers_and_rates(const Model& model, Workspace& ws, const Phase& phase, const double* x,
+                              const Eigen::VectorXd& accel, double drum, double* dxdt) {
+  const int n = model.n, f = model.dof;
+  const Vec3 base_v = base_velocity(ws);
+  const bool moving = base_v.x != 0.0 || base_v.y != 0.0 || base_v.z != 0.0;
+  if (model.any_pivot_torque) {
+    for (int i = 0; i < n; ++i) ws.dissipated_power -= dot(load(ws.torque, i), relative_spin(ws, i));
+    // A slewing boom turns the upper side of pivot 0: the work its torque does on the chain.
+    ws.input_power += ws.base_spin * ws.torque[1];
+  }
+  if (moving) ws.input_power += dot(Vec3{ws.reaction_x[0], ws.reaction_y[0], ws.reaction_z[0]}, base_v);
+  if (model.boom_frame) {
+    double frame = 0, euler = 0;
+    boom_frame_powers(model, ws, phase, moving, frame, euler);
+    dxdt[2 * f + 2] = frame + drum;
+    dxdt[2 * f + 3] = euler;
+  }
+  for (int i = 0; i < n; ++i) {
+    const Vec3 r = load(ws.dir_rate, i), a = direction_accel(ws, i, accel);
+    dxdt[3 * i] = r.x;
+    dxdt[3 * i + 1] = r.y;
+    dxdt[3 * i + 2] = r.z;
+    dxdt[f + 3 * i] = a.x;
+    dxdt[f + 3 * i + 1] = a.y;
+    dxdt[f + 3 * i + 2] = a.z;
+    ws.alpha[i] = std::sqrt(accel(2 * i) * accel(2 * i) + accel(2 * i + 1) * accel(2 * i + 1));
+  }
+  for (const int link : model.elastic_links) {
+    const int c = model.length_coordinate[static_cast<std::size_t>(link)];
+    dxdt[c] = x[f + c];
+    dxdt[f + c] = accel(model.speed_index(c));
+  }
+  dxdt[2 * f] = ws.dissipated_power;
+  dxdt[2 * f + 1] = ws.input_power;
+}
 
 template <class Factor>
 void evaluate_spatial_with(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt) {
@@ -419,47 +479,189 @@ void evaluate_spatial_with(const Model& model, Workspace& ws, const Phase& phase
   ws.reactions_current = need_reactions;
   pin_friction_fixed_point(model, ws, solve);
 
-  if (model.any_pivot_torque) {
-    for (int i = 0; i < n; ++i) ws.dissipated_power -= dot(load(ws.torque, i), relative_spin(ws, i));
-    // A slewing boom turns the upper side of pivot 0: the work its torque does on the chain.
-    ws.input_power += ws.base_spin * ws.torque[1];
+  spatial_powers_and_rates(model, ws, phase, x, ws.accel_s, 0.0, dxdt);
+}
+
+// Ropes of variable length (the spatial form of chain_general.cpp): generalised speeds u (2 per
+// link), then the elastic lengths' rates, then the prescribed lengths'. With J_k = dr_k/d(speeds)
+// (columns l_j t_ja for links j above k, c_k t_ka for k itself, e_j for a length above, phi_k e_k
+// for k's own) and a0_k the centre of mass's acceleration at zero generalised accelerations,
+//   a0_k = a_base + sum_{j<k} (2 l_j' e_j' - l_j |e_j'|^2 e_j) + 2 c_k' e_k' - c_k |e_k'|^2 e_k,
+// Kane's equations read sum_k m_k J_k^T (J_k u' + a0_k + g y) + rotational terms = Q. A rope's
+// inertia about its centre of mass I_k(l_k) acts across its axis: d/dt (I_k w_k) . dw_k/du_ka =
+// I_k u_ka' + I_k' u_ka, and the rotational energy 1/2 I_k(l_k) |e_k'|^2 adds -I_k |e_k'|^2 / l_k
+// to the length's row (on the left), as in the planar chain.
+
+/// Stage 2 with ropes: ws.jac_*, ws.acc0_*, the mass matrix ws.mass_x and the bias ws.bias_x.
+void spatial_rope_mass_matrix(const Model& model, Workspace& ws) {
+  const int n = model.n;
+  const Eigen::Index speeds = model.speeds();
+  ws.jac_x.setZero();
+  ws.jac_y.setZero();
+  ws.jac_z.setZero();
+  const auto column = [&ws](int k, Eigen::Index c, Vec3 v) {
+    ws.jac_x(k, c) = v.x;
+    ws.jac_y(k, c) = v.y;
+    ws.jac_z(k, c) = v.z;
+  };
+  Vec3 pivot_a{ws.base_ax, ws.base_ay, ws.base_az};
+  for (int k = 0; k < n; ++k) {
+    for (int j = 0; j <= k; ++j) {
+      const double lever = j < k ? ws.len[j] : ws.com_now[k];
+      column(k, 2 * j, lever * tangent(ws, j, 0));
+      column(k, 2 * j + 1, lever * tangent(ws, j, 1));
+      if (const int c = model.length_coordinate[j]; c >= 0)
+        column(k, model.speed_index(c), (j < k ? 1.0 : model.com[k] / model.length[k]) * load(ws.dir, j));
+    }
+    const Vec3 e = load(ws.dir, k), r = load(ws.dir_rate, k);
+    const Vec3 com = pivot_a + (-ws.com_now[k] * ws.omega[k]) * e + (2.0 * ws.com_rate[k]) * r;
+    ws.acc0_x[k] = com.x;
+    ws.acc0_y[k] = com.y;
+    ws.acc0_z[k] = com.z;
+    pivot_a = pivot_a + (-ws.len[k] * ws.omega[k]) * e + (2.0 * ws.len_rate[k]) * r;
   }
-  if (moving) ws.input_power += dot(Vec3{ws.reaction_x[0], ws.reaction_y[0], ws.reaction_z[0]}, base_v);
-  if (model.boom_frame) {
-    double frame = 0, euler = 0;
-    boom_frame_powers(model, ws, phase, moving, frame, euler);
-    dxdt[2 * model.dof + 2] = frame;
-    dxdt[2 * model.dof + 3] = euler;
+  for (Eigen::Index a = 0; a < speeds; ++a) {
+    double b = 0;
+    for (int k = 0; k < n; ++k)
+      b -= model.mass[k] * (ws.jac_x(k, a) * ws.acc0_x[k] + ws.jac_y(k, a) * (ws.acc0_y[k] + model.gravity) +
+                            ws.jac_z(k, a) * ws.acc0_z[k]);
+    ws.bias_x(a) = b;
+    for (Eigen::Index c = 0; c <= a; ++c) {
+      double m = 0;
+      for (int k = 0; k < n; ++k)
+        m += model.mass[k] * (ws.jac_x(k, a) * ws.jac_x(k, c) + ws.jac_y(k, a) * ws.jac_y(k, c) +
+                              ws.jac_z(k, a) * ws.jac_z(k, c));
+      ws.mass_x(a, c) = m;
+      ws.mass_x(c, a) = m;
+    }
+  }
+  for (int k = 0; k < n; ++k) {
+    const Vec3 r = load(ws.dir_rate, k);
+    for (int a = 0; a < 2; ++a) {
+      ws.mass_x(2 * k + a, 2 * k + a) += ws.inertia_now[k];
+      ws.bias_x(2 * k + a) -= ws.inertia_rate[k] * dot(tangent(ws, k, a), r);
+    }
+    if (const int c = model.length_coordinate[k]; c >= 0)
+      ws.bias_x(model.speed_index(c)) += ws.inertia_now[k] * ws.omega[k] / ws.len[k];
+  }
+}
+
+/// Accelerations of a grounded chain (lift-off: the links below rope link 0 held at rest on the
+/// ground, the rope's lower end still) into ws.accel_x, and the ground's force into ws.ground_*.
+/// From d = p_1 - p_base = l_0 e_0 with d'' = -a_base:
+///   l_0'' = l_0 |e_0'|^2 - a_base . e_0,   u_0a' = -(a_base . t_0a + 2 l_0' u_0a) / l_0,
+/// and the ground's force lambda on the held links from the residuals of the rows of u_0a (l_0 t_0a
+/// . lambda) and l_0 (e_0 . lambda).
+void spatial_grounded_accelerations(const Model& model, Workspace& ws) {
+  ws.accel_x.setZero();
+  const Vec3 e = load(ws.dir, 0), r = load(ws.dir_rate, 0), a_base{ws.base_ax, ws.base_ay, ws.base_az};
+  const double l = ws.len[0], l_rate = ws.len_rate[0];
+  const Eigen::Index c0 = model.speed_index(model.length_coordinate[0]);
+  for (int a = 0; a < 2; ++a) {
+    const Vec3 t = tangent(ws, 0, a);
+    ws.accel_x(a) = -(dot(a_base, t) + 2.0 * l_rate * dot(t, r)) / l;
+  }
+  ws.accel_x(c0) = l * ws.omega[0] - dot(a_base, e);
+  for (int i = 0; i < model.n; ++i)
+    if (const int c = model.length_coordinate[i]; c >= model.dof) ws.accel_x(model.speed_index(c)) = ws.len_accel[i];
+  const auto residual = [&](Eigen::Index row) { return ws.mass_x.row(row).dot(ws.accel_x) - ws.rhs_x(row); };
+  const Vec3 ground = residual(c0) * e + (residual(0) / l) * tangent(ws, 0, 0) + (residual(1) / l) * tangent(ws, 0, 1);
+  ws.ground_x = ground.x;
+  ws.ground_y = ground.y;
+  ws.ground_z = ground.z;
+}
+
+void evaluate_spatial_ropes(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t,
+                            double* dxdt) {
+  const int n = model.n;
+  const Eigen::Index speeds = model.speeds(), free = model.free_speeds();
+  ++ws.evaluations;
+  ws.dissipated_power = 0;
+  ws.input_power = 0;
+  spatial_kinematics(model, ws, phase, x, t);
+  spatial_rope_mass_matrix(model, ws);
+  for (int k = 0; k < n; ++k) ws.force_x[k] = ws.force_y[k] = ws.force_z[k] = 0.0;
+  if (!model.wind.empty() || !model.dashpots.empty()) spatial_external_forces(model, ws, phase, ws.bias_x);
+  const double input_before = ws.input_power;
+  rope_forces(model, ws, ws.bias_x.data());
+  double drum = ws.input_power - input_before;  // rope_forces adds only the drums' power to it
+  if (!ws.grounded) {
+    ws.mass_f = ws.mass_x.topLeftCorner(free, free);
+    ws.llt_f.compute(ws.mass_f);
   }
 
-  const int f = model.dof;
+  const Vec3 base_v = base_velocity(ws);
+  const bool moving = base_v.x != 0.0 || base_v.y != 0.0 || base_v.z != 0.0;
+  const bool need_reactions = !ws.lazy_reactions || model.any_pin_friction || moving || ws.grounded || free < speeds;
+  Vec3 ground_applied;  // the ground's share of ws.force_*[1]
+  const auto solve = [&](const double* reaction) {
+    ws.rhs_x = ws.bias_x;
+    add_spatial_pivot_torques(model, ws, reaction, ws.rhs_x);
+    if (ws.grounded) {
+      spatial_grounded_accelerations(model, ws);
+      // The ground's force acts on the held links below the rope (their resultant, at link 1).
+      const Vec3 ground{ws.ground_x, ws.ground_y, ws.ground_z};
+      ws.force_x[1] += ground.x - ground_applied.x;
+      ws.force_y[1] += ground.y - ground_applied.y;
+      ws.force_z[1] += ground.z - ground_applied.z;
+      ground_applied = ground;
+    } else {
+      // Free block: M_ff u_f' = rhs_f - M_fp u_p' with the prescribed lengths' known accelerations.
+      for (Eigen::Index a = free; a < speeds; ++a) ws.accel_x(a) = 0;
+      for (int i = 0; i < n; ++i)
+        if (const int c = model.length_coordinate[i]; c >= model.dof) ws.accel_x(model.speed_index(c)) = ws.len_accel[i];
+      for (Eigen::Index a = 0; a < free; ++a) {
+        double v = ws.rhs_x(a);
+        for (Eigen::Index b = free; b < speeds; ++b) v -= ws.mass_x(a, b) * ws.accel_x(b);
+        ws.rhs_f(a) = v;
+      }
+      ws.accel_f = ws.llt_f.solve(ws.rhs_f);
+      ws.accel_x.head(free) = ws.accel_f;
+    }
+    if (need_reactions) spatial_reactions(model, ws);
+  };
+  solve(nullptr);
+  ws.reactions_current = need_reactions;
+  pin_friction_fixed_point(model, ws, solve);
+
+  // Axial force each drum holds on a prescribed rope: minus the constraint force along its length.
   for (int i = 0; i < n; ++i) {
-    const Vec3 r = load(ws.dir_rate, i), a = direction_accel(ws, i, ws.accel_s);
-    dxdt[3 * i] = r.x;
-    dxdt[3 * i + 1] = r.y;
-    dxdt[3 * i + 2] = r.z;
-    dxdt[f + 3 * i] = a.x;
-    dxdt[f + 3 * i + 1] = a.y;
-    dxdt[f + 3 * i + 2] = a.z;
-    ws.alpha[i] = std::sqrt(ws.accel_s(2 * i) * ws.accel_s(2 * i) + ws.accel_s(2 * i + 1) * ws.accel_s(2 * i + 1));
+    const int c = model.length_coordinate[i];
+    if (c < model.dof) continue;
+    const Eigen::Index row = model.speed_index(c);
+    const double lambda = ws.mass_x.row(row).dot(ws.accel_x) - ws.rhs_x(row);
+    ws.drum_force[i] = -lambda;
+    ws.input_power += lambda * ws.len_rate[i];
+    drum += lambda * ws.len_rate[i];
   }
-  dxdt[2 * f] = ws.dissipated_power;
-  dxdt[2 * f + 1] = ws.input_power;
+  spatial_powers_and_rates(model, ws, phase, x, ws.accel_x, drum, dxdt);
+}
+
+}  // namespace
+
+namespace {
+
+/// Calls visit(k, com, com_v, e, e') for every link: its centre of mass and that point's velocity,
+/// with the links' lengths of the last kinematics (a rope of variable length at its current one).
+template <class Visit>
+void each_centre_of_mass(const Model& model, const Workspace& ws, Visit&& visit) {
+  Vec3 pivot{ws.base_x, ws.base_y, ws.base_z}, v = base_velocity(ws);
+  for (int k = 0; k < model.n; ++k) {
+    const Vec3 e = load(ws.dir, k), r = load(ws.dir_rate, k);
+    visit(k, pivot + ws.com_now[k] * e, v + ws.com_now[k] * r + ws.com_rate[k] * e, e, r);
+    pivot = pivot + ws.len[k] * e;
+    v = v + ws.len[k] * r + ws.len_rate[k] * e;
+  }
 }
 
 }  // namespace
 
 double spatial_energy(const Model& model, const Workspace& ws) {
-  double energy = 0;
-  Vec3 pivot{ws.base_x, ws.base_y, ws.base_z}, v = base_velocity(ws);
-  for (int k = 0; k < model.n; ++k) {
-    const Vec3 e = load(ws.dir, k), r = load(ws.dir_rate, k);
-    const Vec3 com = pivot + model.com[k] * e, com_v = v + model.com[k] * r;
-    energy += 0.5 * model.mass[k] * dot(com_v, com_v) + 0.5 * model.inertia[k] * dot(r, r) +
+  double energy = ws.strain_energy;
+  each_centre_of_mass(model, ws, [&](int k, Vec3 com, Vec3 com_v, Vec3, Vec3 r) {
+    energy += 0.5 * model.mass[k] * dot(com_v, com_v) + 0.5 * ws.inertia_now[k] * dot(r, r) +
               model.mass[k] * model.gravity * com.y;
-    pivot = pivot + model.length[k] * e;
-    v = v + model.length[k] * r;
-  }
+  });
   return energy;
 }
 
@@ -468,18 +670,13 @@ double boom_frame_energy(const Model& model, const Workspace& ws) {
   // Per link: 1/2 m |v - W x rho|^2 + 1/2 I |e' - W x e|^2 + m g y - 1/2 m |W x rho|^2 - 1/2 I |W x e|^2
   // (a link's inertia I about its centre of mass acts across its axis only: no twist).
   const Vec3 w = frame_spin(ws);
-  double energy = 0;
-  Vec3 pivot{ws.base_x, ws.base_y, ws.base_z}, v = base_velocity(ws);
-  for (int k = 0; k < model.n; ++k) {
-    const Vec3 e = load(ws.dir, k), r = load(ws.dir_rate, k);
-    const Vec3 com = pivot + model.com[k] * e, com_v = v + model.com[k] * r;
+  double energy = ws.strain_energy;
+  each_centre_of_mass(model, ws, [&](int k, Vec3 com, Vec3 com_v, Vec3 e, Vec3 r) {
     const Vec3 carried = cross(w, from_axis(ws, com)), turned = cross(w, e);
     const Vec3 v_rel = com_v - carried, r_rel = r - turned;
     energy += 0.5 * model.mass[k] * (dot(v_rel, v_rel) - dot(carried, carried)) +
-              0.5 * model.inertia[k] * (dot(r_rel, r_rel) - dot(turned, turned)) + model.mass[k] * model.gravity * com.y;
-    pivot = pivot + model.length[k] * e;
-    v = v + model.length[k] * r;
-  }
+              0.5 * ws.inertia_now[k] * (dot(r_rel, r_rel) - dot(turned, turned)) + model.mass[k] * model.gravity * com.y;
+  });
   return energy;
 }
 
@@ -487,14 +684,9 @@ double axis_momentum(const Model& model, const Workspace& ws) {
   if (!model.spatial) return 0.0;
   // sum_k m_k (rho_k x v_k)_y + I_k (e_k x e_k')_y; (a x b)_y = a_z b_x - a_x b_z.
   double momentum = 0;
-  Vec3 pivot{ws.base_x, ws.base_y, ws.base_z}, v = base_velocity(ws);
-  for (int k = 0; k < model.n; ++k) {
-    const Vec3 e = load(ws.dir, k), r = load(ws.dir_rate, k);
-    const Vec3 rho = from_axis(ws, pivot + model.com[k] * e), com_v = v + model.com[k] * r;
-    momentum += model.mass[k] * cross(rho, com_v).y + model.inertia[k] * cross(e, r).y;
-    pivot = pivot + model.length[k] * e;
-    v = v + model.length[k] * r;
-  }
+  each_centre_of_mass(model, ws, [&](int k, Vec3 com, Vec3 com_v, Vec3 e, Vec3 r) {
+    momentum += model.mass[k] * cross(from_axis(ws, com), com_v).y + ws.inertia_now[k] * cross(e, r).y;
+  });
   return momentum;
 }
 

@@ -13,7 +13,7 @@ namespace swaybound {
 void rope_kinematics(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t);
 
 /// Stage 3c: the law of every elastic rope (dynamics/rope.hpp) at the state of the last
-/// kinematics: its tension into ws.rope_force and -tension into the generalised force q of its
+/// kinematics: its tension into ws.rope_force and -tension into the generalised force q (by speed index) of its
 /// length; strain energy, the damper's dissipation and the drum's power into ws.
 void rope_forces(const Model& model, Workspace& ws, double* q);
 

@@ -61,7 +61,9 @@ class ModeWatch {
 
  private:
   /// Height of rope link 0's lower end [m].
-  static double end_height(const Workspace& ws) { return ws.base_y - ws.len[0] * ws.cos_t[0]; }
+  double end_height(const Workspace& ws) const {
+    return ws.base_y + ws.len[0] * (model_.spatial ? ws.dir[1] : -ws.cos_t[0]);
+  }
 
   const Model& model_;
   bool lift_off_;

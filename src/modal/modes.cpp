@@ -176,8 +176,29 @@ LinearSystem linearise_numerically(const Model& model) {
   return s;
 }
 
+/// The planar chain a spatial chain hanging at rest linearises to in each plane: the same links,
+/// ropes and force elements, with an angle per link instead of a direction.
+Model planar_twin(const Model& model) {
+  Model m = model;
+  m.spatial = false;
+  m.boom_frame = false;
+  for (int& c : m.length_coordinate)
+    if (c >= 0) c -= 2 * m.n;
+  m.dof -= 2 * m.n;
+  m.extended -= 2 * m.n;
+  return m;
+}
+
 LinearSystem linear_system(const Model& model, bool across) {
-  if (model.variable_length()) return linearise_numerically(model);
+  if (model.variable_length()) {
+    if (!model.spatial) return linearise_numerically(model);
+    // Each plane of a spatial chain is its planar twin's; across the travel the angles' damping is
+    // that plane's (a dashpot's other component), the ropes' axial damping the same.
+    LinearSystem s = linearise_numerically(planar_twin(model));
+    if (across)
+      s.C.topLeftCorner(model.n, model.n) += plane_damping_matrix(model, true) - plane_damping_matrix(model, false);
+    return s;
+  }
   LinearSystem s;
   s.M = model.mu;
   s.K = Eigen::MatrixXd::Zero(model.n, model.n);
@@ -243,7 +264,7 @@ ModalResult plane_modes(const Model& model, bool across) {
   // Coordinates: the link angles, then the elastic rope lengths. A spatial chain hanging at rest
   // with isotropic pivots linearises to two copies of the planar system, one per swing plane: its
   // travel-plane modes are computed here, and the notes say what holds across the travel.
-  const int n = model.spatial ? model.n : model.dof;
+  const int n = model.n + static_cast<int>(model.elastic_links.size());
   ModalResult result;
 
   const LinearSystem system = linear_system(model, across);
@@ -441,6 +462,12 @@ ModalResult modal_analysis(const Model& model) {
   std::vector<Mode> all;
   for (std::size_t k = 0; k < in.modes.size(); ++k) {
     Mode a = in.modes[k], b = across.modes[k];
+    if (a.axial) {
+      // A rope's bounce at rest is vertical: one mode, found alike in both planes' analyses.
+      a.plane = SwayPlane::vertical;
+      all.push_back(std::move(a));
+      continue;
+    }
     a.plane = SwayPlane::travel;
     b.plane = SwayPlane::across;
     all.push_back(std::move(a));
@@ -452,7 +479,8 @@ ModalResult modal_analysis(const Model& model) {
   });
   for (std::size_t k = 0; k < all.size(); ++k)
     for (std::size_t j = 0; j < all.size(); ++j)
-      if (j != k && all[j].plane != all[k].plane && all[j].frequency_hz == all[k].frequency_hz && all[j].pair < 0 &&
+      if (j != k && all[j].plane != all[k].plane && all[j].plane != SwayPlane::vertical &&
+          all[k].plane != SwayPlane::vertical && all[j].frequency_hz == all[k].frequency_hz && all[j].pair < 0 &&
           all[k].pair < 0) {
         all[k].pair = static_cast<int>(j);
         all[j].pair = static_cast<int>(k);

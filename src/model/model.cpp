@@ -269,10 +269,13 @@ Model build_model(const Spec& spec) {
   }
   assign_length_coordinates(spec, m);
   if (spec.motion == Motion::spatial) {
-    SWAYBOUND_REQUIRE(!m.variable_length(), "a spatial chain cannot have ropes of variable length yet");
     SWAYBOUND_REQUIRE(!m.drive_states, "a spatial chain cannot have a travel drive's controller yet");
     m.spatial = true;
-    m.dof = m.extended = 3 * m.n;
+    // Each link's direction takes 3 coordinates instead of an angle's 1: the lengths move up by 2n.
+    for (int& c : m.length_coordinate)
+      if (c >= 0) c += 2 * m.n;
+    m.dof += 2 * m.n;
+    m.extended += 2 * m.n;
     m.boom_frame = std::any_of(spec.scenarios.begin(), spec.scenarios.end(),
                                [](const ScenarioSpec& s) { return s.slew.has_value(); });
   }

@@ -42,7 +42,9 @@ Section modal_section(const Spec& spec, const CheckReport& r) {
     std::vector<std::string> shape;
     for (double v : m.shape) shape.push_back(fmt::format("{:.3f}", v));
     std::string note = m.overdamped ? "overdamped" : (m.damping_ratio <= 0 ? "undamped" : "underdamped");
-    if (spec.motion == Motion::spatial)
+    if (spec.motion == Motion::spatial && m.plane == SwayPlane::vertical)
+      note += ", vertical (the rope's bounce)";
+    else if (spec.motion == Motion::spatial)
       note += fmt::format(", {} (pair of mode {})", m.plane == SwayPlane::travel ? "in the travel plane" : "across it",
                           m.pair + 1);
     Row row{{std::to_string(k + 1), num(m.frequency_hz), num(m.period_s), num(m.damping_ratio),

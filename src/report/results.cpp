@@ -325,7 +325,7 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
             {"damping_ratio", number(m.damping_ratio)}, {"damped_frequency_hz", number(m.damped_frequency_hz)},
             {"shape", vector_json(m.shape)}};
     if (spec.motion == Motion::spatial) {  // pairs: the travel plane and across it
-      mj["plane"] = m.plane == SwayPlane::travel ? "travel" : "across";
+      mj["plane"] = plane_name(m.plane);
       mj["pair_mode"] = m.pair >= 0 ? Json(m.pair + 1) : Json(nullptr);
     }
     modes.push_back(std::move(mj));

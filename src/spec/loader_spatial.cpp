@@ -49,23 +49,6 @@ void read_slew(const MapView& scenario, const Spec& spec, ScenarioSpec& sc) {
 
 void refuse_with_spatial(Context& ctx, const Spec& spec) {
   if (spec.motion != Motion::spatial) return;
-  const std::string later = "a spatial chain does not model this yet";
-  for (std::size_t i = 0; i < spec.links.size(); ++i)
-    if (spec.links[i].elastic)
-      ctx.error(spec.links[i].mark, fmt::format("links[{}].elastic", i),
-                fmt::format("link '{}' is an elastic rope: {}", spec.links[i].name, later),
-                "check the elastic rope with 'motion: planar', or make the rope inextensible (remove elastic:)");
-  for (std::size_t i = 0; i < spec.scenarios.size(); ++i) {
-    const ScenarioSpec& s = spec.scenarios[i];
-    if (s.hoist)
-      ctx.error(s.hoist->mark, fmt::format("base.scenarios[{}].hoist", i),
-                fmt::format("scenario '{}' hoists a rope: {}", s.name, later),
-                "check hoisting with 'motion: planar', or remove the hoist");
-    if (s.lift_off)
-      ctx.error(s.lift_off->mark, fmt::format("base.scenarios[{}].lift_off", i),
-                fmt::format("scenario '{}' lifts the load off the ground: {}", s.name, later),
-                "check the lift-off with 'motion: planar', or remove lift_off");
-  }
   // A dashpot anchored on the base would have to turn with a slewing boom; its anchor is fixed in
   // the ground's directions today.
   const auto slewing = std::find_if(spec.scenarios.begin(), spec.scenarios.end(),

@@ -118,8 +118,13 @@ struct Workspace {
   Eigen::MatrixXd mass_f;                ///< its free block (dof x dof)
   Eigen::VectorXd rhs_f, accel_f;        ///< (dof)
   Eigen::LLT<Eigen::MatrixXd> llt_f;     ///< Cholesky factor of the free block
+  // For a spatial chain these are written in its generalised speeds (Model::speed_index; sizes
+  // Model::speeds and Model::free_speeds for `extended` and `dof`), with the z components below.
   Eigen::MatrixXd jac_x, jac_y;          ///< com Jacobians d r_k / d q, per link row (N x extended)
-  std::vector<double> acc0_x, acc0_y;    ///< com accelerations without the unknown q'' [m/s^2] (N)
+  std::vector<double> acc0_x, acc0_y;    ///< com accelerations at q'' = 0 [m/s^2] (N)
+  Eigen::MatrixXd jac_z;                 ///< spatial chains: z components of the com Jacobians (N x speeds)
+  std::vector<double> acc0_z;            ///< spatial chains: z components of acc0 [m/s^2] (N)
+  double ground_z = 0;                   ///< spatial chains: the ground's force across the travel [N]
 
   // Spatial chains (chain_spatial.cpp; model.spatial). Vectors of 3 per link are stored x, y, z
   // link after link; for these models sin_t/cos_t are not used and omega holds |e_i'|^2 [1/s^2].

@@ -45,8 +45,14 @@
 namespace swaybound {
 
 /// The plane a mode swings in: the travel plane (x-y; a planar chain's only one, the boom's vertical
-/// plane when slewing) or, for a spatial chain, across it (z-y).
-enum class SwayPlane { travel, across };
+/// plane when slewing) or, for a spatial chain, across it (z-y); a spatial chain's rope bounce
+/// (an axial mode) is vertical, in neither.
+enum class SwayPlane { travel, across, vertical };
+
+/// The plane's name in results and tables: "travel", "across", "vertical".
+inline const char* plane_name(SwayPlane p) {
+  return p == SwayPlane::travel ? "travel" : p == SwayPlane::across ? "across" : "vertical";
+}
 
 /// One mode: the undamped mode (frequency, period, shape) with the damped mode matched to it.
 struct Mode {

@@ -125,15 +125,26 @@ struct Model {
   std::vector<int> parts;               ///< parts of line per link (1 for rigid links)
   std::vector<RopeLaw> rope_law;        ///< per link (used by elastic links only)
   /// Per link: index of its length among the extended coordinates (angles 0..n-1, then elastic
-  /// lengths n..dof-1, then prescribed lengths dof..extended-1), or -1 for a fixed length.
+  /// lengths n..dof-1, then prescribed lengths dof..extended-1; for a spatial chain the link
+  /// directions take 3 places each, so the lengths start at 3n), or -1 for a fixed length.
   std::vector<int> length_coordinate;
   std::vector<int> elastic_links;       ///< links with an elastic length, in link order
-  int dof = 0;                          ///< coordinates in the state: n angles + elastic lengths
+  int dof = 0;                          ///< coordinates in the state: n angles (3n direction entries) + elastic lengths
   int extended = 0;                     ///< dof + prescribed lengths
   bool variable_length() const { return !elastic_links.empty() || extended > dof; }
-  /// Spatial chain (chain_spatial.cpp): the coordinates are the link directions e_i (3 per link,
-  /// dof = 3N), their rates e_i' follow; no rope of variable length.
+  /// Spatial chain (chain_spatial.cpp): the coordinates are the link directions e_i (3 per link),
+  /// then the elastic rope lengths; their rates follow.
   bool spatial = false;
+  /// The first length coordinate: n (planar) or 3n (spatial); elastic rope r's length is at
+  /// length_start() + r.
+  int length_start() const { return spatial ? 3 * n : n; }
+  /// The index of extended coordinate `c` among the generalised speeds, which are what the mass
+  /// matrix and generalised forces are written in: the same for a planar chain; for a spatial one
+  /// the two tangent rates of each link come first (2n), then the lengths' rates.
+  int speed_index(int c) const { return spatial && c >= 3 * n ? c - n : c; }
+  /// The number of generalised speeds (all: `speeds`; without the prescribed lengths: `free_speeds`).
+  int speeds() const { return spatial ? extended - n : extended; }
+  int free_speeds() const { return spatial ? dof - n : dof; }
   Eigen::MatrixXd mu;              ///< mass-matrix constants mu_ij [kg m^2]
   std::vector<double> h;           ///< first moments h_i [kg m]
   std::vector<double> mass_below;  ///< sum_{k>=i} m_k [kg]
