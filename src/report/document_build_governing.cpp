@@ -304,6 +304,10 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
     // as a planar chain's when the motion stays in the plane, where the modes show as lines
     // (in phase, or against) and a chaotic motion fills an area.
     std::vector<Figure> pairs;
+    const auto capitalised = [](std::string text) {
+      if (!text.empty() && text[0] >= 'a' && text[0] <= 'z') text[0] = static_cast<char>(text[0] - 'a' + 'A');
+      return text;
+    };
     const auto pair_figure = [&](std::size_t i, const std::vector<std::vector<double>>& angle, const std::string& symbol,
                                  const std::string& what) {
       return figure(plot::phase_portrait(fmt::format("{}, links {} and {}", what, i + 1, i + 2),
@@ -312,7 +316,7 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
                                          scaled(angle[i], kDeg), scaled(angle[i + 1], kDeg)),
                     fmt::format("{} of link {} against {} of link {} over the run: a regular motion traces a tidy "
                                 "figure, a chaotic one fills an area.",
-                                symbol, i + 2, symbol, i + 1),
+                                capitalised(symbol), i + 2, symbol, i + 1),
                     240, 0.5);
     };
     const bool signed_planes = spatial && rc->in_plane.size() == rc->theta.size() &&
