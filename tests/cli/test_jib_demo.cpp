@@ -105,7 +105,15 @@ TEST_CASE("the slewing jib crane demo runs through validate, simulate, modes, ch
   // check: the demo's damper as given fails (sway after the gusty stop, residual sway); the packet
   // has the spatial figures and the boom-frame energy audit.
   const fs::path packet = dir / "check";
-  CHECK(status(run_tool("check " + spec.string() + " --out " + packet.string() + " --quiet")) == 1);
+  const CommandResult checked = run_tool("check " + spec.string() + " --out " + packet.string() + " --quiet");
+  CHECK(status(checked) == 1);
+  // The search finds a lower least rope tension between the samples: its line says lowered, as the
+  // worst of a lower bound moves (it said "raised").
+  const std::size_t tension = checked.out.find("rope_tension_min");
+  REQUIRE(tension != std::string::npos);
+  const std::string tension_search = checked.out.substr(tension, checked.out.find('\n', checked.out.find('\n', tension) + 1) - tension);
+  CHECK(tension_search.find("(lowered by") != std::string::npos);
+  CHECK(checked.out.find("(raised by") != std::string::npos);  // the upper bounds' searches
   const auto results = nlohmann::json::parse(read(packet / "results.json"));
   CHECK(results.at("verdict") == "fail");
   const std::string html = read(packet / "report.html");
