@@ -64,12 +64,15 @@ std::string start_values_text(const Spec& spec, int set, const std::vector<doubl
   return text;
 }
 
-std::string start_transient_remark(double time, double period, const std::string& start_note) {
+std::string start_transient_remark(double time, double period, const std::string& start_note, Motion motion) {
   return fmt::format("start transient? The worst value is at t = {:.3g} s, within the first quarter of the lowest modal "
                      "period ({:.3g} s) after the start {}. It may come from this start (a kinked chain released from "
-                     "rest) rather than from the motion; check it again from an equilibrium or modal start "
-                     "(specs/README.md, 'Starts').",
-                     time, period, start_note);
+                     "rest) rather than from the motion; {}",
+                     time, period, start_note,
+                     motion == Motion::spatial
+                         ? "check it again from starts with every link at the same theta and phi (the chain in line, "
+                           "close to its lowest modes: spatial chains have no equilibrium or modal starts yet)."
+                         : "check it again from an equilibrium or modal start (specs/README.md, 'Starts').");
 }
 
 void flag_start_transients(const Spec& spec, const CaseSpace& space, const ModalResult& modes,

@@ -49,9 +49,10 @@ void print_search(const Spec& spec, const CheckReport& r, const CheckResult& c, 
     out << fmt::format("    search: a run failed between the samples ({}) from theta {} under '{}' ({} runs)\n",
                        s.failure, start, scenario, s.evaluations);
   else if (s.found_worse)
-    out << fmt::format("    search: worst between the samples {} (raised by {}, {} of the margin) from theta {} "
+    out << fmt::format("    search: worst between the samples {} ({} by {}, {} of the margin) from theta {} "
                        "under '{}' ({} runs)\n",
-                       engineering(s.searched_worst, c.unit), engineering(s.raise, c.unit),
+                       engineering(s.searched_worst, c.unit), c.bound == Bound::lower ? "lowered" : "raised",
+                       engineering(s.raise, c.unit),
                        ratio_percent(s.raise_of_margin), start, scenario, s.evaluations);
   if (s.audited && s.found_worse)
     out << fmt::format("    search: at a 100x tighter tolerance the searched worst moved by {}{}\n",

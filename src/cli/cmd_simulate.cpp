@@ -260,10 +260,26 @@ Action add_simulate(CLI::App& app) {
           << ',' << csv_quote(fmt::format("tension_top({}) [N]", name)) << ','
           << csv_quote(fmt::format("tension_bottom({}) [N]", name));
     }
+    // A slewing scenario also reads in the boom frame (posture.hpp): radial out from the slewing axis
+    // through the top pivot, tangential the way a positive slewing speed moves it, y up.
+    const bool slewing = model.scenarios[static_cast<std::size_t>(scenario)].phases.front().slew_radius > 0;
+    if (slewing) {
+      for (int i = 0; i < n; ++i) {
+        const std::string& name = model.names[static_cast<std::size_t>(i)];
+        csv << ',' << csv_quote(fmt::format("in_plane_sway({}) (in the boom's vertical plane; + outwards) [rad]", name))
+            << ',' << csv_quote(fmt::format("out_of_plane_sway({}) (across the boom's plane; + the way a positive "
+                                            "slewing speed moves the tip) [rad]", name));
+      }
+      csv << ',' << csv_quote("support_force_radial (of the chain on the boom tip; + outwards) [N]") << ','
+          << csv_quote("support_force_tangential (of the chain on the boom tip; + the way a positive slewing speed "
+                       "moves the tip) [N]")
+          << ',' << csv_quote("support_force_vertical (of the chain on the boom tip; + up) [N]");
+    }
     for (std::size_t w = 0; w < model.wind.size(); ++w) {
       const std::string& on = model.names[static_cast<std::size_t>(model.wind[w].point.link)];
       csv << ',' << csv_quote(fmt::format("wind_force_x(wind[{}] on {}) [N]", w, on)) << ','
           << csv_quote(fmt::format("wind_force_y(wind[{}] on {}) [N]", w, on));
+      if (model.spatial) csv << ',' << csv_quote(fmt::format("wind_force_z(wind[{}] on {}) [N]", w, on));
     }
     // Ropes of variable length: length, unstretched length, stretch, the fall's tension, slack flag.
     for (int i = 0; i < n; ++i) {
@@ -306,10 +322,18 @@ Action add_simulate(CLI::App& app) {
         if (model.spatial) csv << ',' << v.ws->reaction_z[i];
         csv << ',' << v.ws->reaction[i] << ',' << top << ',' << bottom + 0.0;
       }
+      if (slewing) {
+        const BoomFrame frame = boom_frame(*v.phase, w);
+        for (int i = 0; i < n; ++i)
+          csv << ',' << in_plane_sway(model, v.x, i, frame) << ',' << out_of_plane_sway(model, v.x, i, frame);
+        const LoadComponents support = pivot_load_components(model, w, 0, frame);  // F = -R on the top link
+        csv << ',' << -support.radial + 0.0 << ',' << -support.tangential + 0.0 << ',' << -support.vertical + 0.0;
+      }
       for (std::size_t k = 0; k < model.wind.size(); ++k) {
         double fx, fy, vx, vy;
         wind_load_force(model, w, *v.phase, k, fx, fy, vx, vy);
         csv << ',' << fx + 0.0 << ',' << fy + 0.0;  // + 0.0: no "-0"
+        if (model.spatial) csv << ',' << wind_load_force_z(model, w, *v.phase, k) + 0.0;
       }
       for (int i = 0; i < n; ++i) {
         const auto k = static_cast<std::size_t>(i);

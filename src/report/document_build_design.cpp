@@ -1,7 +1,10 @@
 // Section 3, design summary: links, pivots, dampers, wind, scenarios and the case set.
 #include "document_build.hpp"
 
+#include <algorithm>
 #include <cmath>
+#include <optional>
+#include <utility>
 
 #include <fmt/format.h>
 
@@ -35,6 +38,60 @@ std::string kind_name(InitialKind k) { return std::string(initial_kind(k).name);
 std::string attachment_text(const Spec& spec, const AttachmentSpec& a) {
   if (a.link < 0) return fmt::format("base at ({}, {}) m", num(a.base_x), num(a.base_y));
   return fmt::format("'{}' at {} m", link_name(spec, a.link), num(a.at));
+}
+
+/// "to 4 deg/s at 0 s (2 deg/s², jerk 2 deg/s³)" for each move of a speed profile of a position in
+/// `unit` (deg, m), the values times `factor`.
+std::string moves_text(const std::vector<DrumMoveSpec>& moves, double factor, const std::string& unit) {
+  std::vector<std::string> out;
+  for (const auto& m : moves)
+    out.push_back(fmt::format("to {} {}/s at {:g} s ({} {}/s²{})", num(m.to * factor), unit, m.at,
+                              num(m.accel * factor), unit,
+                              m.jerk > 0 ? fmt::format(", jerk {} {}/s³", num(m.jerk * factor), unit) : ""));
+  return fmt::format("{}", fmt::join(out, ", "));
+}
+
+/// A speed profile of a position in `unit` (deg, m): its speed at t = 0, moves, shaper and stop,
+/// the values times `factor`.
+std::string profile_text(double speed, const std::vector<DrumMoveSpec>& moves,
+                         const std::optional<ScenarioSpec::Travel::Shaper>& shaper,
+                         const std::optional<ScenarioSpec::Travel::Stop>& stop, double factor, const std::string& unit) {
+  std::string text = fmt::format("speed {} {}/s at t = 0", num(speed * factor), unit);
+  if (!moves.empty()) text += "; moves " + moves_text(moves, factor, unit);
+  if (shaper) text += fmt::format("; shaped for {} Hz", num(shaper->frequency));
+  if (stop) text += fmt::format("; stop at {:g} s at {} {}/s²", stop->at, num(stop->decel * factor), unit);
+  return text;
+}
+
+/// How a scenario moves the top pivot: its acceleration segments, its drives along x and z, or its
+/// slewing and luffing (3 Design summary, base-motion scenarios).
+std::string base_motion_text(const ScenarioSpec& scn, bool spatial) {
+  std::vector<std::string> parts;
+  if (scn.slew) {
+    const auto& sl = *scn.slew;
+    parts.push_back(fmt::format("slewing at radius {} m: {}", num(sl.radius),
+                                profile_text(sl.initial_rate, sl.moves, sl.shaper, sl.stop, kDeg, "deg")));
+    if (sl.luff) {
+      const auto& lf = *sl.luff;
+      if (lf.boom > 0)
+        parts.push_back(fmt::format("luffing boom of {} m from {} deg: {}", num(lf.boom), num(lf.angle * kDeg),
+                                    profile_text(lf.initial_speed, lf.moves, {}, {}, kDeg, "deg")));
+      else
+        parts.push_back("radial luffing (+ outwards): " +
+                        profile_text(lf.initial_speed, lf.moves, {}, {}, 1, "m"));
+    }
+  }
+  for (const auto& [drive, axis] : {std::pair{&scn.travel, "x"}, std::pair{&scn.cross_travel, "z"}})
+    if (*drive)
+      parts.push_back(fmt::format("drive along {}: {}", axis,
+                                  profile_text((*drive)->initial_speed, (*drive)->moves, (*drive)->shaper,
+                                               (*drive)->stop, 1, "m")));
+  std::vector<std::string> seg;
+  for (const auto& a : scn.accel)
+    seg.push_back(spatial ? fmt::format("{:g} s at ({}, {}, {})", a.duration, num(a.ax), num(a.ay), num(a.az))
+                          : fmt::format("{:g} s at ({}, {})", a.duration, num(a.ax), num(a.ay)));
+  if (!seg.empty()) parts.push_back(fmt::format("acceleration {} m/s²", fmt::join(seg, "; ")));
+  return parts.empty() ? "none (constant velocity)" : fmt::format("{}", fmt::join(parts, "; "));
 }
 
 }  // namespace
@@ -125,35 +182,62 @@ Section design_section(const Spec& spec, const CheckReport& r) {
   if (spec.wind.empty()) {
     s.blocks.push_back(paragraph("None."));
   } else {
+    // A spatial chain's wind blows in a direction of the horizontal plane: a column of its own.
+    const bool directed = spec.motion == Motion::spatial;
     Table t{"wind-table",
             {col("on link", 1.6, Align::left, "link"), col("at [m]", 0.7, Align::right, "at"),
              col("speed [m/s]", 0.9, Align::right, "speed"), col("A [m²]", 0.7, Align::right, "area"),
              col("Cd", 0.6, Align::right, "cd"), col("rho [kg/m³]", 0.9, Align::right, "rho"),
              col("gust", 2.2, Align::left, "gust")},
             {},
-            "Drag F = 1/2 rho Cd A |u - v| (u - v) at the point; positive speed blows towards +x.",
+            directed ? "Drag F = 1/2 rho Cd A |u - v| (u - v) at the point; the wind blows along its direction, "
+                       "measured in the horizontal plane from +x towards +z (0: towards +x)."
+                     : "Drag F = 1/2 rho Cd A |u - v| (u - v) at the point; positive speed blows towards +x.",
             7.6};
-    for (const auto& w : spec.wind)
-      t.rows.push_back({{link_name(spec, w.link), num(w.at), num(w.speed), num(w.drag_area), num(w.drag_coefficient),
-                         num(w.air_density),
-                         w.gust ? fmt::format("+{} m/s from {:g} s for {:g} s", num(w.gust->speed), w.gust->start,
-                                              w.gust->duration)
-                                : "none"}});
+    if (directed) t.columns.insert(t.columns.begin() + 3, col("direction [deg]", 0.9, Align::right, "direction"));
+    for (const auto& w : spec.wind) {
+      Row row{{link_name(spec, w.link), num(w.at), num(w.speed), num(w.drag_area), num(w.drag_coefficient),
+               num(w.air_density),
+               w.gust ? fmt::format("+{} m/s from {:g} s for {:g} s", num(w.gust->speed), w.gust->start,
+                                    w.gust->duration)
+                      : "none"}};
+      if (directed) row.cells.insert(row.cells.begin() + 3, num(w.direction * kDeg));
+      t.rows.push_back(row);
+    }
     s.blocks.push_back(table_block(t));
   }
 
   s.blocks.push_back(subheading("Base-motion scenarios"));
+  // Acceleration segments alone keep the planar table; drives, slewing and a third axis get a
+  // column that says what moves the base.
+  const bool spatial = spec.motion == Motion::spatial;
+  const bool drives = spatial || std::any_of(spec.scenarios.begin(), spec.scenarios.end(), [](const ScenarioSpec& c) {
+                        return c.travel || c.cross_travel || c.slew;
+                      });
   Table sc{"scenarios-table",
-           {col("scenario", 1.6, Align::left, "name"), col("initial velocity [m/s]", 1.1, Align::right, "velocity"),
-            col("acceleration segments: duration [s] at (x, y) [m/s²]", 3.2, Align::left, "accel")},
+           {col("scenario", 1.6, Align::left, "name"),
+            col(spatial ? "initial velocity (x, y, z) [m/s]" : "initial velocity [m/s]", 1.1, Align::right, "velocity"),
+            col(drives ? "base motion: acceleration segments duration [s] at (x, y, z) [m/s²], drives, slewing"
+                       : "acceleration segments: duration [s] at (x, y) [m/s²]",
+                3.2, Align::left, "accel")},
            {},
-           "After the last segment the base keeps its velocity.",
+           drives ? "After the last segment or move the base keeps its velocity (a slewing boom its slewing speed); a "
+                    "slewing scenario's velocity is that of its profiles."
+                  : "After the last segment the base keeps its velocity.",
            7.6};
   for (const auto& scn : spec.scenarios) {
-    std::vector<std::string> seg;
-    for (const auto& a : scn.accel) seg.push_back(fmt::format("{:g} s at ({}, {})", a.duration, num(a.ax), num(a.ay)));
-    sc.rows.push_back({{scn.name, fmt::format("({}, {})", num(scn.initial_vx), num(scn.initial_vy)),
-                        seg.empty() ? "none (constant velocity)" : fmt::format("{}", fmt::join(seg, "; "))}});
+    if (!drives) {
+      std::vector<std::string> seg;
+      for (const auto& a : scn.accel) seg.push_back(fmt::format("{:g} s at ({}, {})", a.duration, num(a.ax), num(a.ay)));
+      sc.rows.push_back({{scn.name, fmt::format("({}, {})", num(scn.initial_vx), num(scn.initial_vy)),
+                          seg.empty() ? "none (constant velocity)" : fmt::format("{}", fmt::join(seg, "; "))}});
+      continue;
+    }
+    const std::string velocity =
+        scn.slew || scn.travel ? "-"
+        : spatial ? fmt::format("({}, {}, {})", num(scn.initial_vx), num(scn.initial_vy), num(scn.initial_vz))
+                  : fmt::format("({}, {})", num(scn.initial_vx), num(scn.initial_vy));
+    sc.rows.push_back({{scn.name, velocity, base_motion_text(scn, spatial)}});
   }
   s.blocks.push_back(table_block(sc));
 
@@ -163,7 +247,11 @@ Section design_section(const Spec& spec, const CheckReport& r) {
             col("starts", 0.6, Align::right, "starts"), col("link angles", 2.4, Align::left, "theta"),
             col("link rates", 1.6, Align::left, "rate"), col("notes", 1.6, Align::left, "notes")},
            {},
-           "Angles per link, top link first; a link not listed starts at 0. Grids show the count per range.",
+           spec.motion == Motion::spatial
+               ? "Angles per link, top link first; a link not listed starts at 0. Grids show the count per range. θ "
+                 "in the travel plane and φ out of it (the link along (sin θ cos φ, -cos θ cos φ, sin φ)), ω and φ' "
+                 "their rates."
+               : "Angles per link, top link first; a link not listed starts at 0. Grids show the count per range.",
            7.4};
   for (const auto& set : spec.cases.initial) {
     std::string notes;
@@ -193,8 +281,10 @@ Section design_section(const Spec& spec, const CheckReport& r) {
       if (sampled == InitialKind::random)
         notes += fmt::format("; seed {}, {}", set.seed, set.method == SamplingMethod::uniform ? "uniform" : "Latin hypercube");
     }
-    is.rows.push_back({{set.name, kind_name(set.kind), std::to_string(initial_set_size(set)),
-                        range_text(set.theta, set.kind, kDeg, "deg"), range_text(set.rate, set.kind, kDeg, "deg/s"),
+    std::string angles = range_text(set.theta, set.kind, kDeg, "deg"), rates = range_text(set.rate, set.kind, kDeg, "deg/s");
+    if (!set.phi.empty()) angles = "θ " + angles + "; φ " + range_text(set.phi, set.kind, kDeg, "deg");
+    if (!set.phi_rate.empty()) rates = "ω " + rates + "; φ' " + range_text(set.phi_rate, set.kind, kDeg, "deg/s");
+    is.rows.push_back({{set.name, kind_name(set.kind), std::to_string(initial_set_size(set)), angles, rates,
                         notes.empty() ? "-" : notes}});
   }
   s.blocks.push_back(table_block(is));

@@ -147,9 +147,14 @@ Section scope_section(const Spec& spec, const CheckReport& r, const Document& d)
                         "1 rad/s, with an optional saturation torque and, for alpha < 1, a linear segment below "
                         "linear_below; dashpots are linear and axial, F = -c d(distance)/dt."}});
   model.push_back({Span{"Loads. ", true},
-                   Span{"Wind is quadratic drag at one point of a link from a horizontal wind with an optional step "
-                        "gust. The top pivot moves with a prescribed piecewise-constant acceleration (the base "
-                        "scenarios); it is driven, not coupled to the sway."}});
+                   Span{spec.motion == Motion::spatial
+                            ? "Wind is quadratic drag at one point of a link from a horizontal wind blowing in a given "
+                              "direction, with an optional step gust. The top pivot moves as the base scenarios "
+                              "prescribe (acceleration segments, drives along x and z, or slewing about a vertical "
+                              "axis with luffing); it is driven, not coupled to the sway."
+                            : "Wind is quadratic drag at one point of a link from a horizontal wind with an optional "
+                              "step gust. The top pivot moves with a prescribed piecewise-constant acceleration (the "
+                              "base scenarios); it is driven, not coupled to the sway."}});
   model.push_back({Span{"Numerics. ", true},
                    Span{fmt::format("{} with rtol = {:g}, atol = {:g}. Peaks are located on the solver's dense output "
                                     "between steps and on both sides of every jump of base acceleration or wind; "
@@ -179,7 +184,9 @@ Section scope_section(const Spec& spec, const CheckReport& r, const Document& d)
   if (!lifting.empty())
     left_out.push_back(
         "sliding or tipping of a grounded load and setting it down again (touching down ends the case);");
-  left_out.push_back("three-dimensional (spherical) swing and twisting of the load;");
+  left_out.push_back(spec.motion == Motion::spatial
+                         ? "twisting of the links and the load about their own axes;"
+                         : "three-dimensional (spherical) swing and twisting of the load;");
   left_out.push_back(
       "flexibility of the crane structure, boom, trolley and supports, and any feedback of the sway on "
       "the base motion;");

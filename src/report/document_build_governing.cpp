@@ -185,7 +185,8 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
   if (std::any_of(spec.scenarios.begin(), spec.scenarios.end(),
                   [](const ScenarioSpec& s) { return s.hoist.has_value(); }))
     ++ropes;
-  const int per_case = 3 + static_cast<int>(spec.links.size()) / 2 + ropes + (spec.motion == Motion::spatial ? 2 : 0);
+  const int links = static_cast<int>(spec.links.size());
+  const int per_case = 3 + (spec.motion == Motion::spatial ? links - 1 + 2 : links / 2) + ropes;
   const std::size_t max_cases = static_cast<std::size_t>(std::max(1, kMaxGoverningPlots / per_case));
   std::vector<long> chosen;
   for (const CheckResult* c : order) {
@@ -297,17 +298,37 @@ Section governing_section(const Spec& spec, const CheckReport& r) {
     for (Block& b : spatial_case_blocks(spec, *rc, id)) s.blocks.push_back(std::move(b));
     s.blocks.push_back(figures(input_figures(spec, *rc, id)));
     // Angle against angle for every pair of adjacent links (configuration space, not a phase
-    // portrait: no rates), two to a row.
+    // portrait: no rates), two to a row. A spatial chain's cone angles are >= 0 and fold every
+    // swing onto one side, so there each pair gets two plots of signed angles, in the plane (of the
+    // travel, or of a slewing boom) and across it: the planar plot in each plane, the same figure
+    // as a planar chain's when the motion stays in the plane, where the modes show as lines
+    // (in phase, or against) and a chaotic motion fills an area.
     std::vector<Figure> pairs;
+    const auto capitalised = [](std::string text) {
+      if (!text.empty() && text[0] >= 'a' && text[0] <= 'z') text[0] = static_cast<char>(text[0] - 'a' + 'A');
+      return text;
+    };
+    const auto pair_figure = [&](std::size_t i, const std::vector<std::vector<double>>& angle, const std::string& symbol,
+                                 const std::string& what) {
+      return figure(plot::phase_portrait(fmt::format("{}, links {} and {}", what, i + 1, i + 2),
+                                         {fmt::format("{} {}", symbol, spec.links[i].name), "deg"},
+                                         {fmt::format("{} {}", symbol, spec.links[i + 1].name), "deg"},
+                                         scaled(angle[i], kDeg), scaled(angle[i + 1], kDeg)),
+                    fmt::format("{} of link {} against {} of link {} over the run: a regular motion traces a tidy "
+                                "figure, a chaotic one fills an area.",
+                                capitalised(symbol), i + 2, symbol, i + 1),
+                    240, 0.5);
+    };
+    const bool signed_planes = spatial && rc->in_plane.size() == rc->theta.size() &&
+                               rc->out_of_plane.size() == rc->theta.size();
+    const std::string plane = rc->slewing ? "the boom's" : "the travel";
     for (std::size_t i = 0; i + 1 < rc->theta.size(); ++i) {
-      pairs.push_back(figure(plot::phase_portrait(fmt::format("Angle-angle plot, links {} and {}", i + 1, i + 2),
-                                                  {fmt::format("θ {}", spec.links[i].name), "deg"},
-                                                  {fmt::format("θ {}", spec.links[i + 1].name), "deg"},
-                                                  scaled(rc->theta[i], kDeg), scaled(rc->theta[i + 1], kDeg)),
-                             fmt::format("θ of link {} against θ of link {} over the run: a regular motion traces a "
-                                         "tidy figure, a chaotic one fills an area.",
-                                         i + 2, i + 1),
-                             240, 0.5));
+      if (signed_planes) {
+        pairs.push_back(pair_figure(i, rc->in_plane, "in-plane sway", "Angle-angle plot in " + plane + " plane"));
+        pairs.push_back(pair_figure(i, rc->out_of_plane, "out-of-plane sway", "Angle-angle plot across " + plane + " plane"));
+      } else {
+        pairs.push_back(pair_figure(i, rc->theta, "θ", "Angle-angle plot"));
+      }
       if (pairs.size() == 2 || i + 2 == rc->theta.size()) {
         s.blocks.push_back(figures(pairs));
         pairs.clear();

@@ -115,17 +115,26 @@ void static_load_blocks(const Spec& spec, const CheckReport& r, const std::vecto
                                              kn(best), where, num(best / st.pivot.front(), 3), kn(st.pivot.front()))
                                : "no case ran to its end, so it has no peak.";
   }
+  const bool spatial = spec.motion == Motion::spatial;
   out.push_back(paragraph(fmt::format(
       "The chain pulls on its support with F = -R, the negative of the reaction R on the top link '{}'. Components: x "
-      "horizontal, positive in the +x direction of the base scenarios and the wind; y vertical, positive upwards. At "
-      "rest F = (0, -{}) kN, straight down; {}",
-      top, kn(st.pivot.empty() ? 0.0 : st.pivot.front()), peak)));
+      "horizontal, positive in the +x direction of the base scenarios and the wind; {}y vertical, positive upwards. At "
+      "rest F = (0, -{}{}) kN, straight down; {}",
+      top,
+      spatial ? "z horizontal across the travel (on a slewing boom: radial and tangential, plotted per governing case "
+                "in section 6); "
+              : "",
+      kn(st.pivot.empty() ? 0.0 : st.pivot.front()), spatial ? ", 0" : "", peak)));
+  // A spatial chain's horizontal force: the magnitude of its x and z parts.
+  const auto horizontal = [&](const RecordedCase& rc, std::size_t j) {
+    return spatial && j < rc.support_z.size() ? std::hypot(rc.support_x[j], rc.support_z[j]) : std::fabs(rc.support_x[j]);
+  };
   double fx = std::nan(""), fy_low = std::nan(""), fy_high = std::nan("");
   std::string fx_case, fy_case;
   for (const auto& rc : r.recorded)
     for (std::size_t j = 0; j < rc.support_x.size() && j < rc.support_y.size(); ++j) {
-      if (!(std::fabs(rc.support_x[j]) <= fx)) {
-        fx = std::fabs(rc.support_x[j]);
+      if (!(horizontal(rc, j) <= fx)) {
+        fx = horizontal(rc, j);
         fx_case = rc.id;
       }
       if (!(rc.support_y[j] >= fy_low)) {
@@ -137,8 +146,9 @@ void static_load_blocks(const Spec& spec, const CheckReport& r, const std::vecto
   if (std::isfinite(fx))
     out.push_back(paragraph(fmt::format(
         "Components over the recorded governing cases (sampled at {:g} /s, so a peak between samples can be missed; the "
-        "other cases are not recorded): largest |F_x| {} kN (case {}); F_y from {} to {} kN, most downward in case {}.",
-        spec.cases.output_rate, kn(fx), fx_case, kn(fy_low), kn(fy_high), fy_case)));
+        "other cases are not recorded): largest {} {} kN (case {}); F_y from {} to {} kN, most downward in case {}.",
+        spec.cases.output_rate, spatial ? "horizontal |(F_x, F_z)|" : "|F_x|", kn(fx), fx_case, kn(fy_low),
+        kn(fy_high), fy_case)));
 }
 
 }  // namespace swaybound::report_doc::build

@@ -151,7 +151,7 @@ Section sizing_section(const Spec& input, const SizingResult& r) {
     if (l.start_transient_after)
       transients.push_back({Span{fmt::format("{} ({}): ", l.key, l.subject), true},
                             Span{start_transient_remark(l.time_after, lowest_swing_period(r.after.modes),
-                                                        l.start_note_after)}});
+                                                        l.start_note_after, input.motion)}});
   if (!transients.empty()) s.blocks.push_back(bullets(std::move(transients)));
   if (!r.stages.empty()) {
     s.blocks.push_back(subheading("Why each search stage stopped"));

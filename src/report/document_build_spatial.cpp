@@ -65,7 +65,7 @@ Figure sway_figure(const Spec& spec, const RecordedCase& rc, const std::string& 
                        static_cast<int>(i)});
   }
   const std::string plane = rc.slewing ? "the boom's vertical plane (radial)" : "the vertical plane of the travel (x)";
-  const std::string across = rc.slewing ? "the tangential direction" : "across the travel (z)";
+  const std::string across = rc.slewing ? "across the boom's vertical plane (tangential)" : "across the travel (z)";
   return figure(std::move(p),
                 in_plane ? fmt::format("Case {}: each link's sway in {}, the angle from the downward vertical of the "
                                        "link seen from the side; circles mark the largest, located between the "
@@ -134,14 +134,16 @@ std::vector<Figure> plan_figures(const RecordedCase& rc, const std::string& id) 
   ground.mark_ends = true;
   std::vector<Figure> out;
   out.push_back(figure(std::move(relative),
-                       fmt::format("Plan view (from above) of the path of the lowest link's end relative to the top "
-                                   "pivot{}, over the run; circle: start, square: end. Its distance from the origin "
-                                   "is the hook's horizontal offset.",
-                                   rc.slewing ? ", in the frame of the slewing boom" : ""),
+                       fmt::format("Case {}: plan view (from above) of the path of the lowest link's end relative "
+                                   "to the top pivot{}, over the run; circle: start, square: end. Its distance from "
+                                   "the origin is the hook's horizontal offset.",
+                                   id, rc.slewing ? ", in the frame of the slewing boom" : ""),
                        230, 0.5));
   out.push_back(figure(std::move(ground),
-                       "Plan view (from above) of the hook's and the top pivot's paths over the ground (x along the "
-                       "travel up the page, z across it to the right); circle: start, square: end.",
+                       fmt::format("Case {}: plan view (from above) of the hook's and the top pivot's paths over "
+                                   "the ground (x along the travel up the page, z across it to the right); circle: "
+                                   "start, square: end.",
+                                   id),
                        230, 0.5));
   return out;
 }

@@ -102,12 +102,7 @@ Section verdict_section(const Spec& spec, const CheckReport& r, const std::vecto
                                           c.first_failure)}});
     if (c.start_transient)
       remarks.push_back({Span{fmt::format("Check {} ({}): ", i + 1, c.key), true},
-                         Span{fmt::format("start transient? The worst value is at t = {:.3g} s, within the first "
-                                          "quarter of the lowest modal period ({:.3g} s) after the start {}. It may come from "
-                                          "this start (a kinked chain released from rest) rather than from the motion; "
-                                          "check it again from an equilibrium or modal start (specs/README.md, "
-                                          "'Starts').",
-                                          c.time, lowest_swing_period(r.modes), c.start_note)}});
+                         Span{start_transient_remark(c.time, lowest_swing_period(r.modes), c.start_note, spec.motion)}});
     if (c.audit_warning)
       remarks.push_back({Span{fmt::format("Check {} ({}): ", i + 1, c.key), true},
                          Span{fmt::format("at a 100x tighter tolerance the worst value moves by {}, more than the "

@@ -189,7 +189,8 @@ std::string sizing_table_markdown(const Spec& spec, const SizingResult& r) {
   for (const auto& l : r.limits)
     if (l.start_transient_after)
       out << fmt::format("\n**{} ({}): {}**\n", l.key, l.subject,
-                         start_transient_remark(l.time_after, lowest_swing_period(r.after.modes), l.start_note_after));
+                         start_transient_remark(l.time_after, lowest_swing_period(r.after.modes), l.start_note_after,
+                                                spec.motion));
   out << "\nMargins are margin / |limit| (a limit of 0: margin / the chain's weight for forces, x horizon "
          "for "
          "ftle_max); binding: within 1% of the required margin, or failing; short of margin: within the "

@@ -1,5 +1,5 @@
-// reports/gantry_hook_block/ and reports/hoist_lift_off/ are the committed example packets of the
-// demo specs. This test makes each packet again and compares it with the committed one through `swaybound diff` and the numbers of
+// reports/gantry_hook_block/, reports/hoist_lift_off/ and reports/jib_crane_slewing/ are the
+// committed example packets of the demo specs. This test makes each packet again and compares it with the committed one through `swaybound diff` and the numbers of
 // results.json, so any change in the figures is noticed (and the example must then be regenerated
 // and the change explained in the commit).
 #include <catch2/catch.hpp>
@@ -20,7 +20,7 @@ using namespace swaybound;
 namespace fs = std::filesystem;
 
 TEST_CASE("the committed example packet matches a fresh check of the demo spec", "[packet][example]") {
-  const std::string name = GENERATE(as<std::string>{}, "gantry_hook_block", "hoist_lift_off");
+  const std::string name = GENERATE(as<std::string>{}, "gantry_hook_block", "hoist_lift_off", "jib_crane_slewing");
   INFO("example " << name);
   const fs::path source(SWAYBOUND_SOURCE_DIR);
   const fs::path committed = source / "reports" / name;
@@ -35,7 +35,8 @@ TEST_CASE("the committed example packet matches a fresh check of the demo spec",
   REQUIRE(WIFEXITED(status));
   // The exit status of the committed packet's verdict: 0 when it passes, 1 when a check fails
   // (hoist_lift_off fails: its worst-case search finds a start between the samples whose load comes
-  // down to the ground again after lifting off).
+  // down to the ground again after lifting off; jib_crane_slewing fails: its damper as given is too
+  // weak for the sway limits, which `size` fixes).
   std::ifstream committed_results(committed / "results.json");
   const std::string verdict = nlohmann::json::parse(committed_results).at("verdict").get<std::string>();
   REQUIRE((verdict == "pass" || verdict == "fail"));

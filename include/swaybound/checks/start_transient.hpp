@@ -36,8 +36,10 @@ std::string start_description(const Spec& spec, const CaseDef& def);
 std::string start_values_text(const Spec& spec, int set, const std::vector<double>& quantities, bool si = false);
 
 /// The remark on a flagged check, as the check packet gives it: the worst value's time `time` [s],
-/// the lowest modal period `period` [s], the start `start_note` and what to do about it.
-std::string start_transient_remark(double time, double period, const std::string& start_note);
+/// the lowest modal period `period` [s], the start `start_note` and what to do about it (a start
+/// from an equilibrium or in a mode; for a spatial chain, which has neither, a start with the links
+/// in line).
+std::string start_transient_remark(double time, double period, const std::string& start_note, Motion motion);
 
 /// Sets start_transient and start_note of every per-case check whose governing case starts from
 /// other than an equilibrium and whose peak is at t < kStartTransientFraction x the lowest period.
