@@ -413,7 +413,8 @@ TEST_CASE("two runs writing one packet at once: the second refuses at once and n
   const pid_t first =
       start_cli({"check", slow.string(), "--out", out.string(), "--quiet", "--jobs", "1"}, {}, first_err);
   const fs::path lock = dir / ".packet.swaybound-lock";
-  for (int k = 0; k < 400 && !contains(read_file(lock), fmt::format("holder: {}", first)); ++k)
+  // Up to 30 s for the first run to take the lock (start-up is slow on a loaded machine).
+  for (int k = 0; k < 1200 && !contains(read_file(lock), fmt::format("holder: {}", first)); ++k)
     std::this_thread::sleep_for(std::chrono::milliseconds(25));
   REQUIRE(contains(read_file(lock), fmt::format("holder: {}", first)));
   const auto start = std::chrono::steady_clock::now();
