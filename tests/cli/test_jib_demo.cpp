@@ -92,6 +92,15 @@ TEST_CASE("the slewing jib crane demo runs through validate, simulate, modes, ch
   REQUIRE(x.size() == 801);  // 40 s at 20 samples/s
   CHECK(std::hypot(16 + x.front(), z.front()) == Approx(16).epsilon(1e-12));
   CHECK(std::hypot(16 + x.back(), z.back()) == Approx(23.2).epsilon(1e-9));
+  // The drum hauls in at 1.2 m/s, reached and left at 0.6 m/s^2 (1 s to 3 s, 9 s to 11 s): 1.2 + 7.2
+  // + 1.2 = 9.6 m, so the fall shortens from 18 m to 8.4 m; the drum holds the load's weight at the end.
+  const std::vector<double> rope = column(csv, "rope_length(hoist rope)"), pull = column(csv, "drum_force(hoist rope)");
+  REQUIRE(rope.size() == x.size());
+  CHECK(rope.front() == Approx(18).epsilon(1e-12));
+  CHECK(rope.back() == Approx(8.4).epsilon(1e-12));
+  // At the end the drum holds the hook load and, as the rope's centre of mass is at half its length,
+  // half the rope's weight (to 2 %: the load still swings a few degrees).
+  CHECK(pull.back() == Approx((3200 + 0.5 * 45) * 9.81).epsilon(0.02));
   for (const char* name : {"in_plane_sway(hook and payload)", "out_of_plane_sway(hook and payload)",
                            "support_force_radial", "support_force_tangential", "support_force_vertical"})
     CHECK(column(csv, name).size() == x.size());
