@@ -328,9 +328,7 @@ void evaluate(const Model& model, Workspace& ws, const Phase& phase, const doubl
   require_built_for(model, ws);
   if (model.spatial) {
     evaluate_spatial(model, ws, phase, x, t, dxdt);
-    return;
-  }
-  if (model.variable_length()) {
+  } else if (model.variable_length()) {
     evaluate_general(model, ws, phase, x, t, dxdt);
   } else {
     switch (model.n) {

@@ -281,6 +281,20 @@ void spatial_kinematics(const Model& model, Workspace& ws, const Phase& p, const
     ws.luff_vy = h1;
     ws.luff_vz = d1 * s;
   } else {
+    if (p.control.active) {
+      // The profile above is the drive's reference; the base follows the controller (controller.hpp),
+      // which measures the link's angle in the travel plane (x-y), theta = atan2(e_x, -e_y).
+      const auto d = static_cast<std::size_t>(model.drive_state());
+      const auto m = static_cast<std::size_t>(p.control.measure);
+      const Vec3 raw{x[3 * m], x[3 * m + 1], x[3 * m + 2]};
+      const Vec3 e = (1.0 / norm(raw)) * raw, v{x[model.dof + 3 * m], x[model.dof + 3 * m + 1], x[model.dof + 3 * m + 2]};
+      const Vec3 r = v - dot(e, v) * e;
+      const double angle = std::atan2(e.x, -e.y), rate = (e.x * r.y - e.y * r.x) / (e.x * e.x + e.y * e.y);
+      const double a_ref = ws.base_ax, v_ref = ws.base_vx;
+      ws.base_x = x[d];
+      ws.base_vx = x[d + 1];
+      ws.base_ax = drive_acceleration(p.control, a_ref, v_ref, ws.base_vx, angle, rate);
+    }
     ws.base_spin = ws.base_spin_rate = 0.0;
     ws.axis_x = 0.0;
     ws.luff_vx = ws.base_vx;

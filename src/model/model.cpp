@@ -269,7 +269,6 @@ Model build_model(const Spec& spec) {
   }
   assign_length_coordinates(spec, m);
   if (spec.motion == Motion::spatial) {
-    SWAYBOUND_REQUIRE(!m.drive_states, "a spatial chain cannot have a travel drive's controller yet");
     m.spatial = true;
     // Each link's direction takes 3 coordinates instead of an angle's 1: the lengths move up by 2n.
     for (int& c : m.length_coordinate)

@@ -24,12 +24,6 @@ void read_travel_controller(const MapView& scenario, const Spec& spec, ScenarioS
   const std::string path = scenario.path("travel") + ".controller";
   MapView m(ctx, travel["controller"], path, {"measure", "angle_gain", "rate_gain", "speed_gain", "accel_limit"});
   if (!m.ok()) return;
-  if (spec.motion == Motion::spatial) {
-    ctx.error(key, path, "'controller' is a feedback on the travel drive of a planar chain: a spatial chain does not "
-                         "model it yet",
-              "check the controller with 'motion: planar', or remove controller");
-    return;
-  }
   if (!sc.travel) return;  // the travel itself was refused
   ScenarioSpec::Travel::Controller c;
   c.mark = key;

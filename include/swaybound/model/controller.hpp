@@ -1,5 +1,6 @@
 #pragma once
-// Feedback anti-sway on the travel drive of a planar chain: a model for sizing the gains of a
+// Feedback anti-sway on the travel drive (x) of a chain, planar or spatial (there theta_m is the
+// measured link's angle in the travel plane, atan2(e_x, -e_y)): a model for sizing the gains of a
 // sway controller and the drive it needs, not a controller implementation for a real drive (no
 // sampling, no sensor, no filter, no drive dynamics; specs/README.md, "Travel drive: controller").
 //
