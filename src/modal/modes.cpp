@@ -74,15 +74,30 @@ double small_signal_damper_coefficient(const PivotModel& p) {
 
 namespace {
 
+/// Whether a directional damper's shaft is oblique (neither along nor across the travel): it couples
+/// the swing in the two planes, so the modes, computed per plane, leave it out (modal_analysis notes it).
+bool oblique(const DamperLaw& d) { return d.directional && d.axis_x != 1.0 && d.axis_z != 1.0; }
+
+/// Small-signal coefficient of pivot p's dampers in one swing plane [N m s/rad]: a damper without an
+/// axis in both; one with its shaft across the travel (about z, which the travel-plane swing turns
+/// about at rest) in the travel plane only, along it (about x) across only; an oblique one in neither.
+double plane_damper_coefficient(const PivotModel& p, bool across) {
+  double c = 0;
+  for (const DamperLaw& d : p.dampers)
+    if (!d.directional || (across ? d.axis_x : d.axis_z) == 1.0) c += small_signal_damper_coefficient(d);
+  return c;
+}
+
 /// The damping matrix of swing in the travel plane (across = false) or, for a spatial chain, across
-/// it (the links turning about x at rest): pivot dampers act alike in both; a dashpot by the
-/// component of its line in the plane of the swing.
+/// it (the links turning about x at rest): pivot dampers without an axis act alike in both, one with
+/// an axis in the plane it damps (plane_damper_coefficient); a dashpot by the component of its line
+/// in the plane of the swing.
 Eigen::MatrixXd plane_damping_matrix(const Model& model, bool across) {
   const int n = model.n;
   Eigen::MatrixXd C = Eigen::MatrixXd::Zero(n, n);
   // Pivot i: tau_i = -c (omega_i - omega_{i-1}) on link i, -tau_i on link i-1 (chain.hpp).
   for (int i = 0; i < n; ++i) {
-    const double c = small_signal_damper_coefficient(model.pivots[static_cast<std::size_t>(i)]);
+    const double c = plane_damper_coefficient(model.pivots[static_cast<std::size_t>(i)], across);
     if (c == 0.0) continue;
     C(i, i) += c;
     if (i > 0) {
@@ -434,6 +449,7 @@ ModalResult modal_analysis(const Model& model) {
   // uncoupled to first order with the same mass and gravity stiffness (de/dtheta = x, de/dphi = z
   // at rest, x . z = 0), so every mode has a partner at the same undamped frequency. Pivot dampers
   // are isotropic and damp both alike; a dashpot damps each plane by the component of its line in it.
+  // A damper with an axis damps the plane its shaft is normal to (plane_damper_coefficient).
   ModalResult in = plane_modes(model, false);
   ModalResult across = plane_modes(model, true);
   ModalResult out;
@@ -461,8 +477,8 @@ ModalResult modal_analysis(const Model& model) {
   out.least_damping_ratio = std::min(in.least_damping_ratio, across.least_damping_ratio);
   out.notes.push_back(
       "spatial chain: each mode of swing in the travel plane (x-y; the boom's vertical plane when slewing) has a "
-      "partner across it (z-y) at the same undamped frequency, listed as a pair; pivot dampers damp both alike, a "
-      "dashpot each by the component of its line in that plane");
+      "partner across it (z-y) at the same undamped frequency, listed as a pair; pivot dampers without an axis damp "
+      "both alike, a dashpot each by the component of its line in that plane");
   bool coupled = false;
   for (const DashpotModel& d : model.dashpots) {
     const RestPoint a = rest_point(model, d.a), b = rest_point(model, d.b);
@@ -471,6 +487,22 @@ ModalResult modal_analysis(const Model& model) {
   if (coupled)
     out.notes.push_back("a dashpot inclined to both planes couples the swing in them; the coupling is left out "
                         "(each plane is damped by its own component only)");
+  for (int i = 0; i < model.n; ++i) {
+    const PivotModel& p = model.pivots[static_cast<std::size_t>(i)];
+    for (const DamperLaw& d : p.dampers) {
+      if (d.directional && !oblique(d) && d.c > 0)
+        out.notes.push_back(fmt::format("the damper at the pivot of {} has its shaft {} the travel: it damps only the "
+                                        "swing {} (the modes of the other plane are without it)",
+                                        link_label(model, i), d.axis_z == 1.0 ? "across" : "along",
+                                        d.axis_z == 1.0 ? "in the travel plane" : "across the travel plane"));
+      if (oblique(d) && d.c > 0)
+        out.notes.push_back(fmt::format(
+            "the damper at the pivot of {} has its shaft at {:.4g} deg to the travel, so it couples the swing in the "
+            "two planes; the modes are computed per plane and leave it out (their damping ratios are without it; the "
+            "simulated runs include it)",
+            link_label(model, i), std::atan2(d.axis_z, d.axis_x) * 180 / std::numbers::pi));
+    }
+  }
   for (std::string& note : in.notes) out.notes.push_back(std::move(note));
   return out;
 }

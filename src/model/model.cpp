@@ -7,6 +7,7 @@
 #include <atomic>
 #include <cmath>
 #include <limits>
+#include <numbers>
 #include <optional>
 
 namespace swaybound {
@@ -231,7 +232,18 @@ Model build_model(const Spec& spec) {
       p.pin_friction = f->mu * f->pin_radius;
       p.transition_rate = f->transition_rate;
     }
-    for (const DamperSpec& d : l.pivot.dampers) p.dampers.push_back({d.coefficient, d.exponent, d.max_torque, d.linear_below});
+    for (const DamperSpec& d : l.pivot.dampers) {
+      DamperLaw law{d.coefficient, d.exponent, d.max_torque, d.linear_below};
+      if (d.axis) {
+        // A shaft is a line (the law is odd in the rate, so a and -a give one torque): within 1e-9 rad
+        // of along or across it is that axis exactly (unit components), else oblique.
+        const double turn = std::remainder(*d.axis, std::numbers::pi);  // in [-pi/2, pi/2]
+        law.directional = true;
+        law.axis_x = std::fabs(turn) <= 1e-9 ? 1.0 : std::fabs(turn) >= kDamperAcross - 1e-9 ? 0.0 : std::cos(turn);
+        law.axis_z = std::fabs(turn) <= 1e-9 ? 0.0 : std::fabs(turn) >= kDamperAcross - 1e-9 ? 1.0 : std::sin(turn);
+      }
+      p.dampers.push_back(law);
+    }
     m.any_pin_friction |= p.pin_friction > 0;
     m.any_pivot_torque |= p.has_friction() || p.has_damper();
     m.pivots.push_back(p);

@@ -34,6 +34,15 @@ inline double damper_torque(const PivotModel& p, double w) {
   return tau;
 }
 
+/// The torque of a pivot's dampers without an `axis`, which a spatial chain applies to the magnitude
+/// of the relative swing rate (the directional ones act about their shafts: chain_spatial.cpp) [N m].
+inline double isotropic_damper_torque(const PivotModel& p, double w) {
+  double tau = 0;
+  for (const DamperLaw& d : p.dampers)
+    if (!d.directional) tau += damper_torque(d, w);
+  return tau;
+}
+
 /// Sliding factor of the regularised Coulomb friction at pivot p, tanh(w / w_t) [-] (0 for a
 /// pivot without friction). w [rad/s] is the rate of the lower link relative to the upper one.
 inline double friction_slide(const PivotModel& p, double w) {
