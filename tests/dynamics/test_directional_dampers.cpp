@@ -16,6 +16,8 @@
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/modal/modes.hpp"
 #include "swaybound/model/model.hpp"
+#include "swaybound/sizing/design.hpp"
+#include "swaybound/sizing/evaluate.hpp"
 #include "swaybound/spec.hpp"
 #include "swaybound/spec/paths.hpp"
 
@@ -336,6 +338,19 @@ TEST_CASE("damper axis: spec forms, normalised round trip and sizing paths", "[s
   CHECK(spec.links[0].pivot.dampers[0].coefficient == 900);
   CHECK(spec.links[0].pivot.dampers[0].axis == 0.0);
   CHECK(build_model(spec).pivots[0].dampers[0].c == 900);
+  // And through `size`'s designs: a sizing variable on it gives designs with the axis kept.
+  const Spec sized = load_spec_text(point_pendulum(2, 100, "coefficient: 400 N m s/rad, axis: along") +
+                                        "sizing:\n  variables:\n    - {path: 'links[rod].pivot.damper.coefficient', "
+                                        "range: [100 N m s/rad, 800 N m s/rad]}\n",
+                                    "sized.yaml");
+  const std::vector<DesignVariable> variables = design_variables(sized);
+  REQUIRE(variables.size() == 1);
+  const Spec design = DesignEvaluator(sized, variables, 1).design({650});
+  CHECK(design.links[0].pivot.dampers[0].coefficient == 650);
+  CHECK(design.links[0].pivot.dampers[0].axis == 0.0);
+  const Model designed = build_model(load_spec_text(normalised_yaml(design), "design.yaml"));
+  CHECK(designed.pivots[0].dampers[0].c == 650);
+  CHECK((designed.pivots[0].dampers[0].directional && designed.pivots[0].dampers[0].axis_x == 1.0));
 
   // The refusals name the key and say what to write.
   const auto diagnostic = [](const std::string& text) {
