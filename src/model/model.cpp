@@ -236,11 +236,11 @@ Model build_model(const Spec& spec) {
       DamperLaw law{d.coefficient, d.exponent, d.max_torque, d.linear_below};
       if (d.axis) {
         // A shaft is a line (the law is odd in the rate, so a and -a give one torque): within 1e-9 rad
-        // of along or across it is that axis exactly (unit components), else oblique.
-        const double turn = std::remainder(*d.axis, std::numbers::pi);  // in [-pi/2, pi/2]
+        // of along or across it is that axis exactly (unit components), else oblique at the angle given.
+        const double turn = std::fabs(std::remainder(*d.axis, std::numbers::pi));  // in [0, pi/2]
         law.directional = true;
-        law.axis_x = std::fabs(turn) <= 1e-9 ? 1.0 : std::fabs(turn) >= kDamperAcross - 1e-9 ? 0.0 : std::cos(turn);
-        law.axis_z = std::fabs(turn) <= 1e-9 ? 0.0 : std::fabs(turn) >= kDamperAcross - 1e-9 ? 1.0 : std::sin(turn);
+        law.axis_x = turn <= 1e-9 ? 1.0 : turn >= kDamperAcross - 1e-9 ? 0.0 : std::cos(*d.axis);
+        law.axis_z = turn <= 1e-9 ? 0.0 : turn >= kDamperAcross - 1e-9 ? 1.0 : std::sin(*d.axis);
       }
       p.dampers.push_back(law);
     }
