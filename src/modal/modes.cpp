@@ -74,13 +74,9 @@ double small_signal_damper_coefficient(const PivotModel& p) {
 
 namespace {
 
-/// Whether a directional damper's shaft is oblique (neither along nor across the travel): it couples
-/// the swing in the two planes, so the modes, computed per plane, leave it out (modal_analysis notes it).
-bool oblique(const DamperLaw& d) { return d.directional && d.axis_x != 1.0 && d.axis_z != 1.0; }
-
-/// Small-signal coefficient of pivot p's dampers in one swing plane [N m s/rad]: a damper without an
-/// axis in both; one with its shaft across the travel (about z, which the travel-plane swing turns
-/// about at rest) in the travel plane only, along it (about x) across only; an oblique one in neither.
+/// Small-signal coefficient of pivot p's dampers in one swing plane [N m s/rad]: without an axis in
+/// both; across the travel (about z) in the travel plane only, along it (about x) across; an oblique
+/// one (it couples the planes: modal_analysis notes it) in neither.
 double plane_damper_coefficient(const PivotModel& p, bool across) {
   double c = 0;
   for (const DamperLaw& d : p.dampers)
@@ -89,9 +85,8 @@ double plane_damper_coefficient(const PivotModel& p, bool across) {
 }
 
 /// The damping matrix of swing in the travel plane (across = false) or, for a spatial chain, across
-/// it (the links turning about x at rest): pivot dampers without an axis act alike in both, one with
-/// an axis in the plane it damps (plane_damper_coefficient); a dashpot by the component of its line
-/// in the plane of the swing.
+/// it (the links turning about x at rest): pivot dampers as plane_damper_coefficient says; a dashpot
+/// by the component of its line in the plane of the swing.
 Eigen::MatrixXd plane_damping_matrix(const Model& model, bool across) {
   const int n = model.n;
   Eigen::MatrixXd C = Eigen::MatrixXd::Zero(n, n);
@@ -449,7 +444,6 @@ ModalResult modal_analysis(const Model& model) {
   // uncoupled to first order with the same mass and gravity stiffness (de/dtheta = x, de/dphi = z
   // at rest, x . z = 0), so every mode has a partner at the same undamped frequency. Pivot dampers
   // are isotropic and damp both alike; a dashpot damps each plane by the component of its line in it.
-  // A damper with an axis damps the plane its shaft is normal to (plane_damper_coefficient).
   ModalResult in = plane_modes(model, false);
   ModalResult across = plane_modes(model, true);
   ModalResult out;
@@ -487,22 +481,18 @@ ModalResult modal_analysis(const Model& model) {
   if (coupled)
     out.notes.push_back("a dashpot inclined to both planes couples the swing in them; the coupling is left out "
                         "(each plane is damped by its own component only)");
-  for (int i = 0; i < model.n; ++i) {
-    const PivotModel& p = model.pivots[static_cast<std::size_t>(i)];
-    for (const DamperLaw& d : p.dampers) {
-      if (d.directional && !oblique(d) && d.c > 0)
-        out.notes.push_back(fmt::format("the damper at the pivot of {} has its shaft {} the travel: it damps only the "
-                                        "swing {} (the modes of the other plane are without it)",
-                                        link_label(model, i), d.axis_z == 1.0 ? "across" : "along",
-                                        d.axis_z == 1.0 ? "in the travel plane" : "across the travel plane"));
-      if (oblique(d) && d.c > 0)
-        out.notes.push_back(fmt::format(
-            "the damper at the pivot of {} has its shaft at {:.4g} deg to the travel, so it couples the swing in the "
-            "two planes; the modes are computed per plane and leave it out (their damping ratios are without it; the "
-            "simulated runs include it)",
-            link_label(model, i), std::atan2(d.axis_z, d.axis_x) * 180 / std::numbers::pi));
-    }
-  }
+  for (int i = 0; i < model.n; ++i)
+    for (const DamperLaw& d : model.pivots[static_cast<std::size_t>(i)].dampers)
+      if (d.directional && d.c > 0 && d.axis_x != 1.0 && d.axis_z != 1.0)  // an oblique shaft
+        out.notes.push_back(
+            fmt::format("the damper at the pivot of {} has its shaft at {:.4g} deg to the travel, so it "
+                        "couples the swing in the two planes; the modes are computed per plane and "
+                        "leave it out (their damping ratios are without it; the runs include it)",
+                        link_label(model, i), std::atan2(d.axis_z, d.axis_x) * 180 / std::numbers::pi));
+      else if (d.directional && d.c > 0)
+        out.notes.push_back(fmt::format("the damper at the pivot of {} damps only the swing {} the travel plane (its "
+                                        "shaft is {} the travel)", link_label(model, i),
+                                        d.axis_z == 1.0 ? "in" : "across", d.axis_z == 1.0 ? "across" : "along"));
   for (std::string& note : in.notes) out.notes.push_back(std::move(note));
   return out;
 }
