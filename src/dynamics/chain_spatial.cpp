@@ -163,7 +163,14 @@ void spatial_pivot_torques(const Model& model, Workspace& ws, const double* reac
       ws.slide[i] = friction_slide(p, s);
       ws.tau_fixed[i] = isotropic_damper_torque(p, s) + constant_friction_torque(p, ws.slide[i]);
       ws.tau_pin[i] = 0.0;
-      if (directional) store(ws.torque_fixed, i, directional_damper_torque(p, ws, w));
+      if (directional) {
+        // At the top pivot only its part across link 0 (the rest would twist the link, which is not
+        // modelled), so that ws.torque holds the torque on the link, whose power W y . tau a slewing
+        // boom puts in (an isotropic torque lies across the link already).
+        Vec3 d = directional_damper_torque(p, ws, w);
+        if (i == 0) d = d - dot(d, load(ws.dir, 0)) * load(ws.dir, 0);
+        store(ws.torque_fixed, i, d);
+      }
     } else {
       ws.tau_pin[i] = pin_friction_torque(p, ws.slide[i], reaction[i]);
     }
@@ -448,11 +455,8 @@ void evaluate_spatial_with(const Model& model, Workspace& ws, const Phase& phase
 
   if (model.any_pivot_torque) {
     for (int i = 0; i < n; ++i) ws.dissipated_power -= dot(load(ws.torque, i), relative_spin(ws, i));
-    // A slewing boom turns the upper side of pivot 0: the work its torque does on the chain, W y .
-    // tau_0 of the part across e_0 (an isotropic torque lies across it; a directional one need not).
-    Vec3 tau0 = load(ws.torque, 0);
-    if (model.pivots[0].has_directional_damper()) tau0 = tau0 - dot(tau0, load(ws.dir, 0)) * load(ws.dir, 0);
-    ws.input_power += ws.base_spin * tau0.y;
+    // A slewing boom turns the upper side of pivot 0: the work its torque does on the chain.
+    ws.input_power += ws.base_spin * ws.torque[1];
   }
   if (moving) ws.input_power += dot(Vec3{ws.reaction_x[0], ws.reaction_y[0], ws.reaction_z[0]}, base_v);
   if (model.boom_frame) {
