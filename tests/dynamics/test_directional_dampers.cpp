@@ -12,6 +12,7 @@
 #include "../support/close_to.hpp"
 #include "swaybound/checks/check_run.hpp"
 #include "swaybound/dynamics/chain.hpp"
+#include "swaybound/dynamics/forces.hpp"
 #include "swaybound/dynamics/posture.hpp"
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/modal/modes.hpp"
@@ -218,6 +219,29 @@ cases: {duration: 10 s, initial: [{single: {theta: [5 deg, -10 deg]}}]}
   const ModalResult a = modal_analysis(build_model(across)), p = modal_analysis(build_model(plain));
   REQUIRE(a.modes.size() == p.modes.size());
   for (std::size_t k = 0; k < a.modes.size(); ++k) CHECK(a.modes[k].damping_ratio == p.modes[k].damping_ratio);
+}
+
+TEST_CASE("the travel plane's damper torque counts the dampers that act in that plane", "[dynamics][dampers]") {
+  // The planar law (forces.hpp), which a spatial chain's modes use for each plane: a damper without
+  // an axis or across the travel acts in the travel plane; one along the travel turns the link about
+  // x, which a swing in that plane does not; an oblique one is left out (modes.cpp notes it).
+  const Model model = model_of(R"(swaybound: 1
+name: four dampers
+motion: spatial
+links:
+  - name: rod
+    length: 2 m
+    mass: 100 kg
+    pivot:
+      dampers:
+        - {coefficient: 100 N m s/rad}
+        - {coefficient: 20 N m s/rad, axis: across}
+        - {coefficient: 3 N m s/rad, axis: along}
+        - {coefficient: 0.4 N m s/rad, axis: 30 deg}
+cases: {duration: 1 s, initial: [{single: {theta: [1 deg]}}]}
+)");
+  CHECK(damper_torque(model.pivots[0], 0.5) == -(100 + 20) * 0.5);
+  CHECK(isotropic_damper_torque(model.pivots[0], 0.5) == -100 * 0.5);
 }
 
 TEST_CASE("a directional damper's torque: about its shaft, which turns with a slewing boom", "[dynamics][dampers][spatial]") {
