@@ -9,6 +9,7 @@
 
 #include <fmt/format.h>
 
+#include "../../src/report/report_model.hpp"
 #include "../support/close_to.hpp"
 #include "swaybound/checks/check_run.hpp"
 #include "swaybound/dynamics/chain.hpp"
@@ -16,6 +17,8 @@
 #include "swaybound/dynamics/posture.hpp"
 #include "swaybound/integrate/run.hpp"
 #include "swaybound/modal/modes.hpp"
+#include "swaybound/report/document.hpp"
+#include "swaybound/report/results.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/sizing/design.hpp"
 #include "swaybound/sizing/evaluate.hpp"
@@ -407,4 +410,52 @@ TEST_CASE("damper axis: spec forms, normalised round trip and sizing paths", "[s
   CHECK(planar.fix.find("motion: spatial") != std::string::npos);
   CHECK(diagnostic(point_pendulum(2, 100, "coefficient: 1 N m s/rad, axis: 181 deg")).fix.find("-180 to 180 deg") !=
         std::string::npos);
+}
+
+TEST_CASE("the packet and results.json state each damper's axis", "[report][dampers]") {
+  const auto packet = [](const std::string& dampers) {
+    const Spec spec = load_spec_text(R"(swaybound: 1
+name: shafts in the packet
+motion: spatial
+links:
+  - {name: rope, kind: rope, length: 6 m, mass: 35 kg}
+  - name: hook
+    length: 1.8 m
+    mass: 850 kg
+    pivot:
+      dampers: )" + dampers + R"(
+cases: {duration: 2 s, initial: [{single: {theta: [5 deg, 0 deg]}}]}
+)",
+                                     "packet.yaml");
+    CheckOptions options;
+    options.jobs = 1;
+    options.audit = false;
+    const CheckReport r = run_check(spec, options);
+    const report_doc::Document d = report_doc::build_document(spec, r, {"2025-02-03", "", ""}, nullptr);
+    std::string text;  // every paragraph, bullet and table cell, with the tables' column titles
+    for (const auto& section : d.sections)
+      for (const auto& block : section.blocks) {
+        for (const auto& span : block.text) text += span.text + "\n";
+        for (const auto& item : block.items)
+          for (const auto& span : item) text += span.text + "\n";
+        for (const auto& column : block.table.columns) text += "column " + column.title + "\n";
+        for (const auto& row : block.table.rows)
+          for (const auto& cell : row.cells) text += cell + "\n";
+      }
+    return std::pair{text, results_json(spec, r)};
+  };
+  const auto [with, json_with] = packet("[{coefficient: 2 kN m s/rad, axis: across}, {coefficient: 1 kN m s/rad}]");
+  CHECK(with.find("column shaft\n") != std::string::npos);
+  CHECK(with.find("\nacross, any\n") != std::string::npos);
+  CHECK(with.find("'hook' (damper 1) shaft across the travel, damping the swing in the travel plane") != std::string::npos);
+  CHECK(json_with.find("'hook' (damper 1) shaft across the travel") != std::string::npos);
+  const auto [oblique, json_oblique] = packet("[{coefficient: 2 kN m s/rad, axis: -30 deg}]");
+  CHECK(oblique.find("\n-30 deg\n") != std::string::npos);
+  CHECK(oblique.find("'hook' shaft at -30 deg to the travel") != std::string::npos);
+  // Without an axis the packet is as before: no shaft column, no sentence.
+  const auto [without, json_without] = packet("[{coefficient: 2 kN m s/rad}]");
+  CHECK(without.find("column shaft") == std::string::npos);
+  CHECK(without.find("Dampers with an axis") == std::string::npos);
+  CHECK(json_without.find("Dampers with an axis") == std::string::npos);
+  CHECK(json_with.find("Dampers with an axis") != std::string::npos);
 }
