@@ -27,7 +27,13 @@
 // Pivot torques are isotropic in the swing: the planar laws of forces.hpp applied to the magnitude
 // of the relative angular velocity w_rel = w_i - w_{i-1} (w_{-1} = 0), acting against it:
 //   tau_i = tau(|w_rel|) w_rel / |w_rel|   (tau(s) <= 0 the planar torque at rate s >= 0),
-// pin friction with |R_i| the magnitude of the 3-D pivot reaction.
+// pin friction with |R_i| the magnitude of the 3-D pivot reaction. A directional damper (spec
+// `axis`) acts about its shaft a only, with the planar law of the rate about it:
+//   tau_i += tau_d(w_rel . a) a,
+// a horizontal and fixed in the trolley frame, turning with a slewing boom (a = a_x e_r + a_z e_t),
+// at every pivot: exact at the top pivot, whose upper side is the trolley or boom; at a lower pivot
+// it reads the upper link as not turning about the vertical relative to the trolley (twist is not
+// modelled, so a link has no frame of its own). Its part along a link's axis drops out as above.
 #include <cmath>
 
 #include "swaybound/dynamics/chain.hpp"
@@ -136,23 +142,47 @@ Vec3 relative_spin(const Workspace& ws, int i) {
   return w - dot(w, e) * e;
 }
 
+/// The torque of pivot p's directional dampers at relative angular velocity w: sum of
+/// tau_d(w . a) a over them, each shaft a turned with the boom (heading psi) [N m].
+Vec3 directional_damper_torque(const PivotModel& p, const Workspace& ws, Vec3 w) {
+  Vec3 tau;
+  for (const DamperLaw& d : p.dampers) {
+    if (!d.directional) continue;
+    const Vec3 a{d.axis_x * ws.heading_cos - d.axis_z * ws.heading_sin, 0.0,
+                 d.axis_x * ws.heading_sin + d.axis_z * ws.heading_cos};
+    tau = tau + damper_torque(d, dot(w, a)) * a;
+  }
+  return tau;
+}
+
 /// Pivot torque vectors into ws.torque: with reaction == nullptr the dampers and constant friction
-/// (kept in ws.torque_fixed, with the sliding factor in ws.slide), else those plus pin friction at
-/// the reaction magnitudes [N].
+/// (the isotropic part's magnitude in ws.tau_fixed, the directional dampers' vector in
+/// ws.torque_fixed, the sliding factor in ws.slide), else those plus pin friction at the reaction
+/// magnitudes [N].
 void spatial_pivot_torques(const Model& model, Workspace& ws, const double* reaction) {
   for (int i = 0; i < model.n; ++i) {
     const PivotModel& p = model.pivots[i];
     const Vec3 w = relative_spin(ws, i);
     const double s = norm(w);
+    const bool directional = p.has_directional_damper();
     if (reaction == nullptr) {
       ws.slide[i] = friction_slide(p, s);
-      ws.tau_fixed[i] = damper_torque(p, s) + constant_friction_torque(p, ws.slide[i]);
+      ws.tau_fixed[i] = isotropic_damper_torque(p, s) + constant_friction_torque(p, ws.slide[i]);
       ws.tau_pin[i] = 0.0;
+      if (directional) {
+        // At the top pivot only its part across link 0 (the rest would twist the link, which is not
+        // modelled), so that ws.torque holds the torque on the link, whose power W y . tau a slewing
+        // boom puts in (an isotropic torque lies across the link already).
+        Vec3 d = directional_damper_torque(p, ws, w);
+        if (i == 0) d = d - dot(d, load(ws.dir, 0)) * load(ws.dir, 0);
+        store(ws.torque_fixed, i, d);
+      }
     } else {
       ws.tau_pin[i] = pin_friction_torque(p, ws.slide[i], reaction[i]);
     }
-    ws.tau[i] = ws.tau_fixed[i] + ws.tau_pin[i];  // the magnitude along w_rel (<= 0)
-    store(ws.torque, i, s > 0 ? (ws.tau[i] / s) * w : Vec3{});
+    ws.tau[i] = ws.tau_fixed[i] + ws.tau_pin[i];  // the isotropic laws' magnitude along w_rel (<= 0)
+    const Vec3 isotropic = s > 0 ? (ws.tau[i] / s) * w : Vec3{};
+    store(ws.torque, i, directional ? isotropic + load(ws.torque_fixed, i) : isotropic);
   }
 }
 
@@ -277,6 +307,8 @@ void spatial_kinematics(const Model& model, Workspace& ws, const Phase& p, const
     ws.base_spin = -rate;  // turning from +x towards +z is a rotation about -y
     ws.base_spin_rate = -accel;
     ws.axis_x = -r0;
+    ws.heading_cos = c;
+    ws.heading_sin = s;
     ws.luff_vx = d1 * c;
     ws.luff_vy = h1;
     ws.luff_vz = d1 * s;
@@ -297,6 +329,8 @@ void spatial_kinematics(const Model& model, Workspace& ws, const Phase& p, const
     }
     ws.base_spin = ws.base_spin_rate = 0.0;
     ws.axis_x = 0.0;
+    ws.heading_cos = 1.0;
+    ws.heading_sin = 0.0;
     ws.luff_vx = ws.base_vx;
     ws.luff_vy = ws.base_vy;
     ws.luff_vz = ws.base_vz;

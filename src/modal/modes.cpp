@@ -74,15 +74,25 @@ double small_signal_damper_coefficient(const PivotModel& p) {
 
 namespace {
 
+/// Small-signal coefficient of pivot p's dampers in one swing plane [N m s/rad]: without an axis in
+/// both; across the travel (about z) in the travel plane only, along it (about x) across; an oblique
+/// one (it couples the planes: modal_analysis notes it) in neither.
+double plane_damper_coefficient(const PivotModel& p, bool across) {
+  double c = 0;
+  for (const DamperLaw& d : p.dampers)
+    if (!d.directional || (across ? d.axis_x : d.axis_z) == 1.0) c += small_signal_damper_coefficient(d);
+  return c;
+}
+
 /// The damping matrix of swing in the travel plane (across = false) or, for a spatial chain, across
-/// it (the links turning about x at rest): pivot dampers act alike in both; a dashpot by the
-/// component of its line in the plane of the swing.
+/// it (the links turning about x at rest): pivot dampers as plane_damper_coefficient says; a dashpot
+/// by the component of its line in the plane of the swing.
 Eigen::MatrixXd plane_damping_matrix(const Model& model, bool across) {
   const int n = model.n;
   Eigen::MatrixXd C = Eigen::MatrixXd::Zero(n, n);
   // Pivot i: tau_i = -c (omega_i - omega_{i-1}) on link i, -tau_i on link i-1 (chain.hpp).
   for (int i = 0; i < n; ++i) {
-    const double c = small_signal_damper_coefficient(model.pivots[static_cast<std::size_t>(i)]);
+    const double c = plane_damper_coefficient(model.pivots[static_cast<std::size_t>(i)], across);
     if (c == 0.0) continue;
     C(i, i) += c;
     if (i > 0) {
@@ -489,8 +499,8 @@ ModalResult modal_analysis(const Model& model) {
   out.least_damping_ratio = std::min(in.least_damping_ratio, across.least_damping_ratio);
   out.notes.push_back(
       "spatial chain: each mode of swing in the travel plane (x-y; the boom's vertical plane when slewing) has a "
-      "partner across it (z-y) at the same undamped frequency, listed as a pair; pivot dampers damp both alike, a "
-      "dashpot each by the component of its line in that plane");
+      "partner across it (z-y) at the same undamped frequency, listed as a pair; pivot dampers without an axis damp "
+      "both alike, a dashpot each by the component of its line in that plane");
   bool coupled = false;
   for (const DashpotModel& d : model.dashpots) {
     const RestPoint a = rest_point(model, d.a), b = rest_point(model, d.b);
@@ -499,6 +509,18 @@ ModalResult modal_analysis(const Model& model) {
   if (coupled)
     out.notes.push_back("a dashpot inclined to both planes couples the swing in them; the coupling is left out "
                         "(each plane is damped by its own component only)");
+  for (int i = 0; i < model.n; ++i)
+    for (const DamperLaw& d : model.pivots[static_cast<std::size_t>(i)].dampers)
+      if (d.directional && d.c > 0 && d.axis_x != 1.0 && d.axis_z != 1.0)  // an oblique shaft
+        out.notes.push_back(
+            fmt::format("the damper at the pivot of {} has its shaft at {:.4g} deg to the travel, so it "
+                        "couples the swing in the two planes; the modes are computed per plane and "
+                        "leave it out (their damping ratios are without it; the runs include it)",
+                        link_label(model, i), std::atan2(d.axis_z, d.axis_x) * 180 / std::numbers::pi));
+      else if (d.directional && d.c > 0)
+        out.notes.push_back(fmt::format("the damper at the pivot of {} damps only the swing {} the travel plane (its "
+                                        "shaft is {} the travel)", link_label(model, i),
+                                        d.axis_z == 1.0 ? "in" : "across", d.axis_z == 1.0 ? "across" : "along"));
   for (std::string& note : in.notes) out.notes.push_back(std::move(note));
   return out;
 }

@@ -7,6 +7,7 @@
 #include <atomic>
 #include <cmath>
 #include <limits>
+#include <numbers>
 #include <optional>
 
 namespace swaybound {
@@ -231,7 +232,18 @@ Model build_model(const Spec& spec) {
       p.pin_friction = f->mu * f->pin_radius;
       p.transition_rate = f->transition_rate;
     }
-    for (const DamperSpec& d : l.pivot.dampers) p.dampers.push_back({d.coefficient, d.exponent, d.max_torque, d.linear_below});
+    for (const DamperSpec& d : l.pivot.dampers) {
+      DamperLaw law{d.coefficient, d.exponent, d.max_torque, d.linear_below};
+      if (d.axis) {
+        // A shaft is a line (the law is odd in the rate, so a and -a give one torque): within 1e-9 rad
+        // of along or across it is that axis exactly (unit components), else oblique at the angle given.
+        const double turn = std::fabs(std::remainder(*d.axis, std::numbers::pi));  // in [0, pi/2]
+        law.directional = true;
+        law.axis_x = turn <= 1e-9 ? 1.0 : turn >= kDamperAcross - 1e-9 ? 0.0 : std::cos(*d.axis);
+        law.axis_z = turn <= 1e-9 ? 0.0 : turn >= kDamperAcross - 1e-9 ? 1.0 : std::sin(*d.axis);
+      }
+      p.dampers.push_back(law);
+    }
     m.any_pin_friction |= p.pin_friction > 0;
     m.any_pivot_torque |= p.has_friction() || p.has_damper();
     m.pivots.push_back(p);

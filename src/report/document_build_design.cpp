@@ -9,6 +9,7 @@
 #include <fmt/format.h>
 
 #include "swaybound/spec/case_set_kinds.hpp"
+#include "swaybound/report/format.hpp"
 #include "swaybound/spec/loader.hpp"
 
 namespace swaybound::report_doc::build {
@@ -136,6 +137,15 @@ Section design_section(const Spec& spec, const CheckReport& r) {
             "Friction torque T0 + mu r |R|, regularised by tanh(w / w_t); damper tau = C w_ref (|w|/w_ref)^alpha, "
             "w_ref = 1 rad/s, capped at max, linear below linear_below when alpha < 1. A dash: none.",
             7.4};
+  // A column for the dampers' shafts when some damper has an axis (it acts about its shaft only).
+  bool shafts = false;
+  for (const auto& l : spec.links)
+    for (const auto& dm : l.pivot.dampers) shafts |= dm.axis.has_value();
+  if (shafts) {
+    piv.columns.push_back(col("shaft", 0.8, Align::left, "damper-axis"));
+    piv.caption += " Shaft: the axis a damper acts about (across or along the travel, or its angle from the travel "
+                   "towards +z); any: every direction of the swing alike.";
+  }
   for (const auto& l : spec.links) {
     Row row;
     row.cells.push_back(l.name);
@@ -147,17 +157,20 @@ Section design_section(const Spec& spec, const CheckReport& r) {
     }
     if (!l.pivot.dampers.empty()) {
       // Several dampers side by side: one value per damper in each column, in spec order.
-      std::string c, a, m, w;
+      std::string c, a, m, w, shaft;
       for (const auto& dm : l.pivot.dampers) {
         const std::string sep = c.empty() ? "" : " + ";
         c += sep + num(dm.coefficient / 1000);
         a += (a.empty() ? "" : ", ") + num(dm.exponent);
         m += (m.empty() ? "" : ", ") + (std::isfinite(dm.max_torque) ? num(dm.max_torque / 1000) : std::string("none"));
         w += (w.empty() ? "" : ", ") + (dm.exponent < 1 ? deg(dm.linear_below) : std::string("-"));
+        shaft += (shaft.empty() ? "" : ", ") + damper_axis_label(dm.axis);
       }
       row.cells.insert(row.cells.end(), {c, a, m, w});
+      if (shafts) row.cells.push_back(shaft);
     } else {
       row.cells.insert(row.cells.end(), {"-", "-", "-", "-"});
+      if (shafts) row.cells.push_back("-");
     }
     piv.rows.push_back(row);
   }

@@ -5,6 +5,7 @@
 
 #include "swaybound/core/version.hpp"
 #include "swaybound/model/model.hpp"
+#include "swaybound/report/format.hpp"
 
 namespace swaybound::report_doc::build {
 
@@ -62,8 +63,8 @@ Section scope_section(const Spec& spec, const CheckReport& r, const Document& d)
     model.push_back({Span{"Spatial motion. ", true},
                      Span{"Every link hangs from a spherical pivot and swings in any direction (x along the travel, y "
                           "up, z across the travel); its rotation about its own axis (twist) is not modelled. Angles "
-                          "are from the downward vertical in any direction (cone angles); pivot dampers and friction "
-                          "act on the swing in any direction alike."}});
+                          "are from the downward vertical in any direction (cone angles); pivot friction and the "
+                          "dampers without an axis act on the swing in any direction alike."}});
   else
     model.push_back({Span{"Planar motion. ", true},
                      Span{"Every link swings in one vertical plane; the angles are absolute, from the downward vertical."}});
@@ -142,10 +143,12 @@ Section scope_section(const Spec& spec, const CheckReport& r, const Document& d)
       rates.push_back(fmt::format("'{}' {} deg/s", l.name, deg(l.pivot.friction->transition_rate)));
   friction += rates.empty() ? " No pivot has friction." : " Transition rates: " + fmt::format("{}", fmt::join(rates, ", ")) + ".";
   model.push_back({Span{"Friction. ", true}, Span{friction}});
-  model.push_back({Span{"Dampers. ", true},
-                   Span{"Rotary dampers follow the power law tau = -C w_ref (|w| / w_ref)^alpha sign(w), w_ref = "
-                        "1 rad/s, with an optional saturation torque and, for alpha < 1, a linear segment below "
-                        "linear_below; dashpots are linear and axial, F = -c d(distance)/dt."}});
+  std::string dampers =
+      "Rotary dampers follow the power law tau = -C w_ref (|w| / w_ref)^alpha sign(w), w_ref = 1 rad/s, with an "
+      "optional saturation torque and, for alpha < 1, a linear segment below linear_below; dashpots are linear and "
+      "axial, F = -c d(distance)/dt.";
+  if (const std::string axes = damper_axes_sentence(spec); !axes.empty()) dampers.append(" ").append(axes);
+  model.push_back({Span{"Dampers. ", true}, Span{dampers}});
   model.push_back({Span{"Loads. ", true},
                    Span{spec.motion == Motion::spatial
                             ? "Wind is quadratic drag at one point of a link from a horizontal wind blowing in a given "

@@ -16,6 +16,7 @@
 #include "swaybound/spec/case_set_kinds.hpp"
 #include "swaybound/core/hash.hpp"
 #include "swaybound/core/version.hpp"
+#include "swaybound/report/format.hpp"
 
 namespace swaybound {
 
@@ -249,6 +250,7 @@ std::string results_json(const Spec& spec, const CheckReport& r) {
   j["reproducible"] = r.time_budget_total == 0;
   Json notes = Json::array();
   if (r.time_budget_total > 0) notes.push_back(time_budget_note(spec, r.time_budget_total));
+  if (const std::string axes = damper_axes_sentence(spec); !axes.empty()) notes.push_back(axes);
   j["notes"] = notes;
 
   Json checks = Json::array();

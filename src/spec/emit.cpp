@@ -143,6 +143,11 @@ std::string normalised_yaml(const Spec& spec) {
         w.value("exponent", d.exponent, u::dimensionless);
         w.value_unless_inf("max_torque", d.max_torque, u::torque);
         w.value("linear_below", d.linear_below, u::angular_rate);
+        if (!d.axis) return;
+        if (*d.axis == 0 || *d.axis == kDamperAcross)
+          w.text("axis", *d.axis == 0 ? "along" : "across");
+        else
+          w.value("axis", *d.axis, u::angle);
       };
       if (l.pivot.dampers.size() == 1) {
         w.begin("damper");

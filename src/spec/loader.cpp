@@ -100,9 +100,9 @@ void read_friction(const MapView& pivot, LinkSpec& link) {
   link.pivot.friction = f;
 }
 
-/// One damper map at `path`.
-void read_one_damper(Context& ctx, const YAML::Node& node, const std::string& path, LinkSpec& link) {
-  MapView m(ctx, node, path, {"coefficient", "exponent", "max_torque", "linear_below"});
+/// One damper map at `path` (`motion` decides which `axis` values it takes).
+void read_one_damper(Context& ctx, const YAML::Node& node, const std::string& path, Motion motion, LinkSpec& link) {
+  MapView m(ctx, node, path, {"coefficient", "exponent", "max_torque", "linear_below", "axis"});
   if (!m.ok()) return;
   DamperSpec d;
   if (m.require("coefficient", "the damping coefficient, e.g. '4 kN m s/rad'")) {
@@ -113,25 +113,26 @@ void read_one_damper(Context& ctx, const YAML::Node& node, const std::string& pa
   read_optional(m, "exponent", d.exponent, u::dimensionless, Bounds{0, 2, true, false});
   read_optional(m, "max_torque", d.max_torque, u::torque, Bounds::positive());
   read_optional(m, "linear_below", d.linear_below, u::angular_rate, Bounds::positive());
+  if (m.has("axis")) d.axis = read_damper_axis(ctx, m.get("axis"), m.path("axis"), motion);
   link.pivot.dampers.push_back(d);
 }
 
 /// `damper: {...}` (one) or `dampers: [{...}, ...]` (several, side by side: their torques add).
-void read_damper(const MapView& pivot, LinkSpec& link) {
+void read_damper(const MapView& pivot, Motion motion, LinkSpec& link) {
   Context& ctx = pivot.ctx();
   if (pivot.has("damper") && pivot.has("dampers")) {
     ctx.error(pivot.key_mark("dampers"), pivot.path("dampers"), "both 'damper' and 'dampers' are given",
               "put every damper of the pivot in the 'dampers' list, or keep one under 'damper'");
     return;
   }
-  if (pivot.has("damper")) read_one_damper(ctx, pivot.get("damper"), pivot.path("damper"), link);
+  if (pivot.has("damper")) read_one_damper(ctx, pivot.get("damper"), pivot.path("damper"), motion, link);
   if (!pivot.has("dampers")) return;
   const YAML::Node list = pivot.get("dampers");
   if (!expect_sequence(ctx, list, pivot.path("dampers"), "a list of dampers")) return;
   if (list.size() == 0)
     ctx.error(list, pivot.path("dampers"), "the list of dampers is empty", "give at least one damper, or remove the key");
   for (std::size_t k = 0; k < list.size(); ++k)
-    read_one_damper(ctx, list[k], fmt::format("{}[{}]", pivot.path("dampers"), k), link);
+    read_one_damper(ctx, list[k], fmt::format("{}[{}]", pivot.path("dampers"), k), motion, link);
 }
 
 void read_link(Context& ctx, const YAML::Node& node, const std::string& path, Spec& spec) {
@@ -202,7 +203,7 @@ void read_link(Context& ctx, const YAML::Node& node, const std::string& path, Sp
     MapView p(ctx, m.get("pivot"), m.path("pivot"), {"friction", "damper", "dampers"});
     if (p.ok()) {
       read_friction(p, link);
-      read_damper(p, link);
+      read_damper(p, spec.motion, link);
     }
   }
   spec.links.push_back(std::move(link));

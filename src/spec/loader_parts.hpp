@@ -78,6 +78,9 @@ void refuse_ftle_with_elastic_ropes(Context& ctx, const Spec& spec);
 void read_motion(const MapView& top, Spec& spec);
 bool require_spatial(const MapView& map, std::string_view key, const Spec& spec, std::string_view what);
 void refuse_with_spatial(Context& ctx, const Spec& spec);
+/// Reads a pivot damper's `axis` (loader_spatial.cpp): `along`, `across` or the shaft's angle from
+/// the travel direction towards +z in [-180, 180] deg; a planar chain takes `across` only.
+std::optional<double> read_damper_axis(Context& ctx, const YAML::Node& node, const std::string& path, Motion motion);
 
 /// Reads a scenario's `slew` (spatial chains; loader_spatial.cpp): radius and slewing speed moves,
 /// instead of `accel`, `initial_velocity` and `travel`.

@@ -1,6 +1,8 @@
 // The spec keys of spatial chains: `motion`, and the refusals of what a spatial chain does not
 // model yet (specs/README.md, "Spatial chains").
 #include <algorithm>
+#include <cctype>
+#include <numbers>
 
 #include <fmt/format.h>
 
@@ -61,6 +63,46 @@ void refuse_with_spatial(Context& ctx, const Spec& spec) {
                               "turns with the boom is not modelled yet",
                               spec.dashpots[i].name, slewing->name),
                   "check the slewing scenario without this dashpot, or anchor it between links");
+}
+
+std::optional<double> read_damper_axis(Context& ctx, const YAML::Node& node, const std::string& path, Motion motion) {
+  const std::string forms =
+      "write 'across' (the shaft across the travel, or across a slewing boom: it damps the swing in the travel "
+      "plane), 'along' (the shaft along the travel or the boom: it damps the swing across it) or the shaft's angle "
+      "in the horizontal plane from the travel direction towards +z, e.g. '30 deg'";
+  if (node.IsDefined() && !node.IsScalar()) {
+    ctx.error(node, path,
+              node.IsNull() ? "the damper axis is empty" : "a damper axis is one word or one angle, not a list or a map",
+              forms);
+    return std::nullopt;
+  }
+  const auto text = read_string(ctx, node, path);
+  if (!text) return std::nullopt;
+  std::optional<double> axis;
+  const bool word = !text->empty() && std::isalpha(static_cast<unsigned char>((*text)[0]));
+  if (word && (*text == "along" || *text == "across")) {
+    axis = *text == "along" ? 0.0 : kDamperAcross;
+  } else if (word) {
+    const std::string guess = nearest(*text, {"along", "across"});
+    ctx.error(node, path, fmt::format("'{}' is not a damper axis", *text),
+              guess.empty() ? forms : fmt::format("did you mean '{}'? {}", guess, forms));
+    return std::nullopt;
+  } else {
+    axis = read_quantity(ctx, node, path, units::angle,
+                         Bounds{-std::numbers::pi, std::numbers::pi, false, false,
+                                "a shaft is a line, so -180 to 180 deg gives every direction"});
+    if (!axis) return std::nullopt;
+  }
+  if (motion == Motion::planar && *text != "across") {
+    ctx.error(node, path,
+              fmt::format("a damper on a planar chain acts in the travel plane, about the axis across the travel; "
+                          "'axis: {}' would damp a swing the chain does not have",
+                          *text),
+              "write 'axis: across' or remove 'axis' (the same damper), or add 'motion: spatial' at the top of the "
+              "spec to swing the chain in both directions");
+    return std::nullopt;
+  }
+  return axis;
 }
 
 }  // namespace swaybound::spec_detail

@@ -37,7 +37,7 @@ Spec hook_chain(double ea_per_part) {
   rope.inertia = 45.0 * 14 * 14 / 12;
   rope.com_given = rope.inertia_given = true;
   rope.parts_of_line = 4;
-  rope.pivot.dampers.push_back(DamperSpec{120e3, 1, 1e300, 1e-3});
+  rope.pivot.dampers.push_back(DamperSpec{120e3, 1, 1e300, 1e-3, std::nullopt});
   if (ea_per_part > 0) {
     RopeElasticSpec e;
     e.ea = ea_per_part;

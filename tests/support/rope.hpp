@@ -35,7 +35,7 @@ struct RopeChain {
       link.com = l.c;
       link.inertia = l.I;
       link.com_given = link.inertia_given = true;
-      if (l.C > 0) link.pivot.dampers.push_back(DamperSpec{l.C, 1, 1e300, 1e-3});
+      if (l.C > 0) link.pivot.dampers.push_back(DamperSpec{l.C, 1, 1e300, 1e-3, std::nullopt});
       if (l.ea > 0 || l.rope) {
         link.kind = LinkKind::rope;
         link.parts_of_line = l.parts;

@@ -133,12 +133,13 @@ struct Workspace {
   std::vector<double> tangent;        ///< basis t_i1, t_i2 of the plane perpendicular to e_i, t_i1 x t_i2 = e_i [-] (6N)
   std::vector<double> spin;           ///< angular velocity w_i = e_i x e_i' [rad/s] (3N)
   std::vector<double> torque;         ///< pivot torque vector on link i from above [N m] (3N)
-  std::vector<double> torque_fixed;   ///< of which dampers and constant friction [N m] (3N)
+  std::vector<double> torque_fixed;   ///< of which the directional dampers' [N m] (3N)
   std::vector<double> force_z, acc_z, reaction_z;  ///< across the travel, as force_x etc. (N)
   double base_z = 0, base_vz = 0, base_az = 0;     ///< base across the travel [m], [m/s], [m/s^2]
   double base_spin = 0;                            ///< slewing: the boom's angular velocity about +y [rad/s] (-psi')
   double base_spin_rate = 0;                       ///< its rate [rad/s^2] (-psi'')
   double axis_x = 0;                               ///< slewing: the axis is the vertical through (axis_x, ., 0) [m]
+  double heading_cos = 1, heading_sin = 0;         ///< slewing: cos and sin of the boom's angle psi (directional dampers turn with it)
   double luff_vx = 0, luff_vy = 0, luff_vz = 0;    ///< the pivot's velocity relative to the boom (luffing; the base's without slewing) [m/s]
   Eigen::MatrixXd mass_s;             ///< mass matrix of the tangent rates (2N x 2N) [kg m^2]
   Eigen::VectorXd bias_s, rhs_s, accel_s;  ///< generalised forces [N m] and tangent accelerations [1/s^2] (2N)

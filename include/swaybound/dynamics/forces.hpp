@@ -27,10 +27,23 @@ inline double damper_torque(const DamperLaw& d, double w) {
   return w >= 0 ? -magnitude : magnitude;
 }
 
-/// The torque of every damper at a pivot: they act side by side, so their torques add [N m].
+/// The torque of the dampers at a pivot that act in the travel plane, at the relative rate w in it:
+/// they act side by side, so their torques add [N m]. A planar chain's dampers all do (they have no
+/// `axis` or `across`); of a spatial chain's, one along the travel does not act in the plane, and
+/// one with an oblique shaft is left out, as the modes, which linearise each plane, leave it out.
 inline double damper_torque(const PivotModel& p, double w) {
   double tau = 0;
-  for (const DamperLaw& d : p.dampers) tau += damper_torque(d, w);
+  for (const DamperLaw& d : p.dampers)
+    if (!d.directional || d.axis_z == 1.0) tau += damper_torque(d, w);
+  return tau;
+}
+
+/// The torque of a pivot's dampers without an `axis`, which a spatial chain applies to the magnitude
+/// of the relative swing rate (the directional ones act about their shafts: chain_spatial.cpp) [N m].
+inline double isotropic_damper_torque(const PivotModel& p, double w) {
+  double tau = 0;
+  for (const DamperLaw& d : p.dampers)
+    if (!d.directional) tau += damper_torque(d, w);
   return tau;
 }
 

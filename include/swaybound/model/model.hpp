@@ -26,6 +26,10 @@ struct DamperLaw {
   double alpha = 1;             ///< exponent [-]
   double max_torque = 0;        ///< saturation torque [N m], infinity for none
   double linear_below = 1e-3;   ///< [rad/s]
+  /// A directional damper (spec `axis`): the shaft's unit vector in the horizontal plane of the
+  /// trolley (boom) frame, (axis_x, 0, axis_z); isotropic when false (forces.hpp).
+  bool directional = false;
+  double axis_x = 0, axis_z = 0;
 };
 
 /// Per pivot (the upper end of each link): friction and damper laws, in SI.
@@ -38,6 +42,11 @@ struct PivotModel {
   bool has_damper() const {
     for (const auto& d : dampers)
       if (d.c > 0) return true;
+    return false;
+  }
+  bool has_directional_damper() const {
+    for (const auto& d : dampers)
+      if (d.c > 0 && d.directional) return true;
     return false;
   }
 };

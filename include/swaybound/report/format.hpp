@@ -11,7 +11,10 @@
 //   other units   -> 4 significant digits and the unit: "-0.0672 1/s"
 //   NaN -> "-", +-infinity -> "inf" / "-inf"
 //   margin ratio  -> percent with sign, 1 decimal:     "+18.2%"; not finite -> "-"
+#include <optional>
 #include <string>
+
+#include "swaybound/spec/spec.hpp"
 
 namespace swaybound {
 
@@ -26,5 +29,13 @@ double to_engineering(double si_value, const std::string& si_unit);
 
 /// A margin ratio as a signed percentage with one decimal, "-" when not finite.
 std::string ratio_percent(double ratio);
+
+/// A pivot damper's shaft (spec `axis` [rad]) for a table: "across", "along" or its angle from the
+/// travel direction towards +z ("30 deg"); "any" for a damper without one (isotropic in the swing).
+std::string damper_axis_label(const std::optional<double>& axis);
+
+/// One sentence naming every pivot damper with an axis and the swing it damps, for the packet's
+/// model notes and results.json; "" when no damper has one.
+std::string damper_axes_sentence(const Spec& spec);
 
 }  // namespace swaybound

@@ -5,6 +5,7 @@
 #include <array>
 #include <cstdint>
 #include <limits>
+#include <numbers>
 #include <optional>
 #include <string>
 #include <vector>
@@ -28,7 +29,15 @@ struct DamperSpec {
   double exponent = 1;        ///< alpha in (0, 2]
   double max_torque = std::numeric_limits<double>::infinity();  ///< saturation [N m]
   double linear_below = 1e-3; ///< below this |w| [rad/s] the law is linear (see dynamics docs)
+  /// The damper's shaft, a horizontal direction in the trolley (or slewing boom) frame [rad] from
+  /// the travel direction +x (a boom's radial direction) towards +z: `along` 0, `across` pi/2
+  /// (kDamperAcross). The damper then acts on the swing about its shaft only. Absent: isotropic in
+  /// a spatial chain's swing (a planar chain's damper is `across`).
+  std::optional<double> axis;
 };
+
+/// The shaft direction of a damper `axis: across` [rad] (exactly this value means `across`).
+inline constexpr double kDamperAcross = std::numbers::pi / 2;
 
 /// Friction at a pivot: constant Coulomb torque plus load-dependent pin friction
 /// mu * pin_radius * |pivot reaction|, both regularised with tanh(w / transition_rate).
