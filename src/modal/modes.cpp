@@ -1,3 +1,6 @@
+// Reason it stays one file: the stages of one modal analysis (the linear system, analytic or by
+// differences, the undamped and damped eigenproblems and their matching, the closed loops, the
+// spatial pairs) share their private helpers and the linearisation notes.
 #include "swaybound/modal/modes.hpp"
 
 #include <algorithm>
