@@ -273,22 +273,11 @@ def evaluate(data, model=None):
     for the same pattern and wind link, to reuse a derivation."""
     pattern, wind_link, params, laws, wind_law, v_base = _parse(data)
     n = len(pattern)
-    if model is None:
-        model = derive(pattern, wind_link)
-    assert model["pattern"] == pattern and model["wind_link"] == wind_link
-    elastic, prescribed, free, N = model["elastic"], model["prescribed"], model["free"], model["coordinates"]
-    m_el = len(elastic)
+    m_el = pattern.count("elastic")
     states = data.get("states")
     if not isinstance(states, list):
         raise InputError("\"states\" must be a list")
-    # Per-link parameter offsets (after g, a_base, at).
-    offset, index = 5, []
-    for kind in pattern:
-        index.append(offset)
-        offset += 4 + (len(ELASTIC_KEYS) if kind == "elastic" else len(PRESCRIBED_KEYS) if kind == "prescribed" else 0)
-    keys = ("qdd", "accel", "tension", "drum_force", "reaction", "energy", "energy_rate", "power_base",
-            "power_damp", "power_rope", "power_wind", "power_drum")
-    out = {key: [] for key in keys}
+    checked = []  # every state is checked before the (slow) derivation
     for s_index, s in enumerate(states):
         where = "states[%d]" % s_index
         size = 3 * n + m_el
@@ -298,8 +287,20 @@ def evaluate(data, model=None):
                              % (where, 2 * size, n - 1, m_el))
         directions = [float(x) for x in s[:3 * n] + s[size:size + 3 * n]]
         q, qd = state_to_chart(directions, n, where)
-        r = [float(x) for x in s[3 * n:size]]
-        rd = [float(x) for x in s[size + 3 * n:]]
+        checked.append((directions, q, qd, [float(x) for x in s[3 * n:size]], [float(x) for x in s[size + 3 * n:]]))
+    if model is None:
+        model = derive(pattern, wind_link)
+    assert model["pattern"] == pattern and model["wind_link"] == wind_link
+    elastic, prescribed, free, N = model["elastic"], model["prescribed"], model["free"], model["coordinates"]
+    # Per-link parameter offsets (after g, a_base, at).
+    offset, index = 5, []
+    for kind in pattern:
+        index.append(offset)
+        offset += 4 + (len(ELASTIC_KEYS) if kind == "elastic" else len(PRESCRIBED_KEYS) if kind == "prescribed" else 0)
+    keys = ("qdd", "accel", "tension", "drum_force", "reaction", "energy", "energy_rate", "power_base",
+            "power_damp", "power_rope", "power_wind", "power_drum")
+    out = {key: [] for key in keys}
+    for directions, q, qd, r, rd in checked:
         pre = [params[index[k] + 4:index[k] + 7] for k in prescribed]
         q = q + r + [p[0] for p in pre]
         qd = qd + rd + [p[1] for p in pre]
