@@ -1,5 +1,5 @@
-// Spatial chains with a rope of variable length (elastic under a moving drum, or inextensible and
-// hoisted) against an independent derivation with SymPy (tests/reference/sympy_spatial_rope_chain.py:
+// Spatial chains with a rope of variable length (elastic under a moving drum, inextensible and
+// hoisted, or an elastic sling below a rigid link) against an independent derivation with SymPy (tests/reference/sympy_spatial_rope_chain.py:
 // Lagrange's equations with rheonomic constraints in two swing angles per link plus the rope length,
 // Greenwood, Principles of Dynamics, 2nd ed., sec. 6.2-6.4; reactions by Newton's second law for each
 // sub-chain; self-checked by check_sympy_spatial_rope_chain.py). At 200 random taut states per chain,
@@ -37,7 +37,16 @@ struct SpatialRopeChain {
   double friction_torque = 0, transition_rate = 0.01;
   int wind_link = -1;       ///< a wind load on this link (-1: none)
   double wind_at = 0, wind_speed = 0, wind_direction = 0, drag_area = 0;
-  double drum_s = 0, drum_v = 0, drum_a = 0;  ///< the drum on link 0 at the instant: hauled in, speed, acceleration
+  bool drum = true;         ///< a drum winds link 0
+  double drum_s = 0, drum_v = 0, drum_a = 0;  ///< the drum at the instant: hauled in, speed, acceleration
+
+  /// The unstretched (elastic) or prescribed length of rope link k (`order` 0), its rate (1) or its
+  /// acceleration (2): ell = L - s / parts under the drum, L elsewhere.
+  double rope_length(std::size_t k, int order) const {
+    const RopeChain::Link& l = chain.links[k];
+    const double wound = drum && k == 0 ? 1.0 / l.parts : 0.0;
+    return order == 0 ? l.L - wound * drum_s : order == 1 ? -wound * drum_v : -wound * drum_a;
+  }
 
   Spec spec() const {
     Spec s = chain.spec();
@@ -58,10 +67,11 @@ struct SpatialRopeChain {
       w.air_density = 1.25;
       s.wind.push_back(w);
     }
-    // The drum winds link 0 (which makes an inextensible rope's length prescribed).
-    HoistSpec hoist;
-    hoist.link = 0;
-    s.scenarios[0].hoist = hoist;
+    if (drum) {  // the drum winds link 0 (which makes an inextensible rope's length prescribed)
+      HoistSpec hoist;
+      hoist.link = 0;
+      s.scenarios[0].hoist = hoist;
+    }
     return s;
   }
 };
@@ -73,8 +83,8 @@ struct Reference {
 
 /// Random states inside the reference's chart: each e_i within 1.3 rad of the downward vertical,
 /// e_i' any tangent vector with components up to 3 /s; an elastic rope stretched by 1e-4 to 5e-3 of
-/// its unstretched length `ell` with a stretch rate of up to 0.3 m/s about the drum's `ell_rate`.
-std::vector<std::vector<double>> random_states(const Model& model, double ell, double ell_rate, std::uint64_t seed) {
+/// its unstretched length with a stretch rate of up to 0.3 m/s about that length's rate.
+std::vector<std::vector<double>> random_states(const Model& model, const SpatialRopeChain& d, std::uint64_t seed) {
   std::mt19937_64 rng(seed);
   std::uniform_real_distribution<double> cone(0.0, 1.3), azimuth(-std::numbers::pi, std::numbers::pi), rate(-3.0, 3.0),
       strain(1e-4, 5e-3), strain_rate(-0.3, 0.3);
@@ -94,8 +104,8 @@ std::vector<std::vector<double>> random_states(const Model& model, double ell, d
     }
     for (const int k : model.elastic_links) {
       const auto c = static_cast<std::size_t>(model.length_coordinate[static_cast<std::size_t>(k)]);
-      x[c] = ell * (1 + strain(rng));
-      x[static_cast<std::size_t>(f) + c] = ell_rate + strain_rate(rng);
+      x[c] = d.rope_length(static_cast<std::size_t>(k), 0) * (1 + strain(rng));
+      x[static_cast<std::size_t>(f) + c] = d.rope_length(static_cast<std::size_t>(k), 1) + strain_rate(rng);
     }
     states.push_back(x);
   }
@@ -123,15 +133,13 @@ std::vector<Reference> sympy_reference(const SpatialRopeChain& d, const std::vec
       j["T"] = d.friction_torque;
       j["wt"] = d.transition_rate;
     }
-    const double parts = l.parts, wound = k == 0 ? 1.0 : 0.0;
     if (l.ea > 0)
       j["rope"] = {{"elastic",
-                    {{"parts", parts}, {"EA", l.ea}, {"c_axial", l.c_axial},
-                     {"ell", l.L - wound * d.drum_s / parts}, {"ell_dot", -wound * d.drum_v / parts}}}};
+                    {{"parts", l.parts}, {"EA", l.ea}, {"c_axial", l.c_axial}, {"ell", d.rope_length(k, 0)},
+                     {"ell_dot", d.rope_length(k, 1)}}}};
     else if (l.rope)
       j["rope"] = {{"prescribed",
-                    {{"l", l.L - wound * d.drum_s / parts}, {"l_dot", -wound * d.drum_v / parts},
-                     {"l_ddot", -wound * d.drum_a / parts}}}};
+                    {{"l", d.rope_length(k, 0)}, {"l_dot", d.rope_length(k, 1)}, {"l_ddot", d.rope_length(k, 2)}}}};
     in["links"].push_back(j);
   }
   in["states"] = states;
@@ -184,16 +192,18 @@ struct Worst {
 void compare_with_reference(const SpatialRopeChain& d, std::uint64_t seed) {
   const Model model = build_model(d.spec());
   REQUIRE(model.spatial);
-  const bool elastic = !model.elastic_links.empty();
-  REQUIRE(model.length_kind[0] == (elastic ? LengthKind::elastic : LengthKind::prescribed));
+  // The one rope link: elastic (its length a coordinate) or prescribed (by the drum).
+  std::size_t rope = 0;
+  while (d.chain.links[rope].ea <= 0 && !d.chain.links[rope].rope) ++rope;
+  const bool elastic = d.chain.links[rope].ea > 0;
+  REQUIRE(model.length_kind[rope] == (elastic ? LengthKind::elastic : LengthKind::prescribed));
   Workspace ws(model);
   Phase phase = model.scenarios[0].phases[0];
-  REQUIRE(phase.drum_link == 0);
+  REQUIRE(phase.drum_link == (d.drum ? 0 : -1));
   phase.drum_s0 = d.drum_s;
   phase.drum_v0 = d.drum_v;
   phase.drum_a0 = d.drum_a;
-  const double parts = d.chain.links[0].parts;
-  const auto states = random_states(model, d.chain.links[0].L - d.drum_s / parts, -d.drum_v / parts, seed);
+  const auto states = random_states(model, d, seed);
   const std::vector<Reference> ref = sympy_reference(d, states);
   const int f = model.dof;
   Worst accel{"e'' and the rope length's acceleration"}, axial{elastic ? "rope tension" : "drum's axial force"},
@@ -205,7 +215,7 @@ void compare_with_reference(const SpatialRopeChain& d, std::uint64_t seed) {
     finish_reactions(model, ws);
     accel.add(std::vector<double>(dxdt.begin() + f, dxdt.begin() + 2 * f), ref[s].accel, s);
     if (elastic) axial.add(ws.rope_force, ref[s].tension, s);
-    else axial.add({ws.drum_force[0]}, ref[s].drum_force, s);
+    else axial.add({ws.drum_force[rope]}, ref[s].drum_force, s);
     std::vector<double> r;
     for (int k = 0; k < model.n; ++k)
       r.insert(r.end(), {ws.reaction_x[static_cast<std::size_t>(k)], ws.reaction_y[static_cast<std::size_t>(k)],
@@ -281,4 +291,28 @@ TEST_CASE("A spatial chain on a hoisted inextensible rope matches an independent
   d.drum_v = 0.7;
   d.drum_a = -0.45;
   compare_with_reference(d, 51205);
+}
+
+TEST_CASE("A spatial chain with an elastic sling below a rigid link matches an independent SymPy derivation",
+          "[dynamics][spatial][reference][rope]") {
+  SpatialRopeChain d;
+  d.chain.ax = 0.4;
+  d.chain.ay = 0.6;
+  d.chain.vx = 0.8;
+  d.az = -0.3;
+  d.vz = -0.5;
+  d.drum = false;
+  // A rigid hanger over a 3 m sling of 2 parts, the wind on the sling at a point that keeps its
+  // fraction of the length (so its force acts on the sling's length as well as on the angles).
+  d.chain.links = {{.m = 150, .L = 1.4, .c = 0.6, .I = 25, .C = 1e3},
+                   {.m = 60, .L = 3, .c = 1.6, .I = 45, .C = 400, .ea = 3e6, .parts = 2, .c_axial = 800}};
+  d.friction_link = 1;
+  d.friction_torque = 40;
+  d.transition_rate = 0.1;
+  d.wind_link = 1;
+  d.wind_at = 2.2;
+  d.wind_speed = 15;
+  d.wind_direction = 2.4;
+  d.drag_area = 1.2;
+  compare_with_reference(d, 7205);
 }
