@@ -1,11 +1,12 @@
 // Spatial chains with a rope of variable length (elastic under a moving drum, inextensible and
-// hoisted, or an elastic sling below a rigid link) against an independent derivation with SymPy (tests/reference/sympy_spatial_rope_chain.py:
-// Lagrange's equations with rheonomic constraints in two swing angles per link plus the rope length,
-// Greenwood, Principles of Dynamics, 2nd ed., sec. 6.2-6.4; reactions by Newton's second law for each
-// sub-chain; self-checked by check_sympy_spatial_rope_chain.py). At 200 random taut states per chain,
-// with pivot dampers, Coulomb friction, a wind load and a moving base: e_i'', the rope length's
-// acceleration, the rope tension or the drum's axial force, the pivot reactions and the energy to
-// 1e-9 relative, and the engine's power bookkeeping against the reference's energy rate.
+// hoisted, or an elastic sling below a rigid link) against an independent derivation with SymPy
+// (tests/reference/sympy_spatial_rope_chain.py: Lagrange's equations with rheonomic constraints in
+// two swing angles per link plus the rope length, Greenwood, Principles of Dynamics, 2nd ed.,
+// sec. 6.2-6.4; reactions by Newton's second law for each sub-chain; self-checked by
+// check_sympy_spatial_rope_chain.py). At 200 random taut states per chain, with pivot dampers,
+// Coulomb friction, a wind load and a moving base: e_i'', the rope length's acceleration, the rope
+// tension or the drum's axial force, the pivot reactions and the energy to 1e-9 relative, and the
+// engine's power bookkeeping against the reference's energy rate.
 #include <catch2/catch.hpp>
 
 #include <cmath>
