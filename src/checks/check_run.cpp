@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <chrono>
+#include <initializer_list>
 #include <cmath>
 #include <map>
 
@@ -34,8 +35,8 @@ bool has_limit(const Spec& spec, LimitKind kind) {
 }
 
 /// A spatial chain's sample of a recording: sway in and across the boom frame's plane, the hook and
-/// the top pivot in plan, the support force across the travel and in the boom frame, the base's
-/// motion and the wind across the travel.
+/// the top pivot in plan, the support force across the travel and in the boom frame, every pivot's
+/// load by component, the base's motion and the wind across the travel.
 void sample_spatial(const Model& model, const StepView& v, RecordedCase& rc) {
   const Workspace& ws = *v.ws;
   const BoomFrame frame = boom_frame(*v.phase, ws);
@@ -44,6 +45,12 @@ void sample_spatial(const Model& model, const StepView& v, RecordedCase& rc) {
     const auto k = static_cast<std::size_t>(i);
     rc.in_plane[k].push_back(in_plane_sway(model, v.x, i, frame));
     rc.out_of_plane[k].push_back(out_of_plane_sway(model, v.x, i, frame));
+    const LoadComponents load = pivot_load_components(model, ws, i, frame);
+    rc.load_x[k].push_back(load.x);
+    rc.load_z[k].push_back(load.z);
+    rc.load_vertical[k].push_back(load.vertical);
+    rc.load_radial[k].push_back(load.radial);
+    rc.load_tangential[k].push_back(load.tangential);
     for (std::size_t c = 0; c < 3; ++c) hook[c] += ws.len[k] * ws.dir[3 * k + c];
   }
   rc.pivot_x.push_back(ws.base_x);
@@ -52,10 +59,9 @@ void sample_spatial(const Model& model, const StepView& v, RecordedCase& rc) {
   rc.hook_z.push_back(ws.base_z + hook[2]);
   rc.hook_radial.push_back(hook[0] * frame.radial_x + hook[2] * frame.radial_z);
   rc.hook_tangential.push_back(hook[0] * frame.tangential_x + hook[2] * frame.tangential_z);
-  const LoadComponents load = pivot_load_components(model, ws, 0, frame);
-  rc.support_z.push_back(-load.z);
-  rc.support_radial.push_back(-load.radial);
-  rc.support_tangential.push_back(-load.tangential);
+  rc.support_z.push_back(-rc.load_z[0].back());
+  rc.support_radial.push_back(-rc.load_radial[0].back());
+  rc.support_tangential.push_back(-rc.load_tangential[0].back());
   rc.base_vz.push_back(ws.base_vz);
   rc.base_az.push_back(ws.base_az);
   for (std::size_t w = 0; w < model.wind.size(); ++w) rc.wind_z[w].push_back(wind_load_force_z(model, ws, *v.phase, w));
@@ -229,6 +235,8 @@ std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vec
       rc.slewing = spec.scenarios[static_cast<std::size_t>(def.scenario)].slew.has_value();
       rc.in_plane.assign(static_cast<std::size_t>(n), {});
       rc.out_of_plane.assign(static_cast<std::size_t>(n), {});
+      for (auto* series : {&rc.load_x, &rc.load_z, &rc.load_vertical, &rc.load_radial, &rc.load_tangential})
+        series->assign(static_cast<std::size_t>(n), {});
       rc.wind_z.assign(model.wind.size(), {});
     }
     checks_detail::RopeRecorder ropes(model, def.scenario);
@@ -276,6 +284,11 @@ std::vector<RecordedCase> record_governing(const CheckPlan& plan, const std::vec
     rc.min_tension = located.min_tension;
     rc.peak_in_plane = located.peak_in_plane;
     rc.peak_out_of_plane = located.peak_out_of_plane;
+    rc.peak_load_x = located.peak_load_x;
+    rc.peak_load_z = located.peak_load_z;
+    rc.peak_load_vertical = located.peak_load_vertical;
+    rc.peak_load_radial = located.peak_load_radial;
+    rc.peak_load_tangential = located.peak_load_tangential;
     rc.switches = out.switches;
     rc.t_end = out.t_reached;
     rc.status = std::string(status_name(out.status));

@@ -1,6 +1,6 @@
 // Section 6 (cont.), spatial chains: the sway of a governing case in and across the plane of the
-// travel (or of a slewing boom), the force on the support by component, and the plan view (top
-// view) of the hook path of every governing case.
+// travel (or of a slewing boom), the force on the support and the load at each lower pivot by
+// component, and the plan view (top view) of the hook path of every governing case.
 //
 // A plan view is seen from above: the engine's y axis is up and z = x cross y, so with z to the
 // right and x up the page the viewer looks down the y axis (in the boom frame: tangential to the
@@ -8,6 +8,7 @@
 #include "document_build.hpp"
 
 #include <algorithm>
+#include <climits>
 #include <cmath>
 
 #include <fmt/format.h>
@@ -29,15 +30,30 @@ FrameNames frame_names(const RecordedCase& rc) {
   return {"x, along the travel", "z, across the travel"};
 }
 
-/// Limit lines of `kind` at +value and -value (deg or kN by `factor`).
+/// Limit lines of `kind` at +value and -value (deg or kN by `factor`): the limits on every link
+/// and those on a link from `first` to `last`.
 void limit_lines(const Spec& spec, LimitKind kind, double factor, const std::string& unit, bool both_sides,
-                 std::vector<plot::RefLine>& refs, int link = -1) {
+                 std::vector<plot::RefLine>& refs, int first = 0, int last = INT_MAX) {
   for (const auto& l : spec.limits) {
-    if (l.kind != kind || (link >= 0 && l.link >= 0 && l.link != link)) continue;
+    if (l.kind != kind || (l.link >= 0 && (l.link < first || l.link > last))) continue;
     add_ref(refs, {l.value * factor, fmt::format("{} {} {}{}", l.key, num(l.value * factor), unit, link_scope(spec, l)),
                    false});
     if (both_sides) add_ref(refs, {-l.value * factor, "", false});
   }
+}
+
+/// A circle at the located peak `e` (of |series|) of link `link`, on the side the series is on at
+/// the nearest sample, labelled with its value (times `factor`, in `unit`) and time.
+void mark_peak(const Spec& spec, const RecordedCase& rc, const std::vector<double>& series, const Extreme& e,
+               double factor, const std::string& unit, int link, plot::Plot& p) {
+  if (!std::isfinite(e.value) || !std::isfinite(e.time) || series.empty()) return;
+  const auto at = std::lower_bound(rc.t.begin(), rc.t.end(), e.time) - rc.t.begin();
+  const auto k = std::min(static_cast<std::size_t>(at), series.size() - 1);
+  const double value = (series[k] >= 0 ? 1.0 : -1.0) * e.value * factor;
+  const std::string shown = unit == "deg" ? fmt::format("{:.2f}", value) : num(value);
+  p.marks.push_back(
+      {e.time, value, fmt::format("{} {} {} at {:.2f} s", spec.links[static_cast<std::size_t>(link)].name, shown, unit, e.time),
+       link});
 }
 
 /// Sway of every link against time in one direction, with the located peaks marked.
@@ -53,17 +69,8 @@ Figure sway_figure(const Spec& spec, const RecordedCase& rc, const std::string& 
   plot::Axis y{in_plane ? "in-plane sway" : "out-of-plane sway", "deg"};
   y.include_zero = true;
   plot::Plot p = plot::line_chart(in_plane ? "In-plane sway" : "Out-of-plane sway", {"time", "s"}, y, lines, refs);
-  for (std::size_t i = 0; i < peaks.size() && i < series.size(); ++i) {
-    const Extreme& e = peaks[i];
-    if (!std::isfinite(e.value) || !std::isfinite(e.time)) continue;
-    // On the side the link swung to, read from the nearest sample.
-    const auto at = std::lower_bound(rc.t.begin(), rc.t.end(), e.time) - rc.t.begin();
-    const auto k = std::min(static_cast<std::size_t>(at), series[i].size() - 1);
-    const double side = series[i].empty() || series[i][k] >= 0 ? 1.0 : -1.0;
-    p.marks.push_back({e.time, side * e.value * kDeg, fmt::format("{} {:.2f} deg at {:.2f} s", spec.links[i].name,
-                                                                   side * e.value * kDeg, e.time),
-                       static_cast<int>(i)});
-  }
+  for (std::size_t i = 0; i < peaks.size() && i < series.size(); ++i)
+    mark_peak(spec, rc, series[i], peaks[i], kDeg, "deg", static_cast<int>(i), p);
   const std::string plane = rc.slewing ? "the boom's vertical plane (radial)" : "the vertical plane of the travel (x)";
   const std::string across = rc.slewing ? "across the boom's vertical plane (tangential)" : "across the travel (z)";
   return figure(std::move(p),
@@ -87,11 +94,11 @@ std::vector<Figure> support_figures(const Spec& spec, const RecordedCase& rc, co
        false, 1}};
   std::vector<plot::RefLine> hrefs;
   if (rc.slewing) {
-    limit_lines(spec, LimitKind::pivot_load_radial, 1e-3, "kN", true, hrefs, 0);
-    limit_lines(spec, LimitKind::pivot_load_tangential, 1e-3, "kN", true, hrefs, 0);
+    limit_lines(spec, LimitKind::pivot_load_radial, 1e-3, "kN", true, hrefs, 0, 0);
+    limit_lines(spec, LimitKind::pivot_load_tangential, 1e-3, "kN", true, hrefs, 0, 0);
   } else {
-    limit_lines(spec, LimitKind::pivot_load_x, 1e-3, "kN", true, hrefs, 0);
-    limit_lines(spec, LimitKind::pivot_load_z, 1e-3, "kN", true, hrefs, 0);
+    limit_lines(spec, LimitKind::pivot_load_x, 1e-3, "kN", true, hrefs, 0, 0);
+    limit_lines(spec, LimitKind::pivot_load_z, 1e-3, "kN", true, hrefs, 0, 0);
   }
   plot::Axis hy{"horizontal force", "kN"};
   hy.include_zero = true;
@@ -104,7 +111,7 @@ std::vector<Figure> support_figures(const Spec& spec, const RecordedCase& rc, co
   std::vector<double> down(rc.support_y.size());
   for (std::size_t k = 0; k < down.size(); ++k) down[k] = -rc.support_y[k] * 1e-3;
   std::vector<plot::RefLine> vrefs;
-  limit_lines(spec, LimitKind::pivot_load_vertical, 1e-3, "kN", false, vrefs, 0);
+  limit_lines(spec, LimitKind::pivot_load_vertical, 1e-3, "kN", false, vrefs, 0, 0);
   plot::Axis vy{"vertical force, downwards", "kN"};
   vy.include_zero = true;
   out.push_back(figure(plot::line_chart("Vertical force on the support", {"time", "s"}, vy,
@@ -113,6 +120,73 @@ std::vector<Figure> support_figures(const Spec& spec, const RecordedCase& rc, co
                                    "(the weight at rest).",
                                    id),
                        220, 0.5));
+  return out;
+}
+
+/// One component of the pivot load of the lower links, in the frame its limits read it.
+struct LowerComponent {
+  std::string title, axis, component, sense;      ///< figure title, axis name, the component, what + means
+  const std::vector<std::vector<double>>* series;  ///< per link [N]
+  const std::vector<Extreme>* peaks;               ///< per link, max |.| [N]
+  std::vector<LimitKind> limits;                  ///< the limit kinds that bound this component
+};
+
+/// The reaction R at the upper pivot of each link below the top one (the force of the link above
+/// on it) by component, one figure per component with a line per lower link: in the boom frame
+/// (radial, tangential) on a slewing base, else along and across the travel (x, z), and vertical.
+/// One figure per component keeps the count at three whatever the number of links, draws each
+/// link in the colour of its sway, and puts the pivots' loads of one direction, which one limit
+/// bounds, on one scale.
+std::vector<Block> lower_pivot_blocks(const Spec& spec, const RecordedCase& rc, const std::string& id) {
+  const auto n = static_cast<int>(rc.load_vertical.size());
+  if (n < 2) return {};
+  // Without slewing the boom frame is the ground's (r = x, t = z): its radial and tangential
+  // limits bound x and z.
+  const std::vector<LowerComponent> components =
+      rc.slewing
+          ? std::vector<LowerComponent>{{"Radial load at the lower pivots", "radial load", "radial component", "+ outwards", &rc.load_radial,
+                                         &rc.peak_load_radial, {LimitKind::pivot_load_radial}},
+                                        {"Tangential load at the lower pivots", "tangential load",
+                                         "tangential component", "+ in the slewing direction", &rc.load_tangential, &rc.peak_load_tangential,
+                                         {LimitKind::pivot_load_tangential}}}
+          : std::vector<LowerComponent>{
+                {"Load along the travel at the lower pivots", "load along the travel (x)",
+                 "component along the travel (x)", "+ towards +x",
+                 &rc.load_x, &rc.peak_load_x, {LimitKind::pivot_load_x, LimitKind::pivot_load_radial}},
+                {"Load across the travel at the lower pivots", "load across the travel (z)",
+                 "component across the travel (z)", "+ towards +z",
+                 &rc.load_z, &rc.peak_load_z, {LimitKind::pivot_load_z, LimitKind::pivot_load_tangential}}};
+  std::vector<Figure> horizontal;
+  std::vector<Figure> vertical;
+  const auto chart = [&](const LowerComponent& c, bool both_sides) {
+    std::vector<plot::Series> lines;
+    for (int i = 1; i < n; ++i)
+      lines.push_back({spec.links[static_cast<std::size_t>(i)].name, rc.t,
+                       scaled((*c.series)[static_cast<std::size_t>(i)], 1e-3), true, false, i});
+    std::vector<plot::RefLine> refs;
+    for (LimitKind kind : c.limits) limit_lines(spec, kind, 1e-3, "kN", both_sides, refs, 1, n - 1);
+    plot::Axis y{c.axis, "kN"};
+    y.include_zero = true;
+    plot::Plot p = plot::line_chart(c.title, {"time", "s"}, y, lines, refs);
+    for (int i = 1; i < n; ++i) {
+      const auto k = static_cast<std::size_t>(i);
+      if (k < c.peaks->size()) mark_peak(spec, rc, (*c.series)[k], (*c.peaks)[k], 1e-3, "kN", i, p);
+    }
+    return figure(std::move(p),
+                  fmt::format("Case {}: the {} of the force of the link above on each link below the top one, at "
+                              "its upper pivot (the reaction R; the link above feels -R), {}; circles mark the "
+                              "largest |.|, located between the samples.",
+                              id, c.component, c.sense),
+                  220, 0.5);
+  };
+  for (const LowerComponent& c : components) horizontal.push_back(chart(c, true));
+  vertical.push_back(chart({"Vertical load at the lower pivots", "vertical load", "vertical component",
+                            "+ up (at rest the weight below the pivot)",
+                            &rc.load_vertical, &rc.peak_load_vertical, {LimitKind::pivot_load_vertical}},
+                           false));
+  std::vector<Block> out;
+  out.push_back(figures(std::move(horizontal)));
+  out.push_back(figures(std::move(vertical)));
   return out;
 }
 
@@ -155,6 +229,7 @@ std::vector<Block> spatial_case_blocks(const Spec& spec, const RecordedCase& rc,
   std::vector<Block> out;
   out.push_back(figures({sway_figure(spec, rc, id, true), sway_figure(spec, rc, id, false)}));
   out.push_back(figures(support_figures(spec, rc, id)));
+  for (Block& b : lower_pivot_blocks(spec, rc, id)) out.push_back(std::move(b));
   return out;
 }
 

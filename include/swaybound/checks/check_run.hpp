@@ -109,6 +109,11 @@ struct RecordedCase {
   std::vector<double> hook_radial, hook_tangential;  ///< the hook relative to the top pivot, boom frame [m]
   std::vector<double> support_z;                  ///< force on the support across the travel [N]
   std::vector<double> support_radial, support_tangential;  ///< force on the support, boom frame [N]
+  /// Per link, the reaction R at its upper pivot (the force of the body above on it) by component:
+  /// ground frame x, z and vertical (+ up), boom frame radial and tangential (x and z without slewing) [N].
+  std::vector<std::vector<double>> load_x, load_z, load_vertical, load_radial, load_tangential;
+  /// Their extremes per link, max |.|, located as the component limits find them.
+  std::vector<Extreme> peak_load_x, peak_load_z, peak_load_vertical, peak_load_radial, peak_load_tangential;
   std::vector<double> base_vz, base_az;           ///< base velocity [m/s], acceleration [m/s^2] across the travel
   std::vector<std::vector<double>> wind_z;        ///< z component of each wind load's force [N]
   // Ropes of variable length: empty / NaN / -1 for a chain without them.
