@@ -142,20 +142,21 @@ std::vector<Block> lower_pivot_blocks(const Spec& spec, const RecordedCase& rc, 
   if (n < 2) return {};
   // Without slewing the boom frame is the ground's (r = x, t = z): its radial and tangential
   // limits bound x and z.
-  const std::vector<LowerComponent> components =
-      rc.slewing
-          ? std::vector<LowerComponent>{{"Radial load at the lower pivots", "radial load", "radial component", "+ outwards", &rc.load_radial,
-                                         &rc.peak_load_radial, {LimitKind::pivot_load_radial}},
-                                        {"Tangential load at the lower pivots", "tangential load",
-                                         "tangential component", "+ in the slewing direction", &rc.load_tangential, &rc.peak_load_tangential,
-                                         {LimitKind::pivot_load_tangential}}}
-          : std::vector<LowerComponent>{
-                {"Load along the travel at the lower pivots", "load along the travel (x)",
-                 "component along the travel (x)", "+ towards +x",
-                 &rc.load_x, &rc.peak_load_x, {LimitKind::pivot_load_x, LimitKind::pivot_load_radial}},
-                {"Load across the travel at the lower pivots", "load across the travel (z)",
-                 "component across the travel (z)", "+ towards +z",
-                 &rc.load_z, &rc.peak_load_z, {LimitKind::pivot_load_z, LimitKind::pivot_load_tangential}}};
+  std::vector<LowerComponent> components;
+  if (rc.slewing) {
+    components.push_back({"Radial load at the lower pivots", "radial load", "radial component", "+ outwards",
+                          &rc.load_radial, &rc.peak_load_radial, {LimitKind::pivot_load_radial}});
+    components.push_back({"Tangential load at the lower pivots", "tangential load", "tangential component",
+                          "+ in the slewing direction", &rc.load_tangential, &rc.peak_load_tangential,
+                          {LimitKind::pivot_load_tangential}});
+  } else {
+    components.push_back({"Load along the travel at the lower pivots", "load along the travel (x)",
+                          "component along the travel (x)", "+ towards +x", &rc.load_x, &rc.peak_load_x,
+                          {LimitKind::pivot_load_x, LimitKind::pivot_load_radial}});
+    components.push_back({"Load across the travel at the lower pivots", "load across the travel (z)",
+                          "component across the travel (z)", "+ towards +z", &rc.load_z, &rc.peak_load_z,
+                          {LimitKind::pivot_load_z, LimitKind::pivot_load_tangential}});
+  }
   std::vector<Figure> horizontal;
   std::vector<Figure> vertical;
   const auto chart = [&](const LowerComponent& c, bool both_sides) {
@@ -180,10 +181,10 @@ std::vector<Block> lower_pivot_blocks(const Spec& spec, const RecordedCase& rc, 
                   220, 0.5);
   };
   for (const LowerComponent& c : components) horizontal.push_back(chart(c, true));
-  vertical.push_back(chart({"Vertical load at the lower pivots", "vertical load", "vertical component",
-                            "+ up (at rest the weight below the pivot)",
-                            &rc.load_vertical, &rc.peak_load_vertical, {LimitKind::pivot_load_vertical}},
-                           false));
+  const LowerComponent up{"Vertical load at the lower pivots", "vertical load", "vertical component",
+                          "+ up (at rest the weight below the pivot)", &rc.load_vertical, &rc.peak_load_vertical,
+                          {LimitKind::pivot_load_vertical}};
+  vertical.push_back(chart(up, false));
   std::vector<Block> out;
   out.push_back(figures(std::move(horizontal)));
   out.push_back(figures(std::move(vertical)));
