@@ -167,6 +167,34 @@ void grounded_accelerations(const Model& model, Workspace& ws) {
 
 }  // namespace
 
+void free_block_accelerations(const Model& model, Workspace& ws) {
+  const Eigen::Index f = model.free_speeds(), e = model.speeds();
+  for (Eigen::Index a = f; a < e; ++a) ws.accel_x(a) = 0;
+  for (int i = 0; i < model.n; ++i)
+    if (const int c = model.length_coordinate[i]; c >= model.dof) ws.accel_x(model.speed_index(c)) = ws.len_accel[i];
+  for (Eigen::Index a = 0; a < f; ++a) {
+    double r = ws.rhs_x(a);
+    for (Eigen::Index b = f; b < e; ++b) r -= ws.mass_x(a, b) * ws.accel_x(b);
+    ws.rhs_f(a) = r;
+  }
+  ws.accel_f = ws.llt_f.solve(ws.rhs_f);
+  ws.accel_x.head(f) = ws.accel_f;
+}
+
+double drum_forces(const Model& model, Workspace& ws) {
+  double power = 0;
+  for (int i = 0; i < model.n; ++i) {
+    const int c = model.length_coordinate[i];
+    if (c < model.dof) continue;
+    const Eigen::Index row = model.speed_index(c);
+    const double lambda = ws.mass_x.row(row).dot(ws.accel_x) - ws.rhs_x(row);
+    ws.drum_force[i] = -lambda;
+    power += lambda * ws.len_rate[i];
+  }
+  ws.input_power += power;
+  return power;
+}
+
 void general_reactions(const Model& model, Workspace& ws) {
   for (int k = 0; k < model.n; ++k) {
     ws.acc_x[k] = ws.acc0_x[k] + ws.jac_x.row(k).dot(ws.accel_x);
@@ -205,17 +233,7 @@ void evaluate_general(const Model& model, Workspace& ws, const Phase& phase, con
       ground_applied_x = ws.ground_x;
       ground_applied_y = ws.ground_y;
     } else {
-      // Free block: M_ff q_f'' = rhs_f - M_fp q_p'' with the prescribed lengths' known q_p''.
-      for (int a = f; a < e; ++a) ws.accel_x(a) = 0;
-      for (int i = 0; i < n; ++i)
-        if (const int ci = model.length_coordinate[i]; ci >= f) ws.accel_x(ci) = ws.len_accel[i];
-      for (int a = 0; a < f; ++a) {
-        double r = ws.rhs_x(a);
-        for (int b = f; b < e; ++b) r -= ws.mass_x(a, b) * ws.accel_x(b);
-        ws.rhs_f(a) = r;
-      }
-      ws.accel_f = ws.llt_f.solve(ws.rhs_f);
-      ws.accel_x.head(f) = ws.accel_f;
+      free_block_accelerations(model, ws);
     }
     if (need_reactions) general_reactions(model, ws);
   };
@@ -223,14 +241,7 @@ void evaluate_general(const Model& model, Workspace& ws, const Phase& phase, con
   ws.reactions_current = need_reactions;
   pin_friction_fixed_point(model, ws, solve);
 
-  // Axial force each drum holds on a prescribed rope: minus the constraint force along its length.
-  for (int i = 0; i < n; ++i) {
-    const int ci = model.length_coordinate[i];
-    if (ci < f) continue;
-    const double lambda = ws.mass_x.row(ci).dot(ws.accel_x) - ws.rhs_x(ci);
-    ws.drum_force[i] = -lambda;
-    ws.input_power += lambda * ws.len_rate[i];
-  }
+  drum_forces(model, ws);
   if (model.any_pivot_torque)
     for (int i = 0; i < n; ++i) ws.dissipated_power -= ws.tau[i] * (ws.omega[i] - (i > 0 ? ws.omega[i - 1] : 0.0));
   if (ws.base_vx != 0.0 || ws.base_vy != 0.0)

@@ -654,17 +654,7 @@ void evaluate_spatial_ropes(const Model& model, Workspace& ws, const Phase& phas
       ws.force_z[1] += ground.z - ground_applied.z;
       ground_applied = ground;
     } else {
-      // Free block: M_ff u_f' = rhs_f - M_fp u_p' with the prescribed lengths' known accelerations.
-      for (Eigen::Index a = free; a < speeds; ++a) ws.accel_x(a) = 0;
-      for (int i = 0; i < n; ++i)
-        if (const int c = model.length_coordinate[i]; c >= model.dof) ws.accel_x(model.speed_index(c)) = ws.len_accel[i];
-      for (Eigen::Index a = 0; a < free; ++a) {
-        double v = ws.rhs_x(a);
-        for (Eigen::Index b = free; b < speeds; ++b) v -= ws.mass_x(a, b) * ws.accel_x(b);
-        ws.rhs_f(a) = v;
-      }
-      ws.accel_f = ws.llt_f.solve(ws.rhs_f);
-      ws.accel_x.head(free) = ws.accel_f;
+      free_block_accelerations(model, ws);
     }
     if (need_reactions) spatial_reactions(model, ws);
   };
@@ -672,16 +662,7 @@ void evaluate_spatial_ropes(const Model& model, Workspace& ws, const Phase& phas
   ws.reactions_current = need_reactions;
   pin_friction_fixed_point(model, ws, solve);
 
-  // Axial force each drum holds on a prescribed rope: minus the constraint force along its length.
-  for (int i = 0; i < n; ++i) {
-    const int c = model.length_coordinate[i];
-    if (c < model.dof) continue;
-    const Eigen::Index row = model.speed_index(c);
-    const double lambda = ws.mass_x.row(row).dot(ws.accel_x) - ws.rhs_x(row);
-    ws.drum_force[i] = -lambda;
-    ws.input_power += lambda * ws.len_rate[i];
-    drum += lambda * ws.len_rate[i];
-  }
+  drum += drum_forces(model, ws);
   spatial_powers_and_rates(model, ws, phase, x, ws.accel_x, drum, dxdt);
 }
 

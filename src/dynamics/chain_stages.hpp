@@ -20,6 +20,15 @@ void rope_forces(const Model& model, Workspace& ws, double* q);
 /// The right-hand side of a model with ropes of variable length (see chain_general.cpp).
 void evaluate_general(const Model& model, Workspace& ws, const Phase& phase, const double* x, double t, double* dxdt);
 
+/// The free block's accelerations (angles or tangent rates, elastic lengths) into ws.accel_x from
+/// ws.rhs_x and the factor ws.llt_f, with the prescribed lengths' known accelerations moved to
+/// the right: M_ff a_f = rhs_f - M_fp a_p (in generalised speeds, Model::speed_index).
+void free_block_accelerations(const Model& model, Workspace& ws);
+
+/// The axial force each drum holds on a prescribed rope (minus the constraint force along its
+/// length) into ws.drum_force; the drums' power into ws.input_power, and returned [W].
+double drum_forces(const Model& model, Workspace& ws);
+
 /// Pivot reactions of the last general evaluation from its accelerations ws.accel_x.
 void general_reactions(const Model& model, Workspace& ws);
 

@@ -18,8 +18,10 @@
 #include "swaybound/modal/modes.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/spec.hpp"
+#include "../support/componentwise.hpp"
 
 using namespace swaybound;
+using swaybound::testing::relative_gap;
 
 namespace {
 
@@ -75,16 +77,6 @@ Trace run(const Model& model, const InitialState& start) {
   REQUIRE(out.status == RunStatus::ok);
   CHECK(out.max_audit_residual < 1e-8 * model.energy_scale);
   return tr;
-}
-
-double relative_gap(const std::vector<double>& a, const std::vector<double>& b) {
-  REQUIRE(a.size() == b.size());
-  double gap = 0, scale = 0;
-  for (std::size_t k = 0; k < a.size(); ++k) {
-    gap = std::max(gap, std::fabs(a[k] - b[k]));
-    scale = std::max(scale, std::fabs(b[k]));
-  }
-  return gap / std::max(scale, 1e-300);
 }
 
 }  // namespace

@@ -18,8 +18,10 @@
 #include "swaybound/modal/modes.hpp"
 #include "swaybound/model/model.hpp"
 #include "swaybound/spec.hpp"
+#include "../support/componentwise.hpp"
 
 using namespace swaybound;
+using swaybound::testing::relative_gap;
 
 namespace {
 
@@ -90,17 +92,6 @@ Sampled run(const Model& model, const std::string& axis, const InitialState& sta
   const RunOutcome out = simulate_case(model, ws, 0, start, settings(10.0, 20.0), {}, on_sample);
   REQUIRE(out.status == RunStatus::ok);
   return s;
-}
-
-/// Largest |a - b| over the samples, relative to the largest |b|.
-double relative_gap(const std::vector<double>& a, const std::vector<double>& b) {
-  REQUIRE(a.size() == b.size());
-  double gap = 0, scale = 0;
-  for (std::size_t k = 0; k < a.size(); ++k) {
-    gap = std::max(gap, std::fabs(a[k] - b[k]));
-    scale = std::max(scale, std::fabs(b[k]));
-  }
-  return gap / std::max(scale, 1e-300);
 }
 
 }  // namespace

@@ -14,6 +14,14 @@ inline double max_abs(const std::vector<double>& v) {
   return s;
 }
 
+/// The largest |a - b| over two series of samples, relative to the largest |b| (REQUIREs equal sizes).
+inline double relative_gap(const std::vector<double>& a, const std::vector<double>& b) {
+  REQUIRE(a.size() == b.size());
+  double gap = 0;
+  for (std::size_t k = 0; k < a.size(); ++k) gap = std::max(gap, std::fabs(a[k] - b[k]));
+  return gap / std::max(max_abs(b), 1e-300);
+}
+
 /// Component-wise comparison: |a - b| <= rel * max(|b|, scale), scale = the largest magnitude of
 /// the reference quantity at this state. The floor keeps a component that is small only because of
 /// cancellation (e.g. a reaction component near zero while the others are ~100 N) from demanding
