@@ -19,6 +19,7 @@
 #include "swaybound/model/model.hpp"
 #include "swaybound/spec.hpp"
 #include "../support/componentwise.hpp"
+#include "../support/run_settings.hpp"
 
 using namespace swaybound;
 using swaybound::testing::relative_gap;
@@ -48,14 +49,7 @@ cases: {{duration: 30 s, initial: [{{single: {{theta: [0]}}}}]}}
                      fmt::arg("motion", motion), fmt::arg("limit", accel_limit));
 }
 
-RunSettings settings(double duration, double rate) {
-  RunSettings s;
-  s.duration = duration;
-  s.rtol = 1e-10;
-  s.atol = 1e-12;
-  s.output_rate = rate;
-  return s;
-}
+RunSettings settings(double duration, double rate) { return testing::run_settings(duration, rate); }
 
 struct Trace {
   std::vector<double> t, hook, base_x, base_v, base_a, across;

@@ -19,6 +19,7 @@
 #include "swaybound/model/model.hpp"
 #include "swaybound/spec.hpp"
 #include "../support/componentwise.hpp"
+#include "../support/run_settings.hpp"
 
 using namespace swaybound;
 using swaybound::testing::relative_gap;
@@ -53,14 +54,7 @@ std::string hoist_spec(const std::string& motion, const std::string& axis, bool 
   return yaml;
 }
 
-RunSettings settings(double duration, double rate) {
-  RunSettings s;
-  s.duration = duration;
-  s.rtol = 1e-10;
-  s.atol = 1e-12;
-  s.output_rate = rate;
-  return s;
-}
+RunSettings settings(double duration, double rate) { return testing::run_settings(duration, rate); }
 
 struct Sampled {
   std::vector<double> t, angle0, angle1, rope_force, length, reaction_h, reaction_y;
