@@ -421,7 +421,12 @@ struct FixedFactor {
     fill_mass(model, ws, m);
     llt.compute(m);
   }
-  void solve(const Eigen::VectorXd& rhs, Eigen::VectorXd& out) const { out = llt.solve(Eigen::Matrix<double, M, 1>(rhs)); }
+  void solve(const Eigen::VectorXd& rhs, Eigen::VectorXd& out) const {
+    // Solved in place in a fixed-size vector (the unrolled triangular solves), then copied out.
+    Eigen::Matrix<double, M, 1> v = rhs;
+    llt.solveInPlace(v);
+    out = v;
+  }
 };
 struct DynamicFactor {
   Workspace* ws;
