@@ -14,6 +14,7 @@
 
 #include "../../src/report/report_model.hpp"
 #include "../support/close_to.hpp"
+#include "../support/governing_figures.hpp"
 #include "swaybound/checks/check_run.hpp"
 #include "swaybound/report/document.hpp"
 #include "swaybound/spec.hpp"
@@ -38,19 +39,11 @@ Packet packet(const std::string& yaml) {
   o.audit = false;
   o.jobs = 1;
   p.report = run_check(p.spec, o);
-  const report_doc::Document d = report_doc::build_document(p.spec, p.report, {"2025-02-03", "", ""}, nullptr);
-  for (const auto& s : d.sections)
-    if (s.id == "governing")
-      for (const auto& b : s.blocks)
-        for (const auto& f : b.figures) p.figures.push_back(f);
+  p.figures = testing::governing_figures(p.spec, p.report);
   return p;
 }
 
-const report_doc::Figure* titled(const Packet& p, const std::string& title) {
-  for (const auto& f : p.figures)
-    if (f.plot.title == title) return &f;
-  return nullptr;
-}
+const report_doc::Figure* titled(const Packet& p, const std::string& title) { return testing::titled(p.figures, title); }
 
 std::size_t lower_pivot_figures(const Packet& p) {
   return static_cast<std::size_t>(std::count_if(p.figures.begin(), p.figures.end(), [](const report_doc::Figure& f) {

@@ -11,6 +11,7 @@
 #include <vector>
 
 #include "../../src/report/report_model.hpp"
+#include "../support/governing_figures.hpp"
 #include "swaybound/checks/check_run.hpp"
 #include "swaybound/report/document.hpp"
 #include "swaybound/report/results.hpp"
@@ -47,19 +48,11 @@ Plots plots(const std::string& yaml) {
   o.audit = false;
   Plots p;
   p.report = run_check(spec, o);
-  const report_doc::Document d = report_doc::build_document(spec, p.report, {"2025-02-03", "", ""}, nullptr);
-  for (const auto& s : d.sections)
-    if (s.id == "governing")
-      for (const auto& b : s.blocks)
-        for (const auto& f : b.figures) p.figures.push_back(f);
+  p.figures = testing::governing_figures(spec, p.report);
   return p;
 }
 
-const report_doc::Figure* titled(const Plots& p, const std::string& title) {
-  for (const auto& f : p.figures)
-    if (f.plot.title == title) return &f;
-  return nullptr;
-}
+const report_doc::Figure* titled(const Plots& p, const std::string& title) { return testing::titled(p.figures, title); }
 
 std::vector<double> in_degrees(const std::vector<double>& v) {
   std::vector<double> out;
